@@ -1,0 +1,75 @@
+import type { ComplexMatrix } from '../linear-algebra/complex-matrix.js';
+
+/** CERTIFIED: gap ≤ requested; LIMIT_REACHED: a valid bound, gap above the request; INFEASIBLE: Farkas certificate; NUMERICAL_ERROR: no bound. */
+export type SolveStatus = 'CERTIFIED' | 'LIMIT_REACHED' | 'INFEASIBLE' | 'NUMERICAL_ERROR';
+export type StopLimit = 'iterations' | 'time' | 'cancelled';
+
+/** Matrices on the wire and in JSON files: row-major, im omitted for real matrices. */
+export interface MatrixJson {
+  rows: number;
+  cols: number;
+  re: number[];
+  im?: number[];
+}
+
+export interface SolverSettings {
+  /** Requested certified gap upper − lower, in bits. */
+  gapTolerance: number;
+  maxIterations: number;
+  timeLimitMs: number;
+}
+
+export interface SolveControl {
+  /** Checked once per Frank–Wolfe iteration; true stops the run with LIMIT_REACHED/cancelled. */
+  isCancelled?: () => boolean;
+  /** A density operator on H_A ⊗ H_B to start from (projected onto the feasible set first). */
+  warmStart?: ComplexMatrix;
+}
+
+/** Everything a third party needs, besides the problem, to recompute the bound. */
+export interface Certificate {
+  inputHash: string;
+  entropy: string;
+  alpha: number | null;
+  /** Full-rank linearization point ρ' on H_A ⊗ H_B. */
+  linearizationState: MatrixJson;
+  /** Sandwiched-up only: τ' per announcement branch, block diagonal in that branch's key map, on H_c. */
+  referenceStates?: MatrixJson[];
+  /** y⁺_i ≥ 0 (attached to lower_i) and y⁻_i ≥ 0 (attached to upper_i), one per constraint. */
+  multipliersLower: number[];
+  multipliersUpper: number[];
+  /** The bound claimed: recomputed value minus margin must not fall below it. */
+  claimedBound: number;
+  toleranceMargin: number;
+}
+
+export interface InfeasibilityCertificate {
+  multipliersLower: number[];
+  multipliersUpper: number[];
+  /** Σ y⁺ℓ − Σ y⁻u − λ_max(Σ yΓ) > 0 proves no density operator meets the constraints. */
+  violation: number;
+  /** Labels of the constraints with the largest multipliers. */
+  dominantConstraints: string[];
+}
+
+export interface SolveResult {
+  status: SolveStatus;
+  limit?: StopLimit;
+  message?: string;
+  entropy: string;
+  alpha: number | null;
+  certifiedLowerBound: number | null;
+  upperBound: number | null;
+  gap: number | null;
+  toleranceMargin: number | null;
+  statisticalSlack: number | null;
+  maxConstraintViolation: number | null;
+  iterations: number;
+  seconds: number;
+  oracleSeconds: number;
+  inputHash: string;
+  certificate: Certificate | null;
+  infeasibility?: InfeasibilityCertificate;
+  /** The final feasible iterate (for warm starts). */
+  finalState?: MatrixJson;
+}

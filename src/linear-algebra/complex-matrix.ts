@@ -1,0 +1,415 @@
+// Dense complex matrices stored row-major as two Float64Arrays (real and imaginary parts).
+
+export class ComplexMatrix {
+  readonly rows: number;
+  readonly cols: number;
+  readonly re: Float64Array;
+  readonly im: Float64Array;
+
+  constructor(rows: number, cols: number, re?: Float64Array, im?: Float64Array) {
+    this.rows = rows;
+    this.cols = cols;
+    this.re = re ?? new Float64Array(rows * cols);
+    this.im = im ?? new Float64Array(rows * cols);
+    if (this.re.length !== rows * cols || this.im.length !== rows * cols) {
+      throw new RangeError(`ComplexMatrix: storage length does not match ${rows}x${cols}`);
+    }
+  }
+
+  static zeros(rows: number, cols: number = rows): ComplexMatrix {
+    return new ComplexMatrix(rows, cols);
+  }
+
+  static identity(n: number): ComplexMatrix {
+    const m = new ComplexMatrix(n, n);
+    for (let i = 0; i < n; i++) m.re[i * n + i] = 1;
+    return m;
+  }
+
+  static diagonal(values: ArrayLike<number>): ComplexMatrix {
+    const n = values.length;
+    const m = new ComplexMatrix(n, n);
+    for (let i = 0; i < n; i++) m.re[i * n + i] = values[i];
+    return m;
+  }
+
+  /** Builds from nested arrays of reals, or of [re, im] pairs. */
+  static from(entries: ReadonlyArray<ReadonlyArray<number | readonly [number, number]>>): ComplexMatrix {
+    const rows = entries.length;
+    const cols = rows === 0 ? 0 : entries[0].length;
+    const m = new ComplexMatrix(rows, cols);
+    for (let i = 0; i < rows; i++) {
+      if (entries[i].length !== cols) throw new RangeError('ComplexMatrix.from: ragged rows');
+      for (let j = 0; j < cols; j++) {
+        const e = entries[i][j];
+        if (typeof e === 'number') m.re[i * cols + j] = e;
+        else {
+          m.re[i * cols + j] = e[0];
+          m.im[i * cols + j] = e[1];
+        }
+      }
+    }
+    return m;
+  }
+
+  get isSquare(): boolean {
+    return this.rows === this.cols;
+  }
+
+  clone(): ComplexMatrix {
+    return new ComplexMatrix(this.rows, this.cols, this.re.slice(), this.im.slice());
+  }
+
+  getRe(i: number, j: number): number {
+    return this.re[i * this.cols + j];
+  }
+
+  getIm(i: number, j: number): number {
+    return this.im[i * this.cols + j];
+  }
+
+  set(i: number, j: number, re: number, im = 0): void {
+    this.re[i * this.cols + j] = re;
+    this.im[i * this.cols + j] = im;
+  }
+}
+
+function assertSameShape(a: ComplexMatrix, b: ComplexMatrix, op: string): void {
+  if (a.rows !== b.rows || a.cols !== b.cols) {
+    throw new RangeError(`${op}: shapes ${a.rows}x${a.cols} and ${b.rows}x${b.cols} differ`);
+  }
+}
+
+export function add(a: ComplexMatrix, b: ComplexMatrix): ComplexMatrix {
+  assertSameShape(a, b, 'add');
+  const c = new ComplexMatrix(a.rows, a.cols);
+  for (let k = 0; k < a.re.length; k++) {
+    c.re[k] = a.re[k] + b.re[k];
+    c.im[k] = a.im[k] + b.im[k];
+  }
+  return c;
+}
+
+export function subtract(a: ComplexMatrix, b: ComplexMatrix): ComplexMatrix {
+  assertSameShape(a, b, 'subtract');
+  const c = new ComplexMatrix(a.rows, a.cols);
+  for (let k = 0; k < a.re.length; k++) {
+    c.re[k] = a.re[k] - b.re[k];
+    c.im[k] = a.im[k] - b.im[k];
+  }
+  return c;
+}
+
+export function scale(a: ComplexMatrix, s: number): ComplexMatrix {
+  const c = new ComplexMatrix(a.rows, a.cols);
+  for (let k = 0; k < a.re.length; k++) {
+    c.re[k] = a.re[k] * s;
+    c.im[k] = a.im[k] * s;
+  }
+  return c;
+}
+
+/** In place: target += s * a. */
+export function addScaledInPlace(target: ComplexMatrix, a: ComplexMatrix, s: number): void {
+  assertSameShape(target, a, 'addScaledInPlace');
+  for (let k = 0; k < a.re.length; k++) {
+    target.re[k] += s * a.re[k];
+    target.im[k] += s * a.im[k];
+  }
+}
+
+/** Linear combination Σ s_i A_i of same-shape matrices. */
+export function linearCombination(coefficients: ArrayLike<number>, matrices: readonly ComplexMatrix[]): ComplexMatrix {
+  if (matrices.length === 0) throw new RangeError('linearCombination: no matrices');
+  const c = new ComplexMatrix(matrices[0].rows, matrices[0].cols);
+  for (let i = 0; i < matrices.length; i++) addScaledInPlace(c, matrices[i], coefficients[i]);
+  return c;
+}
+
+export function adjoint(a: ComplexMatrix): ComplexMatrix {
+  const c = new ComplexMatrix(a.cols, a.rows);
+  for (let i = 0; i < a.rows; i++) {
+    for (let j = 0; j < a.cols; j++) {
+      c.re[j * a.rows + i] = a.re[i * a.cols + j];
+      c.im[j * a.rows + i] = -a.im[i * a.cols + j];
+    }
+  }
+  return c;
+}
+
+/** C = A·B. */
+export function multiply(a: ComplexMatrix, b: ComplexMatrix): ComplexMatrix {
+  if (a.cols !== b.rows) throw new RangeError(`multiply: ${a.rows}x${a.cols} times ${b.rows}x${b.cols}`);
+  const n = a.rows;
+  const m = b.cols;
+  const p = a.cols;
+  const c = new ComplexMatrix(n, m);
+  const cr = c.re;
+  const ci = c.im;
+  const ar = a.re;
+  const ai = a.im;
+  const br = b.re;
+  const bi = b.im;
+  // i-k-j loop order streams rows of B and C contiguously.
+  for (let i = 0; i < n; i++) {
+    const cRow = i * m;
+    for (let k = 0; k < p; k++) {
+      const xr = ar[i * p + k];
+      const xi = ai[i * p + k];
+      if (xr === 0 && xi === 0) continue;
+      const bRow = k * m;
+      for (let j = 0; j < m; j++) {
+        const yr = br[bRow + j];
+        const yi = bi[bRow + j];
+        cr[cRow + j] += xr * yr - xi * yi;
+        ci[cRow + j] += xr * yi + xi * yr;
+      }
+    }
+  }
+  return c;
+}
+
+/** C = A·B†. */
+export function multiplyAdjointRight(a: ComplexMatrix, b: ComplexMatrix): ComplexMatrix {
+  if (a.cols !== b.cols) throw new RangeError(`multiplyAdjointRight: ${a.rows}x${a.cols} times (${b.rows}x${b.cols})†`);
+  const n = a.rows;
+  const m = b.rows;
+  const p = a.cols;
+  const c = new ComplexMatrix(n, m);
+  for (let i = 0; i < n; i++) {
+    for (let j = 0; j < m; j++) {
+      let sr = 0;
+      let si = 0;
+      for (let k = 0; k < p; k++) {
+        const xr = a.re[i * p + k];
+        const xi = a.im[i * p + k];
+        const yr = b.re[j * p + k];
+        const yi = -b.im[j * p + k];
+        sr += xr * yr - xi * yi;
+        si += xr * yi + xi * yr;
+      }
+      c.re[i * m + j] = sr;
+      c.im[i * m + j] = si;
+    }
+  }
+  return c;
+}
+
+/** C = A†·B. */
+export function multiplyAdjointLeft(a: ComplexMatrix, b: ComplexMatrix): ComplexMatrix {
+  if (a.rows !== b.rows) throw new RangeError(`multiplyAdjointLeft: (${a.rows}x${a.cols})† times ${b.rows}x${b.cols}`);
+  const n = a.cols;
+  const m = b.cols;
+  const p = a.rows;
+  const c = new ComplexMatrix(n, m);
+  for (let k = 0; k < p; k++) {
+    for (let i = 0; i < n; i++) {
+      const xr = a.re[k * n + i];
+      const xi = -a.im[k * n + i];
+      if (xr === 0 && xi === 0) continue;
+      for (let j = 0; j < m; j++) {
+        const yr = b.re[k * m + j];
+        const yi = b.im[k * m + j];
+        c.re[i * m + j] += xr * yr - xi * yi;
+        c.im[i * m + j] += xr * yi + xi * yr;
+      }
+    }
+  }
+  return c;
+}
+
+/** K·X·K† for a Kraus-type conjugation. */
+export function conjugate(k: ComplexMatrix, x: ComplexMatrix): ComplexMatrix {
+  return multiplyAdjointRight(multiply(k, x), k);
+}
+
+/** K†·X·K, the adjoint (Heisenberg-picture) conjugation. */
+export function conjugateAdjoint(k: ComplexMatrix, x: ComplexMatrix): ComplexMatrix {
+  return multiplyAdjointLeft(k, multiply(x, k));
+}
+
+export function kron(a: ComplexMatrix, b: ComplexMatrix): ComplexMatrix {
+  const rows = a.rows * b.rows;
+  const cols = a.cols * b.cols;
+  const c = new ComplexMatrix(rows, cols);
+  for (let i = 0; i < a.rows; i++) {
+    for (let j = 0; j < a.cols; j++) {
+      const xr = a.re[i * a.cols + j];
+      const xi = a.im[i * a.cols + j];
+      if (xr === 0 && xi === 0) continue;
+      for (let k = 0; k < b.rows; k++) {
+        for (let l = 0; l < b.cols; l++) {
+          const yr = b.re[k * b.cols + l];
+          const yi = b.im[k * b.cols + l];
+          const idx = (i * b.rows + k) * cols + j * b.cols + l;
+          c.re[idx] = xr * yr - xi * yi;
+          c.im[idx] = xr * yi + xi * yr;
+        }
+      }
+    }
+  }
+  return c;
+}
+
+/** Tr_B of an operator on H_A ⊗ H_B (index a·dB + b). */
+export function partialTraceB(x: ComplexMatrix, dA: number, dB: number): ComplexMatrix {
+  if (x.rows !== dA * dB || x.cols !== dA * dB) throw new RangeError('partialTraceB: dimension mismatch');
+  const d = dA * dB;
+  const c = new ComplexMatrix(dA, dA);
+  for (let a = 0; a < dA; a++) {
+    for (let a2 = 0; a2 < dA; a2++) {
+      let sr = 0;
+      let si = 0;
+      for (let b = 0; b < dB; b++) {
+        const idx = (a * dB + b) * d + a2 * dB + b;
+        sr += x.re[idx];
+        si += x.im[idx];
+      }
+      c.re[a * dA + a2] = sr;
+      c.im[a * dA + a2] = si;
+    }
+  }
+  return c;
+}
+
+/** Tr_A of an operator on H_A ⊗ H_B (index a·dB + b). */
+export function partialTraceA(x: ComplexMatrix, dA: number, dB: number): ComplexMatrix {
+  if (x.rows !== dA * dB || x.cols !== dA * dB) throw new RangeError('partialTraceA: dimension mismatch');
+  const d = dA * dB;
+  const c = new ComplexMatrix(dB, dB);
+  for (let b = 0; b < dB; b++) {
+    for (let b2 = 0; b2 < dB; b2++) {
+      let sr = 0;
+      let si = 0;
+      for (let a = 0; a < dA; a++) {
+        const idx = (a * dB + b) * d + a * dB + b2;
+        sr += x.re[idx];
+        si += x.im[idx];
+      }
+      c.re[b * dB + b2] = sr;
+      c.im[b * dB + b2] = si;
+    }
+  }
+  return c;
+}
+
+export function trace(a: ComplexMatrix): { re: number; im: number } {
+  let re = 0;
+  let im = 0;
+  const n = Math.min(a.rows, a.cols);
+  for (let i = 0; i < n; i++) {
+    re += a.re[i * a.cols + i];
+    im += a.im[i * a.cols + i];
+  }
+  return { re, im };
+}
+
+/** Re Tr(A·B) = Re ⟨A†, B⟩; for Hermitian A and B this is the real inner product ⟨A, B⟩. */
+export function traceProductReal(a: ComplexMatrix, b: ComplexMatrix): number {
+  if (a.cols !== b.rows || a.rows !== b.cols) throw new RangeError('traceProductReal: shape mismatch');
+  let s = 0;
+  for (let i = 0; i < a.rows; i++) {
+    for (let k = 0; k < a.cols; k++) {
+      const x = i * a.cols + k;
+      const y = k * b.cols + i;
+      s += a.re[x] * b.re[y] - a.im[x] * b.im[y];
+    }
+  }
+  return s;
+}
+
+/** (A + A†)/2. */
+export function hermitianPart(a: ComplexMatrix): ComplexMatrix {
+  if (!a.isSquare) throw new RangeError('hermitianPart: matrix is not square');
+  const n = a.rows;
+  const c = new ComplexMatrix(n, n);
+  for (let i = 0; i < n; i++) {
+    for (let j = 0; j < n; j++) {
+      c.re[i * n + j] = 0.5 * (a.re[i * n + j] + a.re[j * n + i]);
+      c.im[i * n + j] = 0.5 * (a.im[i * n + j] - a.im[j * n + i]);
+    }
+  }
+  return c;
+}
+
+export function frobeniusNorm(a: ComplexMatrix): number {
+  let s = 0;
+  for (let k = 0; k < a.re.length; k++) s += a.re[k] * a.re[k] + a.im[k] * a.im[k];
+  return Math.sqrt(s);
+}
+
+/** max |A_ij - (A†)_ij| relative to the Frobenius norm (0 for the zero matrix). */
+export function hermiticityDefect(a: ComplexMatrix): number {
+  if (!a.isSquare) return Infinity;
+  const n = a.rows;
+  let worst = 0;
+  for (let i = 0; i < n; i++) {
+    for (let j = i; j < n; j++) {
+      const dr = a.re[i * n + j] - a.re[j * n + i];
+      const di = a.im[i * n + j] + a.im[j * n + i];
+      worst = Math.max(worst, Math.hypot(dr, di));
+    }
+  }
+  const norm = frobeniusNorm(a);
+  return norm === 0 ? 0 : worst / norm;
+}
+
+/** Columns [start, end) as a new matrix. */
+export function columns(a: ComplexMatrix, start: number, end: number): ComplexMatrix {
+  const w = end - start;
+  const c = new ComplexMatrix(a.rows, w);
+  for (let i = 0; i < a.rows; i++) {
+    for (let j = 0; j < w; j++) {
+      c.re[i * w + j] = a.re[i * a.cols + start + j];
+      c.im[i * w + j] = a.im[i * a.cols + start + j];
+    }
+  }
+  return c;
+}
+
+/** Horizontal concatenation [A | B | ...] of matrices with equal row counts. */
+export function concatColumns(parts: readonly ComplexMatrix[], rows: number): ComplexMatrix {
+  const cols = parts.reduce((s, p) => s + p.cols, 0);
+  const c = new ComplexMatrix(rows, cols);
+  let offset = 0;
+  for (const p of parts) {
+    if (p.rows !== rows) throw new RangeError('concatColumns: row counts differ');
+    for (let i = 0; i < rows; i++) {
+      for (let j = 0; j < p.cols; j++) {
+        c.re[i * cols + offset + j] = p.re[i * p.cols + j];
+        c.im[i * cols + offset + j] = p.im[i * p.cols + j];
+      }
+    }
+    offset += p.cols;
+  }
+  return c;
+}
+
+/** Block-diagonal direct sum of square matrices. */
+export function directSum(blocks: readonly ComplexMatrix[]): ComplexMatrix {
+  const n = blocks.reduce((s, b) => s + b.rows, 0);
+  const c = new ComplexMatrix(n, n);
+  let offset = 0;
+  for (const b of blocks) {
+    for (let i = 0; i < b.rows; i++) {
+      for (let j = 0; j < b.cols; j++) {
+        c.re[(offset + i) * n + offset + j] = b.re[i * b.cols + j];
+        c.im[(offset + i) * n + offset + j] = b.im[i * b.cols + j];
+      }
+    }
+    offset += b.rows;
+  }
+  return c;
+}
+
+/** Square sub-block A[start:start+size, start:start+size]. */
+export function diagonalBlock(a: ComplexMatrix, start: number, size: number): ComplexMatrix {
+  const c = new ComplexMatrix(size, size);
+  for (let i = 0; i < size; i++) {
+    for (let j = 0; j < size; j++) {
+      c.re[i * size + j] = a.re[(start + i) * a.cols + start + j];
+      c.im[i * size + j] = a.im[(start + i) * a.cols + start + j];
+    }
+  }
+  return c;
+}
