@@ -1,4 +1,7 @@
-import { ComplexMatrix, hermitianPart } from './complex-matrix.js';
+// Hermitian eigensolvers: Householder tridiagonalisation + implicit QL (the default for all but tiny
+// sizes), cyclic complex Jacobi (tiny sizes), and an ml-matrix real-embedding path kept for comparison.
+import { EigenvalueDecomposition, Matrix } from 'ml-matrix';
+import { ComplexMatrix } from './complex-matrix.js';
 
 /** Eigendecomposition A = V·diag(values)·V† of a Hermitian matrix; values ascending, eigenvectors in columns. */
 export interface HermitianEigen {
@@ -6,18 +9,60 @@ export interface HermitianEigen {
   vectors: ComplexMatrix;
 }
 
+/** Unit roundoff of IEEE double precision, u = 2^-53. */
+export const UNIT_ROUNDOFF = 2 ** -53;
+
+/** Largest size for which `eigh` uses Jacobi; measured crossover (see src/bench/linear-algebra.ts). */
+export const JACOBI_MAX_SIZE = 3;
+
+/** Jacobi sweep limit: quadratic convergence needs about 6–10 sweeps; more means a broken input. */
 const MAX_SWEEPS = 60;
+
+/** QL iterations allowed per eigenvalue before giving up (typically 1–3 are needed; LAPACK allows 30). */
+const MAX_QL_ITERATIONS_PER_EIGENVALUE = 30;
+
+/** Checks shape and finiteness; every eigensolver entry point calls this first. */
+export function assertFiniteSquare(a: ComplexMatrix, caller: string): void {
+  if (!a.isSquare) throw new RangeError(`${caller}: matrix is ${a.rows}x${a.cols}, not square`);
+  const n = a.rows;
+  for (let k = 0; k < a.re.length; k++) {
+    if (!Number.isFinite(a.re[k]) || !Number.isFinite(a.im[k])) {
+      const i = Math.floor(k / n);
+      const j = k - i * n;
+      const bad = Number.isFinite(a.re[k]) ? a.im[k] : a.re[k];
+      throw new RangeError(`${caller}: entry (${i}, ${j}) is not finite (${bad})`);
+    }
+  }
+}
+
+/** Largest |entry| rounded to a power of two, so that scaling by it is exact; 0 for the zero matrix. */
+function powerOfTwoScale(re: Float64Array, im: Float64Array): number {
+  let largest = 0;
+  for (let k = 0; k < re.length; k++) {
+    const r = Math.abs(re[k]);
+    const i = Math.abs(im[k]);
+    if (r > largest) largest = r;
+    if (i > largest) largest = i;
+  }
+  if (largest === 0) return 0;
+  return 2 ** Math.round(Math.log2(largest));
+}
 
 /**
  * Cyclic complex Jacobi method: slow for large d but accurate to high relative precision;
  * the input is symmetrised first because a rounding-level non-Hermitian part would bias it.
  */
 export function eighJacobi(input: ComplexMatrix): HermitianEigen {
-  if (!input.isSquare) throw new RangeError(`eigh: matrix is ${input.rows}x${input.cols}, not square`);
+  assertFiniteSquare(input, 'eigh');
   const n = input.rows;
-  const a = hermitianPart(input);
-  const ar = a.re;
-  const ai = a.im;
+  const ar = new Float64Array(n * n);
+  const ai = new Float64Array(n * n);
+  for (let i = 0; i < n; i++) {
+    for (let j = 0; j < n; j++) {
+      ar[i * n + j] = 0.5 * (input.re[i * n + j] + input.re[j * n + i]);
+      ai[i * n + j] = 0.5 * (input.im[i * n + j] - input.im[j * n + i]);
+    }
+  }
   const v = ComplexMatrix.identity(n);
   const vr = v.re;
   const vi = v.im;
@@ -105,7 +150,499 @@ export function eighJacobi(input: ComplexMatrix): HermitianEigen {
   return { values, vectors };
 }
 
-/** The project's Hermitian eigensolver. */
+/**
+ * The state after Householder tridiagonalisation of the (scaled, symmetrised) input:
+ * T = D·T_real·D† with T_real real symmetric tridiagonal (diagonal `diagonal`, subdiagonal `offDiagonal`,
+ * offDiagonal[i] couples i and i+1, last entry 0), D = diag(phase), A = Q·T·Q†, Q = H_0·H_1···H_{n-3},
+ * H_k = 1 − tau_k·u_k·u_k† with u_k stored in row k, columns k+1..n−1 of (work.re, work.im).
+ */
+interface Tridiagonal {
+  n: number;
+  workRe: Float64Array;
+  workIm: Float64Array;
+  tau: Float64Array;
+  diagonal: Float64Array;
+  offDiagonal: Float64Array;
+  phaseRe: Float64Array;
+  phaseIm: Float64Array;
+  subRe: Float64Array;
+  subIm: Float64Array;
+  pRe: Float64Array;
+  pIm: Float64Array;
+  /** QL rotations, row j = j-th eigenvector of T_real. */
+  rotations: Float64Array;
+}
+
+/** Scratch buffers reused across calls of the same size (the optimiser calls eigh thousands of times). */
+const workspaces = new Map<number, Tridiagonal>();
+
+/** Distinct sizes whose scratch buffers are kept; beyond this the cache is cleared. */
+const MAX_CACHED_WORKSPACES = 16;
+
+function workspaceFor(n: number): Tridiagonal {
+  const cached = workspaces.get(n);
+  if (cached !== undefined) return cached;
+  if (workspaces.size >= MAX_CACHED_WORKSPACES) workspaces.clear();
+  const created: Tridiagonal = {
+    n,
+    workRe: new Float64Array(n * n),
+    workIm: new Float64Array(n * n),
+    tau: new Float64Array(n),
+    diagonal: new Float64Array(n),
+    offDiagonal: new Float64Array(n),
+    phaseRe: new Float64Array(n),
+    phaseIm: new Float64Array(n),
+    subRe: new Float64Array(n),
+    subIm: new Float64Array(n),
+    pRe: new Float64Array(n),
+    pIm: new Float64Array(n),
+    rotations: new Float64Array(n * n),
+  };
+  workspaces.set(n, created);
+  return created;
+}
+
+/**
+ * Householder reduction of the Hermitian part of `input` (scaled by a power of two to keep norms
+ * representable) to real symmetric tridiagonal form; only the lower triangle is updated.
+ */
+function tridiagonalise(input: ComplexMatrix, scale: number): Tridiagonal {
+  const n = input.rows;
+  const ws = workspaceFor(n);
+  const { workRe, workIm, tau, diagonal, offDiagonal, phaseRe, phaseIm, subRe, subIm, pRe, pIm } = ws;
+  const inv = 1 / scale;
+  const inRe = input.re;
+  const inIm = input.im;
+  // Symmetrise into the lower triangle: L_ij = (A_ij + conj(A_ji))/2, j ≤ i.
+  for (let i = 0; i < n; i++) {
+    const row = i * n;
+    for (let j = 0; j < i; j++) {
+      workRe[row + j] = 0.5 * (inRe[row + j] + inRe[j * n + i]) * inv;
+      workIm[row + j] = 0.5 * (inIm[row + j] - inIm[j * n + i]) * inv;
+    }
+    workRe[row + i] = inRe[row + i] * inv;
+  }
+  workIm.fill(0, 0, n * n);
+  for (let k = 0; k + 2 < n; k++) {
+    const k1 = k + 1;
+    // x = column k below the diagonal; the reflector maps it onto a multiple of e_{k+1}.
+    const alphaRe = workRe[k1 * n + k];
+    const alphaIm = workIm[k1 * n + k];
+    let sigma = 0;
+    for (let i = k + 2; i < n; i++) sigma += workRe[i * n + k] ** 2 + workIm[i * n + k] ** 2;
+    if (sigma === 0) {
+      tau[k] = 0;
+      subRe[k] = alphaRe;
+      subIm[k] = alphaIm;
+      continue;
+    }
+    const alphaAbs = Math.hypot(alphaRe, alphaIm);
+    const xNorm = Math.sqrt(alphaAbs * alphaAbs + sigma);
+    // Phase of alpha (1 when alpha = 0) chosen so u_{k+1} = alpha + phase·‖x‖ has no cancellation.
+    const phRe = alphaAbs === 0 ? 1 : alphaRe / alphaAbs;
+    const phIm = alphaAbs === 0 ? 0 : alphaIm / alphaAbs;
+    const t = 1 / (xNorm * (xNorm + alphaAbs)); // tau = 2/(u†u) = 1/(‖x‖(‖x‖+|alpha|))
+    tau[k] = t;
+    subRe[k] = -phRe * xNorm;
+    subIm[k] = -phIm * xNorm;
+    // Store u in row k (upper triangle, unused by the lower-triangle update).
+    const uRow = k * n;
+    workRe[uRow + k1] = alphaRe + phRe * xNorm;
+    workIm[uRow + k1] = alphaIm + phIm * xNorm;
+    for (let i = k + 2; i < n; i++) {
+      workRe[uRow + i] = workRe[i * n + k];
+      workIm[uRow + i] = workIm[i * n + k];
+    }
+    // p = tau·S·u over the trailing block S = A[k+1:, k+1:] from its lower triangle.
+    for (let i = k1; i < n; i++) {
+      pRe[i] = 0;
+      pIm[i] = 0;
+    }
+    for (let i = k1; i < n; i++) {
+      const row = i * n;
+      const uiR = workRe[uRow + i];
+      const uiI = workIm[uRow + i];
+      let sR = workRe[row + i] * uiR;
+      let sI = workRe[row + i] * uiI;
+      for (let j = k1; j < i; j++) {
+        const aR = workRe[row + j];
+        const aI = workIm[row + j];
+        const ujR = workRe[uRow + j];
+        const ujI = workIm[uRow + j];
+        // S_ij·u_j into p_i, and S_ji·u_i = conj(S_ij)·u_i into p_j.
+        sR += aR * ujR - aI * ujI;
+        sI += aR * ujI + aI * ujR;
+        pRe[j] += aR * uiR + aI * uiI;
+        pIm[j] += aR * uiI - aI * uiR;
+      }
+      pRe[i] += sR;
+      pIm[i] += sI;
+    }
+    let upRe = 0; // u†p (real up to rounding)
+    for (let i = k1; i < n; i++) {
+      pRe[i] *= t;
+      pIm[i] *= t;
+      upRe += workRe[uRow + i] * pRe[i] + workIm[uRow + i] * pIm[i];
+    }
+    const half = 0.5 * t * upRe;
+    // q = p − half·u (kept in p), then S −= u q† + q u† on the lower triangle.
+    for (let i = k1; i < n; i++) {
+      pRe[i] -= half * workRe[uRow + i];
+      pIm[i] -= half * workIm[uRow + i];
+    }
+    for (let i = k1; i < n; i++) {
+      const row = i * n;
+      const uiR = workRe[uRow + i];
+      const uiI = workIm[uRow + i];
+      const qiR = pRe[i];
+      const qiI = pIm[i];
+      for (let j = k1; j < i; j++) {
+        const ujR = workRe[uRow + j];
+        const ujI = workIm[uRow + j];
+        const qjR = pRe[j];
+        const qjI = pIm[j];
+        // u_i·conj(q_j) + q_i·conj(u_j)
+        workRe[row + j] -= uiR * qjR + uiI * qjI + qiR * ujR + qiI * ujI;
+        workIm[row + j] -= uiI * qjR - uiR * qjI + qiI * ujR - qiR * ujI;
+      }
+      workRe[row + i] -= 2 * (uiR * qiR + uiI * qiI);
+    }
+  }
+  for (let k = 0; k < n; k++) diagonal[k] = workRe[k * n + k];
+  if (n >= 2) {
+    subRe[n - 2] = workRe[(n - 1) * n + n - 2];
+    subIm[n - 2] = workIm[(n - 1) * n + n - 2];
+  }
+  // Diagonal phases: phase_{i+1} = phase_i·e_i/|e_i| makes every subdiagonal entry real and ≥ 0.
+  if (n > 0) {
+    offDiagonal[n - 1] = 0;
+    phaseRe[0] = 1;
+    phaseIm[0] = 0;
+  }
+  for (let i = 0; i + 1 < n; i++) {
+    const m = Math.hypot(subRe[i], subIm[i]);
+    offDiagonal[i] = m;
+    if (m === 0) {
+      phaseRe[i + 1] = 1;
+      phaseIm[i + 1] = 0;
+    } else {
+      const cR = subRe[i] / m;
+      const cI = subIm[i] / m;
+      const nextRe = phaseRe[i] * cR - phaseIm[i] * cI;
+      const nextIm = phaseRe[i] * cI + phaseIm[i] * cR;
+      // Renormalise so rounding in the running product does not drift away from modulus 1.
+      const modulus = Math.hypot(nextRe, nextIm);
+      phaseRe[i + 1] = nextRe / modulus;
+      phaseIm[i + 1] = nextIm / modulus;
+    }
+  }
+  return ws;
+}
+
+/**
+ * Implicit symmetric QL with Wilkinson shifts on the tridiagonal (d, e), e[i] coupling i and i+1.
+ * If `rotationsTransposed` is given (n×n, row j = j-th Schur vector), the rotations are accumulated in it.
+ * Deflation: |e_m| ≤ ε·(|d_m| + |d_{m+1}|) (local test, keeps small eigenvalues of graded matrices
+ * accurate) or |e_m| ≤ ε·‖T‖ (needed for convergence when a cluster of eigenvalues sits at rounding level).
+ */
+function tridiagonalQL(d: Float64Array, e: Float64Array, rotationsTransposed: Float64Array | null): void {
+  const n = d.length;
+  const eps = Number.EPSILON;
+  // Norm-relative floor: deflating below u·‖T‖ perturbs T by less than the reduction already did.
+  let normT = 0;
+  for (let i = 0; i < n; i++) normT = Math.max(normT, Math.abs(d[i]) + Math.abs(e[i]) + (i > 0 ? Math.abs(e[i - 1]) : 0));
+  const absoluteFloor = eps * normT;
+  for (let l = 0; l < n; l++) {
+    let iterations = 0;
+    for (;;) {
+      let m = l;
+      for (; m < n - 1; m++) {
+        const em = Math.abs(e[m]);
+        if (em <= absoluteFloor || em <= eps * (Math.abs(d[m]) + Math.abs(d[m + 1]))) break;
+      }
+      if (m === l) break;
+      if (++iterations > MAX_QL_ITERATIONS_PER_EIGENVALUE) {
+        throw new Error(`eigh: QL iteration did not converge for eigenvalue ${l} of ${n}`);
+      }
+      // Wilkinson shift from the leading 2×2 block at l.
+      let g = (d[l + 1] - d[l]) / (2 * e[l]);
+      let r = Math.hypot(g, 1);
+      g = d[m] - d[l] + e[l] / (g + (g >= 0 ? r : -r));
+      let s = 1;
+      let c = 1;
+      let p = 0;
+      let i = m - 1;
+      let underflow = false;
+      for (; i >= l; i--) {
+        const f = s * e[i];
+        const b = c * e[i];
+        r = Math.hypot(f, g);
+        e[i + 1] = r;
+        if (r === 0) {
+          // Exact deflation inside the sweep: finish it and restart at l.
+          d[i + 1] -= p;
+          e[m] = 0;
+          underflow = true;
+          break;
+        }
+        s = f / r;
+        c = g / r;
+        g = d[i + 1] - p;
+        r = (d[i] - g) * s + 2 * c * b;
+        p = s * r;
+        d[i + 1] = g + p;
+        g = c * r - b;
+        if (rotationsTransposed !== null) {
+          const rowI = i * n;
+          const rowI1 = rowI + n;
+          for (let k = 0; k < n; k++) {
+            const zi = rotationsTransposed[rowI + k];
+            const zi1 = rotationsTransposed[rowI1 + k];
+            rotationsTransposed[rowI1 + k] = s * zi + c * zi1;
+            rotationsTransposed[rowI + k] = c * zi - s * zi1;
+          }
+        }
+      }
+      if (underflow) continue;
+      d[l] -= p;
+      e[l] = g;
+      e[m] = 0;
+    }
+  }
+}
+
+/** Indices sorting `values` ascending. */
+function ascendingOrder(values: Float64Array): Int32Array {
+  const n = values.length;
+  const order = new Int32Array(n);
+  for (let i = 0; i < n; i++) order[i] = i;
+  // Insertion sort: QL output is nearly sorted and n is small, so this beats Array.prototype.sort.
+  for (let i = 1; i < n; i++) {
+    const key = order[i];
+    const v = values[key];
+    let j = i - 1;
+    while (j >= 0 && values[order[j]] > v) {
+      order[j + 1] = order[j];
+      j--;
+    }
+    order[j + 1] = key;
+  }
+  return order;
+}
+
+/**
+ * Native complex Hermitian eigensolver: Householder reduction to real symmetric tridiagonal form
+ * (a diagonal phase makes the subdiagonal real), implicit QL with Wilkinson shifts accumulating the
+ * rotations, then back-transformation through the phases and reflectors. O(n³), backward stable.
+ */
+export function eighHouseholder(input: ComplexMatrix): HermitianEigen {
+  assertFiniteSquare(input, 'eigh');
+  const n = input.rows;
+  const scale = powerOfTwoScale(input.re, input.im);
+  if (scale === 0) return { values: new Float64Array(n), vectors: ComplexMatrix.identity(n) };
+  const tri = tridiagonalise(input, scale);
+  const d = tri.diagonal;
+  const e = tri.offDiagonal;
+  const z = tri.rotations;
+  z.fill(0);
+  for (let i = 0; i < n; i++) z[i * n + i] = 1;
+  tridiagonalQL(d, e, z);
+  const order = ascendingOrder(d);
+  const values = new Float64Array(n);
+  for (let j = 0; j < n; j++) values[j] = d[order[j]] * scale;
+  const vectors = new ComplexMatrix(n, n);
+  const outRe = vectors.re;
+  const outIm = vectors.im;
+  const { workRe, workIm, tau, phaseRe, phaseIm } = tri;
+  const wRe = tri.subRe; // free after tridiagonalisation
+  const wIm = tri.subIm;
+  for (let jj = 0; jj < n; jj++) {
+    const zRow = order[jj] * n;
+    // w = D·z, then w ← H_k·w for k = n−3 … 0.
+    for (let i = 0; i < n; i++) {
+      const zi = z[zRow + i];
+      wRe[i] = phaseRe[i] * zi;
+      wIm[i] = phaseIm[i] * zi;
+    }
+    for (let k = n - 3; k >= 0; k--) {
+      const t = tau[k];
+      if (t === 0) continue;
+      const uRow = k * n;
+      let sR = 0;
+      let sI = 0;
+      for (let i = k + 1; i < n; i++) {
+        const uR = workRe[uRow + i];
+        const uI = workIm[uRow + i];
+        sR += uR * wRe[i] + uI * wIm[i];
+        sI += uR * wIm[i] - uI * wRe[i];
+      }
+      sR *= t;
+      sI *= t;
+      for (let i = k + 1; i < n; i++) {
+        const uR = workRe[uRow + i];
+        const uI = workIm[uRow + i];
+        wRe[i] -= sR * uR - sI * uI;
+        wIm[i] -= sR * uI + sI * uR;
+      }
+    }
+    for (let i = 0; i < n; i++) {
+      outRe[i * n + jj] = wRe[i];
+      outIm[i * n + jj] = wIm[i];
+    }
+  }
+  return { values, vectors };
+}
+
+/** Eigenvalues only (ascending) by Householder + QL without accumulating vectors: O(n³/…) cheaper. */
+export function eigvalsh(input: ComplexMatrix): Float64Array {
+  assertFiniteSquare(input, 'eigvalsh');
+  const n = input.rows;
+  const scale = powerOfTwoScale(input.re, input.im);
+  if (scale === 0) return new Float64Array(n);
+  const tri = tridiagonalise(input, scale);
+  tridiagonalQL(tri.diagonal, tri.offDiagonal, null);
+  const values = tri.diagonal.slice().sort();
+  for (let j = 0; j < n; j++) values[j] *= scale;
+  return values;
+}
+
+/**
+ * Reference path through ml-matrix: the real symmetric embedding M = [[Re A, −Im A], [Im A, Re A]]
+ * (symmetrised exactly, since ml-matrix tests symmetry exactly) has every eigenvalue of A twice.
+ * Complex eigenvectors x + iy come from real eigenvectors [x; y]; within each cluster of equal
+ * eigenvalues a column-pivoted complex Gram–Schmidt picks an orthonormal basis of half the cluster
+ * size, since [x; y] and [−y; x] give the same complex line. Kept for benchmarks and tests.
+ */
+export function eighRealEmbedding(input: ComplexMatrix): HermitianEigen {
+  assertFiniteSquare(input, 'eighRealEmbedding');
+  const n = input.rows;
+  if (n === 0) return { values: new Float64Array(0), vectors: new ComplexMatrix(0, 0) };
+  const m = 2 * n;
+  const rows: number[][] = [];
+  for (let i = 0; i < m; i++) rows.push(new Array<number>(m));
+  let norm2 = 0;
+  for (let i = 0; i < n; i++) {
+    for (let j = 0; j < n; j++) {
+      const re = 0.5 * (input.re[i * n + j] + input.re[j * n + i]);
+      const im = 0.5 * (input.im[i * n + j] - input.im[j * n + i]);
+      rows[i][j] = re;
+      rows[i + n][j + n] = re;
+      rows[i][j + n] = -im;
+      rows[i + n][j] = im;
+      norm2 += re * re + im * im;
+    }
+  }
+  const decomposition = new EigenvalueDecomposition(new Matrix(rows), { assumeSymmetric: true });
+  const realValues = decomposition.realEigenvalues;
+  const realVectors = decomposition.eigenvectorMatrix;
+  const order = Array.from({ length: m }, (_, i) => i).sort((a, b) => realValues[a] - realValues[b]);
+  // Eigenvalues closer than the embedding's backward error belong to one cluster.
+  const clusterTolerance = SUPPORT_TOLERANCE_FACTOR * m * UNIT_ROUNDOFF * Math.sqrt(2 * norm2);
+  const valuesOut: number[] = [];
+  const basisRe: Float64Array[] = [];
+  const basisIm: Float64Array[] = [];
+  let start = 0;
+  while (start < m) {
+    let end = start + 1;
+    while (end < m && realValues[order[end]] - realValues[order[end - 1]] <= clusterTolerance) end++;
+    const wanted = Math.round((end - start) / 2);
+    const candRe: Float64Array[] = [];
+    const candIm: Float64Array[] = [];
+    for (let c = start; c < end; c++) {
+      const col = order[c];
+      const xr = new Float64Array(n);
+      const xi = new Float64Array(n);
+      for (let i = 0; i < n; i++) {
+        xr[i] = realVectors.get(i, col);
+        xi[i] = realVectors.get(i + n, col);
+      }
+      candRe.push(xr);
+      candIm.push(xi);
+    }
+    for (let picked = 0; picked < wanted && basisRe.length < n; picked++) {
+      // Orthogonalise every candidate against the basis so far, then take the longest.
+      let best = -1;
+      let bestNorm = -1;
+      for (let c = 0; c < candRe.length; c++) {
+        for (let pass = 0; pass < 2; pass++) projectOut(candRe[c], candIm[c], basisRe, basisIm);
+        let s = 0;
+        for (let i = 0; i < n; i++) s += candRe[c][i] ** 2 + candIm[c][i] ** 2;
+        if (s > bestNorm) {
+          bestNorm = s;
+          best = c;
+        }
+      }
+      const scaleBack = 1 / Math.sqrt(bestNorm);
+      const vr = candRe[best].map((x) => x * scaleBack);
+      const vi = candIm[best].map((x) => x * scaleBack);
+      basisRe.push(vr);
+      basisIm.push(vi);
+      candRe.splice(best, 1);
+      candIm.splice(best, 1);
+      valuesOut.push(rayleighQuotient(input, vr, vi));
+    }
+    start = end;
+  }
+  const values = Float64Array.from(valuesOut);
+  const perm = ascendingOrder(values);
+  const vectors = new ComplexMatrix(n, n);
+  const sorted = new Float64Array(n);
+  for (let jj = 0; jj < n; jj++) {
+    const j = perm[jj];
+    sorted[jj] = values[j];
+    for (let i = 0; i < n; i++) {
+      vectors.re[i * n + jj] = basisRe[j][i];
+      vectors.im[i * n + jj] = basisIm[j][i];
+    }
+  }
+  return { values: sorted, vectors };
+}
+
+/** Constant c of the support tolerance c·n·u·‖A‖_F (shared with src/linear-algebra/support.ts). */
+export const SUPPORT_TOLERANCE_FACTOR = 64;
+
+/** x ← x − Σ_b ⟨b, x⟩ b for the orthonormal complex vectors b. */
+function projectOut(xr: Float64Array, xi: Float64Array, basisRe: Float64Array[], basisIm: Float64Array[]): void {
+  const n = xr.length;
+  for (let b = 0; b < basisRe.length; b++) {
+    const br = basisRe[b];
+    const bi = basisIm[b];
+    let pr = 0;
+    let pi = 0;
+    for (let i = 0; i < n; i++) {
+      pr += br[i] * xr[i] + bi[i] * xi[i];
+      pi += br[i] * xi[i] - bi[i] * xr[i];
+    }
+    for (let i = 0; i < n; i++) {
+      xr[i] -= pr * br[i] - pi * bi[i];
+      xi[i] -= pr * bi[i] + pi * br[i];
+    }
+  }
+}
+
+/** Re(x† A x) for a unit vector x (A read through its Hermitian part). */
+function rayleighQuotient(a: ComplexMatrix, xr: Float64Array, xi: Float64Array): number {
+  const n = xr.length;
+  let s = 0;
+  for (let i = 0; i < n; i++) {
+    let yr = 0;
+    let yi = 0;
+    for (let j = 0; j < n; j++) {
+      const ar = a.re[i * n + j];
+      const ai = a.im[i * n + j];
+      yr += ar * xr[j] - ai * xi[j];
+      yi += ar * xi[j] + ai * xr[j];
+    }
+    s += xr[i] * yr + xi[i] * yi;
+  }
+  return s;
+}
+
+/**
+ * The project's Hermitian eigensolver. Reads the Hermitian part (A + A†)/2 of its input; Jacobi for
+ * tiny sizes, Householder + QL otherwise (crossover JACOBI_MAX_SIZE, measured).
+ */
 export function eigh(a: ComplexMatrix): HermitianEigen {
-  return eighJacobi(a);
+  assertFiniteSquare(a, 'eigh');
+  return a.rows <= JACOBI_MAX_SIZE ? eighJacobi(a) : eighHouseholder(a);
 }
