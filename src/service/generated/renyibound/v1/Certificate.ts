@@ -1,0 +1,30 @@
+// Original file: proto/renyibound/v1/service.proto
+
+import type { EntropyKind as _renyibound_v1_EntropyKind, EntropyKind__Output as _renyibound_v1_EntropyKind__Output } from '../../renyibound/v1/EntropyKind.js';
+import type { Matrix as _renyibound_v1_Matrix, Matrix__Output as _renyibound_v1_Matrix__Output } from '../../renyibound/v1/Matrix.js';
+
+export interface Certificate {
+  'inputHash'?: (string);
+  'entropy'?: (_renyibound_v1_EntropyKind);
+  'alpha'?: (number | string);
+  'linearizationState'?: (_renyibound_v1_Matrix | null);
+  'referenceStates'?: (_renyibound_v1_Matrix)[];
+  'multipliersLower'?: (number | string)[];
+  'multipliersUpper'?: (number | string)[];
+  'claimedBound'?: (number | string);
+  'toleranceMargin'?: (number | string);
+  '_alpha'?: "alpha";
+}
+
+export interface Certificate__Output {
+  'inputHash': (string);
+  'entropy': (_renyibound_v1_EntropyKind__Output);
+  'alpha'?: (number);
+  'linearizationState': (_renyibound_v1_Matrix__Output | null);
+  'referenceStates': (_renyibound_v1_Matrix__Output)[];
+  'multipliersLower': (number)[];
+  'multipliersUpper': (number)[];
+  'claimedBound': (number);
+  'toleranceMargin': (number);
+  '_alpha'?: "alpha";
+}

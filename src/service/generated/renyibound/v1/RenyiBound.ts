@@ -1,0 +1,51 @@
+// Original file: proto/renyibound/v1/service.proto
+
+import type * as grpc from '@grpc/grpc-js'
+import type { MethodDefinition } from '@grpc/proto-loader'
+import type { BatchItem as _renyibound_v1_BatchItem, BatchItem__Output as _renyibound_v1_BatchItem__Output } from '../../renyibound/v1/BatchItem.js';
+import type { BatchRequest as _renyibound_v1_BatchRequest, BatchRequest__Output as _renyibound_v1_BatchRequest__Output } from '../../renyibound/v1/BatchRequest.js';
+import type { SolveReply as _renyibound_v1_SolveReply, SolveReply__Output as _renyibound_v1_SolveReply__Output } from '../../renyibound/v1/SolveReply.js';
+import type { SolveRequest as _renyibound_v1_SolveRequest, SolveRequest__Output as _renyibound_v1_SolveRequest__Output } from '../../renyibound/v1/SolveRequest.js';
+import type { VerifyReply as _renyibound_v1_VerifyReply, VerifyReply__Output as _renyibound_v1_VerifyReply__Output } from '../../renyibound/v1/VerifyReply.js';
+import type { VerifyRequest as _renyibound_v1_VerifyRequest, VerifyRequest__Output as _renyibound_v1_VerifyRequest__Output } from '../../renyibound/v1/VerifyRequest.js';
+
+export interface RenyiBoundClient extends grpc.Client {
+  Solve(argument: _renyibound_v1_SolveRequest, metadata: grpc.Metadata, options: grpc.CallOptions, callback: grpc.requestCallback<_renyibound_v1_SolveReply__Output>): grpc.ClientUnaryCall;
+  Solve(argument: _renyibound_v1_SolveRequest, metadata: grpc.Metadata, callback: grpc.requestCallback<_renyibound_v1_SolveReply__Output>): grpc.ClientUnaryCall;
+  Solve(argument: _renyibound_v1_SolveRequest, options: grpc.CallOptions, callback: grpc.requestCallback<_renyibound_v1_SolveReply__Output>): grpc.ClientUnaryCall;
+  Solve(argument: _renyibound_v1_SolveRequest, callback: grpc.requestCallback<_renyibound_v1_SolveReply__Output>): grpc.ClientUnaryCall;
+  solve(argument: _renyibound_v1_SolveRequest, metadata: grpc.Metadata, options: grpc.CallOptions, callback: grpc.requestCallback<_renyibound_v1_SolveReply__Output>): grpc.ClientUnaryCall;
+  solve(argument: _renyibound_v1_SolveRequest, metadata: grpc.Metadata, callback: grpc.requestCallback<_renyibound_v1_SolveReply__Output>): grpc.ClientUnaryCall;
+  solve(argument: _renyibound_v1_SolveRequest, options: grpc.CallOptions, callback: grpc.requestCallback<_renyibound_v1_SolveReply__Output>): grpc.ClientUnaryCall;
+  solve(argument: _renyibound_v1_SolveRequest, callback: grpc.requestCallback<_renyibound_v1_SolveReply__Output>): grpc.ClientUnaryCall;
+  
+  SolveBatch(argument: _renyibound_v1_BatchRequest, metadata: grpc.Metadata, options?: grpc.CallOptions): grpc.ClientReadableStream<_renyibound_v1_BatchItem__Output>;
+  SolveBatch(argument: _renyibound_v1_BatchRequest, options?: grpc.CallOptions): grpc.ClientReadableStream<_renyibound_v1_BatchItem__Output>;
+  solveBatch(argument: _renyibound_v1_BatchRequest, metadata: grpc.Metadata, options?: grpc.CallOptions): grpc.ClientReadableStream<_renyibound_v1_BatchItem__Output>;
+  solveBatch(argument: _renyibound_v1_BatchRequest, options?: grpc.CallOptions): grpc.ClientReadableStream<_renyibound_v1_BatchItem__Output>;
+  
+  Verify(argument: _renyibound_v1_VerifyRequest, metadata: grpc.Metadata, options: grpc.CallOptions, callback: grpc.requestCallback<_renyibound_v1_VerifyReply__Output>): grpc.ClientUnaryCall;
+  Verify(argument: _renyibound_v1_VerifyRequest, metadata: grpc.Metadata, callback: grpc.requestCallback<_renyibound_v1_VerifyReply__Output>): grpc.ClientUnaryCall;
+  Verify(argument: _renyibound_v1_VerifyRequest, options: grpc.CallOptions, callback: grpc.requestCallback<_renyibound_v1_VerifyReply__Output>): grpc.ClientUnaryCall;
+  Verify(argument: _renyibound_v1_VerifyRequest, callback: grpc.requestCallback<_renyibound_v1_VerifyReply__Output>): grpc.ClientUnaryCall;
+  verify(argument: _renyibound_v1_VerifyRequest, metadata: grpc.Metadata, options: grpc.CallOptions, callback: grpc.requestCallback<_renyibound_v1_VerifyReply__Output>): grpc.ClientUnaryCall;
+  verify(argument: _renyibound_v1_VerifyRequest, metadata: grpc.Metadata, callback: grpc.requestCallback<_renyibound_v1_VerifyReply__Output>): grpc.ClientUnaryCall;
+  verify(argument: _renyibound_v1_VerifyRequest, options: grpc.CallOptions, callback: grpc.requestCallback<_renyibound_v1_VerifyReply__Output>): grpc.ClientUnaryCall;
+  verify(argument: _renyibound_v1_VerifyRequest, callback: grpc.requestCallback<_renyibound_v1_VerifyReply__Output>): grpc.ClientUnaryCall;
+  
+}
+
+export interface RenyiBoundHandlers extends grpc.UntypedServiceImplementation {
+  Solve: grpc.handleUnaryCall<_renyibound_v1_SolveRequest__Output, _renyibound_v1_SolveReply>;
+  
+  SolveBatch: grpc.handleServerStreamingCall<_renyibound_v1_BatchRequest__Output, _renyibound_v1_BatchItem>;
+  
+  Verify: grpc.handleUnaryCall<_renyibound_v1_VerifyRequest__Output, _renyibound_v1_VerifyReply>;
+  
+}
+
+export interface RenyiBoundDefinition extends grpc.ServiceDefinition {
+  Solve: MethodDefinition<_renyibound_v1_SolveRequest, _renyibound_v1_SolveReply, _renyibound_v1_SolveRequest__Output, _renyibound_v1_SolveReply__Output>
+  SolveBatch: MethodDefinition<_renyibound_v1_BatchRequest, _renyibound_v1_BatchItem, _renyibound_v1_BatchRequest__Output, _renyibound_v1_BatchItem__Output>
+  Verify: MethodDefinition<_renyibound_v1_VerifyRequest, _renyibound_v1_VerifyReply, _renyibound_v1_VerifyRequest__Output, _renyibound_v1_VerifyReply__Output>
+}

@@ -1,0 +1,66 @@
+// Original file: proto/renyibound/v1/service.proto
+
+import type { SolveStatus as _renyibound_v1_SolveStatus, SolveStatus__Output as _renyibound_v1_SolveStatus__Output } from '../../renyibound/v1/SolveStatus.js';
+import type { StopLimit as _renyibound_v1_StopLimit, StopLimit__Output as _renyibound_v1_StopLimit__Output } from '../../renyibound/v1/StopLimit.js';
+import type { EntropyKind as _renyibound_v1_EntropyKind, EntropyKind__Output as _renyibound_v1_EntropyKind__Output } from '../../renyibound/v1/EntropyKind.js';
+import type { Certificate as _renyibound_v1_Certificate, Certificate__Output as _renyibound_v1_Certificate__Output } from '../../renyibound/v1/Certificate.js';
+import type { InfeasibilityCertificate as _renyibound_v1_InfeasibilityCertificate, InfeasibilityCertificate__Output as _renyibound_v1_InfeasibilityCertificate__Output } from '../../renyibound/v1/InfeasibilityCertificate.js';
+import type { Matrix as _renyibound_v1_Matrix, Matrix__Output as _renyibound_v1_Matrix__Output } from '../../renyibound/v1/Matrix.js';
+
+export interface SolveResult {
+  'status'?: (_renyibound_v1_SolveStatus);
+  'limit'?: (_renyibound_v1_StopLimit);
+  'message'?: (string);
+  'entropy'?: (_renyibound_v1_EntropyKind);
+  'alpha'?: (number | string);
+  'certifiedLowerBound'?: (number | string);
+  'upperBound'?: (number | string);
+  'gap'?: (number | string);
+  'toleranceMargin'?: (number | string);
+  'statisticalSlack'?: (number | string);
+  'maxConstraintViolation'?: (number | string);
+  'iterations'?: (number);
+  'seconds'?: (number | string);
+  'oracleSeconds'?: (number | string);
+  'inputHash'?: (string);
+  'certificate'?: (_renyibound_v1_Certificate | null);
+  'infeasibility'?: (_renyibound_v1_InfeasibilityCertificate | null);
+  'finalState'?: (_renyibound_v1_Matrix | null);
+  'fromCache'?: (boolean);
+  '_alpha'?: "alpha";
+  '_certifiedLowerBound'?: "certifiedLowerBound";
+  '_upperBound'?: "upperBound";
+  '_gap'?: "gap";
+  '_toleranceMargin'?: "toleranceMargin";
+  '_statisticalSlack'?: "statisticalSlack";
+  '_maxConstraintViolation'?: "maxConstraintViolation";
+}
+
+export interface SolveResult__Output {
+  'status': (_renyibound_v1_SolveStatus__Output);
+  'limit': (_renyibound_v1_StopLimit__Output);
+  'message': (string);
+  'entropy': (_renyibound_v1_EntropyKind__Output);
+  'alpha'?: (number);
+  'certifiedLowerBound'?: (number);
+  'upperBound'?: (number);
+  'gap'?: (number);
+  'toleranceMargin'?: (number);
+  'statisticalSlack'?: (number);
+  'maxConstraintViolation'?: (number);
+  'iterations': (number);
+  'seconds': (number);
+  'oracleSeconds': (number);
+  'inputHash': (string);
+  'certificate': (_renyibound_v1_Certificate__Output | null);
+  'infeasibility': (_renyibound_v1_InfeasibilityCertificate__Output | null);
+  'finalState': (_renyibound_v1_Matrix__Output | null);
+  'fromCache': (boolean);
+  '_alpha'?: "alpha";
+  '_certifiedLowerBound'?: "certifiedLowerBound";
+  '_upperBound'?: "upperBound";
+  '_gap'?: "gap";
+  '_toleranceMargin'?: "toleranceMargin";
+  '_statisticalSlack'?: "statisticalSlack";
+  '_maxConstraintViolation'?: "maxConstraintViolation";
+}

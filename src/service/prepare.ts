@@ -1,0 +1,97 @@
+// Turns one request (problem JSON, entropy, order, settings, warm start) into a validated, hashed solve job.
+import type { MatrixJson, SolverSettings } from '../frank-wolfe/types.js';
+import { DEFAULT_SETTINGS, SOLVER_VERSION } from '../frank-wolfe/solve.js';
+import { ValidationError } from '../problem/errors.js';
+import { inputHash } from '../problem/hash.js';
+import { matrixToJson } from '../problem/json.js';
+import type { EntropyRequest, Problem } from '../problem/model.js';
+import { densityOperatorFromJson } from '../problem/state.js';
+import { entropyRequestFrom, parseProblemJson } from '../problem/validate.js';
+
+/** A request that passed validation: everything the worker, the cache and the log line need. */
+export interface PreparedSolve {
+  /** The problem as protobuf JSON; workers re-read it (class instances do not survive the thread boundary). */
+  problemJson: unknown;
+  problem: Problem;
+  request: EntropyRequest;
+  /** Complete settings (server defaults filled in). */
+  settings: SolverSettings;
+  inputHash: string;
+  warmStart?: MatrixJson;
+}
+
+/** What a request says before validation; `entropy` and `alpha` override the problem's own fields. */
+export interface SolveInput {
+  problemJson: unknown;
+  entropy?: string;
+  alpha?: number;
+  settings?: Partial<SolverSettings>;
+  warmStart?: unknown;
+}
+
+/** Upper limit on a single solve's iteration count accepted over the wire. */
+export const MAX_ITERATIONS_LIMIT = 10_000_000;
+
+/** Re-raises a ValidationError with its field path placed under `prefix` (for example "requests[3]"). */
+export function underField(prefix: string, error: unknown): never {
+  if (error instanceof ValidationError && prefix !== '') throw new ValidationError(`${prefix}.${error.field}`, error.reason);
+  throw error;
+}
+
+/** Problem readers name some paths from the problem root ("branches") and some with it ("problem.constraints[0]"). */
+function problemField(error: unknown): never {
+  if (error instanceof ValidationError && !/^problem($|[.[])/.test(error.field)) {
+    throw new ValidationError(`problem.${error.field}`, error.reason);
+  }
+  throw error;
+}
+
+export function checkSettings(settings: Partial<SolverSettings>): SolverSettings {
+  const full: SolverSettings = { ...DEFAULT_SETTINGS, ...settings };
+  if (!Number.isFinite(full.gapTolerance) || full.gapTolerance <= 0) {
+    throw new ValidationError('settings.gapTolerance', `must be a positive finite number of bits (got ${full.gapTolerance})`);
+  }
+  if (!Number.isInteger(full.maxIterations) || full.maxIterations < 1 || full.maxIterations > MAX_ITERATIONS_LIMIT) {
+    throw new ValidationError('settings.maxIterations', `must be an integer in [1, ${MAX_ITERATIONS_LIMIT}] (got ${full.maxIterations})`);
+  }
+  if (!Number.isFinite(full.timeLimitMs) || full.timeLimitMs <= 0) {
+    throw new ValidationError('settings.timeLimitMs', `must be a positive number of milliseconds (got ${full.timeLimitMs})`);
+  }
+  return full;
+}
+
+/** Validates one request; throws ValidationError with a field path relative to the request message. */
+export function prepareSolve(input: SolveInput): PreparedSolve {
+  if (input.problemJson === undefined || input.problemJson === null) {
+    throw new ValidationError('problem', 'is required');
+  }
+  let parsed: ReturnType<typeof parseProblemJson>;
+  try {
+    parsed = parseProblemJson(input.problemJson);
+  } catch (error) {
+    problemField(error);
+  }
+  let request: EntropyRequest;
+  if (input.entropy !== undefined) {
+    // The problem's own α applies only when the requested kind has an order at all.
+    const ordered = input.entropy !== 'von-neumann' && input.entropy !== 'VON_NEUMANN';
+    request = entropyRequestFrom(input.entropy, input.alpha ?? (ordered ? parsed.request?.alpha : undefined));
+  } else if (parsed.request !== undefined) {
+    request = input.alpha === undefined ? parsed.request : entropyRequestFrom(parsed.request.kind, input.alpha);
+  } else {
+    throw new ValidationError('entropy', 'must be given in the request or in the problem');
+  }
+  const settings = checkSettings(input.settings ?? {});
+  const prepared: PreparedSolve = {
+    problemJson: input.problemJson,
+    problem: parsed.problem,
+    request,
+    settings,
+    inputHash: inputHash(parsed.problem, request, settings, SOLVER_VERSION),
+  };
+  if (input.warmStart !== undefined && input.warmStart !== null) {
+    const d = parsed.problem.dimensionA * parsed.problem.dimensionB;
+    prepared.warmStart = matrixToJson(densityOperatorFromJson(input.warmStart, 'warmStart', d));
+  }
+  return prepared;
+}
