@@ -21,12 +21,17 @@ export class RedisCacheLayer implements CacheLayer {
   ) {}
 
   /** Connects and pings, so a wrong URL fails at start-up with a clear message instead of on the first solve. */
-  static async connect(url: string, ttlSeconds: number = DEFAULT_REDIS_TTL_SECONDS): Promise<RedisCacheLayer> {
+  static async connect(
+    url: string,
+    options: { ttlSeconds?: number; onConnectionError?: (error: Error) => void } = {},
+  ): Promise<RedisCacheLayer> {
     const client = new Redis(url, {
       maxRetriesPerRequest: REDIS_RETRIES_PER_REQUEST,
       connectTimeout: REDIS_CONNECT_TIMEOUT_MS,
       lazyConnect: true,
     });
+    // Connection trouble surfaces as failed commands (a cache miss, logged); the listener keeps ioredis quiet.
+    client.on('error', options.onConnectionError ?? (() => {}));
     try {
       await client.connect();
       await client.ping();
@@ -34,7 +39,7 @@ export class RedisCacheLayer implements CacheLayer {
       client.disconnect();
       throw new Error(`cannot reach Redis at ${url}: ${(error as Error).message}`);
     }
-    return new RedisCacheLayer(client, ttlSeconds);
+    return new RedisCacheLayer(client, options.ttlSeconds ?? DEFAULT_REDIS_TTL_SECONDS);
   }
 
   static keyFor(inputHash: string): string {
