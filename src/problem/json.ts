@@ -175,7 +175,7 @@ function numberArray(value: unknown, field: string, length: number): Float64Arra
   return out;
 }
 
-const MATRIX_FIELDS = ['rows', 'cols', 're', 'im'] as const;
+export const MATRIX_FIELDS = ['rows', 'cols', 're', 'im'] as const;
 
 /** renyibound.v1.Matrix → ComplexMatrix; `im` absent, null or empty means a real matrix. */
 export function matrixFromJson(json: unknown, field: string): ComplexMatrix {

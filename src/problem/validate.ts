@@ -8,7 +8,7 @@ import {
 } from '../linear-algebra/complex-matrix.js';
 import { ENTROPY_KINDS, type AnnouncementBranch, type EntropyKind, type EntropyRequest, type LinearConstraint, type Problem } from './model.js';
 import { ValidationError } from './errors.js';
-import { JsonMessage, finiteNumber, matrixFromJson, unsignedInteger } from './json.js';
+import { JsonMessage, MATRIX_FIELDS, finiteNumber, matrixFromJson, unsignedInteger } from './json.js';
 import {
   idempotencyDefect,
   identityDeviation,
@@ -47,6 +47,15 @@ const CONSTRAINT_FIELDS = ['label', 'operator', 'lower', 'upper'] as const;
 const OBSERVATION_FIELDS = ['label', 'povmA', 'povmB', 'probabilities', 'tolerance'] as const;
 const BRANCH_FIELDS = ['label', 'krausOperators', 'keyProjectors', 'score'] as const;
 
+/** The JSON field names the readers accept, per renyibound.v1 message (a test holds them equal to the .proto). */
+export const MESSAGE_FIELDS: Readonly<Record<string, readonly string[]>> = {
+  Matrix: MATRIX_FIELDS,
+  LinearConstraint: CONSTRAINT_FIELDS,
+  ObservedStatistics: OBSERVATION_FIELDS,
+  AnnouncementBranch: BRANCH_FIELDS,
+  Problem: PROBLEM_FIELDS,
+};
+
 /** Validates and expands a problem; see parseProblemJson. */
 export function problemFromJson(json: unknown, limits: ValidationLimits = {}): Problem {
   return parseProblemJson(json, limits).problem;
@@ -60,7 +69,10 @@ export function problemFromJson(json: unknown, limits: ValidationLimits = {}): P
  */
 export function parseProblemJson(json: unknown, limits: ValidationLimits = {}): ParsedProblem {
   const maxDimension = limits.maxDimension ?? DEFAULT_MAX_DIMENSION;
-  const message = JsonMessage.read(json, 'problem', PROBLEM_FIELDS);
+  if (json === null || typeof json !== 'object' || Array.isArray(json)) {
+    throw new ValidationError('problem', 'must be a JSON object');
+  }
+  const message = JsonMessage.read(json, '', PROBLEM_FIELDS);
   const dimensionA = positiveDimension(message.required('dimensionA'), 'dimensionA', maxDimension);
   const dimensionB = positiveDimension(message.required('dimensionB'), 'dimensionB', maxDimension);
   const d = dimensionA * dimensionB;
