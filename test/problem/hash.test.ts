@@ -96,7 +96,9 @@ describe('inputHash', () => {
       for (const key of path.slice(0, -1)) parent = parent[key];
       const key = path[path.length - 1];
       // Small enough to pass every validation tolerance, large enough to change the bits.
-      parent[key] = parent[key] === 0 ? 1e-13 : parent[key] * (1 + 1e-13);
+      // Lower bounds move down so that lower ≤ upper still holds.
+      const factor = key === 'lower' ? 1 - 1e-13 : 1 + 1e-13;
+      parent[key] = parent[key] === 0 ? 1e-13 : parent[key] * factor;
       expect(hashOf(changed), path.join('.')).not.toBe(reference);
     }
   });
