@@ -221,8 +221,8 @@ function tridiagonalise(input: ComplexMatrix, scale: number): Tridiagonal {
       workIm[row + j] = 0.5 * (inIm[row + j] - inIm[j * n + i]) * inv;
     }
     workRe[row + i] = inRe[row + i] * inv;
+    workIm[row + i] = 0;
   }
-  workIm.fill(0, 0, n * n);
   for (let k = 0; k + 2 < n; k++) {
     const k1 = k + 1;
     // x = column k below the diagonal; the reflector maps it onto a multiple of e_{k+1}.
