@@ -35,6 +35,9 @@ export function assertFiniteSquare(a: ComplexMatrix, caller: string): void {
   }
 }
 
+/** Largest exponent k with 2^k and 2^-k both finite normal doubles. */
+const MAX_SCALE_EXPONENT = 1021;
+
 /** Largest |entry| rounded to a power of two, so that scaling by it is exact; 0 for the zero matrix. */
 function powerOfTwoScale(re: Float64Array, im: Float64Array): number {
   let largest = 0;
@@ -45,7 +48,8 @@ function powerOfTwoScale(re: Float64Array, im: Float64Array): number {
     if (i > largest) largest = i;
   }
   if (largest === 0) return 0;
-  return 2 ** Math.round(Math.log2(largest));
+  // Exponent clamped so that both the scale and its reciprocal are finite normal numbers.
+  return 2 ** Math.min(MAX_SCALE_EXPONENT, Math.max(-MAX_SCALE_EXPONENT, Math.round(Math.log2(largest))));
 }
 
 /**
