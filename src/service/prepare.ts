@@ -1,6 +1,7 @@
 // Turns one request (problem JSON, entropy, order, settings, warm start) into a validated, hashed solve job.
 import type { MatrixJson, SolverSettings } from '../frank-wolfe/types.js';
-import { DEFAULT_SETTINGS, SOLVER_VERSION } from '../frank-wolfe/solve.js';
+import { resolveSettings, SOLVER_VERSION } from '../frank-wolfe/solve.js';
+import { SettingsError } from '../frank-wolfe/settings.js';
 import { ValidationError } from '../problem/errors.js';
 import { inputHash } from '../problem/hash.js';
 import { matrixToJson } from '../problem/json.js';
@@ -29,9 +30,6 @@ export interface SolveInput {
   warmStart?: unknown;
 }
 
-/** Upper limit on a single solve's iteration count accepted over the wire. */
-export const MAX_ITERATIONS_LIMIT = 10_000_000;
-
 /** Re-raises a ValidationError with its field path placed under `prefix` (for example "requests[3]"). */
 export function underField(prefix: string, error: unknown): never {
   if (error instanceof ValidationError && prefix !== '') throw new ValidationError(`${prefix}.${error.field}`, error.reason);
@@ -46,18 +44,14 @@ function problemField(error: unknown): never {
   throw error;
 }
 
+/** Server defaults filled in and every field range-checked by the solver's own rules. */
 export function checkSettings(settings: Partial<SolverSettings>): SolverSettings {
-  const full: SolverSettings = { ...DEFAULT_SETTINGS, ...settings };
-  if (!Number.isFinite(full.gapTolerance) || full.gapTolerance <= 0) {
-    throw new ValidationError('settings.gapTolerance', `must be a positive finite number of bits (got ${full.gapTolerance})`);
+  try {
+    return resolveSettings(settings, 'settings');
+  } catch (error) {
+    if (error instanceof SettingsError) throw new ValidationError(error.field, error.reason);
+    throw error;
   }
-  if (!Number.isInteger(full.maxIterations) || full.maxIterations < 1 || full.maxIterations > MAX_ITERATIONS_LIMIT) {
-    throw new ValidationError('settings.maxIterations', `must be an integer in [1, ${MAX_ITERATIONS_LIMIT}] (got ${full.maxIterations})`);
-  }
-  if (!Number.isFinite(full.timeLimitMs) || full.timeLimitMs <= 0) {
-    throw new ValidationError('settings.timeLimitMs', `must be a positive number of milliseconds (got ${full.timeLimitMs})`);
-  }
-  return full;
 }
 
 /** Validates one request; throws ValidationError with a field path relative to the request message. */

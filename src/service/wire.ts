@@ -100,6 +100,8 @@ function certificateToWire(certificate: Certificate): WireCertificate {
     multipliersUpper: certificate.multipliersUpper,
     claimedBound: certificate.claimedBound,
     toleranceMargin: certificate.toleranceMargin,
+    solverVersion: certificate.solverVersion,
+    settings: settingsToWire(certificate.settings),
   };
 }
 
@@ -113,6 +115,8 @@ function certificateFromWire(wire: Certificate__Output): Certificate {
     multipliersUpper: [...wire.multipliersUpper],
     claimedBound: wire.claimedBound,
     toleranceMargin: wire.toleranceMargin,
+    solverVersion: wire.solverVersion,
+    settings: { gapTolerance: wire.settings?.gapTolerance ?? 0, maxIterations: wire.settings?.maxIterations ?? 0 },
   };
   if (wire.referenceStates.length > 0) certificate.referenceStates = wire.referenceStates.map(matrixFromWire);
   return certificate;

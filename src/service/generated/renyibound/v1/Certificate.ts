@@ -2,6 +2,7 @@
 
 import type { EntropyKind as _renyibound_v1_EntropyKind, EntropyKind__Output as _renyibound_v1_EntropyKind__Output } from '../../renyibound/v1/EntropyKind.js';
 import type { Matrix as _renyibound_v1_Matrix, Matrix__Output as _renyibound_v1_Matrix__Output } from '../../renyibound/v1/Matrix.js';
+import type { SolverSettings as _renyibound_v1_SolverSettings, SolverSettings__Output as _renyibound_v1_SolverSettings__Output } from '../../renyibound/v1/SolverSettings.js';
 
 export interface Certificate {
   'inputHash'?: (string);
@@ -13,6 +14,8 @@ export interface Certificate {
   'multipliersUpper'?: (number | string)[];
   'claimedBound'?: (number | string);
   'toleranceMargin'?: (number | string);
+  'solverVersion'?: (string);
+  'settings'?: (_renyibound_v1_SolverSettings | null);
   '_alpha'?: "alpha";
 }
 
@@ -26,5 +29,7 @@ export interface Certificate__Output {
   'multipliersUpper': (number)[];
   'claimedBound': (number);
   'toleranceMargin': (number);
+  'solverVersion': (string);
+  'settings': (_renyibound_v1_SolverSettings__Output | null);
   '_alpha'?: "alpha";
 }

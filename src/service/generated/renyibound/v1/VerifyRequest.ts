@@ -2,14 +2,12 @@
 
 import type { Problem as _renyibound_v1_Problem, Problem__Output as _renyibound_v1_Problem__Output } from '../../renyibound/v1/Problem.js';
 import type { EntropyKind as _renyibound_v1_EntropyKind, EntropyKind__Output as _renyibound_v1_EntropyKind__Output } from '../../renyibound/v1/EntropyKind.js';
-import type { SolverSettings as _renyibound_v1_SolverSettings, SolverSettings__Output as _renyibound_v1_SolverSettings__Output } from '../../renyibound/v1/SolverSettings.js';
 import type { SolveResult as _renyibound_v1_SolveResult, SolveResult__Output as _renyibound_v1_SolveResult__Output } from '../../renyibound/v1/SolveResult.js';
 
 export interface VerifyRequest {
   'problem'?: (_renyibound_v1_Problem | null);
   'entropy'?: (_renyibound_v1_EntropyKind);
   'alpha'?: (number | string);
-  'settings'?: (_renyibound_v1_SolverSettings | null);
   'result'?: (_renyibound_v1_SolveResult | null);
   '_alpha'?: "alpha";
 }
@@ -18,7 +16,6 @@ export interface VerifyRequest__Output {
   'problem': (_renyibound_v1_Problem__Output | null);
   'entropy': (_renyibound_v1_EntropyKind__Output);
   'alpha'?: (number);
-  'settings': (_renyibound_v1_SolverSettings__Output | null);
   'result': (_renyibound_v1_SolveResult__Output | null);
   '_alpha'?: "alpha";
 }

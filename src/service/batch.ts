@@ -1,0 +1,306 @@
+// Batches: expanding a request list or a parameter grid into points, and running them with warm starts
+// taken from the nearest point already solved.
+import { ValidationError } from '../problem/errors.js';
+import type { MatrixJson } from '../frank-wolfe/types.js';
+import { ENTROPY_ENUM_NAMES } from '../problem/validate.js';
+import { buildExample, EXAMPLES } from '../protocols/index.js';
+import type { ParameterGrid__Output } from './generated/renyibound/v1/ParameterGrid.js';
+import type { SolveRequest__Output } from './generated/renyibound/v1/SolveRequest.js';
+import type { SolveRequestList__Output } from './generated/renyibound/v1/SolveRequestList.js';
+import { checkSettings, prepareSolve, type PreparedSolve, type SolveInput, underField } from './prepare.js';
+import { entropyKindFromWire, settingsFromWire, wireToJson, type DeliveredResult } from './wire.js';
+
+/** The grid's pseudo-parameter for the Rényi order. */
+export const ALPHA_PARAMETER = 'alpha';
+/** Largest number of points one batch may hold (a guard against a typo'd grid, not a performance limit). */
+export const MAX_BATCH_POINTS = 100_000;
+
+/** One point of a batch, valid (with `prepared`) or not (with `error`). */
+export interface BatchPoint {
+  index: number;
+  /** Swept parameter values, plus "alpha" for Rényi kinds. */
+  point: Record<string, number>;
+  /** Proto enum name of the entropy kind ('' when the request was too broken to say). */
+  entropy: string;
+  prepared?: PreparedSolve;
+  error?: { field: string; message: string };
+  /** Points share warm starts only within a group: same kind, order and dimensions. */
+  group: string;
+  /** Position on the grid, each axis scaled to [0, 1], for "nearest solved point". */
+  coordinates: number[];
+}
+
+/** A wire SolveRequest as a domain-level solve input. */
+export function solveInputFromWire(request: SolveRequest__Output): SolveInput {
+  return {
+    problemJson: request.problem === null ? undefined : wireToJson(request.problem),
+    entropy: entropyKindFromWire(request.entropy),
+    alpha: request.alpha,
+    settings: settingsFromWire(request.settings),
+    warmStart: request.warmStart === null ? undefined : wireToJson(request.warmStart),
+  };
+}
+
+function groupOf(prepared: PreparedSolve): string {
+  const { problem, request } = prepared;
+  return `${request.kind}|${request.alpha ?? ''}|${problem.dimensionA}x${problem.dimensionB}`;
+}
+
+function failure(error: unknown): { field: string; message: string } {
+  if (error instanceof ValidationError) return { field: error.field, message: error.reason };
+  throw error;
+}
+
+export function expandRequestList(list: SolveRequestList__Output): BatchPoint[] {
+  if (list.requests.length > MAX_BATCH_POINTS) {
+    throw new ValidationError('requests.requests', `holds ${list.requests.length} requests; at most ${MAX_BATCH_POINTS}`);
+  }
+  return list.requests.map((request, index) => {
+    const point: BatchPoint = { index, point: {}, entropy: request.entropy, group: '', coordinates: [] };
+    try {
+      point.prepared = prepareSolve(solveInputFromWire(request));
+      point.entropy = ENTROPY_ENUM_NAMES[point.prepared.request.kind];
+      point.group = groupOf(point.prepared);
+    } catch (error) {
+      try {
+        underField(`requests.requests[${index}]`, error);
+      } catch (placed) {
+        point.error = failure(placed);
+      }
+    }
+    return point;
+  });
+}
+
+function kebabCase(name: string): string {
+  return name.replace(/[A-Z]/g, (c) => `-${c.toLowerCase()}`);
+}
+
+/** Checks the grid as a whole; a defect here refuses the batch (INVALID_ARGUMENT) rather than a point. */
+function checkGrid(grid: ParameterGrid__Output): void {
+  if (!Object.hasOwn(EXAMPLES, grid.example)) {
+    throw new ValidationError('grid.example', `unknown example ${JSON.stringify(grid.example)} (expected one of ${Object.keys(EXAMPLES).join(', ')})`);
+  }
+  if (grid.entropies.length === 0) throw new ValidationError('grid.entropies', 'must name at least one entropy kind');
+  grid.entropies.forEach((kind, i) => {
+    if (entropyKindFromWire(kind) === undefined) throw new ValidationError(`grid.entropies[${i}]`, 'must be a specified entropy kind');
+  });
+  const seen = new Set<string>();
+  grid.axes.forEach((axis, k) => {
+    if (axis.name === '') throw new ValidationError(`grid.axes[${k}].name`, 'must name a parameter or "alpha"');
+    const name = kebabCase(axis.name);
+    if (seen.has(name)) throw new ValidationError(`grid.axes[${k}].name`, `sweeps ${axis.name} twice`);
+    seen.add(name);
+    if (axis.values.length === 0) throw new ValidationError(`grid.axes[${k}].values`, 'must hold at least one value');
+    axis.values.forEach((v, j) => {
+      if (!Number.isFinite(v)) throw new ValidationError(`grid.axes[${k}].values[${j}]`, `must be finite (got ${v})`);
+    });
+  });
+  for (const [key, value] of Object.entries(grid.baseParameters)) {
+    if (!Number.isFinite(value)) throw new ValidationError(`grid.baseParameters.${key}`, `must be finite (got ${value})`);
+  }
+  try {
+    checkSettings(settingsFromWire(grid.settings));
+  } catch (error) {
+    underField('grid', error);
+  }
+}
+
+/**
+ * The grid's points: for each entropy kind (in order), the Cartesian product of the axes (first axis slowest).
+ * The "alpha" axis applies to Rényi kinds only; von Neumann points appear once per remaining combination.
+ */
+export function expandGrid(grid: ParameterGrid__Output): BatchPoint[] {
+  checkGrid(grid);
+  const settings = settingsFromWire(grid.settings);
+  const alphaAxis = grid.axes.findIndex((axis) => axis.name === ALPHA_PARAMETER);
+  const baseAlpha = grid.baseParameters[ALPHA_PARAMETER];
+  const builderBase: Record<string, number> = {};
+  for (const [key, value] of Object.entries(grid.baseParameters)) if (key !== ALPHA_PARAMETER) builderBase[key] = value;
+
+  const count = (axes: number[]) => axes.reduce((n, k) => n * grid.axes[k].values.length, 1);
+  const allAxes = grid.axes.map((_, k) => k);
+  const withoutAlpha = allAxes.filter((k) => k !== alphaAxis);
+  const total = grid.entropies.reduce((n, kind) => n + count(kind === 'VON_NEUMANN' ? withoutAlpha : allAxes), 0);
+  if (total > MAX_BATCH_POINTS) throw new ValidationError('grid.axes', `spans ${total} points; at most ${MAX_BATCH_POINTS}`);
+
+  const spans = grid.axes.map((axis) => {
+    const low = Math.min(...axis.values);
+    const high = Math.max(...axis.values);
+    return { low, width: high > low ? high - low : 1 };
+  });
+
+  const points: BatchPoint[] = [];
+  for (const kind of grid.entropies) {
+    const axes = kind === 'VON_NEUMANN' ? withoutAlpha : allAxes;
+    const positions = new Array<number>(axes.length).fill(0);
+    for (let n = 0; n < count(axes); n++) {
+      // Mixed-radix counter over the axes, last axis fastest.
+      let rest = n;
+      for (let a = axes.length - 1; a >= 0; a--) {
+        const size = grid.axes[axes[a]].values.length;
+        positions[a] = rest % size;
+        rest = Math.floor(rest / size);
+      }
+      points.push(gridPoint(grid, points.length, kind, axes, positions, spans, builderBase, baseAlpha, settings));
+    }
+  }
+  return points;
+}
+
+function gridPoint(
+  grid: ParameterGrid__Output,
+  index: number,
+  kind: string,
+  axes: number[],
+  positions: number[],
+  spans: { low: number; width: number }[],
+  builderBase: Record<string, number>,
+  baseAlpha: number | undefined,
+  settings: ReturnType<typeof settingsFromWire>,
+): BatchPoint {
+  const parameters = { ...builderBase };
+  const point: Record<string, number> = {};
+  const coordinates: number[] = [];
+  let alpha = kind === 'VON_NEUMANN' ? undefined : baseAlpha;
+  let alphaField = `grid.baseParameters.${ALPHA_PARAMETER}`;
+  const fieldOfParameter = new Map<string, string>();
+  axes.forEach((k, a) => {
+    const axis = grid.axes[k];
+    const value = axis.values[positions[a]];
+    point[axis.name] = value;
+    coordinates.push((value - spans[k].low) / spans[k].width);
+    const field = `grid.axes[${k}].values[${positions[a]}]`;
+    if (axis.name === ALPHA_PARAMETER) {
+      alpha = value;
+      alphaField = field;
+    } else {
+      parameters[axis.name] = value;
+      fieldOfParameter.set(kebabCase(axis.name), field);
+    }
+  });
+  if (alpha !== undefined && kind !== 'VON_NEUMANN') point[ALPHA_PARAMETER] = alpha;
+  const batchPoint: BatchPoint = { index, point, entropy: kind, group: '', coordinates };
+  try {
+    let problemJson: unknown;
+    try {
+      problemJson = buildExample(grid.example, parameters);
+    } catch (error) {
+      if (error instanceof ValidationError) {
+        const field = fieldOfParameter.get(kebabCase(error.field)) ?? `grid.baseParameters.${error.field}`;
+        throw new ValidationError(field, error.reason);
+      }
+      throw error;
+    }
+    try {
+      batchPoint.prepared = prepareSolve({ problemJson, entropy: kind, alpha, settings });
+    } catch (error) {
+      if (error instanceof ValidationError && error.field === ALPHA_PARAMETER) throw new ValidationError(alphaField, error.reason);
+      underField('grid', error);
+    }
+    batchPoint.group = groupOf(batchPoint.prepared!);
+  } catch (error) {
+    batchPoint.error = failure(error);
+  }
+  return batchPoint;
+}
+
+/** Solved points of one warm-start group. */
+interface SolvedPoint {
+  coordinates: number[];
+  finalState: MatrixJson;
+}
+
+export interface BatchRunOptions {
+  /** Solves one prepared point (the coordinator, with the batch's cancellation signal). */
+  solve: (prepared: PreparedSolve) => Promise<DeliveredResult>;
+  /** Points solved at the same time (the pool's thread count). */
+  concurrency: number;
+  warmStarts: boolean;
+  signal?: AbortSignal;
+  /** Called once per point, in completion order. */
+  onPoint: (point: BatchPoint, outcome: { result?: DeliveredResult; error?: { field: string; message: string } }) => void;
+}
+
+function squaredDistance(a: number[], b: number[]): number {
+  let sum = 0;
+  for (let i = 0; i < a.length; i++) sum += (a[i] - b[i]) ** 2;
+  return sum;
+}
+
+/**
+ * Runs the valid points `concurrency` at a time. Each warm-start group is walked in grid order, and groups with
+ * nothing running go first, so that a point usually starts from its direct neighbour's final state.
+ */
+export async function runBatch(points: BatchPoint[], options: BatchRunOptions): Promise<void> {
+  const queues = new Map<string, BatchPoint[]>();
+  const running = new Map<string, number>();
+  const solved = new Map<string, SolvedPoint[]>();
+  for (const point of points) {
+    if (point.error !== undefined) {
+      options.onPoint(point, { error: point.error });
+      continue;
+    }
+    const queue = queues.get(point.group) ?? [];
+    queue.push(point);
+    queues.set(point.group, queue);
+  }
+
+  const next = (): BatchPoint | undefined => {
+    let best: string | undefined;
+    let bestKey = -Infinity;
+    for (const [group, queue] of queues) {
+      if (queue.length === 0) continue;
+      // Idle groups first, then the longest remaining chain.
+      const key = ((running.get(group) ?? 0) === 0 ? 1e9 : 0) + queue.length;
+      if (key > bestKey) {
+        bestKey = key;
+        best = group;
+      }
+    }
+    return best === undefined ? undefined : queues.get(best)!.shift();
+  };
+
+  const warmStartFor = (point: BatchPoint): MatrixJson | undefined => {
+    let nearest: SolvedPoint | undefined;
+    let distance = Infinity;
+    for (const candidate of solved.get(point.group) ?? []) {
+      const d = squaredDistance(candidate.coordinates, point.coordinates);
+      if (d < distance) {
+        distance = d;
+        nearest = candidate;
+      }
+    }
+    return nearest?.finalState;
+  };
+
+  const runOne = async (point: BatchPoint): Promise<void> => {
+    const prepared = point.prepared!;
+    if (options.warmStarts && prepared.warmStart === undefined) {
+      const warmStart = warmStartFor(point);
+      if (warmStart !== undefined) prepared.warmStart = warmStart;
+    }
+    running.set(point.group, (running.get(point.group) ?? 0) + 1);
+    try {
+      const result = await options.solve(prepared);
+      if (result.finalState !== undefined && result.status !== 'INFEASIBLE') {
+        const list = solved.get(point.group) ?? [];
+        list.push({ coordinates: point.coordinates, finalState: result.finalState });
+        solved.set(point.group, list);
+      }
+      options.onPoint(point, { result });
+    } catch (error) {
+      options.onPoint(point, { error: { field: '', message: (error as Error).message } });
+    } finally {
+      running.set(point.group, running.get(point.group)! - 1);
+    }
+  };
+
+  const lanes = Array.from({ length: Math.max(1, options.concurrency) }, async () => {
+    for (let point = next(); point !== undefined; point = next()) {
+      if (options.signal?.aborted) return;
+      await runOne(point);
+    }
+  });
+  await Promise.all(lanes);
+}

@@ -1,0 +1,278 @@
+// The gRPC server: RenyiBound handlers, health, reflection, the solver pool, the cache, and graceful shutdown.
+import * as grpc from '@grpc/grpc-js';
+import { ReflectionService } from '@grpc/reflection';
+import { HealthImplementation, type ServingStatus } from 'grpc-health-check';
+import { pino, type Logger } from 'pino';
+import { MemoryCacheLayer, DEFAULT_MEMORY_ENTRIES } from '../cache/memory.js';
+import type { CacheLayer } from '../cache/layer.js';
+import { RedisCacheLayer } from '../cache/redis.js';
+import { ResultCache } from '../cache/result-cache.js';
+import { defaultCacheDirectory, SqliteCacheLayer } from '../cache/sqlite.js';
+import { verifyResult } from '../certificate/verify.js';
+import type { SolveResult } from '../frank-wolfe/types.js';
+import { ValidationError } from '../problem/errors.js';
+import { expandGrid, expandRequestList, runBatch, solveInputFromWire, type BatchPoint } from './batch.js';
+import { toServiceError } from './errors.js';
+import type { BatchItem } from './generated/renyibound/v1/BatchItem.js';
+import type { BatchRequest__Output } from './generated/renyibound/v1/BatchRequest.js';
+import type { RenyiBoundHandlers } from './generated/renyibound/v1/RenyiBound.js';
+import type { SolveReply } from './generated/renyibound/v1/SolveReply.js';
+import type { SolveRequest__Output } from './generated/renyibound/v1/SolveRequest.js';
+import type { VerifyReply } from './generated/renyibound/v1/VerifyReply.js';
+import type { VerifyRequest__Output } from './generated/renyibound/v1/VerifyRequest.js';
+import { prepareSolve } from './prepare.js';
+import { loadServiceDefinition, loadServicePackage, SERVICE_NAME } from './proto.js';
+import { SolveCoordinator } from './solve-coordinator.js';
+import type { SolveTask } from './solve-worker.js';
+import { QueueFullError, SolverPool } from './solver-pool.js';
+import { entropyKindFromWire, resultFromWire, resultToWire, wireToJson } from './wire.js';
+
+export interface ServerOptions {
+  /** Interface to bind; loopback unless told otherwise. */
+  host?: string;
+  /** TCP port; 0 picks a free one (see RenyiBoundServer.port). */
+  port?: number;
+  /** Solver threads; defaults to the number of cores. */
+  workers?: number;
+  /** Tasks allowed to wait for a thread; beyond it Solve answers RESOURCE_EXHAUSTED. */
+  queueLimit?: number;
+  /** Directory of the SQLite cache; false keeps results in memory only. */
+  cacheDirectory?: string | false;
+  /** Redis shared between replicas. */
+  redisUrl?: string;
+  /** Results kept in the in-memory tier. */
+  memoryEntries?: number;
+  logger?: Logger;
+  /** How long shutdown waits for in-flight calls before cancelling them. */
+  drainTimeoutMs?: number;
+  /** Attempts per task when its solver thread dies (default 2: one retry). */
+  workerAttempts?: number;
+}
+
+/** Defaults of the command line (`renyi-bound serve`). */
+export const DEFAULT_HOST = '127.0.0.1';
+export const DEFAULT_PORT = 50051;
+/** Long enough for a typical solve to finish; after it the remaining solves are cancelled (they still answer). */
+export const DEFAULT_DRAIN_TIMEOUT_MS = 60_000;
+
+function bindAddress(host: string, port: number): string {
+  return host.includes(':') && !host.startsWith('[') ? `[${host}]:${port}` : `${host}:${port}`;
+}
+
+export class RenyiBoundServer {
+  readonly health: HealthImplementation;
+  private readonly batchControllers = new Set<AbortController>();
+  private readonly callControllers = new Set<AbortController>();
+  private shuttingDown: Promise<void> | undefined;
+  private servingStatus: ServingStatus = 'SERVING';
+
+  private constructor(
+    readonly grpcServer: grpc.Server,
+    readonly pool: SolverPool<SolveTask, SolveResult>,
+    readonly cache: ResultCache,
+    readonly coordinator: SolveCoordinator,
+    readonly logger: Logger,
+    readonly host: string,
+    readonly port: number,
+    private readonly drainTimeoutMs: number,
+  ) {
+    this.health = new HealthImplementation({ '': 'SERVING', [SERVICE_NAME]: 'SERVING' });
+  }
+
+  /** host:port for clients. */
+  get address(): string {
+    return bindAddress(this.host === '0.0.0.0' ? '127.0.0.1' : this.host === '::' ? '::1' : this.host, this.port);
+  }
+
+  get status(): ServingStatus {
+    return this.servingStatus;
+  }
+
+  static async start(options: ServerOptions = {}): Promise<RenyiBoundServer> {
+    const logger = options.logger ?? pino({ name: 'renyi-bound' });
+    const layers: CacheLayer[] = [new MemoryCacheLayer(options.memoryEntries ?? DEFAULT_MEMORY_ENTRIES)];
+    if (options.cacheDirectory !== false) {
+      layers.push(SqliteCacheLayer.inDirectory(options.cacheDirectory ?? defaultCacheDirectory()));
+    }
+    if (options.redisUrl) {
+      layers.push(
+        await RedisCacheLayer.connect(options.redisUrl, {
+          onConnectionError: (error) => logger.warn({ event: 'redis', reason: error.message }, 'redis connection error'),
+        }),
+      );
+    }
+    const cache = new ResultCache(layers, (event) => logger.warn({ event: 'cache', ...event }, `cache entry ${event.kind}`));
+    const pool = new SolverPool<SolveTask, SolveResult>({
+      workers: options.workers,
+      queueLimit: options.queueLimit,
+      maxAttempts: options.workerAttempts,
+    });
+    const coordinator = new SolveCoordinator(pool, cache, logger);
+    const grpcServer = new grpc.Server();
+    const host = options.host ?? DEFAULT_HOST;
+    let port: number;
+    try {
+      port = await new Promise<number>((resolve, reject) =>
+        grpcServer.bindAsync(bindAddress(host, options.port ?? DEFAULT_PORT), grpc.ServerCredentials.createInsecure(), (error, bound) =>
+          error ? reject(error) : resolve(bound),
+        ),
+      );
+    } catch (error) {
+      await pool.destroy();
+      await cache.close();
+      throw error;
+    }
+    const server = new RenyiBoundServer(grpcServer, pool, cache, coordinator, logger, host, port, options.drainTimeoutMs ?? DEFAULT_DRAIN_TIMEOUT_MS);
+    grpcServer.addService(loadServicePackage().renyibound.v1.RenyiBound.service, server.handlers());
+    server.health.addToServer(grpcServer);
+    new ReflectionService(loadServiceDefinition()).addToServer(grpcServer);
+    logger.info(
+      { event: 'listening', address: server.address, workers: pool.workers, queueLimit: pool.queueLimit, cache: layers.map((l) => l.name) },
+      'renyi-bound service listening',
+    );
+    return server;
+  }
+
+  private setServing(status: ServingStatus): void {
+    this.servingStatus = status;
+    this.health.setStatus('', status);
+    this.health.setStatus(SERVICE_NAME, status);
+  }
+
+  /** An abort controller tied to the call's cancellation and deadline. */
+  private controllerFor(call: grpc.ServerUnaryCall<unknown, unknown> | grpc.ServerWritableStream<unknown, unknown>, registry: Set<AbortController>): { controller: AbortController; release: () => void } {
+    const controller = new AbortController();
+    const abort = () => controller.abort();
+    call.on('cancelled', abort);
+    const deadline = call.getDeadline();
+    const milliseconds = deadline instanceof Date ? deadline.getTime() - Date.now() : deadline - Date.now();
+    const timer = Number.isFinite(milliseconds) ? setTimeout(abort, Math.max(0, milliseconds)) : undefined;
+    registry.add(controller);
+    return {
+      controller,
+      release: () => {
+        clearTimeout(timer);
+        call.removeListener('cancelled', abort);
+        registry.delete(controller);
+      },
+    };
+  }
+
+  private handlers(): RenyiBoundHandlers {
+    return {
+      Solve: (call, callback) => void this.solve(call, callback),
+      SolveBatch: (call) => void this.solveBatch(call),
+      Verify: (call, callback) => this.verify(call, callback),
+    };
+  }
+
+  private async solve(
+    call: grpc.ServerUnaryCall<SolveRequest__Output, SolveReply>,
+    callback: grpc.sendUnaryData<SolveReply>,
+  ): Promise<void> {
+    let prepared;
+    try {
+      prepared = prepareSolve(solveInputFromWire(call.request));
+    } catch (error) {
+      callback(toServiceError(error));
+      return;
+    }
+    const { controller, release } = this.controllerFor(call, this.callControllers);
+    try {
+      const result = await this.coordinator.solve(prepared, { signal: controller.signal, requestId: call.request.requestId });
+      callback(null, { result: resultToWire(result, result.fromCache), requestId: call.request.requestId });
+    } catch (error) {
+      callback(toServiceError(error));
+    } finally {
+      release();
+    }
+  }
+
+  private async solveBatch(call: grpc.ServerWritableStream<BatchRequest__Output, BatchItem>): Promise<void> {
+    let points: BatchPoint[];
+    try {
+      const request = call.request;
+      if (request.source === 'grid' && request.grid) points = expandGrid(request.grid);
+      else if (request.source === 'requests' && request.requests) points = expandRequestList(request.requests);
+      else throw new ValidationError('source', 'must hold either requests or grid');
+      if (this.pool.isFull) throw new QueueFullError(this.pool.queueLimit);
+    } catch (error) {
+      call.emit('error', toServiceError(error));
+      return;
+    }
+    const { controller, release } = this.controllerFor(call, this.batchControllers);
+    const total = points.length;
+    let done = 0;
+    this.logger.info({ event: 'batch', requestId: call.request.requestId || undefined, points: total }, 'batch started');
+    try {
+      await runBatch(points, {
+        solve: (prepared) =>
+          this.coordinator.solve(prepared, { signal: controller.signal, requestId: call.request.requestId, admitted: true }),
+        concurrency: this.pool.workers,
+        warmStarts: !call.request.disableWarmStart,
+        signal: controller.signal,
+        onPoint: (point, outcome) => {
+          done++;
+          if (controller.signal.aborted) return;
+          call.write({
+            index: point.index,
+            point: point.point,
+            entropy: point.entropy === '' ? 'ENTROPY_KIND_UNSPECIFIED' : (point.entropy as BatchItem['entropy']),
+            result: outcome.result ? resultToWire(outcome.result, outcome.result.fromCache) : null,
+            errorField: outcome.error?.field ?? '',
+            errorMessage: outcome.error?.message ?? '',
+            progress: { done, total },
+          });
+        },
+      });
+      if (!controller.signal.aborted) call.end();
+    } catch (error) {
+      call.emit('error', toServiceError(error));
+    } finally {
+      this.logger.info({ event: 'batch', requestId: call.request.requestId || undefined, points: total, done, cancelled: controller.signal.aborted }, 'batch finished');
+      release();
+    }
+  }
+
+  private verify(call: grpc.ServerUnaryCall<VerifyRequest__Output, VerifyReply>, callback: grpc.sendUnaryData<VerifyReply>): void {
+    try {
+      const request = call.request;
+      const prepared = prepareSolve({
+        problemJson: request.problem === null ? undefined : wireToJson(request.problem),
+        entropy: entropyKindFromWire(request.entropy),
+        alpha: request.alpha,
+      });
+      if (request.result === null) throw new ValidationError('result', 'is required');
+      const report = verifyResult(prepared.problem, prepared.request, resultFromWire(request.result));
+      callback(null, { valid: report.valid, certifiedLowerBound: report.certifiedLowerBound ?? undefined, reason: report.reason });
+    } catch (error) {
+      callback(toServiceError(error));
+    }
+  }
+
+  /**
+   * Graceful shutdown: health goes NOT_SERVING, new calls are refused, in-flight calls finish (after
+   * drainTimeoutMs they are cancelled, which still answers them with a valid bound), then threads and caches close.
+   */
+  shutdown(): Promise<void> {
+    this.shuttingDown ??= (async () => {
+      this.setServing('NOT_SERVING');
+      this.logger.info({ event: 'shutdown', inFlight: this.pool.pending }, 'draining');
+      const drained = new Promise<void>((resolve) => this.grpcServer.tryShutdown(() => resolve()));
+      let timer: NodeJS.Timeout | undefined;
+      const timedOut = new Promise<'timeout'>((resolve) => {
+        timer = setTimeout(() => resolve('timeout'), this.drainTimeoutMs);
+      });
+      if ((await Promise.race([drained, timedOut])) === 'timeout') {
+        this.logger.warn({ event: 'shutdown', inFlight: this.pool.pending }, 'drain timeout: cancelling in-flight solves');
+        for (const controller of [...this.callControllers, ...this.batchControllers]) controller.abort();
+        await drained;
+      }
+      clearTimeout(timer);
+      await this.pool.destroy();
+      await this.cache.close();
+      this.logger.info({ event: 'shutdown' }, 'stopped');
+    })();
+    return this.shuttingDown;
+  }
+}
