@@ -29,6 +29,9 @@ export interface SolveControl {
 /** Everything a third party needs, besides the problem, to recompute the bound. */
 export interface Certificate {
   inputHash: string;
+  solverVersion: string;
+  /** The result-relevant settings that enter the input hash. */
+  settings: { gapTolerance: number; maxIterations: number };
   entropy: string;
   alpha: number | null;
   /** Full-rank linearization point ρ' on H_A ⊗ H_B. */

@@ -1,0 +1,126 @@
+import {
+  addScaledInPlace,
+  ComplexMatrix,
+  conjugate,
+  conjugateAdjoint,
+  directSum,
+  frobeniusNorm,
+  traceProductReal,
+} from '../linear-algebra/complex-matrix.js';
+import { eigh } from '../linear-algebra/eigen.js';
+import type { Objective, ReferenceBlocks, BranchSupport } from '../objectives/index.js';
+import type { Problem } from '../problem/model.js';
+import { pinchedBlocks } from '../objectives/spectral-blocks.js';
+
+/** Generous constant c in the eigensolver backward-error scale c·n·u·‖A‖_F used for the margin. */
+export const MARGIN_CONSTANT = 64;
+const UNIT_ROUNDOFF = 2 ** -53;
+
+/** Every term of LB = F(ρ') − ⟨∇F, ρ'⟩ + Σy⁺ℓ − Σy⁻u + λ_min(∇F − Σ yΓ) [+ τ terms] − margin. */
+export interface BoundBreakdown {
+  objectiveValue: number;
+  gradientInnerProduct: number;
+  dualConstant: number;
+  smallestEigenvalue: number;
+  /** Sandwiched-up: −⟨∇_τF, τ'⟩ + min over blocks λ_min(∇_τF); 0 otherwise. */
+  referenceTerm: number;
+  /** Floating-point allowance (a conservative estimate, not interval arithmetic). */
+  margin: number;
+  lowerBound: number;
+  /** Σ (y⁺ + y⁻)·(upper − lower)/2: what the statistical tolerance intervals cost the bound. */
+  statisticalSlack: number;
+}
+
+/**
+ * The certified lower bound from a full-rank linearization point on the feasible face (MATH.md §5 restated in
+ * the README). Valid for any multipliers y⁺, y⁻ ≥ 0 and any full-rank ρ' by convexity and weak duality.
+ */
+export function linearizationBound(
+  restricted: Problem,
+  objective: Objective,
+  rho: ComplexMatrix,
+  multipliersLower: ArrayLike<number>,
+  multipliersUpper: ArrayLike<number>,
+  reference?: ReferenceBlocks,
+): BoundBreakdown {
+  const n = rho.rows;
+  let objectiveValue: number;
+  let gradient: ComplexMatrix;
+  let referenceTerm = 0;
+  let referenceError = 0;
+  if (objective.request.kind === 'sandwiched-up') {
+    if (!reference) throw new Error('linearizationBound: sandwiched-up needs reference states τ');
+    const joint = objective.evaluateAtReference(rho, reference);
+    objectiveValue = joint.value;
+    gradient = joint.gradientState;
+    let innerProduct = 0;
+    let smallest = Infinity;
+    joint.gradientReference.forEach((blocks, c) =>
+      blocks.forEach((g, k) => {
+        innerProduct += traceProductReal(g, reference[c][k]);
+        smallest = Math.min(smallest, eigh(g).values[0]);
+        referenceError += MARGIN_CONSTANT * g.rows * UNIT_ROUNDOFF * frobeniusNorm(g) * 2;
+      }),
+    );
+    referenceTerm = smallest - innerProduct;
+  } else {
+    const evaluation = objective.evaluate(rho, { withGradient: true, assumeFullRank: true });
+    objectiveValue = evaluation.value;
+    gradient = evaluation.gradient as ComplexMatrix;
+  }
+  const shifted = gradient.clone();
+  let dualConstant = 0;
+  let statisticalSlack = 0;
+  let multiplierWeight = 0;
+  restricted.constraints.forEach((constraint, i) => {
+    const yLower = multipliersLower[i];
+    const yUpper = multipliersUpper[i];
+    if (yLower === 0 && yUpper === 0) return;
+    addScaledInPlace(shifted, constraint.operator, -(yLower - yUpper));
+    // An open side (±∞) carries a zero multiplier; skipping it avoids 0·∞.
+    if (yLower !== 0) dualConstant += yLower * constraint.lower;
+    if (yUpper !== 0) dualConstant -= yUpper * constraint.upper;
+    statisticalSlack += ((yLower + yUpper) * (constraint.upper - constraint.lower)) / 2;
+    multiplierWeight +=
+      (yLower + yUpper) * (frobeniusNorm(constraint.operator) + Math.abs(constraint.lower) + Math.abs(constraint.upper));
+  });
+  const smallestEigenvalue = eigh(shifted).values[0];
+  const gradientInnerProduct = traceProductReal(gradient, rho);
+
+  // Backward-error scale of each eigendecomposition; the gradient term grows like ‖ρ'‖/λ_min(ρ') because the
+  // derivative of log or of a negative power amplifies a backward error by the inverse smallest eigenvalue.
+  const rhoEigenvalues = eigh(rho).values;
+  const conditioning = frobeniusNorm(rho) / Math.max(rhoEigenvalues[0], Number.MIN_VALUE);
+  const scale = MARGIN_CONSTANT * n * UNIT_ROUNDOFF;
+  const margin =
+    scale *
+      (Math.abs(objectiveValue) +
+        2 * Math.abs(gradientInnerProduct) +
+        frobeniusNorm(shifted) +
+        multiplierWeight +
+        2 * (frobeniusNorm(gradient) + conditioning / Math.LN2)) +
+    referenceError;
+  const lowerBound =
+    objectiveValue - gradientInnerProduct + dualConstant + smallestEigenvalue + referenceTerm - margin;
+  return {
+    objectiveValue,
+    gradientInnerProduct,
+    dualConstant,
+    smallestEigenvalue,
+    referenceTerm,
+    margin,
+    lowerBound,
+    statisticalSlack,
+  };
+}
+
+/** τ_c on H_c (block diagonal in the key map) → blocks on the branch's pinched support. */
+export function referenceToSupport(support: BranchSupport, referenceOnOutput: ComplexMatrix): ComplexMatrix[] {
+  const compressed = conjugateAdjoint(support.basis, referenceOnOutput);
+  return pinchedBlocks(compressed, support.blockSizes, support.blockOffsets);
+}
+
+/** Blocks on the pinched support → τ_c on H_c. */
+export function referenceFromSupport(support: BranchSupport, blocks: ComplexMatrix[]): ComplexMatrix {
+  return conjugate(support.basis, directSum(blocks));
+}

@@ -1,0 +1,115 @@
+// Independent re-check of a certificate: no optimiser code is imported here (a test enforces it).
+import { ComplexMatrix, hermiticityDefect } from '../linear-algebra/complex-matrix.js';
+import { eigh } from '../linear-algebra/eigen.js';
+import { createObjective } from '../objectives/index.js';
+import { compressToFace, feasibleFace, restrictToFace } from '../problem/feasible-face.js';
+import { inputHash } from '../problem/hash.js';
+import { matrixFromJson } from '../problem/json.js';
+import type { EntropyRequest, Problem } from '../problem/model.js';
+import type { Certificate, SolveResult } from '../frank-wolfe/types.js';
+import { linearizationBound, referenceToSupport } from './bound.js';
+import { SOLVER_VERSION } from './version.js';
+
+export interface VerificationReport {
+  valid: boolean;
+  /** The bound recomputed from the problem and certificate alone (null when it could not be recomputed). */
+  certifiedLowerBound: number | null;
+  reason: string;
+}
+
+/** Hermiticity accepted for a stored linearization point (it went through JSON with full precision). */
+const STATE_HERMITICITY_TOLERANCE = 1e-12;
+
+function reject(reason: string, certifiedLowerBound: number | null = null): VerificationReport {
+  return { valid: false, certifiedLowerBound, reason };
+}
+
+function nonNegativeFinite(values: unknown, length: number): values is number[] {
+  return (
+    Array.isArray(values) &&
+    values.length === length &&
+    values.every((v) => typeof v === 'number' && Number.isFinite(v) && v >= 0)
+  );
+}
+
+/** Recomputes the bound of a result's certificate from the problem; rejects hash mismatches and overclaims. */
+export function verifyResult(
+  problem: Problem,
+  request: EntropyRequest,
+  result: Pick<SolveResult, 'certificate' | 'certifiedLowerBound' | 'inputHash'>,
+): VerificationReport {
+  const certificate = result.certificate;
+  if (!certificate) return reject('the result carries no certificate');
+  return verifyCertificate(problem, request, certificate, result.certifiedLowerBound);
+}
+
+export function verifyCertificate(
+  problem: Problem,
+  request: EntropyRequest,
+  certificate: Certificate,
+  reportedBound: number | null = certificate.claimedBound,
+): VerificationReport {
+  if (certificate.solverVersion !== SOLVER_VERSION) {
+    return reject(`certificate from solver version ${certificate.solverVersion}, this verifier is ${SOLVER_VERSION}`);
+  }
+  const expectedHash = inputHash(problem, request, certificate.settings, SOLVER_VERSION);
+  if (certificate.inputHash !== expectedHash) return reject('input hash does not match the problem');
+  if (certificate.entropy !== request.kind) return reject(`certificate is for ${certificate.entropy}, not ${request.kind}`);
+  const m = problem.constraints.length;
+  if (!nonNegativeFinite(certificate.multipliersLower, m) || !nonNegativeFinite(certificate.multipliersUpper, m)) {
+    return reject(`multipliers must be ${m} finite non-negative numbers each`);
+  }
+  const claimed = certificate.claimedBound;
+  if (typeof claimed !== 'number' || !Number.isFinite(claimed)) return reject('claimed bound is not a finite number');
+  if (reportedBound !== null && reportedBound !== claimed) {
+    return reject(`reported bound ${reportedBound} differs from the certificate's claimed bound ${claimed}`);
+  }
+
+  const face = feasibleFace(problem);
+  const restricted = restrictToFace(problem, face);
+  let state: ComplexMatrix;
+  try {
+    state = matrixFromJson(certificate.linearizationState, 'certificate.linearizationState');
+  } catch (error) {
+    return reject((error as Error).message);
+  }
+  const d = problem.dimensionA * problem.dimensionB;
+  if (state.rows !== d || state.cols !== d) return reject(`linearization state must be ${d}x${d}`);
+  if (hermiticityDefect(state) > STATE_HERMITICITY_TOLERANCE) return reject('linearization state is not Hermitian');
+  const reduced = compressToFace(face, state);
+  if (!(eigh(reduced).values[0] > 0)) return reject('linearization state is not full rank on the feasible face');
+
+  const objective = createObjective(restricted, request);
+  let reference;
+  if (objective.request.kind === 'sandwiched-up') {
+    const stored = certificate.referenceStates;
+    if (!stored || stored.length !== objective.supports.length) {
+      return reject(`sandwiched-up needs ${objective.supports.length} reference states`);
+    }
+    try {
+      reference = objective.supports.map((support, c) =>
+        referenceToSupport(support, matrixFromJson(stored[c], `certificate.referenceStates[${c}]`)),
+      );
+    } catch (error) {
+      return reject((error as Error).message);
+    }
+    for (const blocks of reference) {
+      for (const block of blocks) {
+        if (!(eigh(block).values[0] > 0)) return reject('reference state τ is not full rank on every key block');
+      }
+    }
+  }
+  const breakdown = linearizationBound(
+    restricted,
+    objective,
+    reduced,
+    certificate.multipliersLower,
+    certificate.multipliersUpper,
+    reference,
+  );
+  if (!Number.isFinite(breakdown.lowerBound)) return reject('recomputed bound is not finite');
+  if (breakdown.lowerBound < claimed) {
+    return reject(`recomputed bound ${breakdown.lowerBound} is below the claimed ${claimed}`, breakdown.lowerBound);
+  }
+  return { valid: true, certifiedLowerBound: breakdown.lowerBound, reason: 'certificate verified' };
+}

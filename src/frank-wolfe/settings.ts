@@ -1,0 +1,60 @@
+import type { SolverSettings } from './types.js';
+
+export class SettingsError extends Error {
+  readonly field: string;
+  readonly reason: string;
+  constructor(field: string, reason: string) {
+    super(`${field}: ${reason}`);
+    this.name = 'SettingsError';
+    this.field = field;
+    this.reason = reason;
+  }
+}
+
+/** Defaults a caller gets when a field is omitted. */
+export const DEFAULT_SETTINGS: Readonly<SolverSettings> = Object.freeze({
+  gapTolerance: 1e-6,
+  maxIterations: 20000,
+  timeLimitMs: 120000,
+});
+
+/** Fills defaults and range-checks every field; errors name the field. */
+export function resolveSettings(partial: Partial<SolverSettings> = {}, path = 'settings'): SolverSettings {
+  const settings: SolverSettings = { ...DEFAULT_SETTINGS };
+  for (const [key, value] of Object.entries(partial)) {
+    if (value !== undefined && value !== null) (settings as unknown as Record<string, number>)[key] = value as number;
+  }
+  const { gapTolerance, maxIterations, timeLimitMs } = settings;
+  if (typeof gapTolerance !== 'number' || !(gapTolerance >= 1e-12 && gapTolerance <= 1)) {
+    throw new SettingsError(`${path}.gapTolerance`, `must be a number in [1e-12, 1], got ${String(gapTolerance)}`);
+  }
+  if (!Number.isInteger(maxIterations) || maxIterations < 1 || maxIterations > 10_000_000) {
+    throw new SettingsError(`${path}.maxIterations`, `must be an integer in [1, 1e7], got ${String(maxIterations)}`);
+  }
+  if (typeof timeLimitMs !== 'number' || !(timeLimitMs > 0 && timeLimitMs <= 86_400_000)) {
+    throw new SettingsError(`${path}.timeLimitMs`, `must be a number of milliseconds in (0, 86400000], got ${String(timeLimitMs)}`);
+  }
+  return settings;
+}
+
+/** Internal tuning of the optimiser; none changes what a certificate proves, only how fast it is reached. */
+export const TUNING = Object.freeze({
+  /** Relative accuracy of the first oracle solves (an interior answer is a better step than an exact vertex). */
+  initialOracleAccuracy: 1e-7,
+  /** The oracle accuracy is never tightened beyond this. */
+  finestOracleAccuracy: 1e-12,
+  /** Iterations without a 10 % drop of the estimated gap before the oracle accuracy is tightened tenfold. */
+  stallWindow: 15,
+  /** Certify (full bound with margin) when the estimated gap is below this share of the requested gap. */
+  certifyShare: 0.5,
+  /** …and at least every this many iterations, so a limit always finds a recent certificate. */
+  certifyEvery: 25,
+  /** Atoms kept by pairwise steps before the two lightest are merged into their weighted mean. */
+  maxAtoms: 60,
+  /** Line search stops when |φ'(t)| ≤ this share of |φ'(0)|. */
+  lineSearchTolerance: 1e-6,
+  /** Derivative evaluations allowed per line search. */
+  lineSearchEvaluations: 40,
+  /** An atom whose weight falls below this is dropped. */
+  atomWeightFloor: 1e-15,
+});

@@ -1,0 +1,12 @@
+export {
+  createObjective,
+  branchWeight,
+  logCoefficient,
+  normaliseRequest,
+  sandwichedOrder,
+  type Objective,
+  type ObjectiveEvaluation,
+  type JointEvaluation,
+} from './objective.js';
+export type { ReferenceBlocks } from './sandwiched-up.js';
+export type { BranchSupport } from './branch-supports.js';

@@ -1,0 +1,221 @@
+import { addScaledInPlace, ComplexMatrix, conjugate, conjugateAdjoint, multiply, scale } from '../linear-algebra/complex-matrix.js';
+import { supportDecomposition } from '../linear-algebra/support.js';
+import type { EntropyRequest, Problem } from '../problem/model.js';
+import { branchSupport, type BranchSupport } from './branch-supports.js';
+import { petzDownQuasiEntropy } from './petz-down.js';
+import { petzUpQuasiEntropy } from './petz-up.js';
+import {
+  DEFAULT_REFERENCE_SETTINGS,
+  optimalReference,
+  sandwichedBranchTerm,
+  type ReferenceBlocks,
+  type ReferenceSettings,
+} from './sandwiched-up.js';
+import { relativeEntropyToPinched } from './von-neumann.js';
+
+export interface ObjectiveEvaluation {
+  /** F(ρ) in bits. */
+  value: number;
+  /** ∇_ρ F (Hermitian, on H), or null when not requested or when ρ is rank deficient (no gradient exists). */
+  gradient: ComplexMatrix | null;
+  /** Sandwiched-up only: the optimal key-block-diagonal τ at this ρ and the certified inner gap on Q. */
+  reference?: ReferenceBlocks;
+  innerGap?: number;
+}
+
+export interface EvaluateOptions {
+  withGradient?: boolean;
+  /** Skip the rank test when the caller guarantees a full-rank ρ (the optimiser does). */
+  assumeFullRank?: boolean;
+}
+
+/** Value and gradient of F at a fixed τ (sandwiched-up), as used by the joint linearization of a certificate. */
+export interface JointEvaluation {
+  value: number;
+  gradientState: ComplexMatrix;
+  /** ∇_τ F per branch and key block. */
+  gradientReference: ComplexMatrix[][];
+}
+
+export interface Objective {
+  readonly request: Required<EntropyRequest>;
+  readonly dimension: number;
+  readonly supports: readonly BranchSupport[];
+  evaluate(rho: ComplexMatrix, options?: EvaluateOptions): ObjectiveEvaluation;
+  /** Sandwiched-up at a given τ (no inner optimisation); throws for other kinds. */
+  evaluateAtReference(rho: ComplexMatrix, reference: ReferenceBlocks): JointEvaluation;
+}
+
+/** Branch weight w_c = 2^{((α−1)/α)f(c)} (Petz-down: 2^{(α−1)f(c)}) so a constant score k shifts every kind by −k. */
+export function branchWeight(request: Required<EntropyRequest>, score: number): number {
+  const { kind, alpha } = request;
+  if (kind === 'von-neumann') return 1;
+  const exponent = kind === 'petz-down' ? (alpha - 1) * score : ((alpha - 1) / alpha) * score;
+  return 2 ** exponent;
+}
+
+/** The coefficient c in F = c·log2 Q for the Rényi kinds. */
+export function logCoefficient(request: Required<EntropyRequest>): number {
+  const { kind, alpha } = request;
+  if (kind === 'petz-up') return alpha / (1 - alpha);
+  if (kind === 'petz-down') return 1 / (1 - alpha);
+  if (kind === 'sandwiched-up') return (2 * alpha - 1) / (1 - alpha);
+  throw new Error(`logCoefficient: ${kind} has no logarithm form`);
+}
+
+/** β = α/(2α−1), the sandwiched order dual to α. */
+export function sandwichedOrder(alpha: number): number {
+  return alpha / (2 * alpha - 1);
+}
+
+export function normaliseRequest(request: EntropyRequest): Required<EntropyRequest> {
+  if (request.kind === 'von-neumann') return { kind: request.kind, alpha: 1 };
+  const alpha = request.alpha;
+  if (alpha === undefined || !Number.isFinite(alpha) || alpha <= 1 || alpha > 2) {
+    throw new RangeError(`alpha: must lie in (1, 2] for ${request.kind}; Rényi objectives are not convex outside it`);
+  }
+  return { kind: request.kind, alpha };
+}
+
+/** `referenceSettings` tune the sandwiched-up inner maximisation over τ (ignored by the other kinds). */
+export function createObjective(
+  problem: Problem,
+  request: EntropyRequest,
+  referenceSettings: ReferenceSettings = DEFAULT_REFERENCE_SETTINGS,
+): Objective {
+  return new EntropyObjective(problem, normaliseRequest(request), referenceSettings);
+}
+
+class EntropyObjective implements Objective {
+  readonly request: Required<EntropyRequest>;
+  readonly dimension: number;
+  readonly supports: readonly BranchSupport[];
+  private readonly weights: number[];
+  private readonly referenceSettings: ReferenceSettings;
+  /** Last optimal τ: the next evaluation (a nearby ρ in a line search) starts its fixed-point iteration there. */
+  private lastReference: ReferenceBlocks | undefined;
+
+  constructor(
+    private readonly problem: Problem,
+    request: Required<EntropyRequest>,
+    referenceSettings: ReferenceSettings = DEFAULT_REFERENCE_SETTINGS,
+  ) {
+    this.request = request;
+    this.referenceSettings = referenceSettings;
+    this.dimension = problem.branches[0].krausOperators[0].cols;
+    // A branch that can never occur contributes nothing to any kind.
+    this.supports = problem.branches.map(branchSupport).filter((s) => s.dimension > 0);
+    this.weights = this.supports.map((s) => branchWeight(request, s.score));
+  }
+
+  private branchStates(rho: ComplexMatrix): ComplexMatrix[] {
+    return this.supports.map((support) => {
+      const out = ComplexMatrix.zeros(support.dimension);
+      for (const k of support.krausOperators) addScaledInPlace(out, conjugate(k, rho), 1);
+      return out;
+    });
+  }
+
+  /** ∇_ρ = Σ_c Σ_j K̂_{c,j}† G_c K̂_{c,j}. */
+  private pullBack(gradients: readonly ComplexMatrix[]): ComplexMatrix {
+    const total = ComplexMatrix.zeros(this.dimension);
+    this.supports.forEach((support, c) => {
+      for (const k of support.krausOperators) addScaledInPlace(total, conjugateAdjoint(k, gradients[c]), 1);
+    });
+    return total;
+  }
+
+  evaluate(rho: ComplexMatrix, options: EvaluateOptions = {}): ObjectiveEvaluation {
+    if (rho.rows !== this.dimension || rho.cols !== this.dimension) {
+      throw new RangeError(`state: expected ${this.dimension}x${this.dimension}, got ${rho.rows}x${rho.cols}`);
+    }
+    if (options.assumeFullRank !== true) {
+      const support = supportDecomposition(rho, 'state');
+      if (support.rank < this.dimension) return this.evaluateOnSupport(rho, support.range);
+    }
+    const withGradient = options.withGradient ?? true;
+    const states = this.branchStates(rho);
+    const { kind, alpha } = this.request;
+    const ln2 = Math.LN2;
+
+    if (kind === 'von-neumann') {
+      let value = 0;
+      const gradients: ComplexMatrix[] = [];
+      this.supports.forEach((support, c) => {
+        const term = relativeEntropyToPinched(states[c], support, withGradient);
+        let branchTrace = 0;
+        for (let i = 0; i < support.dimension; i++) branchTrace += states[c].re[i * support.dimension + i];
+        value += term.value / ln2 - support.score * branchTrace;
+        if (term.gradient) {
+          const g = scale(term.gradient, 1 / ln2);
+          for (let i = 0; i < support.dimension; i++) g.re[i * support.dimension + i] -= support.score;
+          gradients.push(g);
+        }
+      });
+      return { value, gradient: withGradient ? this.pullBack(gradients) : null };
+    }
+
+    const coefficient = logCoefficient(this.request);
+    if (kind === 'petz-up' || kind === 'petz-down') {
+      const quasi = kind === 'petz-up' ? petzUpQuasiEntropy : petzDownQuasiEntropy;
+      const terms = this.supports.map((support, c) => quasi(states[c], support, alpha, withGradient));
+      const total = terms.reduce((s, t, c) => s + this.weights[c] * t.value, 0);
+      const value = coefficient * Math.log2(total);
+      if (!withGradient) return { value, gradient: null };
+      const factor = coefficient / (total * ln2);
+      const gradients = terms.map((t, c) => scale(t.gradient as ComplexMatrix, factor * this.weights[c]));
+      return { value, gradient: this.pullBack(gradients) };
+    }
+
+    const beta = sandwichedOrder(alpha);
+    const weighted = states.map((x, c) => scale(x, this.weights[c]));
+    const optimum = optimalReference(weighted, this.supports, beta, this.referenceSettings, this.lastReference);
+    this.lastReference = optimum.reference;
+    const value = coefficient * Math.log2(optimum.quasiEntropy);
+    if (!withGradient) return { value, gradient: null, reference: optimum.reference, innerGap: optimum.innerGap };
+    // Envelope theorem: at the inner optimum, ∇_ρ F is the partial gradient at fixed τ.
+    const factor = coefficient / (optimum.quasiEntropy * ln2);
+    const gradients = optimum.terms.map((t, c) => scale(t.gradientState, factor * this.weights[c]));
+    return {
+      value,
+      gradient: this.pullBack(gradients),
+      reference: optimum.reference,
+      innerGap: optimum.innerGap,
+    };
+  }
+
+  /**
+   * A rank-deficient ρ = P·ρ̃·P† has no gradient; its value is that of the full-rank ρ̃ for the Kraus operators
+   * K·P, whose output supports are then exact (no eigenvalue of a rank-deficient product is ever clipped).
+   */
+  private evaluateOnSupport(rho: ComplexMatrix, range: ComplexMatrix): ObjectiveEvaluation {
+    const onSupport = new EntropyObjective(
+      {
+        ...this.problem,
+        branches: this.problem.branches.map((b) => ({ ...b, krausOperators: b.krausOperators.map((k) => multiply(k, range)) })),
+      },
+      this.request,
+      this.referenceSettings,
+    );
+    const reduced = onSupport.evaluate(conjugateAdjoint(range, rho), { assumeFullRank: true, withGradient: false });
+    return { ...reduced, gradient: null };
+  }
+
+  evaluateAtReference(rho: ComplexMatrix, reference: ReferenceBlocks): JointEvaluation {
+    if (this.request.kind !== 'sandwiched-up') throw new Error('evaluateAtReference: only for sandwiched-up');
+    const beta = sandwichedOrder(this.request.alpha);
+    const states = this.branchStates(rho);
+    const terms = this.supports.map((support, c) =>
+      sandwichedBranchTerm(scale(states[c], this.weights[c]), support, reference[c], beta),
+    );
+    const total = terms.reduce((s, t) => s + t.quasiEntropy, 0);
+    const coefficient = logCoefficient(this.request);
+    const factor = coefficient / (total * Math.LN2);
+    return {
+      value: coefficient * Math.log2(total),
+      gradientState: this.pullBack(terms.map((t, c) => scale(t.gradientState, factor * this.weights[c]))),
+      gradientReference: terms.map((t) => t.gradientReference.map((g) => scale(g, factor))),
+    };
+  }
+}
+

@@ -1,0 +1,130 @@
+import { add, adjoint, ComplexMatrix, multiply, scale, traceProductReal } from '../linear-algebra/complex-matrix.js';
+import { eigh } from '../linear-algebra/eigen.js';
+import type { BranchSupport } from './branch-supports.js';
+import {
+  blockFrechet,
+  blockSpectralFunction,
+  eigenBlocks,
+  pinchedBlocks,
+  powerFunction,
+  sandwichedPower,
+} from './spectral-blocks.js';
+
+/** τ on the pinched supports: one Hermitian block per key block, per branch ([branch][block]). */
+export type ReferenceBlocks = ComplexMatrix[][];
+
+export interface SandwichedBranchTerm {
+  quasiEntropy: number;
+  /** ∇_X Q̃_β(X‖τ) = τ^s W τ^s (with respect to the weighted branch output). */
+  gradientState: ComplexMatrix;
+  /** Pinched ∇_τ Q̃_β(X‖τ), block by block. */
+  gradientReference: ComplexMatrix[];
+  /** Z(M^β): the fixed-point map's image before normalisation. */
+  pinchedPower: ComplexMatrix[];
+}
+
+/** Q̃_β(X‖τ) = Tr[(τ^s X τ^s)^β], s = (1−β)/(2β), and both partial gradients, for one branch. */
+export function sandwichedBranchTerm(
+  weightedState: ComplexMatrix,
+  support: BranchSupport,
+  reference: ComplexMatrix[],
+  beta: number,
+): SandwichedBranchTerm {
+  const s = (1 - beta) / (2 * beta);
+  const { blockSizes: sizes, blockOffsets: offsets } = support;
+  const referenceEigs = eigenBlocks(reference);
+  const ts = blockSpectralFunction(referenceEigs, (t) => Math.max(t, 0) ** s);
+  const { quasiEntropy, weight, powerOfM } = sandwichedPower(ts, weightedState, support.outputRange, beta);
+  const gradientState = multiply(multiply(ts, weight), ts);
+  const xtsW = multiply(multiply(weightedState, ts), weight);
+  const direction = add(xtsW, adjoint(xtsW));
+  const gradientFull = blockFrechet(referenceEigs, powerFunction(s), direction, sizes, offsets);
+  return {
+    quasiEntropy,
+    gradientState,
+    gradientReference: pinchedBlocks(gradientFull, sizes, offsets),
+    pinchedPower: pinchedBlocks(powerOfM, sizes, offsets),
+  };
+}
+
+export interface ReferenceOptimum {
+  reference: ReferenceBlocks;
+  terms: SandwichedBranchTerm[];
+  quasiEntropy: number;
+  /** Certified bound on max_τ Q − Q(τ) from concavity: max_blocks λ_max(∇_τQ) − ⟨∇_τQ, τ⟩. */
+  innerGap: number;
+  iterations: number;
+}
+
+export interface ReferenceSettings {
+  /** Stop when innerGap ≤ relativeTolerance·Q. */
+  relativeTolerance: number;
+  maxIterations: number;
+}
+
+/** The inner loop stops when its gap has not halved (STAGNATION_FACTOR) within STAGNATION_WINDOW iterations. */
+const STAGNATION_FACTOR = 0.5;
+const STAGNATION_WINDOW = 30;
+
+export const DEFAULT_REFERENCE_SETTINGS: ReferenceSettings = { relativeTolerance: 1e-10, maxIterations: 2000 };
+
+/** Σ_c ⟨∇_τ Q_c, τ_c⟩ and the largest eigenvalue over all blocks of ∇_τ Q. */
+export function referenceGradientSummary(
+  terms: readonly SandwichedBranchTerm[],
+  reference: ReferenceBlocks,
+): { innerProduct: number; largestEigenvalue: number; smallestEigenvalue: number } {
+  let innerProduct = 0;
+  let largestEigenvalue = -Infinity;
+  let smallestEigenvalue = Infinity;
+  terms.forEach((term, c) => {
+    term.gradientReference.forEach((g, k) => {
+      innerProduct += traceProductReal(g, reference[c][k]);
+      const values = eigh(g).values;
+      largestEigenvalue = Math.max(largestEigenvalue, values[values.length - 1]);
+      smallestEigenvalue = Math.min(smallestEigenvalue, values[0]);
+    });
+  });
+  return { innerProduct, largestEigenvalue, smallestEigenvalue };
+}
+
+/**
+ * max over key-block-diagonal density operators τ of Σ_c Q̃_β(X'_c‖τ_c), by the fixed-point map
+ * τ ← Z(M^β)/Tr M^β, M = τ^s X' τ^s. Its fixed points are exactly the stationary points
+ * (Z(X^{1/2}N^{β−1}X^{1/2}) ∝ τ^{1−2s}), hence the maximum by concavity (Frank & Lieb 2013).
+ */
+export function optimalReference(
+  weightedStates: readonly ComplexMatrix[],
+  supports: readonly BranchSupport[],
+  beta: number,
+  settings: ReferenceSettings = DEFAULT_REFERENCE_SETTINGS,
+  start?: ReferenceBlocks,
+): ReferenceOptimum {
+  let reference: ReferenceBlocks =
+    start ?? normalise(supports.map((sup, c) => pinchedBlocks(weightedStates[c], sup.blockSizes, sup.blockOffsets)));
+  let iterations = 0;
+  let bestGap = Infinity;
+  let bestGapIteration = 0;
+  for (;;) {
+    const terms = supports.map((sup, c) => sandwichedBranchTerm(weightedStates[c], sup, reference[c], beta));
+    const quasiEntropy = terms.reduce((s, t) => s + t.quasiEntropy, 0);
+    const summary = referenceGradientSummary(terms, reference);
+    const innerGap = Math.max(0, summary.largestEigenvalue - summary.innerProduct);
+    if (innerGap < STAGNATION_FACTOR * bestGap) {
+      bestGap = innerGap;
+      bestGapIteration = iterations;
+    }
+    // Past the rounding floor the gap stops shrinking; iterating further cannot help.
+    const stagnated = iterations - bestGapIteration >= STAGNATION_WINDOW;
+    if (innerGap <= settings.relativeTolerance * quasiEntropy || iterations >= settings.maxIterations || stagnated) {
+      return { reference, terms, quasiEntropy, innerGap, iterations };
+    }
+    reference = terms.map((t) => t.pinchedPower.map((b) => scale(b, 1 / quasiEntropy)));
+    iterations++;
+  }
+}
+
+function normalise(blocks: ReferenceBlocks): ReferenceBlocks {
+  let total = 0;
+  for (const branch of blocks) for (const b of branch) for (let i = 0; i < b.rows; i++) total += b.re[i * b.cols + i];
+  return blocks.map((branch) => branch.map((b) => scale(b, 1 / total)));
+}

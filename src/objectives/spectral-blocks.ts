@@ -1,0 +1,101 @@
+import {
+  ComplexMatrix,
+  diagonalBlock,
+  directSum,
+  multiply,
+  multiplyAdjointLeft,
+  multiplyAdjointRight,
+} from '../linear-algebra/complex-matrix.js';
+import { eigh, type HermitianEigen } from '../linear-algebra/eigen.js';
+import {
+  dividedDifferences,
+  frechetDerivative,
+  spectralFunction,
+  type ScalarFunction,
+} from '../linear-algebra/matrix-functions.js';
+
+export { powerFunction } from '../linear-algebra/matrix-functions.js';
+
+/** x·ln x, whose derivative ln x + 1 is the gradient of Tr X ln X. */
+export const entropyFunction: ScalarFunction = {
+  value: (x) => (x > 0 ? x * Math.log(x) : 0),
+  derivative: (x) => Math.log(x) + 1,
+};
+
+/** The key-map pinching in support coordinates: the diagonal blocks of a matrix. */
+export function pinchedBlocks(x: ComplexMatrix, sizes: readonly number[], offsets: readonly number[]): ComplexMatrix[] {
+  return sizes.map((size, k) => diagonalBlock(x, offsets[k], size));
+}
+
+export function eigenBlocks(blocks: readonly ComplexMatrix[]): HermitianEigen[] {
+  return blocks.map((b) => eigh(b));
+}
+
+/** ⊕_k f(Y_k) from the blocks' eigendecompositions. */
+export function blockSpectralFunction(eigs: readonly HermitianEigen[], f: (x: number) => number): ComplexMatrix {
+  return directSum(eigs.map((e) => spectralFunction(e, f)));
+}
+
+/** ⊕_k Df(Y_k)[H_kk]: the Fréchet derivative of a block-diagonal function, applied to the pinched direction. */
+export function blockFrechet(
+  eigs: readonly HermitianEigen[],
+  f: ScalarFunction,
+  direction: ComplexMatrix,
+  sizes: readonly number[],
+  offsets: readonly number[],
+): ComplexMatrix {
+  return directSum(
+    eigs.map((e, k) =>
+      frechetDerivative(e, dividedDifferences(e.values, f.value, f.derivative, f.difference), diagonalBlock(direction, offsets[k], sizes[k])),
+    ),
+  );
+}
+
+export function frechet(eig: HermitianEigen, f: ScalarFunction, direction: ComplexMatrix): ComplexMatrix {
+  return frechetDerivative(eig, dividedDifferences(eig.values, f.value, f.derivative, f.difference), direction);
+}
+
+/** V†·X·V. */
+export function compress(v: ComplexMatrix, x: ComplexMatrix): ComplexMatrix {
+  return multiplyAdjointLeft(v, multiply(x, v));
+}
+
+/** V·X·V†. */
+export function expand(v: ComplexMatrix, x: ComplexMatrix): ComplexMatrix {
+  return multiplyAdjointRight(multiply(v, x), v);
+}
+
+/** Σ_i f(λ_i) over a spectrum. */
+export function traceFunction(values: Float64Array, f: (x: number) => number): number {
+  let s = 0;
+  for (let i = 0; i < values.length; i++) s += f(values[i]);
+  return s;
+}
+
+/**
+ * For M = Y^s·X·Y^s with Y full rank on the support: returns Tr M^γ and W = γ·M^{γ−1} on supp(M).
+ * When X is rank deficient on the support (outputRange given), M = A·A† with A = Y^s·V·X̃^{1/2} and the
+ * nonzero spectrum comes from N = A†·A (square-root factor), so no eigenvalue is ever clipped.
+ */
+export function sandwichedPower(
+  ys: ComplexMatrix,
+  x: ComplexMatrix,
+  outputRange: ComplexMatrix | null,
+  gamma: number,
+): { quasiEntropy: number; weight: ComplexMatrix; powerOfM: ComplexMatrix } {
+  if (outputRange === null) {
+    const m = multiply(multiply(ys, x), ys);
+    const me = eigh(m);
+    const quasiEntropy = traceFunction(me.values, (t) => (t > 0 ? t ** gamma : 0));
+    const weight = spectralFunction(me, (t) => gamma * t ** (gamma - 1));
+    const powerOfM = spectralFunction(me, (t) => (t > 0 ? t ** gamma : 0));
+    return { quasiEntropy, weight, powerOfM };
+  }
+  const xe = eigh(compress(outputRange, x));
+  const factor = multiply(multiply(ys, outputRange), spectralFunction(xe, (t) => Math.sqrt(Math.max(t, 0))));
+  const ne = eigh(multiplyAdjointLeft(factor, factor));
+  const quasiEntropy = traceFunction(ne.values, (t) => (t > 0 ? t ** gamma : 0));
+  const weight = expand(factor, spectralFunction(ne, (t) => gamma * t ** (gamma - 2)));
+  const powerOfM = expand(factor, spectralFunction(ne, (t) => t ** (gamma - 1)));
+  return { quasiEntropy, weight, powerOfM };
+}
