@@ -1,0 +1,512 @@
+// Primal–dual interior-point method for one Hermitian PSD block plus a nonnegative LP block:
+//   min ⟨C, X⟩  s.t.  Re Tr(A_k X) + Σ_{j: row_j = k} sign_j x_j = b_k,   X ⪰ 0, x ≥ 0,
+// with the HKM search direction and Mehrotra's predictor–corrector (Helmberg, Rendl, Vanderbei & Wolkowicz 1996;
+// Kojima, Shindoh & Hara 1997; Monteiro 1997; Mehrotra 1992). Infeasible start; all buffers allocated once.
+import {
+  choleskyInPlace,
+  hermitianInner,
+  hermitianPartInPlace,
+  lowerGram,
+  lowerTriangularInverse,
+  multiplyByLowerAdjointRightHermitian,
+  multiplyByLowerLeft,
+  multiplyByLowerRight,
+  multiplyInto,
+  realCholeskyInPlace,
+  realCholeskySolveInPlace,
+  smallestEigenvalueInPlace,
+  TridiagonalWorkspace,
+} from './kernels.js';
+
+const TRACE = process.env.ORACLE_TRACE === '1';
+/** Fraction of the distance to the cone boundary taken by a step, before the adaptive increase (SDPT3 practice). */
+const BASE_STEP_FRACTION = 0.9;
+/** Added to the step fraction in proportion to the predictor's step lengths, so long steps go closer to the boundary. */
+const ADAPTIVE_STEP_FRACTION = 0.09;
+/** Mehrotra's centring exponent: σ = (µ_affine/µ)^3. */
+const CENTRING_EXPONENT = 3;
+/** Relative diagonal shift tried when the Schur complement loses positive definiteness to rounding. */
+const SCHUR_REGULARIZATION = 1e-13;
+/** Smallest slack value used at the start, relative to 1/d (keeps the start well inside the LP cone). */
+const START_SLACK_FLOOR = 1;
+/** Iterations over which the primal residual must fall by STALL_FACTOR once the gap is closed. */
+const STALL_WINDOW = 3;
+const STALL_FACTOR = 0.5;
+/** Iterative-refinement passes on each Schur complement solve. */
+const REFINEMENT_STEPS = 1;
+
+export interface InteriorPointRows {
+  /** Scaled constraint operators A_k (Hermitian, n×n). */
+  re: Float64Array[];
+  im: Float64Array[];
+  /** Right-hand sides b_k. */
+  rhs: Float64Array;
+  /** Rows 0..orthonormalRows−1 are orthonormal and orthogonal to all other rows, and carry no LP variable. */
+  orthonormalRows: number;
+  /** For each LP variable: its row and its coefficient (±1). */
+  slackRow: Int32Array;
+  slackSign: Float64Array;
+}
+
+export type InteriorPointStatus = 'CONVERGED' | 'STALLED' | 'INFEASIBLE' | 'ITERATION_LIMIT' | 'NUMERICAL_ERROR';
+
+export interface InteriorPointTargets {
+  /** Stop when complementarity Tr(XZ) + x·z plus the dual residual norm is at most this (given ⟨C, X⟩). */
+  gapTolerance: (primalObjective: number) => number;
+  /** … and the primal residual norm ‖b − A(X) − Bx‖₂ is at most this. */
+  primalTolerance: number;
+  maxIterations: number;
+  /** Called with candidate Farkas multipliers y when the dual objective exceeds what any feasible primal allows. */
+  certifyInfeasible?: (y: Float64Array) => boolean;
+}
+
+/** Solver state; `solve` continues from the current iterate when `resume` is true. */
+export class InteriorPointSolver {
+  readonly n: number;
+  readonly m: number;
+  readonly slackCount: number;
+  readonly rows: InteriorPointRows;
+  // Objective.
+  readonly objectiveRe: Float64Array;
+  readonly objectiveIm: Float64Array;
+  objectiveNorm = 0;
+  // Iterate.
+  readonly xRe: Float64Array;
+  readonly xIm: Float64Array;
+  readonly zRe: Float64Array;
+  readonly zIm: Float64Array;
+  readonly y: Float64Array;
+  readonly slack: Float64Array;
+  readonly slackDual: Float64Array;
+  iterations = 0;
+  primalResidualNorm = Infinity;
+  dualResidualNorm = Infinity;
+  complementarity = Infinity;
+  // Work buffers.
+  private readonly lxRe: Float64Array;
+  private readonly lxIm: Float64Array;
+  private readonly uxRe: Float64Array;
+  private readonly uxIm: Float64Array;
+  private readonly uzRe: Float64Array;
+  private readonly uzIm: Float64Array;
+  private readonly zInvRe: Float64Array;
+  private readonly zInvIm: Float64Array;
+  private readonly rdRe: Float64Array;
+  private readonly rdIm: Float64Array;
+  private readonly xrzRe: Float64Array;
+  private readonly xrzIm: Float64Array;
+  private readonly correctionRe: Float64Array;
+  private readonly correctionIm: Float64Array;
+  private readonly targetRe: Float64Array;
+  private readonly targetIm: Float64Array;
+  private readonly dxRe: Float64Array;
+  private readonly dxIm: Float64Array;
+  private readonly dzRe: Float64Array;
+  private readonly dzIm: Float64Array;
+  private readonly dxAffineRe: Float64Array;
+  private readonly dxAffineIm: Float64Array;
+  private readonly dzAffineRe: Float64Array;
+  private readonly dzAffineIm: Float64Array;
+  private readonly tmpRe: Float64Array;
+  private readonly tmpIm: Float64Array;
+  private readonly tmp2Re: Float64Array;
+  private readonly tmp2Im: Float64Array;
+  private readonly schurRe: Float64Array;
+  private readonly schurIm: Float64Array;
+  private readonly schur: Float64Array;
+  private readonly schurBackup: Float64Array;
+  private readonly primalResidual: Float64Array;
+  private readonly rhs: Float64Array;
+  private readonly dy: Float64Array;
+  private readonly refinement: Float64Array;
+  private readonly slackResidual: Float64Array;
+  private readonly slackTarget: Float64Array;
+  private readonly dSlack: Float64Array;
+  private readonly dSlackDual: Float64Array;
+  private readonly dSlackAffine: Float64Array;
+  private readonly dSlackDualAffine: Float64Array;
+  private readonly tridiagonal: TridiagonalWorkspace;
+
+  constructor(n: number, rows: InteriorPointRows) {
+    this.n = n;
+    this.m = rows.re.length;
+    this.slackCount = rows.slackRow.length;
+    this.rows = rows;
+    const size = n * n;
+    const buffer = (): Float64Array => new Float64Array(size);
+    this.objectiveRe = buffer();
+    this.objectiveIm = buffer();
+    this.xRe = buffer();
+    this.xIm = buffer();
+    this.zRe = buffer();
+    this.zIm = buffer();
+    this.lxRe = buffer();
+    this.lxIm = buffer();
+    this.uxRe = buffer();
+    this.uxIm = buffer();
+    this.uzRe = buffer();
+    this.uzIm = buffer();
+    this.zInvRe = buffer();
+    this.zInvIm = buffer();
+    this.rdRe = buffer();
+    this.rdIm = buffer();
+    this.xrzRe = buffer();
+    this.xrzIm = buffer();
+    this.correctionRe = buffer();
+    this.correctionIm = buffer();
+    this.targetRe = buffer();
+    this.targetIm = buffer();
+    this.dxRe = buffer();
+    this.dxIm = buffer();
+    this.dzRe = buffer();
+    this.dzIm = buffer();
+    this.dxAffineRe = buffer();
+    this.dxAffineIm = buffer();
+    this.dzAffineRe = buffer();
+    this.dzAffineIm = buffer();
+    this.tmpRe = buffer();
+    this.tmpIm = buffer();
+    this.tmp2Re = buffer();
+    this.tmp2Im = buffer();
+    this.schurRe = new Float64Array(this.m * size);
+    this.schurIm = new Float64Array(this.m * size);
+    this.schur = new Float64Array(this.m * this.m);
+    this.schurBackup = new Float64Array(this.m * this.m);
+    this.y = new Float64Array(this.m);
+    this.primalResidual = new Float64Array(this.m);
+    this.rhs = new Float64Array(this.m);
+    this.dy = new Float64Array(this.m);
+    this.refinement = new Float64Array(this.m);
+    const s = this.slackCount;
+    this.slack = new Float64Array(s);
+    this.slackDual = new Float64Array(s);
+    this.slackResidual = new Float64Array(s);
+    this.slackTarget = new Float64Array(s);
+    this.dSlack = new Float64Array(s);
+    this.dSlackDual = new Float64Array(s);
+    this.dSlackAffine = new Float64Array(s);
+    this.dSlackDualAffine = new Float64Array(s);
+    this.tridiagonal = new TridiagonalWorkspace(n);
+  }
+
+  /** Sets the objective C (Hermitian, copied) and records its Frobenius norm. */
+  setObjective(re: Float64Array, im: Float64Array): void {
+    this.objectiveRe.set(re);
+    this.objectiveIm.set(im);
+    this.objectiveNorm = Math.sqrt(hermitianInner(re, im, re, im));
+  }
+
+  /** Standard start: X = 1/n (so Tr X = 1), Z = 1, y = 0, slacks at their value at X (at least a floor), centred duals. */
+  private initialize(): void {
+    const { n, rows } = this;
+    this.xRe.fill(0);
+    this.xIm.fill(0);
+    this.zRe.fill(0);
+    this.zIm.fill(0);
+    for (let i = 0; i < n; i++) {
+      this.xRe[i * n + i] = 1 / n;
+      this.zRe[i * n + i] = 1;
+    }
+    this.y.fill(0);
+    const floor = START_SLACK_FLOOR / n;
+    for (let j = 0; j < this.slackCount; j++) {
+      const k = rows.slackRow[j];
+      const value = (rows.rhs[k] - hermitianInner(rows.re[k], rows.im[k], this.xRe, this.xIm)) / rows.slackSign[j];
+      this.slack[j] = Math.max(value, floor);
+      this.slackDual[j] = 1 / n / this.slack[j];
+    }
+    this.iterations = 0;
+  }
+
+  solve(targets: InteriorPointTargets, resume: boolean): InteriorPointStatus {
+    if (!resume) this.initialize();
+    const { n, m, rows } = this;
+    const size = n * n;
+    const nu = n + this.slackCount;
+    const residualHistory = new Float64Array(STALL_WINDOW);
+    for (let iteration = 0; iteration < targets.maxIterations; iteration++) {
+      // Residuals.
+      let primal2 = 0;
+      for (let k = 0; k < m; k++) this.primalResidual[k] = rows.rhs[k] - hermitianInner(rows.re[k], rows.im[k], this.xRe, this.xIm);
+      for (let j = 0; j < this.slackCount; j++) this.primalResidual[rows.slackRow[j]] -= rows.slackSign[j] * this.slack[j];
+      for (let k = 0; k < m; k++) primal2 += this.primalResidual[k] ** 2;
+      this.rdRe.set(this.objectiveRe);
+      this.rdIm.set(this.objectiveIm);
+      for (let k = 0; k < m; k++) {
+        const yk = this.y[k];
+        if (yk === 0) continue;
+        const aRe = rows.re[k];
+        const aIm = rows.im[k];
+        for (let t = 0; t < size; t++) {
+          this.rdRe[t] -= yk * aRe[t];
+          this.rdIm[t] -= yk * aIm[t];
+        }
+      }
+      let dual2 = 0;
+      for (let t = 0; t < size; t++) {
+        this.rdRe[t] -= this.zRe[t];
+        this.rdIm[t] -= this.zIm[t];
+        dual2 += this.rdRe[t] ** 2 + this.rdIm[t] ** 2;
+      }
+      for (let j = 0; j < this.slackCount; j++) {
+        const r = -rows.slackSign[j] * this.y[rows.slackRow[j]] - this.slackDual[j];
+        this.slackResidual[j] = r;
+        dual2 += r * r;
+      }
+      let gap = hermitianInner(this.xRe, this.xIm, this.zRe, this.zIm);
+      for (let j = 0; j < this.slackCount; j++) gap += this.slack[j] * this.slackDual[j];
+      this.primalResidualNorm = Math.sqrt(primal2);
+      this.dualResidualNorm = Math.sqrt(dual2);
+      this.complementarity = gap;
+      const primalObjective = hermitianInner(this.objectiveRe, this.objectiveIm, this.xRe, this.xIm);
+      const gapMet = gap + this.dualResidualNorm <= targets.gapTolerance(primalObjective);
+      if (this.primalResidualNorm <= targets.primalTolerance && gapMet) return 'CONVERGED';
+      // Gap closed but the primal residual no longer falls: rounding in the (ill-conditioned) directions sets the floor.
+      residualHistory[iteration % STALL_WINDOW] = this.primalResidualNorm;
+      if (gapMet && iteration >= STALL_WINDOW) {
+        const oldest = residualHistory[(iteration + 1) % STALL_WINDOW];
+        if (this.primalResidualNorm > STALL_FACTOR * oldest) return 'STALLED';
+      }
+      // Z = C − Σ y A − R_d ⪰ 0 bounds λ_max(Σ y A) by ‖C‖ + ‖R_d‖, so b·y above that cannot come from a feasible X.
+      if (targets.certifyInfeasible) {
+        let dualObjective = 0;
+        for (let k = 0; k < m; k++) dualObjective += rows.rhs[k] * this.y[k];
+        if (dualObjective > this.objectiveNorm + this.dualResidualNorm && targets.certifyInfeasible(this.y)) return 'INFEASIBLE';
+      }
+      const mu = gap / nu;
+      if (TRACE) console.log(`it ${this.iterations} p=${primalObjective} gap=${gap.toExponential(2)} rp=${this.primalResidualNorm.toExponential(2)} rd=${this.dualResidualNorm.toExponential(2)}`);
+      // Factorizations: X = L_X L_X†, Z = L_Z L_Z†, U = L⁻¹, Z⁻¹ = U_Z† U_Z.
+      this.lxRe.set(this.xRe);
+      this.lxIm.set(this.xIm);
+      if (!choleskyInPlace(this.lxRe, this.lxIm, n)) return 'NUMERICAL_ERROR';
+      this.tmpRe.set(this.zRe);
+      this.tmpIm.set(this.zIm);
+      if (!choleskyInPlace(this.tmpRe, this.tmpIm, n)) return 'NUMERICAL_ERROR';
+      lowerTriangularInverse(this.lxRe, this.lxIm, n, this.uxRe, this.uxIm);
+      lowerTriangularInverse(this.tmpRe, this.tmpIm, n, this.uzRe, this.uzIm);
+      lowerGram(this.uzRe, this.uzIm, n, this.zInvRe, this.zInvIm);
+      if (!this.assembleSchur()) return 'NUMERICAL_ERROR';
+      // X·R_d·Z⁻¹ (Hermitian part) enters both right-hand sides.
+      if (this.dualResidualNorm > 0) {
+        multiplyInto(this.xRe, this.xIm, this.rdRe, this.rdIm, n, this.tmpRe, this.tmpIm);
+        multiplyInto(this.tmpRe, this.tmpIm, this.zInvRe, this.zInvIm, n, this.xrzRe, this.xrzIm);
+        hermitianPartInPlace(this.xrzRe, this.xrzIm, n);
+      } else {
+        this.xrzRe.fill(0);
+        this.xrzIm.fill(0);
+      }
+      // Predictor (σ = 0).
+      this.computeDirection(0, false);
+      const primalStepAffine = Math.min(1, this.maxPrimalStep());
+      const dualStepAffine = Math.min(1, this.maxDualStep());
+      // µ after the affine step.
+      let affineGap = 0;
+      for (let t = 0; t < size; t++) {
+        this.tmpRe[t] = this.xRe[t] + primalStepAffine * this.dxRe[t];
+        this.tmpIm[t] = this.xIm[t] + primalStepAffine * this.dxIm[t];
+        this.tmp2Re[t] = this.zRe[t] + dualStepAffine * this.dzRe[t];
+        this.tmp2Im[t] = this.zIm[t] + dualStepAffine * this.dzIm[t];
+      }
+      affineGap = hermitianInner(this.tmpRe, this.tmpIm, this.tmp2Re, this.tmp2Im);
+      for (let j = 0; j < this.slackCount; j++) {
+        affineGap += (this.slack[j] + primalStepAffine * this.dSlack[j]) * (this.slackDual[j] + dualStepAffine * this.dSlackDual[j]);
+      }
+      const ratio = Math.max(0, Math.min(1, affineGap / gap));
+      const sigma = ratio ** CENTRING_EXPONENT;
+      // Corrector: second-order term dX_a·dZ_a·Z⁻¹ (Hermitian part).
+      this.dxAffineRe.set(this.dxRe);
+      this.dxAffineIm.set(this.dxIm);
+      this.dzAffineRe.set(this.dzRe);
+      this.dzAffineIm.set(this.dzIm);
+      this.dSlackAffine.set(this.dSlack);
+      this.dSlackDualAffine.set(this.dSlackDual);
+      multiplyInto(this.dxAffineRe, this.dxAffineIm, this.dzAffineRe, this.dzAffineIm, n, this.tmpRe, this.tmpIm);
+      multiplyInto(this.tmpRe, this.tmpIm, this.zInvRe, this.zInvIm, n, this.correctionRe, this.correctionIm);
+      hermitianPartInPlace(this.correctionRe, this.correctionIm, n);
+      this.computeDirection(sigma * mu, true);
+      this.restoreLinearization();
+      const fraction = BASE_STEP_FRACTION + ADAPTIVE_STEP_FRACTION * Math.min(primalStepAffine, dualStepAffine);
+      const primalStep = Math.min(1, fraction * this.maxPrimalStep());
+      const dualStep = Math.min(1, fraction * this.maxDualStep());
+      if (TRACE) console.log(`   sigma=${sigma.toExponential(2)} ap=${primalStep} ad=${dualStep}`);
+      if (!(primalStep > 0) || !(dualStep > 0)) return 'NUMERICAL_ERROR';
+      for (let t = 0; t < size; t++) {
+        this.xRe[t] += primalStep * this.dxRe[t];
+        this.xIm[t] += primalStep * this.dxIm[t];
+        this.zRe[t] += dualStep * this.dzRe[t];
+        this.zIm[t] += dualStep * this.dzIm[t];
+      }
+      hermitianPartInPlace(this.xRe, this.xIm, n);
+      hermitianPartInPlace(this.zRe, this.zIm, n);
+      for (let j = 0; j < this.slackCount; j++) {
+        this.slack[j] += primalStep * this.dSlack[j];
+        this.slackDual[j] += dualStep * this.dSlackDual[j];
+      }
+      for (let k = 0; k < m; k++) this.y[k] += dualStep * this.dy[k];
+      this.iterations++;
+    }
+    return 'ITERATION_LIMIT';
+  }
+
+  /** Schur complement M_ik = Re Tr(A_i X A_k Z⁻¹) = Re⟨Q_i, Q_k⟩ with Q_k = U_Z A_k L_X, plus the LP block x_j/z_j. */
+  private assembleSchur(): boolean {
+    const { n, m, rows } = this;
+    const size = n * n;
+    for (let k = 0; k < m; k++) {
+      multiplyByLowerRight(rows.re[k], rows.im[k], this.lxRe, this.lxIm, n, this.tmpRe, this.tmpIm);
+      const qRe = this.schurRe.subarray(k * size, (k + 1) * size);
+      const qIm = this.schurIm.subarray(k * size, (k + 1) * size);
+      multiplyByLowerLeft(this.uzRe, this.uzIm, this.tmpRe, this.tmpIm, n, qRe, qIm);
+    }
+    const M = this.schur;
+    const qRe = this.schurRe;
+    const qIm = this.schurIm;
+    for (let i = 0; i < m; i++) {
+      const offsetI = i * size;
+      for (let k = 0; k <= i; k++) {
+        const offsetK = k * size;
+        let s = 0;
+        for (let t = 0; t < size; t++) s += qRe[offsetI + t] * qRe[offsetK + t] + qIm[offsetI + t] * qIm[offsetK + t];
+        M[i * m + k] = s;
+        M[k * m + i] = s;
+      }
+    }
+    for (let j = 0; j < this.slackCount; j++) {
+      const k = rows.slackRow[j];
+      M[k * m + k] += this.slack[j] / this.slackDual[j];
+    }
+    let largestDiagonal = 0;
+    for (let k = 0; k < m; k++) largestDiagonal = Math.max(largestDiagonal, M[k * m + k]);
+    // Kept so that a failed factorization can be retried with a small diagonal shift.
+    this.schurBackup.set(M);
+    if (realCholeskyInPlace(M, m)) return true;
+    M.set(this.schurBackup);
+    for (let k = 0; k < m; k++) M[k * m + k] += SCHUR_REGULARIZATION * largestDiagonal;
+    return realCholeskyInPlace(M, m);
+  }
+
+  /**
+   * HKM direction for target σµ. Without correction: predictor/plain; with: subtracts the second-order term.
+   * Fills dX, dZ, dy, dx, dz.
+   */
+  private computeDirection(sigmaMu: number, corrected: boolean): void {
+    const { n, m, rows } = this;
+    const size = n * n;
+    // T = σµ Z⁻¹ − X − herm(X R_d Z⁻¹) − [correction]
+    for (let t = 0; t < size; t++) {
+      let r = sigmaMu * this.zInvRe[t] - this.xRe[t] - this.xrzRe[t];
+      let s = sigmaMu * this.zInvIm[t] - this.xIm[t] - this.xrzIm[t];
+      if (corrected) {
+        r -= this.correctionRe[t];
+        s -= this.correctionIm[t];
+      }
+      this.targetRe[t] = r;
+      this.targetIm[t] = s;
+    }
+    for (let j = 0; j < this.slackCount; j++) {
+      const x = this.slack[j];
+      const z = this.slackDual[j];
+      const second = corrected ? this.dSlackAffine[j] * this.dSlackDualAffine[j] : 0;
+      this.slackTarget[j] = (sigmaMu - x * z - second) / z - (x / z) * this.slackResidual[j];
+    }
+    for (let k = 0; k < m; k++) this.rhs[k] = this.primalResidual[k] - hermitianInner(rows.re[k], rows.im[k], this.targetRe, this.targetIm);
+    for (let j = 0; j < this.slackCount; j++) this.rhs[rows.slackRow[j]] -= rows.slackSign[j] * this.slackTarget[j];
+    this.dy.set(this.rhs);
+    realCholeskySolveInPlace(this.schur, m, this.dy);
+    // Iterative refinement against the assembled (unfactored) Schur complement: near the boundary M is ill-conditioned
+    // and an unrefined solve leaves a primal residual floor far above rounding.
+    for (let pass = 0; pass < REFINEMENT_STEPS; pass++) {
+      const backup = this.schurBackup;
+      for (let i = 0; i < m; i++) {
+        let r = this.rhs[i];
+        for (let k = 0; k < m; k++) r -= backup[i * m + k] * this.dy[k];
+        this.refinement[i] = r;
+      }
+      realCholeskySolveInPlace(this.schur, m, this.refinement);
+      for (let i = 0; i < m; i++) this.dy[i] += this.refinement[i];
+    }
+    // dZ = R_d − Σ dy A; dz = r_dl − Bᵀ dy.
+    this.dzRe.set(this.rdRe);
+    this.dzIm.set(this.rdIm);
+    for (let k = 0; k < m; k++) {
+      const d = this.dy[k];
+      if (d === 0) continue;
+      const aRe = rows.re[k];
+      const aIm = rows.im[k];
+      for (let t = 0; t < size; t++) {
+        this.dzRe[t] -= d * aRe[t];
+        this.dzIm[t] -= d * aIm[t];
+      }
+    }
+    for (let j = 0; j < this.slackCount; j++) {
+      this.dSlackDual[j] = this.slackResidual[j] - rows.slackSign[j] * this.dy[rows.slackRow[j]];
+    }
+    // dX = σµ Z⁻¹ − X − herm(X dZ Z⁻¹) − [correction]
+    multiplyInto(this.xRe, this.xIm, this.dzRe, this.dzIm, n, this.tmpRe, this.tmpIm);
+    multiplyInto(this.tmpRe, this.tmpIm, this.zInvRe, this.zInvIm, n, this.dxRe, this.dxIm);
+    hermitianPartInPlace(this.dxRe, this.dxIm, n);
+    for (let t = 0; t < size; t++) {
+      let r = sigmaMu * this.zInvRe[t] - this.xRe[t] - this.dxRe[t];
+      let s = sigmaMu * this.zInvIm[t] - this.xIm[t] - this.dxIm[t];
+      if (corrected) {
+        r -= this.correctionRe[t];
+        s -= this.correctionIm[t];
+      }
+      this.dxRe[t] = r;
+      this.dxIm[t] = s;
+    }
+    for (let j = 0; j < this.slackCount; j++) {
+      const x = this.slack[j];
+      const z = this.slackDual[j];
+      const second = corrected ? this.dSlackAffine[j] * this.dSlackDualAffine[j] : 0;
+      this.dSlack[j] = (sigmaMu - x * z - second) / z - (x / z) * this.dSlackDual[j];
+    }
+  }
+
+  /**
+   * Rounding in dX (through the ill-conditioned Z⁻¹ late in the run) breaks A(dX) + B·dx = r_p and leaves a primal
+   * residual floor. Put the defect back: along the orthonormal rows into dX, on the other rows into their LP variable.
+   */
+  private restoreLinearization(): void {
+    const { m, rows } = this;
+    const size = this.n * this.n;
+    for (let k = 0; k < m; k++) this.refinement[k] = this.primalResidual[k] - hermitianInner(rows.re[k], rows.im[k], this.dxRe, this.dxIm);
+    for (let j = 0; j < this.slackCount; j++) this.refinement[rows.slackRow[j]] -= rows.slackSign[j] * this.dSlack[j];
+    for (let k = 0; k < rows.orthonormalRows; k++) {
+      const defect = this.refinement[k];
+      const aRe = rows.re[k];
+      const aIm = rows.im[k];
+      for (let t = 0; t < size; t++) {
+        this.dxRe[t] += defect * aRe[t];
+        this.dxIm[t] += defect * aIm[t];
+      }
+    }
+    for (let j = 0; j < this.slackCount; j++) this.dSlack[j] += rows.slackSign[j] * this.refinement[rows.slackRow[j]];
+  }
+
+  /** Largest α with X + α dX ⪰ 0 and x + α dx ≥ 0 (Infinity when unbounded). */
+  private maxPrimalStep(): number {
+    let step = this.coneStep(this.uxRe, this.uxIm, this.dxRe, this.dxIm);
+    for (let j = 0; j < this.slackCount; j++) {
+      if (this.dSlack[j] < 0) step = Math.min(step, -this.slack[j] / this.dSlack[j]);
+    }
+    return step;
+  }
+
+  private maxDualStep(): number {
+    let step = this.coneStep(this.uzRe, this.uzIm, this.dzRe, this.dzIm);
+    for (let j = 0; j < this.slackCount; j++) {
+      if (this.dSlackDual[j] < 0) step = Math.min(step, -this.slackDual[j] / this.dSlackDual[j]);
+    }
+    return step;
+  }
+
+  /** With U = L⁻¹ for the current factor L of the cone variable: −1/λ_min(U·D·U†), or Infinity when λ_min ≥ 0. */
+  private coneStep(uRe: Float64Array, uIm: Float64Array, dRe: Float64Array, dIm: Float64Array): number {
+    const n = this.n;
+    multiplyByLowerLeft(uRe, uIm, dRe, dIm, n, this.tmpRe, this.tmpIm);
+    multiplyByLowerAdjointRightHermitian(this.tmpRe, this.tmpIm, uRe, uIm, n, this.tmp2Re, this.tmp2Im);
+    const lambda = smallestEigenvalueInPlace(this.tmp2Re, this.tmp2Im, n, this.tridiagonal);
+    return lambda >= 0 ? Infinity : -1 / lambda;
+  }
+}

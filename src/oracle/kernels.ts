@@ -1,0 +1,399 @@
+// Private dense kernels for the interior-point oracle: allocation-free, on row-major re/im arrays of n×n matrices.
+// Kept inside src/oracle/ so the hot loop depends on nothing that may change underneath it.
+
+/**
+ * In-place complex Cholesky factorization A = L·L† of a Hermitian matrix; the lower triangle receives L,
+ * the strict upper triangle is zeroed. Returns false when a pivot is not positive (A not positive definite).
+ */
+export function choleskyInPlace(re: Float64Array, im: Float64Array, n: number): boolean {
+  for (let j = 0; j < n; j++) {
+    const rowJ = j * n;
+    let pivot = re[rowJ + j];
+    for (let k = 0; k < j; k++) pivot -= re[rowJ + k] * re[rowJ + k] + im[rowJ + k] * im[rowJ + k];
+    if (!(pivot > 0)) return false;
+    const diagonal = Math.sqrt(pivot);
+    re[rowJ + j] = diagonal;
+    im[rowJ + j] = 0;
+    const inverse = 1 / diagonal;
+    for (let i = j + 1; i < n; i++) {
+      const rowI = i * n;
+      // A_ij uses the lower triangle (A_ij = conj(A_ji)), so only the lower half of the input is read.
+      let sr = re[rowI + j];
+      let si = im[rowI + j];
+      for (let k = 0; k < j; k++) {
+        // L_ik · conj(L_jk)
+        const ar = re[rowI + k];
+        const ai = im[rowI + k];
+        const br = re[rowJ + k];
+        const bi = im[rowJ + k];
+        sr -= ar * br + ai * bi;
+        si -= ai * br - ar * bi;
+      }
+      re[rowI + j] = sr * inverse;
+      im[rowI + j] = si * inverse;
+    }
+  }
+  for (let i = 0; i < n; i++) {
+    for (let j = i + 1; j < n; j++) {
+      re[i * n + j] = 0;
+      im[i * n + j] = 0;
+    }
+  }
+  return true;
+}
+
+/** out = L⁻¹ for a lower-triangular L with a real positive diagonal (out is lower triangular). */
+export function lowerTriangularInverse(
+  lRe: Float64Array,
+  lIm: Float64Array,
+  n: number,
+  outRe: Float64Array,
+  outIm: Float64Array,
+): void {
+  outRe.fill(0);
+  outIm.fill(0);
+  for (let j = 0; j < n; j++) {
+    outRe[j * n + j] = 1 / lRe[j * n + j];
+    for (let i = j + 1; i < n; i++) {
+      let sr = 0;
+      let si = 0;
+      for (let k = j; k < i; k++) {
+        const ar = lRe[i * n + k];
+        const ai = lIm[i * n + k];
+        const br = outRe[k * n + j];
+        const bi = outIm[k * n + j];
+        sr += ar * br - ai * bi;
+        si += ar * bi + ai * br;
+      }
+      const inverseDiagonal = 1 / lRe[i * n + i];
+      outRe[i * n + j] = -sr * inverseDiagonal;
+      outIm[i * n + j] = -si * inverseDiagonal;
+    }
+  }
+}
+
+/** out = U†·U for a lower-triangular U (the inverse of Z when U = L_Z⁻¹); out is Hermitian. */
+export function lowerGram(uRe: Float64Array, uIm: Float64Array, n: number, outRe: Float64Array, outIm: Float64Array): void {
+  for (let a = 0; a < n; a++) {
+    for (let b = a; b < n; b++) {
+      // Σ_{c ≥ b} conj(U_ca) U_cb
+      let sr = 0;
+      let si = 0;
+      for (let c = b; c < n; c++) {
+        const ar = uRe[c * n + a];
+        const ai = uIm[c * n + a];
+        const br = uRe[c * n + b];
+        const bi = uIm[c * n + b];
+        sr += ar * br + ai * bi;
+        si += ar * bi - ai * br;
+      }
+      outRe[a * n + b] = sr;
+      outIm[a * n + b] = si;
+      outRe[b * n + a] = sr;
+      outIm[b * n + a] = -si;
+    }
+  }
+}
+
+/** out = A·B for dense n×n matrices (out must not alias A or B). */
+export function multiplyInto(
+  aRe: Float64Array,
+  aIm: Float64Array,
+  bRe: Float64Array,
+  bIm: Float64Array,
+  n: number,
+  outRe: Float64Array,
+  outIm: Float64Array,
+): void {
+  outRe.fill(0);
+  outIm.fill(0);
+  for (let i = 0; i < n; i++) {
+    const rowI = i * n;
+    for (let k = 0; k < n; k++) {
+      const ar = aRe[rowI + k];
+      const ai = aIm[rowI + k];
+      if (ar === 0 && ai === 0) continue;
+      const rowK = k * n;
+      for (let j = 0; j < n; j++) {
+        const br = bRe[rowK + j];
+        const bi = bIm[rowK + j];
+        outRe[rowI + j] += ar * br - ai * bi;
+        outIm[rowI + j] += ar * bi + ai * br;
+      }
+    }
+  }
+}
+
+/** out = A·L for dense A and lower-triangular L. */
+export function multiplyByLowerRight(
+  aRe: Float64Array,
+  aIm: Float64Array,
+  lRe: Float64Array,
+  lIm: Float64Array,
+  n: number,
+  outRe: Float64Array,
+  outIm: Float64Array,
+): void {
+  outRe.fill(0);
+  outIm.fill(0);
+  for (let i = 0; i < n; i++) {
+    const rowI = i * n;
+    for (let k = 0; k < n; k++) {
+      const ar = aRe[rowI + k];
+      const ai = aIm[rowI + k];
+      if (ar === 0 && ai === 0) continue;
+      const rowK = k * n;
+      // L_kj is nonzero only for j ≤ k.
+      for (let j = 0; j <= k; j++) {
+        const br = lRe[rowK + j];
+        const bi = lIm[rowK + j];
+        outRe[rowI + j] += ar * br - ai * bi;
+        outIm[rowI + j] += ar * bi + ai * br;
+      }
+    }
+  }
+}
+
+/** out = L·B for lower-triangular L and dense B. */
+export function multiplyByLowerLeft(
+  lRe: Float64Array,
+  lIm: Float64Array,
+  bRe: Float64Array,
+  bIm: Float64Array,
+  n: number,
+  outRe: Float64Array,
+  outIm: Float64Array,
+): void {
+  outRe.fill(0);
+  outIm.fill(0);
+  for (let i = 0; i < n; i++) {
+    const rowI = i * n;
+    for (let k = 0; k <= i; k++) {
+      const ar = lRe[rowI + k];
+      const ai = lIm[rowI + k];
+      if (ar === 0 && ai === 0) continue;
+      const rowK = k * n;
+      for (let j = 0; j < n; j++) {
+        const br = bRe[rowK + j];
+        const bi = bIm[rowK + j];
+        outRe[rowI + j] += ar * br - ai * bi;
+        outIm[rowI + j] += ar * bi + ai * br;
+      }
+    }
+  }
+}
+
+/** out = Hermitian part of A·U† for dense A and lower-triangular U, where A·U† is known to be Hermitian up to rounding. */
+export function multiplyByLowerAdjointRightHermitian(
+  aRe: Float64Array,
+  aIm: Float64Array,
+  uRe: Float64Array,
+  uIm: Float64Array,
+  n: number,
+  outRe: Float64Array,
+  outIm: Float64Array,
+): void {
+  for (let i = 0; i < n; i++) {
+    for (let j = i; j < n; j++) {
+      // (A·U†)_ij = Σ_{k ≤ j} A_ik · conj(U_jk)
+      let sr = 0;
+      let si = 0;
+      for (let k = 0; k <= j; k++) {
+        const ar = aRe[i * n + k];
+        const ai = aIm[i * n + k];
+        const br = uRe[j * n + k];
+        const bi = uIm[j * n + k];
+        sr += ar * br + ai * bi;
+        si += ai * br - ar * bi;
+      }
+      outRe[i * n + j] = sr;
+      outIm[i * n + j] = si;
+      outRe[j * n + i] = sr;
+      outIm[j * n + i] = -si;
+    }
+    outIm[i * n + i] = 0;
+  }
+}
+
+/** In place: A ← (A + A†)/2. */
+export function hermitianPartInPlace(re: Float64Array, im: Float64Array, n: number): void {
+  for (let i = 0; i < n; i++) {
+    im[i * n + i] = 0;
+    for (let j = i + 1; j < n; j++) {
+      const r = 0.5 * (re[i * n + j] + re[j * n + i]);
+      const s = 0.5 * (im[i * n + j] - im[j * n + i]);
+      re[i * n + j] = r;
+      re[j * n + i] = r;
+      im[i * n + j] = s;
+      im[j * n + i] = -s;
+    }
+  }
+}
+
+/** Re Tr(A·B) for Hermitian A and B: the Hilbert–Schmidt inner product Σ (Re A_ij Re B_ij + Im A_ij Im B_ij). */
+export function hermitianInner(aRe: Float64Array, aIm: Float64Array, bRe: Float64Array, bIm: Float64Array): number {
+  let s = 0;
+  for (let k = 0; k < aRe.length; k++) s += aRe[k] * bRe[k] + aIm[k] * bIm[k];
+  return s;
+}
+
+/** Workspace for {@link smallestEigenvalueInPlace}: diagonal, squared off-diagonal and a Householder vector. */
+export class TridiagonalWorkspace {
+  readonly diagonal: Float64Array;
+  readonly offDiagonalSquared: Float64Array;
+  readonly vRe: Float64Array;
+  readonly vIm: Float64Array;
+  readonly pRe: Float64Array;
+  readonly pIm: Float64Array;
+  constructor(n: number) {
+    this.diagonal = new Float64Array(n);
+    this.offDiagonalSquared = new Float64Array(n);
+    this.vRe = new Float64Array(n);
+    this.vIm = new Float64Array(n);
+    this.pRe = new Float64Array(n);
+    this.pIm = new Float64Array(n);
+  }
+}
+
+/** Bisection steps for the smallest eigenvalue: enough to shrink any Gershgorin interval to rounding level. */
+const BISECTION_STEPS = 80;
+
+/**
+ * Smallest eigenvalue of a Hermitian matrix (destroys the input): Householder reduction to a real
+ * tridiagonal matrix, then Sturm-sequence bisection (Golub & Van Loan, Matrix Computations, §8.3, §8.4).
+ */
+export function smallestEigenvalueInPlace(re: Float64Array, im: Float64Array, n: number, work: TridiagonalWorkspace): number {
+  const { diagonal, offDiagonalSquared, vRe, vIm, pRe, pIm } = work;
+  for (let k = 0; k < n - 2; k++) {
+    // Householder vector for column k below the diagonal.
+    let norm2 = 0;
+    for (let i = k + 1; i < n; i++) norm2 += re[i * n + k] ** 2 + im[i * n + k] ** 2;
+    const x0r = re[(k + 1) * n + k];
+    const x0i = im[(k + 1) * n + k];
+    const x0abs = Math.hypot(x0r, x0i);
+    const tailNorm2 = norm2 - x0abs * x0abs;
+    if (tailNorm2 <= 0) {
+      offDiagonalSquared[k] = norm2;
+      continue;
+    }
+    const norm = Math.sqrt(norm2);
+    // v = x + e^{i·arg x0}·‖x‖·e1 (no cancellation), then normalised.
+    const phaseR = x0abs === 0 ? 1 : x0r / x0abs;
+    const phaseI = x0abs === 0 ? 0 : x0i / x0abs;
+    for (let i = 0; i < n; i++) {
+      vRe[i] = 0;
+      vIm[i] = 0;
+    }
+    vRe[k + 1] = x0r + phaseR * norm;
+    vIm[k + 1] = x0i + phaseI * norm;
+    for (let i = k + 2; i < n; i++) {
+      vRe[i] = re[i * n + k];
+      vIm[i] = im[i * n + k];
+    }
+    const vNorm = Math.sqrt(tailNorm2 + (x0abs + norm) ** 2);
+    for (let i = k + 1; i < n; i++) {
+      vRe[i] /= vNorm;
+      vIm[i] /= vNorm;
+    }
+    // p = A·v on the trailing block (rows/cols k+1..n-1).
+    let kappa = 0;
+    for (let i = k + 1; i < n; i++) {
+      let sr = 0;
+      let si = 0;
+      for (let j = k + 1; j < n; j++) {
+        const ar = re[i * n + j];
+        const ai = im[i * n + j];
+        sr += ar * vRe[j] - ai * vIm[j];
+        si += ar * vIm[j] + ai * vRe[j];
+      }
+      pRe[i] = sr;
+      pIm[i] = si;
+      kappa += vRe[i] * sr + vIm[i] * si; // Re(v†p) = v†Av (real)
+    }
+    // w = p − κ·v; A ← A − 2·v·w† − 2·w·v† on the trailing block.
+    for (let i = k + 1; i < n; i++) {
+      pRe[i] -= kappa * vRe[i];
+      pIm[i] -= kappa * vIm[i];
+    }
+    for (let i = k + 1; i < n; i++) {
+      for (let j = k + 1; j < n; j++) {
+        // v_i conj(w_j) + w_i conj(v_j)
+        const r1 = vRe[i] * pRe[j] + vIm[i] * pIm[j];
+        const i1 = vIm[i] * pRe[j] - vRe[i] * pIm[j];
+        const r2 = pRe[i] * vRe[j] + pIm[i] * vIm[j];
+        const i2 = pIm[i] * vRe[j] - pRe[i] * vIm[j];
+        re[i * n + j] -= 2 * (r1 + r2);
+        im[i * n + j] -= 2 * (i1 + i2);
+      }
+    }
+    // The reflected column k is −phase·‖x‖·e1: only its modulus matters for the eigenvalues.
+    offDiagonalSquared[k] = norm2;
+  }
+  for (let i = 0; i < n; i++) diagonal[i] = re[i * n + i];
+  if (n >= 2) offDiagonalSquared[n - 2] = re[(n - 1) * n + n - 2] ** 2 + im[(n - 1) * n + n - 2] ** 2;
+  return smallestTridiagonalEigenvalue(diagonal, offDiagonalSquared, n);
+}
+
+/** Smallest eigenvalue of the real symmetric tridiagonal matrix (diagonal, off-diagonal²) by Sturm bisection. */
+function smallestTridiagonalEigenvalue(diagonal: Float64Array, offDiagonalSquared: Float64Array, n: number): number {
+  if (n === 1) return diagonal[0];
+  let lower = Infinity;
+  let upper = -Infinity;
+  for (let i = 0; i < n; i++) {
+    const left = i > 0 ? Math.sqrt(offDiagonalSquared[i - 1]) : 0;
+    const right = i < n - 1 ? Math.sqrt(offDiagonalSquared[i]) : 0;
+    lower = Math.min(lower, diagonal[i] - left - right);
+    upper = Math.max(upper, diagonal[i] + left + right);
+  }
+  const scale = Math.max(Math.abs(lower), Math.abs(upper), Number.MIN_VALUE);
+  const pivotFloor = Number.EPSILON * scale;
+  for (let step = 0; step < BISECTION_STEPS && upper - lower > 2 * Number.EPSILON * scale; step++) {
+    const middle = 0.5 * (lower + upper);
+    // Number of eigenvalues below `middle` = number of negative pivots of T − middle·1.
+    let negatives = 0;
+    let q = diagonal[0] - middle;
+    if (q < 0) negatives++;
+    for (let i = 1; i < n; i++) {
+      if (Math.abs(q) < pivotFloor) q = q < 0 ? -pivotFloor : pivotFloor;
+      q = diagonal[i] - middle - offDiagonalSquared[i - 1] / q;
+      if (q < 0) negatives++;
+    }
+    if (negatives >= 1) upper = middle;
+    else lower = middle;
+  }
+  return lower;
+}
+
+/** In-place real Cholesky of a symmetric positive definite m×m matrix (lower triangle); false if not positive definite. */
+export function realCholeskyInPlace(a: Float64Array, m: number): boolean {
+  for (let j = 0; j < m; j++) {
+    const rowJ = j * m;
+    let pivot = a[rowJ + j];
+    for (let k = 0; k < j; k++) pivot -= a[rowJ + k] * a[rowJ + k];
+    if (!(pivot > 0)) return false;
+    const diagonal = Math.sqrt(pivot);
+    a[rowJ + j] = diagonal;
+    const inverse = 1 / diagonal;
+    for (let i = j + 1; i < m; i++) {
+      const rowI = i * m;
+      let s = a[rowI + j];
+      for (let k = 0; k < j; k++) s -= a[rowI + k] * a[rowJ + k];
+      a[rowI + j] = s * inverse;
+    }
+  }
+  return true;
+}
+
+/** Solves L·L^T·x = b in place (b ← x) with the factor from {@link realCholeskyInPlace}. */
+export function realCholeskySolveInPlace(l: Float64Array, m: number, b: Float64Array): void {
+  for (let i = 0; i < m; i++) {
+    let s = b[i];
+    for (let k = 0; k < i; k++) s -= l[i * m + k] * b[k];
+    b[i] = s / l[i * m + i];
+  }
+  for (let i = m - 1; i >= 0; i--) {
+    let s = b[i];
+    for (let k = i + 1; k < m; k++) s -= l[k * m + i] * b[k];
+    b[i] = s / l[i * m + i];
+  }
+}

@@ -1,0 +1,511 @@
+// The semidefinite linear oracle of MATH.md §4: min ⟨G, σ⟩ over {σ ⪰ 0, Tr σ = 1, ℓ ≤ Tr(Γσ) ≤ u},
+// with dual bounds recomputed independently and Farkas certificates for infeasible constraint sets.
+import { ComplexMatrix } from '../linear-algebra/complex-matrix.js';
+import { eigh } from '../linear-algebra/eigen.js';
+import { EqualitySpan, DEPENDENCE_TOLERANCE } from './equality-span.js';
+import { InteriorPointSolver, type InteriorPointRows, type InteriorPointStatus } from './interior-point.js';
+import { hermitianInner } from './kernels.js';
+import {
+  checkHermitian,
+  DEFAULT_ORACLE_SETTINGS,
+  OracleInputError,
+  resolveSettings,
+  type InfeasibilityCertificate,
+  type OracleConstraint,
+  type OracleResult,
+  type OracleSettings,
+} from './types.js';
+
+/** Primal residual norm (on unit-norm constraint rows) accepted as feasible: constraints hold to ~1e-10·‖Γ‖. */
+export const PRIMAL_FEASIBILITY_TOLERANCE = 1e-10;
+/** A primal residual at which the solver stalled (gap already closed) that is still accepted as feasible. */
+export const STALLED_PRIMAL_TOLERANCE = 1e-8;
+/** Share of the requested gap given to the interior-point method's own (unverified) stopping test. */
+const INTERNAL_GAP_SHARE = 0.5;
+/** Each retry after a verified gap came out too large tightens the internal test by this factor. */
+const GAP_TIGHTENING = 0.1;
+/** A Farkas violation must exceed this (relative to the data's scale) to be reported: rounding cannot fake it. */
+export const INFEASIBILITY_MARGIN = 1e-10;
+/** Constraints whose |y| is at least this share of the largest are named in an infeasibility report. */
+const DOMINANT_SHARE = 0.1;
+/** A fixed interval value (operator in the equality span) may exceed its bounds by this much, relative, and pass. */
+const FIXED_VALUE_TOLERANCE = 1e-9;
+
+interface IntervalRow {
+  constraintIndex: number;
+  /** ‖Γ'‖_F of the operator with its equality-span part removed. */
+  scale: number;
+  /** c_k = ⟨E_k, Γ⟩ (equality-span part of Γ). */
+  projection: Float64Array;
+  /** −1 for the lower bound row (Γ'σ − s = ℓ'), +1 for the upper bound row (Γ'σ + s = u'). */
+  sign: number;
+}
+
+export class LinearOracle {
+  readonly dimension: number;
+  readonly constraints: readonly OracleConstraint[];
+  readonly settings: OracleSettings;
+  private readonly span: EqualitySpan;
+  private readonly isEquality: boolean[];
+  private readonly intervalRows: IntervalRow[] = [];
+  private readonly solver: InteriorPointSolver;
+  private readonly operatorRe: Float64Array[];
+  private readonly operatorIm: Float64Array[];
+  /** Scale of the data used for the infeasibility margin. */
+  private readonly dataScale: number;
+  /** Infeasibility found while preprocessing, or by a feasibility run; cached for all later calls. */
+  private knownInfeasibility: OracleResult | null = null;
+  private feasibleResult: OracleResult | null = null;
+
+  constructor(dimension: number, constraints: OracleConstraint[], settings?: Partial<OracleSettings>) {
+    if (!Number.isInteger(dimension) || dimension < 1) {
+      throw new OracleInputError('dimension', `must be a positive integer, got ${String(dimension)}`);
+    }
+    if (!Array.isArray(constraints)) throw new OracleInputError('constraints', 'must be an array');
+    this.dimension = dimension;
+    this.settings = resolveSettings(DEFAULT_ORACLE_SETTINGS, settings, 'settings');
+    const n = dimension;
+    const size = n * n;
+    this.isEquality = [];
+    this.operatorRe = [];
+    this.operatorIm = [];
+    let dataScale = 1;
+    constraints.forEach((constraint, i) => {
+      const field = `constraints[${i}]`;
+      if (constraint === null || typeof constraint !== 'object') throw new OracleInputError(field, 'must be an object');
+      if (typeof constraint.label !== 'string') throw new OracleInputError(`${field}.label`, 'must be a string');
+      checkHermitian(constraint.operator, n, `${field}.operator`);
+      const { lower, upper } = constraint;
+      if (typeof lower !== 'number' || Number.isNaN(lower) || lower === Infinity) {
+        throw new OracleInputError(`${field}.lower`, `must be a number below +Infinity, got ${String(lower)}`);
+      }
+      if (typeof upper !== 'number' || Number.isNaN(upper) || upper === -Infinity) {
+        throw new OracleInputError(`${field}.upper`, `must be a number above -Infinity, got ${String(upper)}`);
+      }
+      if (lower > upper) throw new OracleInputError(`${field}.lower`, `exceeds upper (${lower} > ${upper})`);
+      // Symmetrised copies: the inner products below assume exactly Hermitian storage.
+      const re = new Float64Array(size);
+      const im = new Float64Array(size);
+      for (let a = 0; a < n; a++) {
+        for (let b = 0; b < n; b++) {
+          re[a * n + b] = 0.5 * (constraint.operator.re[a * n + b] + constraint.operator.re[b * n + a]);
+          im[a * n + b] = 0.5 * (constraint.operator.im[a * n + b] - constraint.operator.im[b * n + a]);
+        }
+      }
+      this.operatorRe.push(re);
+      this.operatorIm.push(im);
+      this.isEquality.push(lower === upper);
+      dataScale = Math.max(dataScale, Math.sqrt(hermitianInner(re, im, re, im)));
+      if (Number.isFinite(lower)) dataScale = Math.max(dataScale, Math.abs(lower));
+      if (Number.isFinite(upper)) dataScale = Math.max(dataScale, Math.abs(upper));
+    });
+    this.constraints = constraints.map((c) => ({ ...c }));
+    this.dataScale = dataScale;
+
+    const equalityIndices: number[] = [];
+    constraints.forEach((_, i) => {
+      if (this.isEquality[i]) equalityIndices.push(i);
+    });
+    this.span = new EqualitySpan(
+      n,
+      equalityIndices.map((i) => ({ re: this.operatorRe[i], im: this.operatorIm[i] })),
+      equalityIndices.map((i) => constraints[i].lower),
+      equalityIndices,
+    );
+
+    // Interval rows: operators with their equality-span part removed (better conditioned; fixed values detected).
+    const rowsRe: Float64Array[] = [...this.span.basisRe];
+    const rowsIm: Float64Array[] = [...this.span.basisIm];
+    const rhs: number[] = [...this.span.basisValues];
+    const slackRow: number[] = [];
+    const slackSign: number[] = [];
+    const fixedViolations: Float64Array[] = [];
+    constraints.forEach((constraint, i) => {
+      if (this.isEquality[i]) return;
+      if (constraint.lower === -Infinity && constraint.upper === Infinity) return;
+      const re = this.operatorRe[i].slice();
+      const im = this.operatorIm[i].slice();
+      const projection = this.span.coefficientsOf(re, im);
+      this.span.subtractCombination(re, im, projection);
+      const second = this.span.coefficientsOf(re, im);
+      this.span.subtractCombination(re, im, second);
+      for (let k = 0; k < projection.length; k++) projection[k] += second[k];
+      const offset = projection.reduce((s, c, k) => s + c * this.span.basisValues[k], 0);
+      const norm = Math.sqrt(hermitianInner(re, im, re, im));
+      const originalNorm = Math.sqrt(hermitianInner(this.operatorRe[i], this.operatorIm[i], this.operatorRe[i], this.operatorIm[i]));
+      if (norm <= DEPENDENCE_TOLERANCE * originalNorm || norm === 0) {
+        // Tr(Γσ) is fixed by the equalities: either always satisfied or a certificate y = ±(e_i − Σ c_k E_k).
+        const slackTolerance = FIXED_VALUE_TOLERANCE * (1 + Math.abs(offset));
+        if (offset < constraint.lower - slackTolerance || offset > constraint.upper + slackTolerance) {
+          const y = new Float64Array(constraints.length);
+          const direction = offset < constraint.lower ? 1 : -1;
+          y[i] = direction;
+          const weights = projection.map((c) => -direction * c);
+          this.span.toOriginal(weights, y);
+          fixedViolations.push(y);
+        }
+        return;
+      }
+      for (const [bound, sign] of [
+        [constraint.lower, -1],
+        [constraint.upper, 1],
+      ] as const) {
+        if (!Number.isFinite(bound)) continue;
+        const row = rowsRe.length;
+        const inverse = 1 / norm;
+        const scaledRe = new Float64Array(size);
+        const scaledIm = new Float64Array(size);
+        for (let t = 0; t < size; t++) {
+          scaledRe[t] = re[t] * inverse;
+          scaledIm[t] = im[t] * inverse;
+        }
+        rowsRe.push(scaledRe);
+        rowsIm.push(scaledIm);
+        rhs.push((bound - offset) * inverse);
+        slackRow.push(row);
+        slackSign.push(sign);
+        this.intervalRows.push({ constraintIndex: i, scale: norm, projection, sign });
+      }
+    });
+    const rows: InteriorPointRows = {
+      re: rowsRe,
+      im: rowsIm,
+      rhs: Float64Array.from(rhs),
+      orthonormalRows: this.span.size,
+      slackRow: Int32Array.from(slackRow),
+      slackSign: Float64Array.from(slackSign),
+    };
+    this.solver = new InteriorPointSolver(n, rows);
+
+    // Inconsistent data found while preprocessing: report the first certificate that verifies.
+    const candidates: Float64Array[] = [...fixedViolations];
+    for (const dependent of this.span.dependent) {
+      if (dependent.consistent) continue;
+      const y = new Float64Array(constraints.length);
+      const direction = dependent.mismatch > 0 ? 1 : -1;
+      y[dependent.constraintIndex] = direction;
+      this.span.toOriginal(
+        dependent.coefficients.map((c) => -direction * c),
+        y,
+      );
+      candidates.push(y);
+    }
+    for (const y of candidates) {
+      const certificate = this.farkasCertificate(y);
+      if (certificate) {
+        this.knownInfeasibility = this.infeasibleResult(certificate, 0, 'constraints are inconsistent (found while preprocessing the equalities)');
+        break;
+      }
+    }
+  }
+
+  /** min ⟨G, σ⟩ over S = {σ ⪰ 0, Tr σ = 1, lower ≤ Tr(Γσ) ≤ upper}. G Hermitian d×d. */
+  minimize(G: ComplexMatrix, settings?: Partial<OracleSettings>): OracleResult {
+    checkHermitian(G, this.dimension, 'G');
+    const resolved = resolveSettings(this.settings, settings, 'settings');
+    if (this.knownInfeasibility) return this.copyInfeasible(this.knownInfeasibility);
+    const n = this.dimension;
+    const size = n * n;
+    const gRe = new Float64Array(size);
+    const gIm = new Float64Array(size);
+    for (let a = 0; a < n; a++) {
+      for (let b = 0; b < n; b++) {
+        gRe[a * n + b] = 0.5 * (G.re[a * n + b] + G.re[b * n + a]);
+        gIm[a * n + b] = 0.5 * (G.im[a * n + b] - G.im[b * n + a]);
+      }
+    }
+    // Strip the equality-span part (constant on S) and normalise: the IPM then sees only what varies on S.
+    const spanCoefficients = this.span.coefficientsOf(gRe, gIm);
+    const strippedRe = gRe.slice();
+    const strippedIm = gIm.slice();
+    this.span.subtractCombination(strippedRe, strippedIm, spanCoefficients);
+    const second = this.span.coefficientsOf(strippedRe, strippedIm);
+    this.span.subtractCombination(strippedRe, strippedIm, second);
+    for (let k = 0; k < second.length; k++) spanCoefficients[k] += second[k];
+    const constantPart = spanCoefficients.reduce((s, c, k) => s + c * this.span.basisValues[k], 0);
+    const objectiveScale = Math.sqrt(hermitianInner(strippedRe, strippedIm, strippedRe, strippedIm));
+    if (objectiveScale === 0) {
+      // ⟨G, σ⟩ is the same for every feasible σ: any feasible point is optimal.
+      const feasible = this.findFeasiblePoint();
+      if (feasible.status !== 'OPTIMAL' || !feasible.point) return feasible;
+      return this.assembleResult(G, feasible.point, new Float64Array(this.solver.m), 0, spanCoefficients, feasible.iterations, 'OPTIMAL');
+    }
+    for (let t = 0; t < size; t++) {
+      strippedRe[t] /= objectiveScale;
+      strippedIm[t] /= objectiveScale;
+    }
+    this.solver.setObjective(strippedRe, strippedIm);
+    let internalShare = INTERNAL_GAP_SHARE;
+    let resume = false;
+    let status: InteriorPointStatus;
+    for (;;) {
+      const share = internalShare;
+      status = this.solver.solve(
+        {
+          gapTolerance: (scaledPrimal) =>
+            share *
+            resolved.relativeAccuracy *
+            Math.min((1 + Math.abs(objectiveScale * scaledPrimal + constantPart)) / objectiveScale, 1 + Math.abs(scaledPrimal)),
+          primalTolerance: PRIMAL_FEASIBILITY_TOLERANCE,
+          maxIterations: resolved.maxIterations - (resume ? this.solver.iterations : 0),
+          certifyInfeasible: (y) => this.recordRayIfCertified(y),
+        },
+        resume,
+      );
+      resume = true;
+      if (status === 'INFEASIBLE' && this.knownInfeasibility) return this.copyInfeasible(this.knownInfeasibility);
+      const stalledAcceptably = status === 'STALLED' && this.solver.primalResidualNorm <= STALLED_PRIMAL_TOLERANCE;
+      if (status !== 'CONVERGED' && !stalledAcceptably) break;
+      const result = this.resultFromSolver(G, objectiveScale, spanCoefficients, 'OPTIMAL');
+      if (stalledAcceptably) result.message = `primal residual stalled at ${this.solver.primalResidualNorm.toExponential(2)} (ill-conditioned near the boundary)`;
+      // The verified gap uses the recomputed dual bound; the solver's own test is only a proxy for it.
+      const strippedPrimal = result.primalValue - constantPart;
+      const threshold =
+        resolved.relativeAccuracy * Math.min(1 + Math.abs(result.primalValue), Math.min(1, objectiveScale) + Math.abs(strippedPrimal));
+      if (result.primalValue - result.dualBound <= threshold) return result;
+      if (this.solver.iterations >= resolved.maxIterations || stalledAcceptably) {
+        status = 'ITERATION_LIMIT';
+        break;
+      }
+      internalShare *= GAP_TIGHTENING;
+    }
+    const fallback = this.resultFromSolver(G, objectiveScale, spanCoefficients, status === 'NUMERICAL_ERROR' ? 'NUMERICAL_ERROR' : 'ITERATION_LIMIT');
+    fallback.message =
+      status === 'NUMERICAL_ERROR'
+        ? 'a factorization failed inside the interior-point method; the dual bound is still valid'
+        : `stopped after ${this.solver.iterations} interior-point iterations; the dual bound is still valid`;
+    // No convergence: infeasible data is the usual reason; the feasibility run decides and is cached.
+    const feasibility = this.findFeasiblePoint();
+    if (feasibility.status === 'INFEASIBLE') return this.copyInfeasible(feasibility);
+    return fallback;
+  }
+
+  /**
+   * Feasibility check once per problem: the analytic centre of S (the central path of the zero objective), i.e. as
+   * interior as S allows, or INFEASIBLE with a Farkas certificate. Cached.
+   */
+  findFeasiblePoint(): OracleResult {
+    if (this.knownInfeasibility) return this.copyInfeasible(this.knownInfeasibility);
+    if (this.feasibleResult) return this.copyResult(this.feasibleResult);
+    const size = this.dimension * this.dimension;
+    this.solver.setObjective(new Float64Array(size), new Float64Array(size));
+    const status = this.solver.solve(
+      {
+        gapTolerance: () => this.settings.relativeAccuracy,
+        primalTolerance: PRIMAL_FEASIBILITY_TOLERANCE,
+        maxIterations: this.settings.maxIterations,
+        certifyInfeasible: (y) => this.recordRayIfCertified(y),
+      },
+      false,
+    );
+    if (status === 'INFEASIBLE' && this.knownInfeasibility) return this.copyInfeasible(this.knownInfeasibility);
+    const zero = new ComplexMatrix(this.dimension, this.dimension);
+    const accepted = status === 'CONVERGED' || (status === 'STALLED' && this.solver.primalResidualNorm <= STALLED_PRIMAL_TOLERANCE);
+    const result = this.resultFromSolver(zero, 1, new Float64Array(this.span.size), accepted ? 'OPTIMAL' : status === 'NUMERICAL_ERROR' ? 'NUMERICAL_ERROR' : 'ITERATION_LIMIT');
+    if (result.status === 'OPTIMAL') {
+      this.feasibleResult = result;
+      return this.copyResult(result);
+    }
+    result.message = `no feasible point found and no infeasibility certificate either (status ${status}, primal residual ${this.solver.primalResidualNorm.toExponential(2)})`;
+    return result;
+  }
+
+  /** Orthogonal (Hilbert–Schmidt) projection of a Hermitian X onto {Tr X = 1, Tr(Γ_i X) = b_i for the equalities}. */
+  projectOntoEqualities(X: ComplexMatrix): ComplexMatrix {
+    checkHermitian(X, this.dimension, 'X');
+    const re = X.re.slice();
+    const im = X.im.slice();
+    // Two passes: the second removes what rounding left of the first.
+    for (let pass = 0; pass < 2; pass++) {
+      const a = this.span.coefficientsOf(re, im);
+      for (let k = 0; k < a.length; k++) a[k] -= this.span.basisValues[k];
+      this.span.subtractCombination(re, im, a);
+    }
+    return new ComplexMatrix(this.dimension, this.dimension, re, im);
+  }
+
+  /** G = stripped + c0·1 + Σ c_i Γ_i with stripped ⟂ span{1, equality operators} (Hilbert–Schmidt). */
+  stripEqualitySpan(G: ComplexMatrix): { stripped: ComplexMatrix; identityCoefficient: number; equalityCoefficients: Float64Array } {
+    checkHermitian(G, this.dimension, 'G');
+    const re = G.re.slice();
+    const im = G.im.slice();
+    const total = new Float64Array(this.span.size);
+    for (let pass = 0; pass < 2; pass++) {
+      const a = this.span.coefficientsOf(re, im);
+      this.span.subtractCombination(re, im, a);
+      for (let k = 0; k < a.length; k++) total[k] += a[k];
+    }
+    const equalityCoefficients = new Float64Array(this.constraints.length);
+    const identityCoefficient = this.span.toOriginal(total, equalityCoefficients);
+    return { stripped: new ComplexMatrix(this.dimension, this.dimension, re, im), identityCoefficient, equalityCoefficients };
+  }
+
+  /** Per-constraint multipliers y (signed, Σ y_i Γ_i) from the solver's scaled dual ŷ, objective scale g and span part a. */
+  private multipliersFromSolver(yScaled: Float64Array, objectiveScale: number, spanCoefficients: Float64Array): Float64Array {
+    const y = new Float64Array(this.constraints.length);
+    for (let r = 0; r < this.intervalRows.length; r++) {
+      const row = this.intervalRows[r];
+      const value = (objectiveScale * yScaled[this.span.size + r]) / row.scale;
+      // Lower rows carry y⁺ ≥ 0, upper rows y⁻ = −ŷ ≥ 0; clamping rounding-level wrong signs keeps (★) valid.
+      if (row.sign < 0) y[row.constraintIndex] += Math.max(value, 0);
+      else y[row.constraintIndex] += Math.min(value, 0);
+    }
+    const weights = new Float64Array(this.span.size);
+    for (let k = 0; k < this.span.size; k++) weights[k] = spanCoefficients[k] + objectiveScale * yScaled[k];
+    const seen = new Set<number>();
+    for (const row of this.intervalRows) {
+      if (seen.has(row.constraintIndex)) continue;
+      seen.add(row.constraintIndex);
+      const yi = y[row.constraintIndex];
+      for (let k = 0; k < this.span.size; k++) weights[k] -= yi * row.projection[k];
+    }
+    this.span.toOriginal(weights, y);
+    return y;
+  }
+
+  private resultFromSolver(G: ComplexMatrix, objectiveScale: number, spanCoefficients: Float64Array, status: OracleResult['status']): OracleResult {
+    const n = this.dimension;
+    const solver = this.solver;
+    let trace = 0;
+    for (let i = 0; i < n; i++) trace += solver.xRe[i * n + i];
+    const point = new ComplexMatrix(n, n, solver.xRe.slice(), solver.xIm.slice());
+    for (let t = 0; t < n * n; t++) {
+      point.re[t] /= trace;
+      point.im[t] /= trace;
+    }
+    return this.assembleResult(G, point, solver.y, objectiveScale, spanCoefficients, solver.iterations, status);
+  }
+
+  private assembleResult(
+    G: ComplexMatrix,
+    point: ComplexMatrix,
+    yScaled: Float64Array,
+    objectiveScale: number,
+    spanCoefficients: Float64Array,
+    iterations: number,
+    status: OracleResult['status'],
+  ): OracleResult {
+    const y = this.multipliersFromSolver(yScaled, objectiveScale, spanCoefficients);
+    const { lower, upper } = this.splitMultipliers(y);
+    return {
+      status,
+      point,
+      multipliersLower: lower,
+      multipliersUpper: upper,
+      primalValue: hermitianInner(G.re, G.im, point.re, point.im),
+      dualBound: this.dualBound(G, lower, upper),
+      iterations,
+    };
+  }
+
+  /** y⁺ = max(y, 0), y⁻ = max(−y, 0); a side with an infinite bound gets no multiplier. */
+  private splitMultipliers(y: Float64Array): { lower: Float64Array; upper: Float64Array } {
+    const lower = new Float64Array(y.length);
+    const upper = new Float64Array(y.length);
+    for (let i = 0; i < y.length; i++) {
+      if (y[i] > 0 && Number.isFinite(this.constraints[i].lower)) lower[i] = y[i];
+      else if (y[i] < 0 && Number.isFinite(this.constraints[i].upper)) upper[i] = -y[i];
+    }
+    return { lower, upper };
+  }
+
+  /** (★): Σ y⁺ℓ − Σ y⁻u + λ_min(G − Σ (y⁺ − y⁻)Γ), with the project's eigensolver. */
+  dualBound(G: ComplexMatrix, multipliersLower: Float64Array, multipliersUpper: Float64Array): number {
+    const n = this.dimension;
+    const shifted = new ComplexMatrix(n, n, G.re.slice(), G.im.slice());
+    let linear = 0;
+    for (let i = 0; i < this.constraints.length; i++) {
+      const yi = multipliersLower[i] - multipliersUpper[i];
+      if (multipliersLower[i] !== 0) linear += multipliersLower[i] * this.constraints[i].lower;
+      if (multipliersUpper[i] !== 0) linear -= multipliersUpper[i] * this.constraints[i].upper;
+      if (yi === 0) continue;
+      const re = this.operatorRe[i];
+      const im = this.operatorIm[i];
+      for (let t = 0; t < n * n; t++) {
+        shifted.re[t] -= yi * re[t];
+        shifted.im[t] -= yi * im[t];
+      }
+    }
+    return linear + eigh(shifted).values[0];
+  }
+
+  /** Normalises y (Σ|y| = 1) and returns the Farkas certificate if its violation, recomputed with eigh, is convincing. */
+  private farkasCertificate(y: Float64Array): InfeasibilityCertificate | null {
+    const { lower, upper } = this.splitMultipliers(y);
+    let total = 0;
+    for (let i = 0; i < y.length; i++) total += lower[i] + upper[i];
+    // A multiplier on an open side cannot be part of a certificate.
+    for (let i = 0; i < y.length; i++) if ((y[i] !== 0 && lower[i] === 0 && upper[i] === 0) || !Number.isFinite(y[i])) return null;
+    if (!(total > 0)) return null;
+    for (let i = 0; i < y.length; i++) {
+      lower[i] /= total;
+      upper[i] /= total;
+    }
+    const n = this.dimension;
+    const combination = new ComplexMatrix(n, n);
+    let linear = 0;
+    for (let i = 0; i < y.length; i++) {
+      const yi = lower[i] - upper[i];
+      if (lower[i] !== 0) linear += lower[i] * this.constraints[i].lower;
+      if (upper[i] !== 0) linear -= upper[i] * this.constraints[i].upper;
+      for (let t = 0; t < n * n; t++) {
+        combination.re[t] += yi * this.operatorRe[i][t];
+        combination.im[t] += yi * this.operatorIm[i][t];
+      }
+    }
+    const values = eigh(combination).values;
+    const violation = linear - values[n - 1];
+    if (!(violation > INFEASIBILITY_MARGIN * this.dataScale)) return null;
+    const magnitudes = Array.from({ length: y.length }, (_, i) => ({ i, size: lower[i] + upper[i] }));
+    const largest = Math.max(...magnitudes.map((e) => e.size));
+    const dominantConstraints = magnitudes
+      .filter((e) => e.size >= DOMINANT_SHARE * largest && e.size > 0)
+      .sort((a, b) => b.size - a.size)
+      .map((e) => this.constraints[e.i].label);
+    return { multipliersLower: lower, multipliersUpper: upper, violation, dominantConstraints };
+  }
+
+  /** Callback for the solver: maps the (scaled) dual direction to per-constraint y and caches a verified certificate. */
+  private recordRayIfCertified(yScaled: Float64Array): boolean {
+    const y = this.multipliersFromSolver(yScaled, 1, new Float64Array(this.span.size));
+    const certificate = this.farkasCertificate(y);
+    if (!certificate) return false;
+    this.knownInfeasibility = this.infeasibleResult(certificate, this.solver.iterations, 'no density operator satisfies the constraints');
+    return true;
+  }
+
+  private infeasibleResult(certificate: InfeasibilityCertificate, iterations: number, reason: string): OracleResult {
+    return {
+      status: 'INFEASIBLE',
+      point: null,
+      multipliersLower: certificate.multipliersLower,
+      multipliersUpper: certificate.multipliersUpper,
+      primalValue: Number.NaN,
+      dualBound: Infinity,
+      iterations,
+      infeasibility: certificate,
+      message: `${reason}; Farkas violation ${certificate.violation.toExponential(3)}, largest multipliers on: ${certificate.dominantConstraints.join(', ')}`,
+    };
+  }
+
+  private copyInfeasible(result: OracleResult): OracleResult {
+    return this.copyResult(result);
+  }
+
+  private copyResult(result: OracleResult): OracleResult {
+    return {
+      ...result,
+      point: result.point ? result.point.clone() : null,
+      multipliersLower: result.multipliersLower.slice(),
+      multipliersUpper: result.multipliersUpper.slice(),
+      infeasibility: result.infeasibility
+        ? {
+            ...result.infeasibility,
+            multipliersLower: result.infeasibility.multipliersLower.slice(),
+            multipliersUpper: result.infeasibility.multipliersUpper.slice(),
+            dominantConstraints: [...result.infeasibility.dominantConstraints],
+          }
+        : undefined,
+    };
+  }
+}
