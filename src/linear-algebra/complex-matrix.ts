@@ -338,6 +338,26 @@ export function frobeniusNorm(a: ComplexMatrix): number {
   return Math.sqrt(s);
 }
 
+/** Below this sum of squares the plain Frobenius norm may have lost digits to underflow. */
+const SQUARED_NORM_UNDERFLOW_GUARD = 1e-280;
+
+/** Frobenius norm that neither overflows nor underflows (rescales by the largest entry when needed). */
+export function frobeniusNormSafe(a: ComplexMatrix): number {
+  let s = 0;
+  for (let k = 0; k < a.re.length; k++) s += a.re[k] * a.re[k] + a.im[k] * a.im[k];
+  if (Number.isFinite(s) && s > SQUARED_NORM_UNDERFLOW_GUARD) return Math.sqrt(s);
+  let largest = 0;
+  for (let k = 0; k < a.re.length; k++) largest = Math.max(largest, Math.abs(a.re[k]), Math.abs(a.im[k]));
+  if (largest === 0 || !Number.isFinite(largest)) return largest;
+  let scaled = 0;
+  for (let k = 0; k < a.re.length; k++) {
+    const r = a.re[k] / largest;
+    const i = a.im[k] / largest;
+    scaled += r * r + i * i;
+  }
+  return largest * Math.sqrt(scaled);
+}
+
 /** max |A_ij - (A†)_ij| relative to the Frobenius norm (0 for the zero matrix). */
 export function hermiticityDefect(a: ComplexMatrix): number {
   if (!a.isSquare) return Infinity;

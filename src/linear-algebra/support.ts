@@ -1,5 +1,5 @@
 // Range and kernel of Hermitian PSD matrices with a rank decision from the eigensolver's backward error.
-import { ComplexMatrix, frobeniusNorm } from './complex-matrix.js';
+import { ComplexMatrix, frobeniusNormSafe } from './complex-matrix.js';
 import { eigh, eigvalsh, SUPPORT_TOLERANCE_FACTOR, UNIT_ROUNDOFF, type HermitianEigen } from './eigen.js';
 
 export { SUPPORT_TOLERANCE_FACTOR, UNIT_ROUNDOFF };
@@ -11,7 +11,7 @@ export { SUPPORT_TOLERANCE_FACTOR, UNIT_ROUNDOFF };
  * for rounding in forming A itself (sums of Kraus conjugations, Kronecker products).
  */
 export function zeroEigenvalueTolerance(a: ComplexMatrix): number {
-  return SUPPORT_TOLERANCE_FACTOR * Math.max(a.rows, 1) * UNIT_ROUNDOFF * frobeniusNorm(a);
+  return SUPPORT_TOLERANCE_FACTOR * Math.max(a.rows, 1) * UNIT_ROUNDOFF * frobeniusNormSafe(a);
 }
 
 /** Eigendecomposition split into range (λ > tolerance) and kernel (|λ| ≤ tolerance) parts. */
