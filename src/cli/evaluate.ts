@@ -1,10 +1,11 @@
-// `renyi-bound evaluate <problem.json | -> --state <matrix.json> --entropy <kind> [--alpha a]`:
+// `renyi-bound evaluate <problem.json | -> --state <matrix.json> --entropy <kind> [--alpha a]`
+// (--entropy may be left out when the problem JSON names the entropy):
 // the objective's value (bits) and gradient norm at a given density operator.
 import { Command } from 'commander';
 import { frobeniusNorm } from '../linear-algebra/complex-matrix.js';
 import { createObjective } from '../objectives/index.js';
 import { densityOperatorFromJson } from '../problem/state.js';
-import { entropyRequestFrom, problemFromJson } from '../problem/validate.js';
+import { ValidationError, entropyRequestFrom, parseProblemJson } from '../problem/validate.js';
 import { parseNumberOption, printJson, readJsonInput, withInputErrors } from './io.js';
 
 export interface EvaluateOutput {
@@ -17,7 +18,7 @@ export interface EvaluateOutput {
 
 interface EvaluateOptions {
   state: string;
-  entropy: string;
+  entropy?: string;
   alpha?: string;
 }
 
@@ -27,15 +28,21 @@ export function register(program: Command): void {
     .description('evaluate the entropy objective and its gradient norm at a given state')
     .argument('<problem>', 'problem JSON file, or - for standard input')
     .requiredOption('--state <matrix.json>', 'density operator on H_A ⊗ H_B as a matrix JSON file')
-    .requiredOption('--entropy <kind>', 'von-neumann, petz-up, petz-down or sandwiched-up')
+    .option('--entropy <kind>', 'von-neumann, petz-up, petz-down or sandwiched-up (default: the problem’s entropy field)')
     .option('--alpha <a>', 'Rényi order in (1, 2] (Rényi kinds only)')
     .action(
       withInputErrors((problemSource: string, options: EvaluateOptions) => {
-        const request = entropyRequestFrom(
-          options.entropy,
-          options.alpha === undefined ? undefined : parseNumberOption(options.alpha, 'alpha'),
-        );
-        const problem = problemFromJson(readJsonInput(problemSource, 'problem'));
+        const alpha = options.alpha === undefined ? undefined : parseNumberOption(options.alpha, 'alpha');
+        if (options.entropy === undefined && alpha !== undefined) {
+          throw new ValidationError('alpha', 'given without --entropy');
+        }
+        const commandLineRequest = options.entropy === undefined ? undefined : entropyRequestFrom(options.entropy, alpha);
+        const parsed = parseProblemJson(readJsonInput(problemSource, 'problem'));
+        const problem = parsed.problem;
+        const request = commandLineRequest ?? parsed.request;
+        if (request === undefined) {
+          throw new ValidationError('entropy', 'is required: give --entropy or set entropy in the problem');
+        }
         const dimension = problem.dimensionA * problem.dimensionB;
         const rho = densityOperatorFromJson(readJsonInput(options.state, 'state'), 'state', dimension);
         const { value, gradient } = createObjective(problem, request).evaluate(rho);

@@ -5,10 +5,11 @@
 //   "sourceMarginal" then "none" or a matrix;
 //   "constraints" count, then per constraint (in order): matrix, lower, upper;
 //   "branches" count, then per branch (in order): "kraus" count, matrices; "keyProjectors" count, matrices; score;
-//   "entropy" kind; "alpha" number or "null"; "gapTolerance" number; "maxIterations" number; "solverVersion" string.
+//   "entropy" kind (string); "alpha" double, or "null" for von Neumann; "gapTolerance" double;
+//   "maxIterations" double; "solverVersion" string.
 // A matrix is "matrix" rows cols, then rows·cols real parts, then rows·cols imaginary parts (row-major).
 // Every double is the 16 lower-case hex digits of its IEEE-754 binary64 bits, big-endian, with −0 written as +0,
-// so the encoding is exact and independent of decimal formatting. Integers are decimal. Strings are their UTF-8
+// so the encoding is exact and independent of decimal formatting. Dimensions, shapes and counts are decimal integers. Strings are their UTF-8
 // byte length, ":", and the string. Labels and descriptions are excluded (they change no number); constraint and
 // branch order is kept because certificate multipliers are indexed by it.
 import { createHash, type Hash } from 'node:crypto';

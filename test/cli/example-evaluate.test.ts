@@ -116,6 +116,14 @@ describe('renyi-bound CLI: version, example, evaluate', { timeout: 30_000 }, () 
     }
   });
 
+  it('evaluate takes the entropy from the problem when --entropy is left out', async () => {
+    const problem = file('with-entropy.json', { ...buildExample('bb84-entangled', {}), entropy: 'PETZ_UP', alpha: 1.5 });
+    const run = await cli(['evaluate', problem, '--state', file('phi-3.json', PHI_PLUS)]);
+    expect(run.status, run.stderr).toBe(0);
+    expect(JSON.parse(run.stdout)).toMatchObject({ entropy: 'petz-up', alpha: 1.5 });
+    expect(JSON.parse(run.stdout).value).toBeCloseTo(1, 10);
+  });
+
   it('evaluate exits 1 naming the field for a bad state, problem or order', async () => {
     const problem = file('bb84-2.json', buildExample('bb84-entangled', {}));
     const badTrace = file('trace.json', { ...MAXIMALLY_MIXED, re: MAXIMALLY_MIXED.re.map((x) => x * 0.9) });
@@ -130,6 +138,9 @@ describe('renyi-bound CLI: version, example, evaluate', { timeout: 30_000 }, () 
     const badAlpha = await cli(['evaluate', problem, '--state', badTrace, '--entropy', 'petz-up', '--alpha', '0.5']);
     expect(badAlpha.status).toBe(1);
     expect(badAlpha.stderr).toBe('renyi-bound: alpha: must lie in (1, 2] for petz-up; Rényi objectives are not convex outside it\n');
+    const noEntropy = await cli(['evaluate', problem, '--state', badTrace]);
+    expect(noEntropy.status).toBe(1);
+    expect(noEntropy.stderr).toBe('renyi-bound: entropy: is required: give --entropy or set entropy in the problem\n');
     const badProblem = await cli(['evaluate', '-', '--state', badTrace, '--entropy', 'von-neumann'], '{"dimensionA": 2}');
     expect(badProblem.status).toBe(1);
     expect(badProblem.stderr).toBe('renyi-bound: dimensionB: is required\n');
