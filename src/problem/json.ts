@@ -65,7 +65,11 @@ export class JsonMessage {
     this.path = path;
   }
 
-  static read(json: unknown, path: string, fields: readonly string[]): JsonMessage {
+  /**
+   * `optionalFields` are proto3 `optional` fields: decoders run with the shared loader options (oneofs: true) add
+   * a virtual member `_name` whose value is "name" when the field is set; it is accepted and checked.
+   */
+  static read(json: unknown, path: string, fields: readonly string[], optionalFields: readonly string[] = []): JsonMessage {
     if (json === null || typeof json !== 'object' || Array.isArray(json)) {
       throw new ValidationError(path, 'must be a JSON object');
     }
@@ -74,6 +78,13 @@ export class JsonMessage {
     for (const f of fields) {
       known.add(f);
       known.add(snakeCase(f));
+    }
+    for (const f of optionalFields) {
+      const marker = object[`_${f}`];
+      known.add(`_${f}`);
+      if (marker !== undefined && marker !== null && marker !== f) {
+        throw new ValidationError(childPath(path, `_${f}`), `must be ${JSON.stringify(f)} when present (the presence marker of ${f})`);
+      }
     }
     for (const key of Object.keys(object)) {
       if (!known.has(key)) {

@@ -72,7 +72,7 @@ export function parseProblemJson(json: unknown, limits: ValidationLimits = {}): 
   if (json === null || typeof json !== 'object' || Array.isArray(json)) {
     throw new ValidationError('problem', 'must be a JSON object');
   }
-  const message = JsonMessage.read(json, '', PROBLEM_FIELDS);
+  const message = JsonMessage.read(json, '', PROBLEM_FIELDS, ['alpha']);
   const dimensionA = positiveDimension(message.required('dimensionA'), 'dimensionA', maxDimension);
   const dimensionB = positiveDimension(message.required('dimensionB'), 'dimensionB', maxDimension);
   const d = dimensionA * dimensionB;

@@ -118,6 +118,23 @@ describe('problemFromJson accepts and expands', () => {
     expect(problemFromJson(withoutMarginal).sourceMarginal).toBeUndefined();
   });
 
+  it('accepts an object as decoded with the shared proto-loader options (defaults filled, _alpha presence marker)', () => {
+    // The shape protobufjs's toObject gives for a decoded Problem with PROTO_LOADER_OPTIONS (checked by hand).
+    const decoded = {
+      constraints: [],
+      observations: [],
+      branches: [{ krausOperators: [{ re: [1], im: [], rows: 1, cols: 1 }], keyProjectors: [{ re: [1], im: [], rows: 1, cols: 1 }], label: '', score: 0 }],
+      dimensionA: 1,
+      dimensionB: 1,
+      sourceMarginal: null,
+      entropy: 'PETZ_UP',
+      description: '',
+      alpha: 1.5,
+      _alpha: 'alpha',
+    };
+    expect(parseProblemJson(decoded).request).toEqual({ kind: 'petz-up', alpha: 1.5 });
+  });
+
   it('reads the entropy request a problem carries (enum name or number)', () => {
     const p = baseProblem();
     p.entropy = 'PETZ_UP';
@@ -209,6 +226,7 @@ const rejections: [string, (p: Json) => void, string][] = [
   ['entropy not a string', (p) => (p.entropy = true), 'entropy: must be a string naming an entropy kind'],
   ['alpha without an entropy kind', (p) => (p.alpha = 1.5), 'alpha: given without an entropy kind'],
   ['alpha outside (1, 2] in the problem', (p) => Object.assign(p, { entropy: 'SANDWICHED_UP', alpha: 2.5 }), 'alpha: must lie in (1, 2] for sandwiched-up; Rényi objectives are not convex outside it'],
+  ['bad presence marker', (p) => (p._alpha = 'beta'), '_alpha: must be "alpha" when present (the presence marker of alpha)'],
   ['description not a string', (p) => (p.description = 5), 'description: must be a string'],
 ];
 
