@@ -1,0 +1,301 @@
+import {
+  addScaledInPlace,
+  ComplexMatrix,
+  hermitianPart,
+  scale,
+  subtract,
+  trace,
+  traceProductReal,
+} from '../linear-algebra/complex-matrix.js';
+import { eigh } from '../linear-algebra/eigen.js';
+import {
+  createObjective,
+  normaliseRequest,
+  type Objective,
+  type ObjectiveEvaluation,
+  type ReferenceBlocks,
+} from '../objectives/index.js';
+import { LinearOracle, type OracleResult } from '../oracle/index.js';
+import { compressToFace, feasibleFace, liftFromFace, restrictToFace, type FeasibleFace } from '../problem/feasible-face.js';
+import { inputHash } from '../problem/hash.js';
+import { matrixToJson } from '../problem/json.js';
+import type { EntropyRequest, Problem } from '../problem/model.js';
+import { linearizationBound, referenceFromSupport, type BoundBreakdown } from '../certificate/bound.js';
+import { SOLVER_VERSION } from '../certificate/version.js';
+import { ActiveSet } from './active-set.js';
+import { derivativeLineSearch } from './line-search.js';
+import { resolveSettings, TUNING } from './settings.js';
+import type { Certificate, SolveControl, SolveResult, SolverSettings, StopLimit } from './types.js';
+
+export { SOLVER_VERSION } from '../certificate/version.js';
+export { DEFAULT_SETTINGS, resolveSettings } from './settings.js';
+
+interface CertifiedPoint {
+  breakdown: BoundBreakdown;
+  state: ComplexMatrix;
+  reference?: ReferenceBlocks;
+  multipliersLower: Float64Array;
+  multipliersUpper: Float64Array;
+}
+
+/** Multipliers for the full gradient from the oracle's answer on the stripped one (G = stripped + c₀·1 + Σ cᵢΓᵢ). */
+function restoreMultipliers(
+  oracleResult: OracleResult,
+  equalityCoefficients: Float64Array,
+): { lower: Float64Array; upper: Float64Array } {
+  const lower = Float64Array.from(oracleResult.multipliersLower);
+  const upper = Float64Array.from(oracleResult.multipliersUpper);
+  equalityCoefficients.forEach((c, i) => {
+    if (c > 0) lower[i] += c;
+    else if (c < 0) upper[i] -= c;
+  });
+  return { lower, upper };
+}
+
+/** Largest violation of Tr ρ = 1, ρ ⪰ 0 and every constraint, on the original problem. */
+export function maxConstraintViolation(problem: Problem, rho: ComplexMatrix): number {
+  let worst = Math.abs(trace(rho).re - 1);
+  worst = Math.max(worst, -eigh(rho).values[0]);
+  for (const c of problem.constraints) {
+    const v = traceProductReal(c.operator, rho);
+    worst = Math.max(worst, c.lower - v, v - c.upper);
+  }
+  return Math.max(worst, 0);
+}
+
+/** Frank–Wolfe with pairwise steps over the feasible density operators, certified by a dual bound. */
+export function solve(
+  problem: Problem,
+  request: EntropyRequest,
+  partialSettings: Partial<SolverSettings> = {},
+  control: SolveControl = {},
+): SolveResult {
+  const started = performance.now();
+  const settings = resolveSettings(partialSettings);
+  const entropy = normaliseRequest(request);
+  const alpha = entropy.kind === 'von-neumann' ? null : entropy.alpha;
+  const hash = inputHash(problem, entropy, settings, SOLVER_VERSION);
+  let oracleSeconds = 0;
+  const base = {
+    entropy: entropy.kind,
+    alpha,
+    inputHash: hash,
+  };
+  const elapsed = () => (performance.now() - started) / 1000;
+  const failure = (message: string, iterations: number): SolveResult => ({
+    ...base,
+    status: 'NUMERICAL_ERROR',
+    message,
+    certifiedLowerBound: null,
+    upperBound: null,
+    gap: null,
+    toleranceMargin: null,
+    statisticalSlack: null,
+    maxConstraintViolation: null,
+    iterations,
+    seconds: elapsed(),
+    oracleSeconds,
+    certificate: null,
+  });
+
+  const face = feasibleFace(problem);
+  const restricted = restrictToFace(problem, face);
+  const oracle = new LinearOracle(face.dimension, restricted.constraints, {
+    relativeAccuracy: TUNING.initialOracleAccuracy,
+  });
+  let clock = performance.now();
+  const feasible = oracle.findFeasiblePoint();
+  oracleSeconds += (performance.now() - clock) / 1000;
+  if (feasible.status === 'INFEASIBLE' && feasible.infeasibility) {
+    const f = feasible.infeasibility;
+    return {
+      ...base,
+      status: 'INFEASIBLE',
+      message: `no density operator meets the constraints; largest multipliers on: ${f.dominantConstraints.join(', ')}`,
+      certifiedLowerBound: null,
+      upperBound: null,
+      gap: null,
+      toleranceMargin: null,
+      statisticalSlack: null,
+      maxConstraintViolation: null,
+      iterations: 0,
+      seconds: elapsed(),
+      oracleSeconds,
+      certificate: null,
+      infeasibility: {
+        multipliersLower: Array.from(f.multipliersLower),
+        multipliersUpper: Array.from(f.multipliersUpper),
+        violation: f.violation,
+        dominantConstraints: f.dominantConstraints,
+      },
+    };
+  }
+  if (!feasible.point) return failure(`no feasible starting point: ${feasible.message ?? feasible.status}`, 0);
+
+  const objective = createObjective(restricted, entropy);
+  let x = startingPoint(oracle, restricted, face, feasible.point, control.warmStart);
+  let evaluation = objective.evaluate(x, { assumeFullRank: true });
+  if (!Number.isFinite(evaluation.value) || !evaluation.gradient) {
+    return failure('the objective is not finite at the starting point', 0);
+  }
+  const atoms = new ActiveSet(x, TUNING.maxAtoms, TUNING.atomWeightFloor);
+  let oracleAccuracy: number = TUNING.initialOracleAccuracy;
+  let best: CertifiedPoint | null = null;
+  let limit: StopLimit | undefined;
+  let iterations = 0;
+  let gapAtWindowStart = Infinity;
+  let windowStart = 0;
+
+  const certify = (y: { lower: Float64Array; upper: Float64Array }) => {
+    const breakdown = linearizationBound(restricted, objective, x, y.lower, y.upper, evaluation.reference);
+    if (Number.isFinite(breakdown.lowerBound) && (best === null || breakdown.lowerBound > best.breakdown.lowerBound)) {
+      best = {
+        breakdown,
+        state: x,
+        reference: evaluation.reference,
+        multipliersLower: y.lower,
+        multipliersUpper: y.upper,
+      };
+    }
+  };
+
+  for (;;) {
+    if (control.isCancelled?.()) {
+      limit = 'cancelled';
+      break;
+    }
+    if (iterations >= settings.maxIterations) {
+      limit = 'iterations';
+      break;
+    }
+    if (performance.now() - started > settings.timeLimitMs) {
+      limit = 'time';
+      break;
+    }
+    const gradient = evaluation.gradient as ComplexMatrix;
+    const split = oracle.stripEqualitySpan(gradient);
+    clock = performance.now();
+    const answer = oracle.minimize(split.stripped, { relativeAccuracy: oracleAccuracy });
+    oracleSeconds += (performance.now() - clock) / 1000;
+    if (!answer.point) return failure(`linear oracle failed: ${answer.message ?? answer.status}`, iterations);
+    const multipliers = restoreMultipliers(answer, split.equalityCoefficients);
+    const estimatedGap = traceProductReal(split.stripped, x) - answer.dualBound;
+    const upper = evaluation.value;
+    const bestLower = best ? (best as CertifiedPoint).breakdown.lowerBound : -Infinity;
+    if (
+      estimatedGap <= TUNING.certifyShare * settings.gapTolerance ||
+      iterations % TUNING.certifyEvery === 0 ||
+      upper - bestLower <= settings.gapTolerance
+    ) {
+      certify(multipliers);
+      if (best && upper - (best as CertifiedPoint).breakdown.lowerBound <= settings.gapTolerance) break;
+    }
+    // Tighten the oracle when the estimated gap stalls (its rounding then dominates the step).
+    if (estimatedGap < 0.9 * gapAtWindowStart) {
+      gapAtWindowStart = estimatedGap;
+      windowStart = iterations;
+    } else if (iterations - windowStart >= TUNING.stallWindow && oracleAccuracy > TUNING.finestOracleAccuracy) {
+      oracleAccuracy = Math.max(oracleAccuracy / 10, TUNING.finestOracleAccuracy);
+      windowStart = iterations;
+      gapAtWindowStart = estimatedGap;
+    }
+
+    const toward = hermitianPart(oracle.projectOntoEqualities(answer.point));
+    const away = atoms.awayAtom(gradient);
+    const direction = subtract(toward, away.point);
+    const slope = traceProductReal(gradient, direction);
+    iterations++;
+    if (!(slope < 0)) continue;
+    const trials = new Map<number, ObjectiveEvaluation>();
+    const search = derivativeLineSearch(
+      (step) => {
+        const point = x.clone();
+        addScaledInPlace(point, direction, step);
+        const e = objective.evaluate(point, { assumeFullRank: true });
+        if (!e.gradient) return null;
+        trials.set(step, e);
+        return { step, point, value: e.value, gradient: e.gradient };
+      },
+      direction,
+      slope,
+      away.weight,
+      TUNING.lineSearchTolerance,
+      TUNING.lineSearchEvaluations,
+    );
+    const chosen = search.best;
+    if (!chosen || !(chosen.value <= evaluation.value)) continue;
+    atoms.pairwiseStep(away.index, toward, chosen.step);
+    x = chosen.point;
+    evaluation = trials.get(chosen.step) as ObjectiveEvaluation;
+  }
+
+  // Always certify the last iterate too: a limit is a result with a valid bound.
+  if (limit !== undefined || best === null) {
+    const split = oracle.stripEqualitySpan(evaluation.gradient as ComplexMatrix);
+    const answer = oracle.minimize(split.stripped, { relativeAccuracy: oracleAccuracy });
+    certify(restoreMultipliers(answer, split.equalityCoefficients));
+  }
+  if (best === null) return failure('no finite certified bound could be computed', iterations);
+  const certified: CertifiedPoint = best;
+  const upperBound = evaluation.value;
+  const lowerBound = certified.breakdown.lowerBound;
+  const gap = upperBound - lowerBound;
+  const certificate: Certificate = {
+    inputHash: hash,
+    solverVersion: SOLVER_VERSION,
+    settings: { gapTolerance: settings.gapTolerance, maxIterations: settings.maxIterations },
+    entropy: entropy.kind,
+    alpha,
+    linearizationState: matrixToJson(liftFromFace(face, certified.state)),
+    referenceStates: certified.reference
+      ? objective.supports.map((support, c) => matrixToJson(referenceFromSupport(support, certified.reference![c])))
+      : undefined,
+    multipliersLower: Array.from(certified.multipliersLower),
+    multipliersUpper: Array.from(certified.multipliersUpper),
+    claimedBound: lowerBound,
+    toleranceMargin: certified.breakdown.margin,
+  };
+  const finalState = liftFromFace(face, x);
+  const status = gap <= settings.gapTolerance ? 'CERTIFIED' : 'LIMIT_REACHED';
+  return {
+    ...base,
+    status,
+    limit: status === 'LIMIT_REACHED' ? (limit ?? 'iterations') : undefined,
+    message:
+      status === 'LIMIT_REACHED'
+        ? `stopped by the ${limit ?? 'iteration'} limit with gap ${gap.toExponential(3)} above the requested ${settings.gapTolerance}`
+        : undefined,
+    certifiedLowerBound: lowerBound,
+    upperBound,
+    gap,
+    toleranceMargin: certified.breakdown.margin,
+    statisticalSlack: certified.breakdown.statisticalSlack,
+    maxConstraintViolation: maxConstraintViolation(problem, finalState),
+    iterations,
+    seconds: elapsed(),
+    oracleSeconds,
+    certificate,
+    finalState: matrixToJson(finalState),
+  };
+}
+
+/** The oracle's interior point, or a warm start projected onto the equalities and pulled inside the cone. */
+function startingPoint(
+  oracle: LinearOracle,
+  restricted: Problem,
+  face: FeasibleFace,
+  interior: ComplexMatrix,
+  warmStart: ComplexMatrix | undefined,
+): ComplexMatrix {
+  if (!warmStart) return interior;
+  const projected = hermitianPart(oracle.projectOntoEqualities(compressToFace(face, warmStart)));
+  // Mix toward the interior point until strictly positive definite and inside every interval.
+  for (const share of [1e-3, 1e-2, 0.1, 0.5]) {
+    const candidate = scale(projected, 1 - share);
+    addScaledInPlace(candidate, interior, share);
+    if (eigh(candidate).values[0] > 0 && maxConstraintViolation(restricted, candidate) === 0) return candidate;
+  }
+  return interior;
+}
+
+export type { Objective };
