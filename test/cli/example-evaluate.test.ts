@@ -138,6 +138,13 @@ describe('renyi-bound CLI: version, example, evaluate', { timeout: 30_000 }, () 
     const badAlpha = await cli(['evaluate', problem, '--state', badTrace, '--entropy', 'petz-up', '--alpha', '0.5']);
     expect(badAlpha.status).toBe(1);
     expect(badAlpha.stderr).toBe('renyi-bound: alpha: must lie in (1, 2] for petz-up; Rényi objectives are not convex outside it\n');
+    const notJson = join(directory, 'not-json.json');
+    writeFileSync(notJson, '{"rows": 4,');
+    const notJsonRun = await cli(['evaluate', problem, '--state', notJson, '--entropy', 'von-neumann']);
+    expect(notJsonRun.status).toBe(1);
+    expect(notJsonRun.stderr).toMatch(/^renyi-bound: state: is not valid JSON \(/);
+    const alphaAlone = await cli(['evaluate', problem, '--state', badTrace, '--alpha', '1.5']);
+    expect(alphaAlone.stderr).toBe('renyi-bound: alpha: given without --entropy\n');
     const noEntropy = await cli(['evaluate', problem, '--state', badTrace]);
     expect(noEntropy.status).toBe(1);
     expect(noEntropy.stderr).toBe('renyi-bound: entropy: is required: give --entropy or set entropy in the problem\n');
