@@ -8,7 +8,7 @@ export const P1 = real(2, 2, [0, 0, 0, 1]);
 export const KEY0 = real(4, 4, [1, 0, 0, 0, 0, 1, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0]);
 export const KEY1 = real(4, 4, [0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 1, 0, 0, 0, 0, 1]);
 
-// eslint-disable-next-line @typescript-eslint/no-explicit-any
+// Test inputs are mutated freely, including into invalid shapes, so they are untyped.
 export type Json = any;
 
 export function baseProblem(): Json {
