@@ -150,8 +150,50 @@ export function multiply(a: ComplexMatrix, b: ComplexMatrix): ComplexMatrix {
   const ai = a.im;
   const br = b.re;
   const bi = b.im;
-  // i-k-j loop order streams rows of B and C contiguously.
-  for (let i = 0; i < n; i++) {
+  // i-k-j order streams rows of B and C contiguously; two rows of A per pass share each load of B
+  // (same summation order per entry as one row at a time, so results are bit-identical).
+  let i = 0;
+  for (; i + 1 < n; i += 2) {
+    const c0 = i * m;
+    const c1 = c0 + m;
+    const a0 = i * p;
+    const a1 = a0 + p;
+    for (let k = 0; k < p; k++) {
+      const x0r = ar[a0 + k];
+      const x0i = ai[a0 + k];
+      const x1r = ar[a1 + k];
+      const x1i = ai[a1 + k];
+      const zero0 = x0r === 0 && x0i === 0;
+      const zero1 = x1r === 0 && x1i === 0;
+      if (zero0 && zero1) continue;
+      const bRow = k * m;
+      if (zero1) {
+        for (let j = 0; j < m; j++) {
+          const yr = br[bRow + j];
+          const yi = bi[bRow + j];
+          cr[c0 + j] += x0r * yr - x0i * yi;
+          ci[c0 + j] += x0r * yi + x0i * yr;
+        }
+      } else if (zero0) {
+        for (let j = 0; j < m; j++) {
+          const yr = br[bRow + j];
+          const yi = bi[bRow + j];
+          cr[c1 + j] += x1r * yr - x1i * yi;
+          ci[c1 + j] += x1r * yi + x1i * yr;
+        }
+      } else {
+        for (let j = 0; j < m; j++) {
+          const yr = br[bRow + j];
+          const yi = bi[bRow + j];
+          cr[c0 + j] += x0r * yr - x0i * yi;
+          ci[c0 + j] += x0r * yi + x0i * yr;
+          cr[c1 + j] += x1r * yr - x1i * yi;
+          ci[c1 + j] += x1r * yi + x1i * yr;
+        }
+      }
+    }
+  }
+  for (; i < n; i++) {
     const cRow = i * m;
     for (let k = 0; k < p; k++) {
       const xr = ar[i * p + k];
@@ -176,20 +218,54 @@ export function multiplyAdjointRight(a: ComplexMatrix, b: ComplexMatrix): Comple
   const m = b.rows;
   const p = a.cols;
   const c = new ComplexMatrix(n, m);
+  const cr = c.re;
+  const ci = c.im;
+  const ar = a.re;
+  const ai = a.im;
+  const br = b.re;
+  const bi = b.im;
+  // Dot products of rows of A with rows of B, two rows of B per pass (each entry summed over k in order).
   for (let i = 0; i < n; i++) {
-    for (let j = 0; j < m; j++) {
+    const ra = i * p;
+    let j = 0;
+    for (; j + 1 < m; j += 2) {
+      const rb0 = j * p;
+      const rb1 = rb0 + p;
+      let s0r = 0;
+      let s0i = 0;
+      let s1r = 0;
+      let s1i = 0;
+      for (let k = 0; k < p; k++) {
+        const xr = ar[ra + k];
+        const xi = ai[ra + k];
+        const y0r = br[rb0 + k];
+        const y0i = -bi[rb0 + k];
+        const y1r = br[rb1 + k];
+        const y1i = -bi[rb1 + k];
+        s0r += xr * y0r - xi * y0i;
+        s0i += xr * y0i + xi * y0r;
+        s1r += xr * y1r - xi * y1i;
+        s1i += xr * y1i + xi * y1r;
+      }
+      cr[i * m + j] = s0r;
+      ci[i * m + j] = s0i;
+      cr[i * m + j + 1] = s1r;
+      ci[i * m + j + 1] = s1i;
+    }
+    for (; j < m; j++) {
+      const rb = j * p;
       let sr = 0;
       let si = 0;
       for (let k = 0; k < p; k++) {
-        const xr = a.re[i * p + k];
-        const xi = a.im[i * p + k];
-        const yr = b.re[j * p + k];
-        const yi = -b.im[j * p + k];
+        const xr = ar[ra + k];
+        const xi = ai[ra + k];
+        const yr = br[rb + k];
+        const yi = -bi[rb + k];
         sr += xr * yr - xi * yi;
         si += xr * yi + xi * yr;
       }
-      c.re[i * m + j] = sr;
-      c.im[i * m + j] = si;
+      cr[i * m + j] = sr;
+      ci[i * m + j] = si;
     }
   }
   return c;
@@ -202,16 +278,62 @@ export function multiplyAdjointLeft(a: ComplexMatrix, b: ComplexMatrix): Complex
   const m = b.cols;
   const p = a.rows;
   const c = new ComplexMatrix(n, m);
+  const cr = c.re;
+  const ci = c.im;
+  const ar = a.re;
+  const ai = a.im;
+  const br = b.re;
+  const bi = b.im;
+  // k-i-j order streams rows of B and C; two rows of C per pass share each load of B (order kept).
   for (let k = 0; k < p; k++) {
-    for (let i = 0; i < n; i++) {
-      const xr = a.re[k * n + i];
-      const xi = -a.im[k * n + i];
+    const rb = k * m;
+    const ra = k * n;
+    let i = 0;
+    for (; i + 1 < n; i += 2) {
+      const x0r = ar[ra + i];
+      const x0i = -ai[ra + i];
+      const x1r = ar[ra + i + 1];
+      const x1i = -ai[ra + i + 1];
+      const zero0 = x0r === 0 && x0i === 0;
+      const zero1 = x1r === 0 && x1i === 0;
+      if (zero0 && zero1) continue;
+      const c0 = i * m;
+      const c1 = c0 + m;
+      if (zero1) {
+        for (let j = 0; j < m; j++) {
+          const yr = br[rb + j];
+          const yi = bi[rb + j];
+          cr[c0 + j] += x0r * yr - x0i * yi;
+          ci[c0 + j] += x0r * yi + x0i * yr;
+        }
+      } else if (zero0) {
+        for (let j = 0; j < m; j++) {
+          const yr = br[rb + j];
+          const yi = bi[rb + j];
+          cr[c1 + j] += x1r * yr - x1i * yi;
+          ci[c1 + j] += x1r * yi + x1i * yr;
+        }
+      } else {
+        for (let j = 0; j < m; j++) {
+          const yr = br[rb + j];
+          const yi = bi[rb + j];
+          cr[c0 + j] += x0r * yr - x0i * yi;
+          ci[c0 + j] += x0r * yi + x0i * yr;
+          cr[c1 + j] += x1r * yr - x1i * yi;
+          ci[c1 + j] += x1r * yi + x1i * yr;
+        }
+      }
+    }
+    for (; i < n; i++) {
+      const xr = ar[ra + i];
+      const xi = -ai[ra + i];
       if (xr === 0 && xi === 0) continue;
+      const c0 = i * m;
       for (let j = 0; j < m; j++) {
-        const yr = b.re[k * m + j];
-        const yi = b.im[k * m + j];
-        c.re[i * m + j] += xr * yr - xi * yi;
-        c.im[i * m + j] += xr * yi + xi * yr;
+        const yr = br[rb + j];
+        const yi = bi[rb + j];
+        cr[c0 + j] += xr * yr - xi * yi;
+        ci[c0 + j] += xr * yi + xi * yr;
       }
     }
   }
