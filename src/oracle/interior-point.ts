@@ -1,5 +1,8 @@
 // Primal–dual interior-point method for one Hermitian PSD block plus a nonnegative LP block:
-//   min ⟨C, X⟩  s.t.  Re Tr(A_k X) + Σ_{j: row_j = k} sign_j x_j = b_k,   X ⪰ 0, x ≥ 0,
+//   min ⟨C, X⟩  s.t.  Re Tr(A_k X) + Σ_{j: row_j = k} sign_j x_j = b_k   (cone rows),
+//                     x_s + x_t = w_q                                     (box rows: two-sided intervals),
+//                     X ⪰ 0, x ≥ 0,
+// box rows are eliminated from the Schur complement, so a two-sided interval costs one row, not two.
 // with the HKM search direction and Mehrotra's predictor–corrector (Helmberg, Rendl, Vanderbei & Wolkowicz 1996;
 // Kojima, Shindoh & Hara 1997; Monteiro 1997; Mehrotra 1992). Infeasible start; all buffers allocated once.
 import {
@@ -43,9 +46,13 @@ export interface InteriorPointRows {
   rhs: Float64Array;
   /** Rows 0..orthonormalRows−1 are orthonormal and orthogonal to all other rows, and carry no LP variable. */
   orthonormalRows: number;
-  /** For each LP variable: its row and its coefficient (±1). */
+  /** For each LP variable: its cone row (−1 for none) and its coefficient there (±1). */
   slackRow: Int32Array;
   slackSign: Float64Array;
+  /** Box rows x_s + x_t = w_q: right-hand sides and the two LP variables (s also sits in a cone row, t only here). */
+  boxRhs: Float64Array;
+  boxFirst: Int32Array;
+  boxSecond: Int32Array;
 }
 
 export type InteriorPointStatus = 'CONVERGED' | 'STALLED' | 'INFEASIBLE' | 'ITERATION_LIMIT' | 'NUMERICAL_ERROR';
@@ -78,6 +85,8 @@ export class InteriorPointSolver {
   readonly y: Float64Array;
   readonly slack: Float64Array;
   readonly slackDual: Float64Array;
+  /** Duals of the box rows. */
+  readonly boxDual: Float64Array;
   iterations = 0;
   primalResidualNorm = Infinity;
   dualResidualNorm = Infinity;
@@ -126,6 +135,14 @@ export class InteriorPointSolver {
   private readonly dSlackAffine: Float64Array;
   private readonly dSlackDualAffine: Float64Array;
   private readonly tridiagonal: TridiagonalWorkspace;
+  private readonly boxCount: number;
+  /** LP variable → box row (−1 for none); cone row → its LP variable (−1 for none). */
+  private readonly boxOfSlack: Int32Array;
+  private readonly slackOfRow: Int32Array;
+  private readonly boxResidual: Float64Array;
+  private readonly boxRight: Float64Array;
+  private readonly dBoxDual: Float64Array;
+  private readonly residualHistory: Float64Array;
 
   constructor(n: number, rows: InteriorPointRows) {
     this.n = n;
@@ -187,6 +204,19 @@ export class InteriorPointSolver {
     this.dSlackAffine = new Float64Array(s);
     this.dSlackDualAffine = new Float64Array(s);
     this.tridiagonal = new TridiagonalWorkspace(n);
+    this.boxCount = rows.boxRhs.length;
+    this.boxDual = new Float64Array(this.boxCount);
+    this.boxResidual = new Float64Array(this.boxCount);
+    this.boxRight = new Float64Array(this.boxCount);
+    this.dBoxDual = new Float64Array(this.boxCount);
+    this.boxOfSlack = new Int32Array(s).fill(-1);
+    for (let q = 0; q < this.boxCount; q++) {
+      this.boxOfSlack[rows.boxFirst[q]] = q;
+      this.boxOfSlack[rows.boxSecond[q]] = q;
+    }
+    this.slackOfRow = new Int32Array(this.m).fill(-1);
+    for (let j = 0; j < s; j++) if (rows.slackRow[j] >= 0) this.slackOfRow[rows.slackRow[j]] = j;
+    this.residualHistory = new Float64Array(STALL_WINDOW);
   }
 
   /** Sets the objective C (Hermitian, copied) and records its Frobenius norm. */
@@ -208,13 +238,28 @@ export class InteriorPointSolver {
       this.zRe[i * n + i] = 1;
     }
     this.y.fill(0);
+    this.boxDual.fill(0);
     const floor = START_SLACK_FLOOR / n;
     for (let j = 0; j < this.slackCount; j++) {
       const k = rows.slackRow[j];
+      if (k < 0) continue;
       const value = (rows.rhs[k] - hermitianInner(rows.re[k], rows.im[k], this.xRe, this.xIm)) / rows.slackSign[j];
       this.slack[j] = Math.max(value, floor);
-      this.slackDual[j] = 1 / n / this.slack[j];
     }
+    for (let q = 0; q < this.boxCount; q++) {
+      const s = rows.boxFirst[q];
+      const t = rows.boxSecond[q];
+      const width = rows.boxRhs[q];
+      // A narrow interval starts at its midpoint; a wide one at the value at X (kept off the bounds).
+      if (width <= 2 * floor) {
+        this.slack[s] = width / 2;
+        this.slack[t] = width / 2;
+      } else {
+        this.slack[s] = Math.min(this.slack[s], width - floor);
+        this.slack[t] = width - this.slack[s];
+      }
+    }
+    for (let j = 0; j < this.slackCount; j++) this.slackDual[j] = 1 / n / this.slack[j];
     this.iterations = 0;
   }
 
@@ -223,13 +268,20 @@ export class InteriorPointSolver {
     const { n, m, rows } = this;
     const size = n * n;
     const nu = n + this.slackCount;
-    const residualHistory = new Float64Array(STALL_WINDOW);
+    const residualHistory = this.residualHistory;
     for (let iteration = 0; iteration < targets.maxIterations; iteration++) {
       // Residuals.
       let primal2 = 0;
       for (let k = 0; k < m; k++) this.primalResidual[k] = rows.rhs[k] - hermitianInner(rows.re[k], rows.im[k], this.xRe, this.xIm);
-      for (let j = 0; j < this.slackCount; j++) this.primalResidual[rows.slackRow[j]] -= rows.slackSign[j] * this.slack[j];
+      for (let j = 0; j < this.slackCount; j++) {
+        if (rows.slackRow[j] >= 0) this.primalResidual[rows.slackRow[j]] -= rows.slackSign[j] * this.slack[j];
+      }
       for (let k = 0; k < m; k++) primal2 += this.primalResidual[k] ** 2;
+      for (let q = 0; q < this.boxCount; q++) {
+        const r = rows.boxRhs[q] - this.slack[rows.boxFirst[q]] - this.slack[rows.boxSecond[q]];
+        this.boxResidual[q] = r;
+        primal2 += r * r;
+      }
       this.rdRe.set(this.objectiveRe);
       this.rdIm.set(this.objectiveIm);
       for (let k = 0; k < m; k++) {
@@ -249,7 +301,9 @@ export class InteriorPointSolver {
         dual2 += this.rdRe[t] ** 2 + this.rdIm[t] ** 2;
       }
       for (let j = 0; j < this.slackCount; j++) {
-        const r = -rows.slackSign[j] * this.y[rows.slackRow[j]] - this.slackDual[j];
+        const row = rows.slackRow[j];
+        const box = this.boxOfSlack[j];
+        const r = -(row >= 0 ? rows.slackSign[j] * this.y[row] : 0) - (box >= 0 ? this.boxDual[box] : 0) - this.slackDual[j];
         this.slackResidual[j] = r;
         dual2 += r * r;
       }
@@ -271,6 +325,7 @@ export class InteriorPointSolver {
       if (targets.certifyInfeasible) {
         let dualObjective = 0;
         for (let k = 0; k < m; k++) dualObjective += rows.rhs[k] * this.y[k];
+        for (let q = 0; q < this.boxCount; q++) dualObjective += rows.boxRhs[q] * this.boxDual[q];
         if (dualObjective > this.objectiveNorm + this.dualResidualNorm && targets.certifyInfeasible(this.y)) return 'INFEASIBLE';
       }
       const mu = gap / nu;
@@ -343,6 +398,7 @@ export class InteriorPointSolver {
         this.slackDual[j] += dualStep * this.dSlackDual[j];
       }
       for (let k = 0; k < m; k++) this.y[k] += dualStep * this.dy[k];
+      for (let q = 0; q < this.boxCount; q++) this.boxDual[q] += dualStep * this.dBoxDual[q];
       this.iterations++;
     }
     return 'ITERATION_LIMIT';
@@ -373,7 +429,17 @@ export class InteriorPointSolver {
     }
     for (let j = 0; j < this.slackCount; j++) {
       const k = rows.slackRow[j];
-      M[k * m + k] += this.slack[j] / this.slackDual[j];
+      if (k >= 0) M[k * m + k] += this.slack[j] / this.slackDual[j];
+    }
+    // Eliminating box row q (diagonal D_s + D_t, coupling sign_s·D_s to the cone row of s).
+    for (let q = 0; q < this.boxCount; q++) {
+      const first = rows.boxFirst[q];
+      const second = rows.boxSecond[q];
+      const dFirst = this.slack[first] / this.slackDual[first];
+      const dSecond = this.slack[second] / this.slackDual[second];
+      const k = rows.slackRow[first];
+      // D_s − D_s²/(D_s + D_t) = D_s·D_t/(D_s + D_t), written without cancellation.
+      M[k * m + k] += (dFirst * dSecond) / (dFirst + dSecond) - dFirst;
     }
     let largestDiagonal = 0;
     for (let k = 0; k < m; k++) largestDiagonal = Math.max(largestDiagonal, M[k * m + k]);
@@ -410,7 +476,17 @@ export class InteriorPointSolver {
       this.slackTarget[j] = (sigmaMu - x * z - second) / z - (x / z) * this.slackResidual[j];
     }
     for (let k = 0; k < m; k++) this.rhs[k] = this.primalResidual[k] - hermitianInner(rows.re[k], rows.im[k], this.targetRe, this.targetIm);
-    for (let j = 0; j < this.slackCount; j++) this.rhs[rows.slackRow[j]] -= rows.slackSign[j] * this.slackTarget[j];
+    for (let j = 0; j < this.slackCount; j++) {
+      if (rows.slackRow[j] >= 0) this.rhs[rows.slackRow[j]] -= rows.slackSign[j] * this.slackTarget[j];
+    }
+    for (let q = 0; q < this.boxCount; q++) {
+      const first = rows.boxFirst[q];
+      const second = rows.boxSecond[q];
+      this.boxRight[q] = this.boxResidual[q] - this.slackTarget[first] - this.slackTarget[second];
+      const dFirst = this.slack[first] / this.slackDual[first];
+      const dSecond = this.slack[second] / this.slackDual[second];
+      this.rhs[rows.slackRow[first]] -= (rows.slackSign[first] * dFirst * this.boxRight[q]) / (dFirst + dSecond);
+    }
     this.dy.set(this.rhs);
     realCholeskySolveInPlace(this.schur, m, this.dy);
     // Iterative refinement against the assembled (unfactored) Schur complement: near the boundary M is ill-conditioned
@@ -438,8 +514,17 @@ export class InteriorPointSolver {
         this.dzIm[t] -= d * aIm[t];
       }
     }
+    for (let q = 0; q < this.boxCount; q++) {
+      const first = rows.boxFirst[q];
+      const second = rows.boxSecond[q];
+      const dFirst = this.slack[first] / this.slackDual[first];
+      const dSecond = this.slack[second] / this.slackDual[second];
+      this.dBoxDual[q] = (this.boxRight[q] - rows.slackSign[first] * dFirst * this.dy[rows.slackRow[first]]) / (dFirst + dSecond);
+    }
     for (let j = 0; j < this.slackCount; j++) {
-      this.dSlackDual[j] = this.slackResidual[j] - rows.slackSign[j] * this.dy[rows.slackRow[j]];
+      const row = rows.slackRow[j];
+      const box = this.boxOfSlack[j];
+      this.dSlackDual[j] = this.slackResidual[j] - (row >= 0 ? rows.slackSign[j] * this.dy[row] : 0) - (box >= 0 ? this.dBoxDual[box] : 0);
     }
     // dX = σµ Z⁻¹ − X − herm(X dZ Z⁻¹) − [correction]
     multiplyInto(this.xRe, this.xIm, this.dzRe, this.dzIm, n, this.tmpRe, this.tmpIm);
@@ -471,7 +556,9 @@ export class InteriorPointSolver {
     const { m, rows } = this;
     const size = this.n * this.n;
     for (let k = 0; k < m; k++) this.refinement[k] = this.primalResidual[k] - hermitianInner(rows.re[k], rows.im[k], this.dxRe, this.dxIm);
-    for (let j = 0; j < this.slackCount; j++) this.refinement[rows.slackRow[j]] -= rows.slackSign[j] * this.dSlack[j];
+    for (let j = 0; j < this.slackCount; j++) {
+      if (rows.slackRow[j] >= 0) this.refinement[rows.slackRow[j]] -= rows.slackSign[j] * this.dSlack[j];
+    }
     for (let k = 0; k < rows.orthonormalRows; k++) {
       const defect = this.refinement[k];
       const aRe = rows.re[k];
@@ -481,7 +568,16 @@ export class InteriorPointSolver {
         this.dxIm[t] += defect * aIm[t];
       }
     }
-    for (let j = 0; j < this.slackCount; j++) this.dSlack[j] += rows.slackSign[j] * this.refinement[rows.slackRow[j]];
+    for (let k = rows.orthonormalRows; k < m; k++) {
+      const j = this.slackOfRow[k];
+      if (j >= 0) this.dSlack[j] += rows.slackSign[j] * this.refinement[k];
+    }
+    // Box rows last: their second variable appears nowhere else.
+    for (let q = 0; q < this.boxCount; q++) {
+      const first = rows.boxFirst[q];
+      const second = rows.boxSecond[q];
+      this.dSlack[second] += this.boxResidual[q] - this.dSlack[first] - this.dSlack[second];
+    }
   }
 
   /** Largest α with X + α dX ⪰ 0 and x + α dx ≥ 0 (Infinity when unbounded). */

@@ -20,6 +20,10 @@ import {
 export const PRIMAL_FEASIBILITY_TOLERANCE = 1e-10;
 /** A primal residual at which the solver stalled (gap already closed) that is still accepted as feasible. */
 export const STALLED_PRIMAL_TOLERANCE = 1e-8;
+/** A gradient whose part orthogonal to the equality span is below this fraction of its norm is constant on S. */
+const NEGLIGIBLE_OBJECTIVE = 1e-14;
+/** Multiple of d·ε·(‖G‖ + Σ|y_i|(‖Γ_i‖ + |bound_i|)) treated as the rounding floor of a verified gap. */
+const GAP_ROUNDING_FACTOR = 16;
 /** Share of the requested gap given to the interior-point method's own (unverified) stopping test. */
 const INTERNAL_GAP_SHARE = 0.5;
 /** Each retry after a verified gap came out too large tightens the internal test by this factor. */
@@ -37,8 +41,6 @@ interface IntervalRow {
   scale: number;
   /** c_k = ⟨E_k, Γ⟩ (equality-span part of Γ). */
   projection: Float64Array;
-  /** −1 for the lower bound row (Γ'σ − s = ℓ'), +1 for the upper bound row (Γ'σ + s = u'). */
-  sign: number;
 }
 
 export class LinearOracle {
@@ -51,6 +53,7 @@ export class LinearOracle {
   private readonly solver: InteriorPointSolver;
   private readonly operatorRe: Float64Array[];
   private readonly operatorIm: Float64Array[];
+  private readonly operatorNorms: number[] = [];
   /** Scale of the data used for the infeasibility margin. */
   private readonly dataScale: number;
   /** Infeasibility found while preprocessing, or by a feasibility run; cached for all later calls. */
@@ -95,7 +98,8 @@ export class LinearOracle {
       this.operatorRe.push(re);
       this.operatorIm.push(im);
       this.isEquality.push(lower === upper);
-      dataScale = Math.max(dataScale, Math.sqrt(hermitianInner(re, im, re, im)));
+      this.operatorNorms.push(Math.sqrt(hermitianInner(re, im, re, im)));
+      dataScale = Math.max(dataScale, this.operatorNorms[i]);
       if (Number.isFinite(lower)) dataScale = Math.max(dataScale, Math.abs(lower));
       if (Number.isFinite(upper)) dataScale = Math.max(dataScale, Math.abs(upper));
     });
@@ -119,6 +123,9 @@ export class LinearOracle {
     const rhs: number[] = [...this.span.basisValues];
     const slackRow: number[] = [];
     const slackSign: number[] = [];
+    const boxRhs: number[] = [];
+    const boxFirst: number[] = [];
+    const boxSecond: number[] = [];
     const fixedViolations: Float64Array[] = [];
     constraints.forEach((constraint, i) => {
       if (this.isEquality[i]) return;
@@ -146,26 +153,30 @@ export class LinearOracle {
         }
         return;
       }
-      for (const [bound, sign] of [
-        [constraint.lower, -1],
-        [constraint.upper, 1],
-      ] as const) {
-        if (!Number.isFinite(bound)) continue;
-        const row = rowsRe.length;
-        const inverse = 1 / norm;
-        const scaledRe = new Float64Array(size);
-        const scaledIm = new Float64Array(size);
-        for (let t = 0; t < size; t++) {
-          scaledRe[t] = re[t] * inverse;
-          scaledIm[t] = im[t] * inverse;
-        }
-        rowsRe.push(scaledRe);
-        rowsIm.push(scaledIm);
-        rhs.push((bound - offset) * inverse);
-        slackRow.push(row);
-        slackSign.push(sign);
-        this.intervalRows.push({ constraintIndex: i, scale: norm, projection, sign });
+      // One cone row per interval: Γ'σ − s = ℓ' (s ≥ 0), with s + t = u' − ℓ' (t ≥ 0) when both sides are finite;
+      // an upper-only interval reads Γ'σ + s = u'.
+      const row = rowsRe.length;
+      const inverse = 1 / norm;
+      const scaledRe = new Float64Array(size);
+      const scaledIm = new Float64Array(size);
+      for (let t = 0; t < size; t++) {
+        scaledRe[t] = re[t] * inverse;
+        scaledIm[t] = im[t] * inverse;
       }
+      rowsRe.push(scaledRe);
+      rowsIm.push(scaledIm);
+      const hasLower = Number.isFinite(constraint.lower);
+      rhs.push(((hasLower ? constraint.lower : constraint.upper) - offset) * inverse);
+      slackRow.push(row);
+      slackSign.push(hasLower ? -1 : 1);
+      if (hasLower && Number.isFinite(constraint.upper)) {
+        boxRhs.push((constraint.upper - constraint.lower) * inverse);
+        boxFirst.push(slackRow.length - 1);
+        slackRow.push(-1);
+        slackSign.push(1);
+        boxSecond.push(slackRow.length - 1);
+      }
+      this.intervalRows.push({ constraintIndex: i, scale: norm, projection });
     });
     const rows: InteriorPointRows = {
       re: rowsRe,
@@ -174,6 +185,9 @@ export class LinearOracle {
       orthonormalRows: this.span.size,
       slackRow: Int32Array.from(slackRow),
       slackSign: Float64Array.from(slackSign),
+      boxRhs: Float64Array.from(boxRhs),
+      boxFirst: Int32Array.from(boxFirst),
+      boxSecond: Int32Array.from(boxSecond),
     };
     this.solver = new InteriorPointSolver(n, rows);
 
@@ -224,7 +238,8 @@ export class LinearOracle {
     for (let k = 0; k < second.length; k++) spanCoefficients[k] += second[k];
     const constantPart = spanCoefficients.reduce((s, c, k) => s + c * this.span.basisValues[k], 0);
     const objectiveScale = Math.sqrt(hermitianInner(strippedRe, strippedIm, strippedRe, strippedIm));
-    if (objectiveScale === 0) {
+    const gradientNorm = Math.sqrt(hermitianInner(gRe, gIm, gRe, gIm));
+    if (objectiveScale <= NEGLIGIBLE_OBJECTIVE * gradientNorm) {
       // ⟨G, σ⟩ is the same for every feasible σ: any feasible point is optimal.
       const feasible = this.findFeasiblePoint();
       if (feasible.status !== 'OPTIMAL' || !feasible.point) return feasible;
@@ -260,8 +275,10 @@ export class LinearOracle {
       if (stalledAcceptably) result.message = `primal residual stalled at ${this.solver.primalResidualNorm.toExponential(2)} (ill-conditioned near the boundary)`;
       // The verified gap uses the recomputed dual bound; the solver's own test is only a proxy for it.
       const strippedPrimal = result.primalValue - constantPart;
-      const threshold =
-        resolved.relativeAccuracy * Math.min(1 + Math.abs(result.primalValue), Math.min(1, objectiveScale) + Math.abs(strippedPrimal));
+      const threshold = Math.max(
+        resolved.relativeAccuracy * Math.min(1 + Math.abs(result.primalValue), Math.min(1, objectiveScale) + Math.abs(strippedPrimal)),
+        this.roundingLevel(gradientNorm, result),
+      );
       if (result.primalValue - result.dualBound <= threshold) return result;
       if (this.solver.iterations >= resolved.maxIterations || stalledAcceptably) {
         status = 'ITERATION_LIMIT';
@@ -278,6 +295,16 @@ export class LinearOracle {
     const feasibility = this.findFeasiblePoint();
     if (feasibility.status === 'INFEASIBLE') return this.copyInfeasible(feasibility);
     return fallback;
+  }
+
+  /** Size of the rounding error in ⟨G, σ⟩ and in the recomputed bound: no gap below this can be measured. */
+  private roundingLevel(gradientNorm: number, result: OracleResult): number {
+    let weighted = gradientNorm;
+    for (let i = 0; i < this.constraints.length; i++) {
+      const y = result.multipliersLower[i] + result.multipliersUpper[i];
+      if (y !== 0) weighted += y * (this.operatorNorms[i] + Math.abs(Number.isFinite(this.constraints[i].lower) ? this.constraints[i].lower : this.constraints[i].upper));
+    }
+    return GAP_ROUNDING_FACTOR * this.dimension * Number.EPSILON * weighted;
   }
 
   /**
@@ -343,21 +370,17 @@ export class LinearOracle {
   /** Per-constraint multipliers y (signed, Σ y_i Γ_i) from the solver's scaled dual ŷ, objective scale g and span part a. */
   private multipliersFromSolver(yScaled: Float64Array, objectiveScale: number, spanCoefficients: Float64Array): Float64Array {
     const y = new Float64Array(this.constraints.length);
-    for (let r = 0; r < this.intervalRows.length; r++) {
-      const row = this.intervalRows[r];
-      const value = (objectiveScale * yScaled[this.span.size + r]) / row.scale;
-      // Lower rows carry y⁺ ≥ 0, upper rows y⁻ = −ŷ ≥ 0; clamping rounding-level wrong signs keeps (★) valid.
-      if (row.sign < 0) y[row.constraintIndex] += Math.max(value, 0);
-      else y[row.constraintIndex] += Math.min(value, 0);
-    }
     const weights = new Float64Array(this.span.size);
     for (let k = 0; k < this.span.size; k++) weights[k] = spanCoefficients[k] + objectiveScale * yScaled[k];
-    const seen = new Set<number>();
-    for (const row of this.intervalRows) {
-      if (seen.has(row.constraintIndex)) continue;
-      seen.add(row.constraintIndex);
-      const yi = y[row.constraintIndex];
-      for (let k = 0; k < this.span.size; k++) weights[k] -= yi * row.projection[k];
+    for (let r = 0; r < this.intervalRows.length; r++) {
+      const row = this.intervalRows[r];
+      const constraint = this.constraints[row.constraintIndex];
+      let value = (objectiveScale * yScaled[this.span.size + r]) / row.scale;
+      // A one-sided interval admits one sign only; clamping a rounding-level wrong sign keeps (★) valid.
+      if (!Number.isFinite(constraint.upper)) value = Math.max(value, 0);
+      if (!Number.isFinite(constraint.lower)) value = Math.min(value, 0);
+      y[row.constraintIndex] = value;
+      for (let k = 0; k < this.span.size; k++) weights[k] -= value * row.projection[k];
     }
     this.span.toOriginal(weights, y);
     return y;
