@@ -99,7 +99,7 @@ function entropyToWire(entropy: string | undefined): EntropyKind {
 }
 
 /** Solves one problem on a server. Bad input surfaces as ValidationError (local) or RemoteCallError (server). */
-export function solveRemote(address: string, request: RemoteSolveRequest, options: CallOptions = {}): Promise<DeliveredResult> {
+export async function solveRemote(address: string, request: RemoteSolveRequest, options: CallOptions = {}): Promise<DeliveredResult> {
   const message = {
     problem: problemToWire(request.problem),
     entropy: entropyToWire(request.entropy),
@@ -162,7 +162,7 @@ export function solveBatchRemote(address: string, request: BatchRequest, options
 }
 
 /** Asks the server to re-check a result's certificate against a problem. */
-export function verifyRemote(
+export async function verifyRemote(
   address: string,
   request: { problem: unknown; entropy?: string; alpha?: number; result: SolveResult },
   options: CallOptions = {},

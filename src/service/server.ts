@@ -1,7 +1,9 @@
 // The gRPC server: RenyiBound handlers, health, reflection, the solver pool, the cache, and graceful shutdown.
 import * as grpc from '@grpc/grpc-js';
 import { ReflectionService } from '@grpc/reflection';
-import { HealthImplementation, type ServingStatus } from 'grpc-health-check';
+import * as protoLoader from '@grpc/proto-loader';
+import { HealthImplementation, protoPath as healthProtoPath, type ServingStatus } from 'grpc-health-check';
+import { PROTO_LOADER_OPTIONS } from '../problem/proto-options.js';
 import { pino, type Logger } from 'pino';
 import { MemoryCacheLayer, DEFAULT_MEMORY_ENTRIES } from '../cache/memory.js';
 import type { CacheLayer } from '../cache/layer.js';
@@ -125,7 +127,8 @@ export class RenyiBoundServer {
     const server = new RenyiBoundServer(grpcServer, pool, cache, coordinator, logger, host, port, options.drainTimeoutMs ?? DEFAULT_DRAIN_TIMEOUT_MS);
     grpcServer.addService(loadServicePackage().renyibound.v1.RenyiBound.service, server.handlers());
     server.health.addToServer(grpcServer);
-    new ReflectionService(loadServiceDefinition()).addToServer(grpcServer);
+    // Reflection lists the health service too, so tools like grpcurl can discover both.
+    new ReflectionService({ ...loadServiceDefinition(), ...protoLoader.loadSync(healthProtoPath, PROTO_LOADER_OPTIONS) }).addToServer(grpcServer);
     logger.info(
       { event: 'listening', address: server.address, workers: pool.workers, queueLimit: pool.queueLimit, cache: layers.map((l) => l.name) },
       'renyi-bound service listening',

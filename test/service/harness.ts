@@ -1,0 +1,54 @@
+// A real server on a loopback port for the service tests, with its log lines captured.
+import { mkdtempSync, rmSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { pino } from 'pino';
+import { RenyiBoundServer, type ServerOptions } from '../../src/service/server.js';
+
+export interface LogLine {
+  event?: string;
+  msg?: string;
+  [key: string]: unknown;
+}
+
+export interface TestServer {
+  server: RenyiBoundServer;
+  logs: LogLine[];
+  /** Stops the server and removes its cache directory. */
+  stop(): Promise<void>;
+}
+
+export async function startTestServer(options: ServerOptions = {}): Promise<TestServer> {
+  const logs: LogLine[] = [];
+  const logger = pino({ level: 'info' }, { write: (line: string) => void logs.push(JSON.parse(line) as LogLine) });
+  const cacheDirectory = options.cacheDirectory ?? mkdtempSync(join(tmpdir(), 'renyi-bound-service-'));
+  const server = await RenyiBoundServer.start({ host: '127.0.0.1', port: 0, workers: 2, logger, ...options, cacheDirectory });
+  return {
+    server,
+    logs,
+    stop: async () => {
+      await server.shutdown();
+      if (cacheDirectory !== false) rmSync(cacheDirectory, { recursive: true, force: true });
+    },
+  };
+}
+
+/** Binary entropy h(p) in bits. */
+export function binaryEntropy(p: number): number {
+  if (p <= 0 || p >= 1) return 0;
+  return -p * Math.log2(p) - (1 - p) * Math.log2(1 - p);
+}
+
+export function sleep(milliseconds: number): Promise<void> {
+  return new Promise((resolve) => setTimeout(resolve, milliseconds));
+}
+
+/** Polls until `condition` holds or `timeoutMs` passes; returns whether it held. */
+export async function eventually(condition: () => boolean, timeoutMs: number): Promise<boolean> {
+  const end = Date.now() + timeoutMs;
+  while (!condition()) {
+    if (Date.now() > end) return false;
+    await sleep(20);
+  }
+  return true;
+}
