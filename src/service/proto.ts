@@ -1,9 +1,8 @@
 // Loads the service contract from proto/ with the project's one set of proto-loader options.
 //
-// The TypeScript types in ./generated come from the same files and the same options:
-//   npx proto-loader-gen-types --longs=String --enums=String --defaults --oneofs --grpcLib=@grpc/grpc-js \
-//     --importFileExtension=.js -I proto -O src/service/generated renyibound/v1/service.proto
-// (test/service/generated-types.test.ts regenerates them and fails when they drift from the .proto files).
+// The TypeScript types in ./generated come from the same files and the same options (type-generation.ts);
+// regenerate with `npx tsx src/service/type-generation.ts` after editing a .proto file
+// (test/service/generated-types.test.ts fails when they drift).
 import * as grpc from '@grpc/grpc-js';
 import * as protoLoader from '@grpc/proto-loader';
 import { PROTO_LOADER_OPTIONS, protoDirectory } from '../problem/proto-options.js';
