@@ -49,6 +49,14 @@ export const TUNING = Object.freeze({
   certifyShare: 0.5,
   /** …and at least every this many iterations, so a limit always finds a recent certificate. */
   certifyEvery: 25,
+  /** Shares ε of the interior point mixed into the iterate when certifying near the boundary of the cone. */
+  certificateMixtures: [1e-10, 1e-9, 1e-8, 1e-7, 1e-6, 1e-5, 1e-4] as readonly number[],
+  /** Smallest eigenvalue a step may leave in the iterate (its trace is 1). */
+  eigenvalueFloor: 1e-9,
+  /** With the oracle at its finest accuracy, stop after this many iterations without the certified bound rising. */
+  progressWindow: 150,
+  /** …where rising means by more than this share of the requested gap. */
+  progressShare: 1e-3,
   /** Atoms kept by pairwise steps before the two lightest are merged into their weighted mean. */
   maxAtoms: 60,
   /** Line search stops when |φ'(t)| ≤ this share of |φ'(0)|. */

@@ -2,12 +2,14 @@ import {
   addScaledInPlace,
   ComplexMatrix,
   hermitianPart,
+  multiply,
+  multiplyAdjointLeft,
   scale,
   subtract,
   trace,
   traceProductReal,
 } from '../linear-algebra/complex-matrix.js';
-import { eigh } from '../linear-algebra/eigen.js';
+import { eigh, eigvalsh } from '../linear-algebra/eigen.js';
 import {
   createObjective,
   normaliseRequest,
@@ -133,6 +135,7 @@ export function solve(
   if (!feasible.point) return failure(`no feasible starting point: ${feasible.message ?? feasible.status}`, 0);
 
   const objective = createObjective(restricted, entropy);
+  const interiorPoint = feasible.point;
   let x = startingPoint(oracle, restricted, face, feasible.point, control.warmStart);
   let evaluation = objective.evaluate(x, { assumeFullRank: true });
   if (!Number.isFinite(evaluation.value) || !evaluation.gradient) {
@@ -145,17 +148,41 @@ export function solve(
   let iterations = 0;
   let gapAtWindowStart = Infinity;
   let windowStart = 0;
+  let progressLower = -Infinity;
+  let progressIteration = 0;
 
-  const certify = (y: { lower: Float64Array; upper: Float64Array }) => {
-    const breakdown = linearizationBound(restricted, objective, x, y.lower, y.upper, evaluation.reference);
+  const consider = (
+    state: ComplexMatrix,
+    stateEvaluation: ObjectiveEvaluation,
+    y: { lower: Float64Array; upper: Float64Array },
+  ) => {
+    const breakdown = linearizationBound(restricted, objective, state, y.lower, y.upper, stateEvaluation.reference);
     if (Number.isFinite(breakdown.lowerBound) && (best === null || breakdown.lowerBound > best.breakdown.lowerBound)) {
       best = {
         breakdown,
-        state: x,
-        reference: evaluation.reference,
+        state,
+        reference: stateEvaluation.reference,
         multipliersLower: y.lower,
         multipliersUpper: y.upper,
       };
+    }
+  };
+  // Near the boundary of the cone the margin grows like 1/λ_min(ρ'); linearizing at (1−ε)x + ε·x₀ trades a
+  // linearization loss of order ε against it, so a few ε are tried and the best bound is kept.
+  const certify = (y: { lower: Float64Array; upper: Float64Array }) => {
+    consider(x, evaluation, y);
+    const smallest = eigh(x).values[0];
+    for (const share of TUNING.certificateMixtures) {
+      if (share <= smallest) continue;
+      const state = scale(x, 1 - share);
+      addScaledInPlace(state, interiorPoint, share);
+      const e = objective.evaluate(state, { assumeFullRank: true });
+      if (!e.gradient || !Number.isFinite(e.value)) continue;
+      const split = oracle.stripEqualitySpan(e.gradient);
+      const started = performance.now();
+      const answer = oracle.minimize(split.stripped, { relativeAccuracy: oracleAccuracy });
+      oracleSeconds += (performance.now() - started) / 1000;
+      if (answer.point || answer.status === 'ITERATION_LIMIT') consider(state, e, restoreMultipliers(answer, split.equalityCoefficients));
     }
   };
 
@@ -170,6 +197,14 @@ export function solve(
     }
     if (performance.now() - started > settings.timeLimitMs) {
       limit = 'time';
+      break;
+    }
+    const currentLower = best ? (best as CertifiedPoint).breakdown.lowerBound : -Infinity;
+    if (currentLower > progressLower + TUNING.progressShare * settings.gapTolerance) {
+      progressLower = currentLower;
+      progressIteration = iterations;
+    } else if (oracleAccuracy <= TUNING.finestOracleAccuracy && iterations - progressIteration >= TUNING.progressWindow) {
+      limit = 'no-progress';
       break;
     }
     const gradient = evaluation.gradient as ComplexMatrix;
@@ -204,6 +239,7 @@ export function solve(
     const away = atoms.awayAtom(gradient);
     const direction = subtract(toward, away.point);
     const slope = traceProductReal(gradient, direction);
+    const maxStep = Math.min(away.weight, stepToEigenvalueFloor(x, direction, TUNING.eigenvalueFloor));
     iterations++;
     if (!(slope < 0)) continue;
     const trials = new Map<number, ObjectiveEvaluation>();
@@ -218,7 +254,7 @@ export function solve(
       },
       direction,
       slope,
-      away.weight,
+      maxStep,
       TUNING.lineSearchTolerance,
       TUNING.lineSearchEvaluations,
     );
@@ -277,6 +313,29 @@ export function solve(
     certificate,
     finalState: matrixToJson(finalState),
   };
+}
+
+/**
+ * The largest t with λ_min(x + t·d) ≥ floor. Iterates kept this far inside the cone have gradients that
+ * rounding cannot corrupt (an eigenvalue near u·‖x‖ has no correct digits, and neither would log of it).
+ */
+export function stepToEigenvalueFloor(x: ComplexMatrix, direction: ComplexMatrix, floor: number): number {
+  const { values, vectors } = eigh(x);
+  const n = values.length;
+  // An iterate already below the floor (a warm start, a face point) may not sink further than halfway to zero.
+  floor = Math.min(floor, 0.5 * values[0]);
+  const scaled = multiplyAdjointLeft(vectors, multiply(direction, vectors));
+  const inverseRoot = new Float64Array(n);
+  for (let i = 0; i < n; i++) inverseRoot[i] = 1 / Math.sqrt(Math.max(values[i] - floor, Number.MIN_VALUE));
+  for (let i = 0; i < n; i++) {
+    for (let j = 0; j < n; j++) {
+      scaled.re[i * n + j] *= -inverseRoot[i] * inverseRoot[j];
+      scaled.im[i * n + j] *= -inverseRoot[i] * inverseRoot[j];
+    }
+  }
+  // x − floor + t·d ⪰ 0 ⟺ 1 − t·M ⪰ 0 with M = (Λ−floor)^{-1/2} V†(−d)V (Λ−floor)^{-1/2}.
+  const largest = eigvalsh(scaled)[n - 1];
+  return largest > 0 ? 1 / largest : Infinity;
 }
 
 /** The oracle's interior point, or a warm start projected onto the equalities and pulled inside the cone. */

@@ -2,7 +2,8 @@ import type { ComplexMatrix } from '../linear-algebra/complex-matrix.js';
 
 /** CERTIFIED: gap ≤ requested; LIMIT_REACHED: a valid bound, gap above the request; INFEASIBLE: Farkas certificate; NUMERICAL_ERROR: no bound. */
 export type SolveStatus = 'CERTIFIED' | 'LIMIT_REACHED' | 'INFEASIBLE' | 'NUMERICAL_ERROR';
-export type StopLimit = 'iterations' | 'time' | 'cancelled';
+/** no-progress: the certified gap stopped shrinking (floating-point margin or oracle accuracy dominates it). */
+export type StopLimit = 'iterations' | 'time' | 'cancelled' | 'no-progress';
 
 /** Matrices on the wire and in JSON files: row-major, im omitted for real matrices. */
 export interface MatrixJson {
