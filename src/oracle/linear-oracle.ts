@@ -24,6 +24,22 @@ export const STALLED_PRIMAL_TOLERANCE = 1e-8;
 const NEGLIGIBLE_OBJECTIVE = 1e-14;
 /** Multiple of d·ε·(‖G‖ + Σ|y_i|(‖Γ_i‖ + |bound_i|)) treated as the rounding floor of a verified gap. */
 const GAP_ROUNDING_FACTOR = 16;
+/**
+ * Eigenvalues of the analytic centre below this fraction of its largest one mark directions no feasible state uses
+ * (the feasible set then lies in a face of the cone, and the interior-point method is run on that face).
+ */
+export const FACE_EIGENVALUE_RATIO = 1e-9;
+/** Gap target of the feasibility run: tight enough that vanishing eigenvalues of the centre fall far below the ratio above. */
+const FEASIBILITY_GAP = 1e-12;
+/** Golden-section steps when choosing the weight of the exposing multipliers in a face-reduced bound. */
+const EXPOSING_SEARCH_STEPS = 40;
+/** Lower end of the log10 range, relative to the data scale, searched for that weight. */
+const EXPOSING_SEARCH_FLOOR = -6;
+/**
+ * The upper end keeps the eigenvalue rounding of the shifted matrix (~GAP_ROUNDING_FACTOR·d·ε·weight) below this
+ * share of the requested accuracy: otherwise the search would maximize rounding noise, not the bound.
+ */
+const EXPOSING_ROUNDING_SHARE = 0.1;
 /** Share of the requested gap given to the interior-point method's own (unverified) stopping test. */
 const INTERNAL_GAP_SHARE = 0.5;
 /** Each retry after a verified gap came out too large tightens the internal test by this factor. */
@@ -43,6 +59,14 @@ interface IntervalRow {
   projection: Float64Array;
 }
 
+/** The feasible set lies in {σ = V·τ·V†}: an oracle on τ and multipliers that expose the face. */
+interface FaceReduction {
+  isometry: ComplexMatrix;
+  inner: LinearOracle;
+  /** Per-constraint multipliers e with −Σ e_i Γ_i = Z + e_0·1, Z ⪰ 0 vanishing on the face (from the feasibility run). */
+  exposing: Float64Array;
+}
+
 export class LinearOracle {
   readonly dimension: number;
   readonly constraints: readonly OracleConstraint[];
@@ -59,6 +83,9 @@ export class LinearOracle {
   /** Infeasibility found while preprocessing, or by a feasibility run; cached for all later calls. */
   private knownInfeasibility: OracleResult | null = null;
   private feasibleResult: OracleResult | null = null;
+  /** Set once the feasibility run has been analysed for a face; a face-reduced oracle never looks for another. */
+  private faceAnalysed = false;
+  private face: FaceReduction | null = null;
 
   constructor(dimension: number, constraints: OracleConstraint[], settings?: Partial<OracleSettings>) {
     if (!Number.isInteger(dimension) || dimension < 1) {
@@ -218,6 +245,14 @@ export class LinearOracle {
     checkHermitian(G, this.dimension, 'G');
     const resolved = resolveSettings(this.settings, settings, 'settings');
     if (this.knownInfeasibility) return this.copyInfeasible(this.knownInfeasibility);
+    if (!this.faceAnalysed) {
+      const feasibility = this.findFeasiblePoint();
+      if (feasibility.status === 'INFEASIBLE') return feasibility;
+    }
+    if (this.face) {
+      const reduced = this.minimizeOnFace(this.face, G, resolved);
+      if (reduced) return reduced;
+    }
     const n = this.dimension;
     const size = n * n;
     const gRe = new Float64Array(size);
@@ -318,7 +353,7 @@ export class LinearOracle {
     this.solver.setObjective(new Float64Array(size), new Float64Array(size));
     const status = this.solver.solve(
       {
-        gapTolerance: () => this.settings.relativeAccuracy,
+        gapTolerance: () => Math.min(this.settings.relativeAccuracy, FEASIBILITY_GAP),
         primalTolerance: PRIMAL_FEASIBILITY_TOLERANCE,
         maxIterations: this.settings.maxIterations,
         certifyInfeasible: (y) => this.recordRayIfCertified(y),
@@ -331,10 +366,105 @@ export class LinearOracle {
     const result = this.resultFromSolver(zero, 1, new Float64Array(this.span.size), accepted ? 'OPTIMAL' : status === 'NUMERICAL_ERROR' ? 'NUMERICAL_ERROR' : 'ITERATION_LIMIT');
     if (result.status === 'OPTIMAL') {
       this.feasibleResult = result;
+      if (!this.faceAnalysed) this.analyseFace(result.point as ComplexMatrix, this.multipliersFromSolver(this.solver.y, 1, new Float64Array(this.span.size)));
       return this.copyResult(result);
     }
+    this.faceAnalysed = true;
     result.message = `no feasible point found and no infeasibility certificate either (status ${status}, primal residual ${this.solver.primalResidualNorm.toExponential(2)})`;
     return result;
+  }
+
+  /**
+   * Facial reduction from the analytic centre: its range is the smallest face holding S. When that face is proper,
+   * later solves run on it (the full-space problem has no interior point and its multipliers diverge).
+   */
+  private analyseFace(centre: ComplexMatrix, exposing: Float64Array): void {
+    this.faceAnalysed = true;
+    const { values, vectors } = eigh(centre);
+    const n = this.dimension;
+    const largest = values[n - 1];
+    let first = 0;
+    while (first < n && values[first] <= FACE_EIGENVALUE_RATIO * largest) first++;
+    if (first === 0) return;
+    const rank = n - first;
+    const isometry = new ComplexMatrix(n, rank);
+    for (let i = 0; i < n; i++) {
+      for (let j = 0; j < rank; j++) {
+        isometry.re[i * rank + j] = vectors.re[i * n + first + j];
+        isometry.im[i * rank + j] = vectors.im[i * n + first + j];
+      }
+    }
+    const compressed = this.constraints.map((c, i) => ({
+      ...c,
+      operator: compressHermitian(isometry, new ComplexMatrix(n, n, this.operatorRe[i], this.operatorIm[i])),
+    }));
+    const inner = new LinearOracle(rank, compressed, this.settings);
+    inner.faceAnalysed = true;
+    this.face = { isometry, inner, exposing };
+  }
+
+  /** Solves on the face and lifts back; the bound adds the exposing multipliers with the weight that maximizes (★). */
+  private minimizeOnFace(face: FaceReduction, G: ComplexMatrix, settings: OracleSettings): OracleResult | null {
+    const inner = face.inner.minimize(compressHermitian(face.isometry, G), settings);
+    if (inner.status !== 'OPTIMAL' || !inner.point) return null;
+    const point = expandHermitian(face.isometry, inner.point);
+    const innerY = Float64Array.from(inner.multipliersLower, (x, i) => x - inner.multipliersUpper[i]);
+    let scaleOfData = Math.sqrt(hermitianInner(G.re, G.im, G.re, G.im));
+    innerY.forEach((y, i) => (scaleOfData += Math.abs(y) * this.operatorNorms[i]));
+    const boundAt = (logWeight: number): { bound: number; lower: Float64Array; upper: Float64Array } => {
+      const weight = logWeight === -Infinity ? 0 : scaleOfData * 10 ** logWeight;
+      const y = Float64Array.from(innerY, (x, i) => x + weight * face.exposing[i]);
+      const { lower, upper } = this.splitMultipliers(y);
+      return { bound: this.dualBound(G, lower, upper), lower, upper };
+    };
+    // (★) is concave in y, so along y + t·e it is unimodal in t and in log t: golden-section search.
+    let exposingSize = 0;
+    face.exposing.forEach((e, i) => (exposingSize += Math.abs(e) * this.operatorNorms[i]));
+    let left = EXPOSING_SEARCH_FLOOR;
+    let right = Math.log10(
+      (EXPOSING_ROUNDING_SHARE * settings.relativeAccuracy) / (GAP_ROUNDING_FACTOR * this.dimension * Number.EPSILON * Math.max(exposingSize, Number.MIN_VALUE)),
+    );
+    if (!(right > left)) right = left;
+    const ratio = (Math.sqrt(5) - 1) / 2;
+    let a = right - ratio * (right - left);
+    let b = left + ratio * (right - left);
+    let fa = boundAt(a);
+    let fb = boundAt(b);
+    for (let step = 0; step < EXPOSING_SEARCH_STEPS; step++) {
+      if (fa.bound >= fb.bound) {
+        right = b;
+        b = a;
+        fb = fa;
+        a = right - ratio * (right - left);
+        fa = boundAt(a);
+      } else {
+        left = a;
+        a = b;
+        fa = fb;
+        b = left + ratio * (right - left);
+        fb = boundAt(b);
+      }
+    }
+    let best = fa.bound >= fb.bound ? fa : fb;
+    const plain = boundAt(-Infinity);
+    if (plain.bound > best.bound) best = plain;
+    const primalValue = hermitianInner(G.re, G.im, point.re, point.im);
+    const gap = primalValue - best.bound;
+    const withinAccuracy = gap <= settings.relativeAccuracy * (1 + Math.abs(primalValue));
+    return {
+      status: withinAccuracy ? 'OPTIMAL' : 'ITERATION_LIMIT',
+      point,
+      multipliersLower: best.lower,
+      multipliersUpper: best.upper,
+      primalValue,
+      dualBound: best.bound,
+      iterations: inner.iterations,
+      message:
+        `solved on a face of dimension ${face.isometry.cols} < ${this.dimension} (no feasible state has full rank)` +
+        (withinAccuracy
+          ? ''
+          : `; the full-space bound is ${gap.toExponential(2)} below (multipliers that expose a face only approach the optimum as they grow; reduce the problem to the face for tight bounds)`),
+    };
   }
 
   /** Orthogonal (Hilbert–Schmidt) projection of a Hermitian X onto {Tr X = 1, Tr(Γ_i X) = b_i for the equalities}. */
@@ -531,4 +661,89 @@ export class LinearOracle {
         : undefined,
     };
   }
+}
+
+/** V†·A·V for a d×r isometry V (Hermitian part, to remove rounding asymmetry). */
+function compressHermitian(v: ComplexMatrix, a: ComplexMatrix): ComplexMatrix {
+  const d = v.rows;
+  const r = v.cols;
+  const out = new ComplexMatrix(r, r);
+  const av = new ComplexMatrix(d, r);
+  for (let i = 0; i < d; i++) {
+    for (let k = 0; k < d; k++) {
+      const ar = a.re[i * d + k];
+      const ai = a.im[i * d + k];
+      if (ar === 0 && ai === 0) continue;
+      for (let j = 0; j < r; j++) {
+        const vr = v.re[k * r + j];
+        const vi = v.im[k * r + j];
+        av.re[i * r + j] += ar * vr - ai * vi;
+        av.im[i * r + j] += ar * vi + ai * vr;
+      }
+    }
+  }
+  for (let i = 0; i < r; i++) {
+    for (let j = 0; j < r; j++) {
+      let sr = 0;
+      let si = 0;
+      for (let k = 0; k < d; k++) {
+        // conj(V_ki)·(AV)_kj
+        const vr = v.re[k * r + i];
+        const vi = v.im[k * r + i];
+        sr += vr * av.re[k * r + j] + vi * av.im[k * r + j];
+        si += vr * av.im[k * r + j] - vi * av.re[k * r + j];
+      }
+      out.re[i * r + j] = sr;
+      out.im[i * r + j] = si;
+    }
+  }
+  for (let i = 0; i < r; i++) {
+    out.im[i * r + i] = 0;
+    for (let j = i + 1; j < r; j++) {
+      const re = 0.5 * (out.re[i * r + j] + out.re[j * r + i]);
+      const im = 0.5 * (out.im[i * r + j] - out.im[j * r + i]);
+      out.re[i * r + j] = re;
+      out.re[j * r + i] = re;
+      out.im[i * r + j] = im;
+      out.im[j * r + i] = -im;
+    }
+  }
+  return out;
+}
+
+/** V·τ·V† for a d×r isometry V. */
+function expandHermitian(v: ComplexMatrix, tau: ComplexMatrix): ComplexMatrix {
+  const d = v.rows;
+  const r = v.cols;
+  const vt = new ComplexMatrix(d, r);
+  for (let i = 0; i < d; i++) {
+    for (let k = 0; k < r; k++) {
+      const ar = v.re[i * r + k];
+      const ai = v.im[i * r + k];
+      for (let j = 0; j < r; j++) {
+        vt.re[i * r + j] += ar * tau.re[k * r + j] - ai * tau.im[k * r + j];
+        vt.im[i * r + j] += ar * tau.im[k * r + j] + ai * tau.re[k * r + j];
+      }
+    }
+  }
+  const out = new ComplexMatrix(d, d);
+  for (let i = 0; i < d; i++) {
+    for (let j = i; j < d; j++) {
+      let sr = 0;
+      let si = 0;
+      for (let k = 0; k < r; k++) {
+        // (Vτ)_ik · conj(V_jk)
+        const br = v.re[j * r + k];
+        const bi = v.im[j * r + k];
+        sr += vt.re[i * r + k] * br + vt.im[i * r + k] * bi;
+        si += vt.im[i * r + k] * br - vt.re[i * r + k] * bi;
+      }
+      out.re[i * d + j] = sr;
+      out.im[i * d + j] = si;
+      out.re[j * d + i] = sr;
+      out.im[j * d + i] = -si;
+    }
+    out.im[i * d + i] = 0;
+  }
+  return out;
 }
