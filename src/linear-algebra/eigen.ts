@@ -177,8 +177,12 @@ interface Tridiagonal {
   subIm: Float64Array;
   pRe: Float64Array;
   pIm: Float64Array;
-  /** QL rotations, row j = j-th eigenvector of T_real. */
+  /** QL rotations accumulated from the identity: column j = j-th eigenvector of T_real. */
   rotations: Float64Array;
+  cosines: Float64Array;
+  sines: Float64Array;
+  /** Back-transformation buffers: real and imaginary parts of four eigenvectors. */
+  back: Float64Array[];
 }
 
 /** Scratch buffers reused across calls of the same size (the optimiser calls eigh thousands of times). */
@@ -205,6 +209,9 @@ function workspaceFor(n: number): Tridiagonal {
     pRe: new Float64Array(n),
     pIm: new Float64Array(n),
     rotations: new Float64Array(n * n),
+    cosines: new Float64Array(n),
+    sines: new Float64Array(n),
+    back: Array.from({ length: 8 }, () => new Float64Array(n)),
   };
   workspaces.set(n, created);
   return created;
@@ -349,11 +356,19 @@ function tridiagonalise(input: ComplexMatrix, scale: number): Tridiagonal {
 
 /**
  * Implicit symmetric QL with Wilkinson shifts on the tridiagonal (d, e), e[i] coupling i and i+1.
- * If `rotationsTransposed` is given (n×n, row j = j-th Schur vector), the rotations are accumulated in it.
+ * If `rotations` is given (n×n row-major, column j = j-th Schur vector) the rotations are accumulated
+ * in it: each sweep's (c, s) pairs are recorded, then applied row by row as one chain (contiguous access,
+ * one load and one store per entry instead of two of each).
  * Deflation: |e_m| ≤ ε·(|d_m| + |d_{m+1}|) (local test, keeps small eigenvalues of graded matrices
  * accurate) or |e_m| ≤ ε·‖T‖ (needed for convergence when a cluster of eigenvalues sits at rounding level).
  */
-function tridiagonalQL(d: Float64Array, e: Float64Array, rotationsTransposed: Float64Array | null): void {
+function tridiagonalQL(
+  d: Float64Array,
+  e: Float64Array,
+  rotations: Float64Array | null,
+  cosines: Float64Array,
+  sines: Float64Array,
+): void {
   const n = d.length;
   const eps = Number.EPSILON;
   // Norm-relative floor: deflating below u·‖T‖ perturbs T by less than the reduction already did.
@@ -374,7 +389,7 @@ function tridiagonalQL(d: Float64Array, e: Float64Array, rotationsTransposed: Fl
       }
       // Wilkinson shift from the leading 2×2 block at l.
       let g = (d[l + 1] - d[l]) / (2 * e[l]);
-      let r = Math.hypot(g, 1);
+      let r = fastHypot(g, 1);
       g = d[m] - d[l] + e[l] / (g + (g >= 0 ? r : -r));
       let s = 1;
       let c = 1;
@@ -384,7 +399,7 @@ function tridiagonalQL(d: Float64Array, e: Float64Array, rotationsTransposed: Fl
       for (; i >= l; i--) {
         const f = s * e[i];
         const b = c * e[i];
-        r = Math.hypot(f, g);
+        r = fastHypot(f, g);
         e[i + 1] = r;
         if (r === 0) {
           // Exact deflation inside the sweep: finish it and restart at l.
@@ -400,23 +415,79 @@ function tridiagonalQL(d: Float64Array, e: Float64Array, rotationsTransposed: Fl
         p = s * r;
         d[i + 1] = g + p;
         g = c * r - b;
-        if (rotationsTransposed !== null) {
-          const rowI = i * n;
-          const rowI1 = rowI + n;
-          for (let k = 0; k < n; k++) {
-            const zi = rotationsTransposed[rowI + k];
-            const zi1 = rotationsTransposed[rowI1 + k];
-            rotationsTransposed[rowI1 + k] = s * zi + c * zi1;
-            rotationsTransposed[rowI + k] = c * zi - s * zi1;
-          }
-        }
+        cosines[i] = c;
+        sines[i] = s;
       }
+      if (rotations !== null) applyRotationChain(rotations, n, i + 1, m, cosines, sines);
       if (underflow) continue;
       d[l] -= p;
       e[l] = g;
       e[m] = 0;
     }
   }
+}
+
+/**
+ * Applies the sweep's rotations i = last−1 … first to columns (i, i+1) of Z, i.e. for every row
+ * Z[k][i+1] ← s_i·Z[k][i] + c_i·Z[k][i+1], Z[k][i] ← c_i·Z[k][i] − s_i·Z[k][i+1], carrying Z[k][i] along.
+ */
+function applyRotationChain(z: Float64Array, n: number, first: number, last: number, cosines: Float64Array, sines: Float64Array): void {
+  if (first >= last) return;
+  // Four rows at a time: each row's carry is a serial dependency, so interleaving hides the latency.
+  let k = 0;
+  for (; k + 3 < n; k += 4) {
+    const r0 = k * n;
+    const r1 = r0 + n;
+    const r2 = r1 + n;
+    const r3 = r2 + n;
+    let c0 = z[r0 + last];
+    let c1 = z[r1 + last];
+    let c2 = z[r2 + last];
+    let c3 = z[r3 + last];
+    for (let i = last - 1; i >= first; i--) {
+      const c = cosines[i];
+      const s = sines[i];
+      const a0 = z[r0 + i];
+      const a1 = z[r1 + i];
+      const a2 = z[r2 + i];
+      const a3 = z[r3 + i];
+      z[r0 + i + 1] = s * a0 + c * c0;
+      z[r1 + i + 1] = s * a1 + c * c1;
+      z[r2 + i + 1] = s * a2 + c * c2;
+      z[r3 + i + 1] = s * a3 + c * c3;
+      c0 = c * a0 - s * c0;
+      c1 = c * a1 - s * c1;
+      c2 = c * a2 - s * c2;
+      c3 = c * a3 - s * c3;
+    }
+    z[r0 + first] = c0;
+    z[r1 + first] = c1;
+    z[r2 + first] = c2;
+    z[r3 + first] = c3;
+  }
+  for (; k < n; k++) {
+    const row = k * n;
+    let carry = z[row + last];
+    for (let i = last - 1; i >= first; i--) {
+      const zi = z[row + i];
+      const c = cosines[i];
+      const s = sines[i];
+      z[row + i + 1] = s * zi + c * carry;
+      carry = c * zi - s * carry;
+    }
+    z[row + first] = carry;
+  }
+}
+
+/** |x|, |y| inside this range square without overflow or underflow. */
+const HYPOT_SAFE_MAX = 1e150;
+const HYPOT_SAFE_MIN = 1e-150;
+
+/** √(x² + y²); Math.hypot is several times slower in V8 and only needed near the exponent limits. */
+function fastHypot(x: number, y: number): number {
+  const big = Math.max(Math.abs(x), Math.abs(y));
+  if (big < HYPOT_SAFE_MAX && big > HYPOT_SAFE_MIN) return Math.sqrt(x * x + y * y);
+  return Math.hypot(x, y);
 }
 
 /** Indices sorting `values` ascending. */
@@ -454,7 +525,7 @@ export function eighHouseholder(input: ComplexMatrix): HermitianEigen {
   const z = tri.rotations;
   z.fill(0);
   for (let i = 0; i < n; i++) z[i * n + i] = 1;
-  tridiagonalQL(d, e, z);
+  tridiagonalQL(d, e, z, tri.cosines, tri.sines);
   const order = ascendingOrder(d);
   const values = new Float64Array(n);
   for (let j = 0; j < n; j++) values[j] = d[order[j]] * scale;
@@ -462,40 +533,102 @@ export function eighHouseholder(input: ComplexMatrix): HermitianEigen {
   const outRe = vectors.re;
   const outIm = vectors.im;
   const { workRe, workIm, tau, phaseRe, phaseIm } = tri;
-  const wRe = tri.subRe; // free after tridiagonalisation
-  const wIm = tri.subIm;
-  for (let jj = 0; jj < n; jj++) {
-    const zRow = order[jj] * n;
-    // w = D·z, then w ← H_k·w for k = n−3 … 0.
+  // Four eigenvectors per pass share each load of a reflector.
+  const { back } = tri;
+  const w0Re = back[0];
+  const w0Im = back[1];
+  const w1Re = back[2];
+  const w1Im = back[3];
+  const w2Re = back[4];
+  const w2Im = back[5];
+  const w3Re = back[6];
+  const w3Im = back[7];
+  for (let jj = 0; jj < n; jj += 4) {
+    const count = Math.min(4, n - jj);
+    // Missing vectors of the last group repeat the first one; their results are not stored.
+    const z0 = order[jj];
+    const z1 = count > 1 ? order[jj + 1] : z0;
+    const z2 = count > 2 ? order[jj + 2] : z0;
+    const z3 = count > 3 ? order[jj + 3] : z0;
+    // w = D·z (z = a column of the rotations), then w ← H_k·w for k = n−3 … 0.
     for (let i = 0; i < n; i++) {
-      const zi = z[zRow + i];
-      wRe[i] = phaseRe[i] * zi;
-      wIm[i] = phaseIm[i] * zi;
+      const row = i * n;
+      const pr = phaseRe[i];
+      const pi = phaseIm[i];
+      const a0 = z[row + z0];
+      const a1 = z[row + z1];
+      const a2 = z[row + z2];
+      const a3 = z[row + z3];
+      w0Re[i] = pr * a0;
+      w0Im[i] = pi * a0;
+      w1Re[i] = pr * a1;
+      w1Im[i] = pi * a1;
+      w2Re[i] = pr * a2;
+      w2Im[i] = pi * a2;
+      w3Re[i] = pr * a3;
+      w3Im[i] = pi * a3;
     }
     for (let k = n - 3; k >= 0; k--) {
       const t = tau[k];
       if (t === 0) continue;
       const uRow = k * n;
-      let sR = 0;
-      let sI = 0;
+      let s0R = 0;
+      let s0I = 0;
+      let s1R = 0;
+      let s1I = 0;
+      let s2R = 0;
+      let s2I = 0;
+      let s3R = 0;
+      let s3I = 0;
       for (let i = k + 1; i < n; i++) {
         const uR = workRe[uRow + i];
         const uI = workIm[uRow + i];
-        sR += uR * wRe[i] + uI * wIm[i];
-        sI += uR * wIm[i] - uI * wRe[i];
+        s0R += uR * w0Re[i] + uI * w0Im[i];
+        s0I += uR * w0Im[i] - uI * w0Re[i];
+        s1R += uR * w1Re[i] + uI * w1Im[i];
+        s1I += uR * w1Im[i] - uI * w1Re[i];
+        s2R += uR * w2Re[i] + uI * w2Im[i];
+        s2I += uR * w2Im[i] - uI * w2Re[i];
+        s3R += uR * w3Re[i] + uI * w3Im[i];
+        s3I += uR * w3Im[i] - uI * w3Re[i];
       }
-      sR *= t;
-      sI *= t;
+      s0R *= t;
+      s0I *= t;
+      s1R *= t;
+      s1I *= t;
+      s2R *= t;
+      s2I *= t;
+      s3R *= t;
+      s3I *= t;
       for (let i = k + 1; i < n; i++) {
         const uR = workRe[uRow + i];
         const uI = workIm[uRow + i];
-        wRe[i] -= sR * uR - sI * uI;
-        wIm[i] -= sR * uI + sI * uR;
+        w0Re[i] -= s0R * uR - s0I * uI;
+        w0Im[i] -= s0R * uI + s0I * uR;
+        w1Re[i] -= s1R * uR - s1I * uI;
+        w1Im[i] -= s1R * uI + s1I * uR;
+        w2Re[i] -= s2R * uR - s2I * uI;
+        w2Im[i] -= s2R * uI + s2I * uR;
+        w3Re[i] -= s3R * uR - s3I * uI;
+        w3Im[i] -= s3R * uI + s3I * uR;
       }
     }
     for (let i = 0; i < n; i++) {
-      outRe[i * n + jj] = wRe[i];
-      outIm[i * n + jj] = wIm[i];
+      const row = i * n + jj;
+      outRe[row] = w0Re[i];
+      outIm[row] = w0Im[i];
+      if (count > 1) {
+        outRe[row + 1] = w1Re[i];
+        outIm[row + 1] = w1Im[i];
+      }
+      if (count > 2) {
+        outRe[row + 2] = w2Re[i];
+        outIm[row + 2] = w2Im[i];
+      }
+      if (count > 3) {
+        outRe[row + 3] = w3Re[i];
+        outIm[row + 3] = w3Im[i];
+      }
     }
   }
   return { values, vectors };
@@ -508,7 +641,7 @@ export function eigvalsh(input: ComplexMatrix): Float64Array {
   const scale = powerOfTwoScale(input.re, input.im);
   if (scale === 0) return new Float64Array(n);
   const tri = tridiagonalise(input, scale);
-  tridiagonalQL(tri.diagonal, tri.offDiagonal, null);
+  tridiagonalQL(tri.diagonal, tri.offDiagonal, null, tri.cosines, tri.sines);
   const values = tri.diagonal.slice().sort();
   for (let j = 0; j < n; j++) values[j] *= scale;
   return values;

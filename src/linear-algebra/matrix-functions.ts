@@ -1,6 +1,6 @@
 // Functions of Hermitian matrices through their eigendecomposition, and their Fréchet derivatives
 // (Daleckii–Krein formula).
-import { ComplexMatrix } from './complex-matrix.js';
+import { adjoint, ComplexMatrix, multiply, multiplyAdjointLeft, multiplyAdjointRight } from './complex-matrix.js';
 import { eigh, type HermitianEigen } from './eigen.js';
 import { zeroEigenvalueTolerance } from './support.js';
 
@@ -103,7 +103,9 @@ export function dividedDifferences(
 
 /**
  * Daleckii–Krein: the Fréchet derivative Df(A)[H] = V·(Γ ∘ (V†·H·V))·V† for A = V·Λ·V†,
- * Γ = dividedDifferences(Λ, f, f'). Works for any square H (Hermitian H gives a Hermitian result).
+ * Γ = dividedDifferences(Λ, f, f'). Works for any square H; an exactly Hermitian H takes a faster
+ * path that forms only the lower triangles of the Hermitian intermediates and gives an exactly
+ * Hermitian result.
  */
 export function frechetDerivative(eig: HermitianEigen, gamma: Float64Array, h: ComplexMatrix): ComplexMatrix {
   const n = eig.values.length;
@@ -111,82 +113,66 @@ export function frechetDerivative(eig: HermitianEigen, gamma: Float64Array, h: C
   if (v.rows !== n || v.cols !== n) throw new RangeError(`frechetDerivative: eigenvectors are ${v.rows}x${v.cols}, expected ${n}x${n}`);
   if (h.rows !== n || h.cols !== n) throw new RangeError(`frechetDerivative: direction is ${h.rows}x${h.cols}, expected ${n}x${n}`);
   if (gamma.length !== n * n) throw new RangeError(`frechetDerivative: ${gamma.length} divided differences, expected ${n * n}`);
-  const vr = v.re;
-  const vi = v.im;
-  const t1r = new Float64Array(n * n);
-  const t1i = new Float64Array(n * n);
-  // T1 = H·V (i-k-j order streams rows of V).
-  for (let i = 0; i < n; i++) {
-    for (let k = 0; k < n; k++) {
-      const hr = h.re[i * n + k];
-      const hi = h.im[i * n + k];
-      if (hr === 0 && hi === 0) continue;
-      const rk = k * n;
-      const ri = i * n;
-      for (let j = 0; j < n; j++) {
-        const br = vr[rk + j];
-        const bi = vi[rk + j];
-        t1r[ri + j] += hr * br - hi * bi;
-        t1i[ri + j] += hr * bi + hi * br;
-      }
+  if (!isExactlyHermitian(h)) {
+    const inner = multiply(multiplyAdjointLeft(v, h), v);
+    for (let k = 0; k < n * n; k++) {
+      inner.re[k] *= gamma[k];
+      inner.im[k] *= gamma[k];
     }
+    return multiplyAdjointRight(multiply(v, inner), v);
   }
-  // T2 = Γ ∘ (V†·T1): (V†T1)_ij = Σ_k conj(V_ki)·T1_kj, accumulated row k at a time.
-  const t2r = new Float64Array(n * n);
-  const t2i = new Float64Array(n * n);
-  for (let k = 0; k < n; k++) {
-    const rk = k * n;
-    for (let i = 0; i < n; i++) {
-      const ar = vr[rk + i];
-      const ai = -vi[rk + i];
-      const ri = i * n;
-      for (let j = 0; j < n; j++) {
-        const br = t1r[rk + j];
-        const bi = t1i[rk + j];
-        t2r[ri + j] += ar * br - ai * bi;
-        t2i[ri + j] += ar * bi + ai * br;
-      }
-    }
-  }
+  // W = V†, S = W·H = (H·V)†, T = Γ ∘ (W·S†) (Hermitian: lower triangle, mirrored), P = V·T, result P·V†.
+  const w = adjoint(v);
+  const s = multiply(w, h);
+  const t = lowerTimesAdjoint(w, s);
   for (let k = 0; k < n * n; k++) {
-    t2r[k] *= gamma[k];
-    t2i[k] *= gamma[k];
+    t.re[k] *= gamma[k];
+    t.im[k] *= gamma[k];
   }
-  // T3 = V·T2, result = T3·V†: (T3·V†)_ij = Σ_k T3_ik·conj(V_jk).
-  t1r.fill(0);
-  t1i.fill(0);
+  return lowerTimesAdjoint(multiply(v, t), v);
+}
+
+/** H equals its adjoint entry by entry (no tolerance: only then is the Hermitian fast path exact). */
+function isExactlyHermitian(h: ComplexMatrix): boolean {
+  const n = h.rows;
   for (let i = 0; i < n; i++) {
-    const ri = i * n;
-    for (let k = 0; k < n; k++) {
-      const ar = vr[ri + k];
-      const ai = vi[ri + k];
-      const rk = k * n;
-      for (let j = 0; j < n; j++) {
-        const br = t2r[rk + j];
-        const bi = t2i[rk + j];
-        t1r[ri + j] += ar * br - ai * bi;
-        t1i[ri + j] += ar * bi + ai * br;
-      }
+    if (h.im[i * n + i] !== 0) return false;
+    for (let j = 0; j < i; j++) {
+      if (h.re[i * n + j] !== h.re[j * n + i] || h.im[i * n + j] !== -h.im[j * n + i]) return false;
     }
   }
+  return true;
+}
+
+/** X·Y† for a product known to be Hermitian: lower triangle by row dot products, then mirrored. */
+function lowerTimesAdjoint(x: ComplexMatrix, y: ComplexMatrix): ComplexMatrix {
+  const n = x.rows;
+  const p = x.cols;
   const out = new ComplexMatrix(n, n);
+  const xr = x.re;
+  const xi = x.im;
+  const yr = y.re;
+  const yi = y.im;
   for (let i = 0; i < n; i++) {
-    const ri = i * n;
-    for (let j = 0; j < n; j++) {
-      const rj = j * n;
+    const ri = i * p;
+    for (let j = 0; j <= i; j++) {
+      const rj = j * p;
       let sr = 0;
       let si = 0;
-      for (let k = 0; k < n; k++) {
-        const ar = t1r[ri + k];
-        const ai = t1i[ri + k];
-        const br = vr[rj + k];
-        const bi = vi[rj + k];
+      for (let k = 0; k < p; k++) {
+        const ar = xr[ri + k];
+        const ai = xi[ri + k];
+        const br = yr[rj + k];
+        const bi = yi[rj + k];
         sr += ar * br + ai * bi;
         si += ai * br - ar * bi;
       }
-      out.re[ri + j] = sr;
-      out.im[ri + j] = si;
+      out.re[i * n + j] = sr;
+      out.im[i * n + j] = si;
+      out.re[j * n + i] = sr;
+      out.im[j * n + i] = -si;
     }
+    out.im[i * n + i] = 0;
   }
   return out;
 }
