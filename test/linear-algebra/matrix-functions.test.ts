@@ -85,6 +85,28 @@ describe('Fréchet derivative (Daleckii–Krein) against central finite differen
     }
   });
 
+  it('non-Hermitian directions: Df(A)[H₁ + i·H₂] = Df(A)[H₁] + i·Df(A)[H₂] (linearity; general path)', () => {
+    const a = positiveDefinite(6, 650);
+    const h1 = randomHermitian(6, seededRandom(651));
+    const h2 = randomHermitian(6, seededRandom(652));
+    const mixed = new ComplexMatrix(6, 6);
+    for (let k = 0; k < 36; k++) {
+      mixed.re[k] = h1.re[k] - h2.im[k];
+      mixed.im[k] = h1.im[k] + h2.re[k];
+    }
+    const f = powerFunction(0.3);
+    const eig = eigh(a);
+    const gamma = dividedDifferences(eig.values, f.value, f.derivative);
+    const d1 = frechetDerivative(eig, gamma, h1);
+    const d2 = frechetDerivative(eig, gamma, h2);
+    const expected = new ComplexMatrix(6, 6);
+    for (let k = 0; k < 36; k++) {
+      expected.re[k] = d1.re[k] - d2.im[k];
+      expected.im[k] = d1.im[k] + d2.re[k];
+    }
+    expect(relativeDistance(frechetDerivative(eig, gamma, mixed), expected)).toBeLessThanOrEqual(1e-13);
+  });
+
   it('degenerate spectrum: derivative still matches finite differences', () => {
     // A with a triply repeated eigenvalue: Γ uses f' on the repeated block.
     const v = randomIsometry(5, 5, seededRandom(600));
