@@ -653,6 +653,8 @@ export function eigvalsh(input: ComplexMatrix): Float64Array {
  * Complex eigenvectors x + iy come from real eigenvectors [x; y]; within each cluster of equal
  * eigenvalues a column-pivoted complex Gram–Schmidt picks an orthonormal basis of half the cluster
  * size, since [x; y] and [−y; x] give the same complex line. Kept for benchmarks and tests.
+ * Limitation: if two eigenvalues of A differ by about the cluster tolerance, a computed pair can be
+ * split between clusters; the function then throws rather than return non-orthonormal vectors.
  */
 export function eighRealEmbedding(input: ComplexMatrix): HermitianEigen {
   assertFiniteSquare(input, 'eighRealEmbedding');
@@ -712,6 +714,11 @@ export function eighRealEmbedding(input: ComplexMatrix): HermitianEigen {
           bestNorm = s;
           best = c;
         }
+      }
+      // Exactly paired clusters always leave a candidate with squared residual ≥ 2/(wanted + 1); far
+      // less means a pair was split across clusters (eigenvalue gaps near the tolerance): refuse.
+      if (!(bestNorm >= 0.5 / wanted)) {
+        throw new Error('eighRealEmbedding: could not extract orthonormal complex eigenvectors (eigenvalue pair split between clusters)');
       }
       const scaleBack = 1 / Math.sqrt(bestNorm);
       const vr = candRe[best].map((x) => x * scaleBack);

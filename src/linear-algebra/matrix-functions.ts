@@ -177,12 +177,23 @@ function lowerTimesAdjoint(x: ComplexMatrix, y: ComplexMatrix): ComplexMatrix {
   return out;
 }
 
+/**
+ * Relative separation above which f(x) − f(y) is taken directly: there is no cancellation to avoid,
+ * and the log1p/expm1 forms could overflow for extreme ratios.
+ */
+const DIRECT_DIFFERENCE_RELATIVE_GAP = 0.5;
+
+/** True when x and y are positive and close enough for the log1p/expm1 forms to be the better choice. */
+function closePositive(x: number, y: number): boolean {
+  return x > 0 && y > 0 && Math.abs(x - y) <= DIRECT_DIFFERENCE_RELATIVE_GAP * Math.max(x, y);
+}
+
 /** x^p for x > 0 with f', and a cancellation-free x^p − y^p = y^p·expm1(p·log1p((x−y)/y)). */
 export function powerFunction(p: number): ScalarFunction {
   return {
     value: (x) => x ** p,
     derivative: (x) => p * x ** (p - 1),
-    difference: (x, y) => y ** p * Math.expm1(p * Math.log1p((x - y) / y)),
+    difference: (x, y) => (closePositive(x, y) ? y ** p * Math.expm1(p * Math.log1p((x - y) / y)) : x ** p - y ** p),
   };
 }
 
@@ -190,7 +201,7 @@ export function powerFunction(p: number): ScalarFunction {
 export const naturalLogFunction: ScalarFunction = {
   value: (x) => Math.log(x),
   derivative: (x) => 1 / x,
-  difference: (x, y) => Math.log1p((x - y) / y),
+  difference: (x, y) => (closePositive(x, y) ? Math.log1p((x - y) / y) : Math.log(x) - Math.log(y)),
 };
 
 /**

@@ -147,6 +147,15 @@ describe('divided differences', () => {
     expect(DIVIDED_DIFFERENCE_RELATIVE_GAP).toBeLessThan(1e-5);
   });
 
+  it('cancellation-free differences at extreme ratios stay finite and exact', () => {
+    const f = powerFunction(1.5);
+    const d = f.difference as (x: number, y: number) => number;
+    // Reference: direct evaluation, exact here because there is no cancellation.
+    expect(d(1e200, 1e-200)).toBe(1e200 ** 1.5 - 1e-200 ** 1.5);
+    const log = naturalLogFunction.difference as (x: number, y: number) => number;
+    expect(log(1e300, 1e-300)).toBeCloseTo(Math.log(1e300) - Math.log(1e-300), 12);
+  });
+
   it('cancellation-free differences match a direct evaluation at well-separated points', () => {
     // Reference: the definition f(x) − f(y) in plain floating point, accurate when x/y is far from 1.
     for (const [, f] of functions) {
