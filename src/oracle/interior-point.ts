@@ -123,6 +123,9 @@ export class InteriorPointSolver {
   private readonly schurRe: Float64Array;
   private readonly schurIm: Float64Array;
   private readonly schur: Float64Array;
+  /** Views of Q_k inside schurRe/schurIm, made once. */
+  private readonly schurViewsRe: Float64Array[];
+  private readonly schurViewsIm: Float64Array[];
   private readonly schurBackup: Float64Array;
   private readonly primalResidual: Float64Array;
   private readonly rhs: Float64Array;
@@ -188,6 +191,8 @@ export class InteriorPointSolver {
     this.schurRe = new Float64Array(this.m * size);
     this.schurIm = new Float64Array(this.m * size);
     this.schur = new Float64Array(this.m * this.m);
+    this.schurViewsRe = Array.from({ length: this.m }, (_, k) => this.schurRe.subarray(k * size, (k + 1) * size));
+    this.schurViewsIm = Array.from({ length: this.m }, (_, k) => this.schurIm.subarray(k * size, (k + 1) * size));
     this.schurBackup = new Float64Array(this.m * this.m);
     this.y = new Float64Array(this.m);
     this.primalResidual = new Float64Array(this.m);
@@ -410,21 +415,48 @@ export class InteriorPointSolver {
     const size = n * n;
     for (let k = 0; k < m; k++) {
       multiplyByLowerRight(rows.re[k], rows.im[k], this.lxRe, this.lxIm, n, this.tmpRe, this.tmpIm);
-      const qRe = this.schurRe.subarray(k * size, (k + 1) * size);
-      const qIm = this.schurIm.subarray(k * size, (k + 1) * size);
-      multiplyByLowerLeft(this.uzRe, this.uzIm, this.tmpRe, this.tmpIm, n, qRe, qIm);
+      multiplyByLowerLeft(this.uzRe, this.uzIm, this.tmpRe, this.tmpIm, n, this.schurViewsRe[k], this.schurViewsIm[k]);
     }
     const M = this.schur;
     const qRe = this.schurRe;
     const qIm = this.schurIm;
+    // Gram matrix of the Q_k as real vectors (re and im interleaved by storage), four columns per sweep so each
+    // entry of Q_i is loaded once per four products.
     for (let i = 0; i < m; i++) {
       const offsetI = i * size;
-      for (let k = 0; k <= i; k++) {
+      let k = 0;
+      for (; k + 3 <= i; k += 4) {
+        const o0 = k * size;
+        const o1 = o0 + size;
+        const o2 = o1 + size;
+        const o3 = o2 + size;
+        let s0 = 0;
+        let s1 = 0;
+        let s2 = 0;
+        let s3 = 0;
+        for (let t = 0; t < size; t++) {
+          const ar = qRe[offsetI + t];
+          const ai = qIm[offsetI + t];
+          s0 += ar * qRe[o0 + t] + ai * qIm[o0 + t];
+          s1 += ar * qRe[o1 + t] + ai * qIm[o1 + t];
+          s2 += ar * qRe[o2 + t] + ai * qIm[o2 + t];
+          s3 += ar * qRe[o3 + t] + ai * qIm[o3 + t];
+        }
+        M[i * m + k] = s0;
+        M[k * m + i] = s0;
+        M[i * m + k + 1] = s1;
+        M[(k + 1) * m + i] = s1;
+        M[i * m + k + 2] = s2;
+        M[(k + 2) * m + i] = s2;
+        M[i * m + k + 3] = s3;
+        M[(k + 3) * m + i] = s3;
+      }
+      for (; k <= i; k++) {
         const offsetK = k * size;
-        let s = 0;
-        for (let t = 0; t < size; t++) s += qRe[offsetI + t] * qRe[offsetK + t] + qIm[offsetI + t] * qIm[offsetK + t];
-        M[i * m + k] = s;
-        M[k * m + i] = s;
+        let sum = 0;
+        for (let t = 0; t < size; t++) sum += qRe[offsetI + t] * qRe[offsetK + t] + qIm[offsetI + t] * qIm[offsetK + t];
+        M[i * m + k] = sum;
+        M[k * m + i] = sum;
       }
     }
     for (let j = 0; j < this.slackCount; j++) {

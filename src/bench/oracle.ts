@@ -1,0 +1,166 @@
+// Benchmarks of the semidefinite linear oracle: median wall time of minimize() on random constraint sets.
+import { ComplexMatrix } from '../linear-algebra/complex-matrix.js';
+import { LinearOracle, type OracleConstraint } from '../oracle/index.js';
+
+export interface BenchTable {
+  title: string;
+  columns: string[];
+  rows: (string | number)[][];
+}
+
+/** Wall-time budget per measured cell; repetitions adapt to it. */
+const CELL_BUDGET_MS = 1500;
+/** Fewest timed calls per cell (the median is taken over them). */
+const MIN_CALLS = 5;
+/** Untimed calls first, so the JIT has compiled the hot loops. */
+const WARMUP_CALLS = 3;
+/** Half-width of the interval constraints around the reference state's values. */
+const INTERVAL_HALF_WIDTH = 0.02;
+/** Every third constraint is an equality, the others two-sided intervals. */
+const EQUALITY_EVERY = 3;
+
+/** Deterministic generator for benchmark inputs (same matrices on every run). */
+function uniformSource(seed: number): () => number {
+  let state = seed >>> 0;
+  return () => {
+    state = (state + 0x6d2b79f5) >>> 0;
+    let t = state;
+    t = Math.imul(t ^ (t >>> 15), t | 1);
+    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+  };
+}
+
+/** Random Hermitian matrix with entries uniform in [−1, 1] + i[−1, 1]. */
+function benchHermitian(n: number, rng: () => number): ComplexMatrix {
+  const a = new ComplexMatrix(n, n);
+  for (let i = 0; i < n; i++) {
+    a.re[i * n + i] = 2 * rng() - 1;
+    for (let j = 0; j < i; j++) {
+      const re = 2 * rng() - 1;
+      const im = 2 * rng() - 1;
+      a.set(i, j, re, im);
+      a.set(j, i, re, -im);
+    }
+  }
+  return a;
+}
+
+/** Random full-rank density operator B·B†/Tr(B·B†) + mixing with 1/n (keeps it well inside the cone). */
+function benchState(n: number, rng: () => number): ComplexMatrix {
+  const b = benchHermitian(n, rng);
+  const rho = new ComplexMatrix(n, n);
+  let trace = 0;
+  for (let i = 0; i < n; i++) {
+    for (let j = 0; j < n; j++) {
+      let sr = 0;
+      let si = 0;
+      for (let k = 0; k < n; k++) {
+        // B_ik · conj(B_jk)
+        sr += b.re[i * n + k] * b.re[j * n + k] + b.im[i * n + k] * b.im[j * n + k];
+        si += b.im[i * n + k] * b.re[j * n + k] - b.re[i * n + k] * b.im[j * n + k];
+      }
+      rho.re[i * n + j] = sr;
+      rho.im[i * n + j] = si;
+    }
+    trace += rho.re[i * n + i];
+  }
+  for (let t = 0; t < n * n; t++) {
+    rho.re[t] = (0.5 * rho.re[t]) / trace;
+    rho.im[t] = (0.5 * rho.im[t]) / trace;
+  }
+  for (let i = 0; i < n; i++) rho.re[i * n + i] += 0.5 / n;
+  return rho;
+}
+
+function benchConstraints(n: number, count: number, rng: () => number): OracleConstraint[] {
+  const rho = benchState(n, rng);
+  const constraints: OracleConstraint[] = [];
+  for (let i = 0; i < count; i++) {
+    const operator = benchHermitian(n, rng);
+    let value = 0;
+    for (let t = 0; t < n * n; t++) value += operator.re[t] * rho.re[t] + operator.im[t] * rho.im[t];
+    const equality = i % EQUALITY_EVERY === 0;
+    constraints.push({
+      label: `constraint-${i}`,
+      operator,
+      lower: equality ? value : value - INTERVAL_HALF_WIDTH,
+      upper: equality ? value : value + INTERVAL_HALF_WIDTH,
+    });
+  }
+  return constraints;
+}
+
+function median(values: number[]): number {
+  const sorted = [...values].sort((a, b) => a - b);
+  const mid = sorted.length >> 1;
+  return sorted.length % 2 === 1 ? sorted[mid] : 0.5 * (sorted[mid - 1] + sorted[mid]);
+}
+
+/** Cases named in the oracle brief: typical Frank–Wolfe sizes first, then the large ones. */
+const CASES: readonly (readonly [number, number])[] = [
+  [4, 3],
+  [8, 20],
+  [12, 40],
+  [32, 40],
+  [64, 100],
+];
+
+export async function benchOracle(): Promise<BenchTable[]> {
+  const rows: (string | number)[][] = [];
+  for (const [n, count] of CASES) {
+    const rng = uniformSource(1000 * n + count);
+    const constraints = benchConstraints(n, count, rng);
+    const setupStart = performance.now();
+    const oracle = new LinearOracle(n, constraints);
+    const setupMs = performance.now() - setupStart;
+    const feasibleStart = performance.now();
+    const feasible = oracle.findFeasiblePoint();
+    const feasibleMs = performance.now() - feasibleStart;
+    const gradients = Array.from({ length: 8 }, () => benchHermitian(n, rng));
+    for (let k = 0; k < WARMUP_CALLS; k++) oracle.minimize(gradients[k % gradients.length]);
+    const times: number[] = [];
+    let iterations = 0;
+    let worstGap = 0;
+    let optimal = 0;
+    const cellStart = performance.now();
+    while (times.length < MIN_CALLS || performance.now() - cellStart < CELL_BUDGET_MS) {
+      const G = gradients[times.length % gradients.length];
+      const started = performance.now();
+      const result = oracle.minimize(G);
+      times.push(performance.now() - started);
+      iterations += result.iterations;
+      if (result.status === 'OPTIMAL') optimal++;
+      worstGap = Math.max(worstGap, (result.primalValue - result.dualBound) / (1 + Math.abs(result.primalValue)));
+    }
+    const equalities = constraints.filter((c) => c.lower === c.upper).length;
+    rows.push([
+      n,
+      `${count} (${equalities} eq, ${count - equalities} interval)`,
+      Number(median(times).toFixed(3)),
+      Number((iterations / times.length).toFixed(1)),
+      `${optimal}/${times.length}`,
+      Number(worstGap.toExponential(1)),
+      Number(feasibleMs.toFixed(2)),
+      feasible.status,
+      Number(setupMs.toFixed(2)),
+    ]);
+  }
+  return [
+    {
+      title: 'Linear oracle: minimize() on random Hermitian constraints around a full-rank state (relative accuracy 1e-7)',
+      columns: [
+        'd',
+        'constraints',
+        'median ms / minimize',
+        'IPM iterations',
+        'OPTIMAL',
+        'worst relative gap',
+        'findFeasiblePoint ms',
+        'feasibility',
+        'constructor ms',
+      ],
+      rows,
+    },
+  ];
+}

@@ -1,0 +1,104 @@
+import { CholeskyDecomposition, Matrix } from 'ml-matrix';
+import { describe, expect, it } from 'vitest';
+import { ComplexMatrix, multiplyAdjointRight } from '../../src/linear-algebra/complex-matrix.js';
+import {
+  choleskyInPlace,
+  lowerGram,
+  lowerTriangularInverse,
+  multiplyInto,
+  realCholeskyInPlace,
+  realCholeskySolveInPlace,
+  smallestEigenvalueInPlace,
+  TridiagonalWorkspace,
+} from '../../src/oracle/kernels.js';
+import { randomComplexGaussian, randomDensity, randomHermitian, seededRandom } from '../helpers/random.js';
+import { referenceEigenvalues } from './reference.js';
+
+function maxAbsDifference(a: ComplexMatrix, b: ComplexMatrix): number {
+  let worst = 0;
+  for (let t = 0; t < a.re.length; t++) worst = Math.max(worst, Math.abs(a.re[t] - b.re[t]), Math.abs(a.im[t] - b.im[t]));
+  return worst;
+}
+
+describe('oracle kernels', () => {
+  it.each([1, 2, 5, 12, 30])('complex Cholesky: L·L† reproduces a positive definite matrix (n=%i)', (n) => {
+    const a = randomDensity(n, seededRandom(10 + n));
+    const l = a.clone();
+    expect(choleskyInPlace(l.re, l.im, n)).toBe(true);
+    for (let i = 0; i < n; i++) {
+      expect(l.im[i * n + i]).toBe(0);
+      expect(l.re[i * n + i]).toBeGreaterThan(0);
+      for (let j = i + 1; j < n; j++) expect(l.re[i * n + j] === 0 && l.im[i * n + j] === 0).toBe(true);
+    }
+    // Reference: the defining identity A = L·L† (computed with the shared complex product).
+    expect(maxAbsDifference(multiplyAdjointRight(l, l), a)).toBeLessThan(1e-14);
+  });
+
+  it('complex Cholesky reports a matrix that is not positive definite', () => {
+    const a = randomHermitian(6, seededRandom(3));
+    const indefinite = referenceEigenvalues(a)[0] < 0;
+    expect(indefinite).toBe(true);
+    expect(choleskyInPlace(a.re.slice(), a.im.slice(), 6)).toBe(false);
+  });
+
+  it('triangular inverse and U†U give the inverse of L·L†', () => {
+    const n = 9;
+    const a = randomDensity(n, seededRandom(21));
+    const l = a.clone();
+    choleskyInPlace(l.re, l.im, n);
+    const u = new ComplexMatrix(n, n);
+    lowerTriangularInverse(l.re, l.im, n, u.re, u.im);
+    const inverse = new ComplexMatrix(n, n);
+    lowerGram(u.re, u.im, n, inverse.re, inverse.im);
+    const product = new ComplexMatrix(n, n);
+    multiplyInto(a.re, a.im, inverse.re, inverse.im, n, product.re, product.im);
+    // A·A⁻¹ = 1, to the accuracy the condition number of A allows.
+    const values = referenceEigenvalues(a);
+    const condition = values[n - 1] / values[0];
+    expect(maxAbsDifference(product, ComplexMatrix.identity(n))).toBeLessThan(1e-14 * condition);
+  });
+
+  it.each([1, 2, 3, 4, 7, 16, 33])('smallest eigenvalue by Householder + Sturm bisection matches mathjs (n=%i)', (n) => {
+    const rng = seededRandom(40 + n);
+    for (let trial = 0; trial < 3; trial++) {
+      const a = randomHermitian(n, rng);
+      const reference = referenceEigenvalues(a)[0];
+      const work = new TridiagonalWorkspace(n);
+      const value = smallestEigenvalueInPlace(a.re.slice(), a.im.slice(), n, work);
+      expect(Math.abs(value - reference)).toBeLessThan(1e-12 * Math.max(1, Math.abs(reference)));
+      expect(value).toBeLessThanOrEqual(reference + 1e-13);
+    }
+  });
+
+  it('smallest eigenvalue of structured inputs: diagonal, repeated, already tridiagonal, rank one', () => {
+    const work = new TridiagonalWorkspace(5);
+    const diagonal = ComplexMatrix.diagonal([3, -1, 2, -1, 5]);
+    expect(smallestEigenvalueInPlace(diagonal.re, diagonal.im, 5, work)).toBeCloseTo(-1, 14);
+    const identity = ComplexMatrix.identity(5);
+    expect(smallestEigenvalueInPlace(identity.re, identity.im, 5, work)).toBeCloseTo(1, 14);
+    const v = randomComplexGaussian(5, 1, seededRandom(5));
+    const rankOne = multiplyAdjointRight(v, v);
+    const norm2 = v.re.reduce((s, x) => s + x * x, 0) + v.im.reduce((s, x) => s + x * x, 0);
+    const negated = new ComplexMatrix(5, 5, rankOne.re.map((x) => -x), rankOne.im.map((x) => -x));
+    // −v·v† has eigenvalues −‖v‖² and 0 (four times).
+    expect(smallestEigenvalueInPlace(negated.re, negated.im, 5, work)).toBeCloseTo(-norm2, 12);
+    expect(Math.abs(smallestEigenvalueInPlace(rankOne.re, rankOne.im, 5, work))).toBeLessThan(1e-13 * norm2);
+  });
+
+  it('real Cholesky solve agrees with ml-matrix', () => {
+    const rng = seededRandom(77);
+    const m = 12;
+    const b = Matrix.rand(m, m, { random: rng });
+    const spd = b.mmul(b.transpose()).add(Matrix.eye(m, m).mul(0.1));
+    const rhs = Array.from({ length: m }, () => rng() - 0.5);
+    const factor = Float64Array.from(spd.to1DArray());
+    expect(realCholeskyInPlace(factor, m)).toBe(true);
+    const x = Float64Array.from(rhs);
+    realCholeskySolveInPlace(factor, m, x);
+    // Reference: ml-matrix CholeskyDecomposition.solve.
+    const reference = new CholeskyDecomposition(spd).solve(Matrix.columnVector(rhs)).to1DArray();
+    for (let i = 0; i < m; i++) expect(Math.abs(x[i] - reference[i])).toBeLessThan(1e-10 * (1 + Math.abs(reference[i])));
+    const notDefinite = Float64Array.from(spd.sub(Matrix.eye(m, m).mul(1e6)).to1DArray());
+    expect(realCholeskyInPlace(notDefinite, m)).toBe(false);
+  });
+});
