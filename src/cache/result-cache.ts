@@ -15,14 +15,15 @@ export interface CacheEvent {
 
 /**
  * Which results are worth keeping. Time limits and cancellations depend on the machine and the moment, not
- * on the input, so those results are never stored; an iteration limit is part of the input hash, so it is.
+ * on the input, so those results are never stored; an iteration limit is part of the input hash and a stalled
+ * gap ('no-progress') is reached again by the same input, so those are.
  * INFEASIBLE results are not stored: their Farkas certificate is not re-checked by the certificate verifier,
  * and detecting infeasibility takes a single oracle call anyway.
  */
 export function isCacheable(result: SolveResult): boolean {
   if (result.certificate === null || result.certifiedLowerBound === null) return false;
   if (result.status === 'CERTIFIED') return true;
-  return result.status === 'LIMIT_REACHED' && result.limit === 'iterations';
+  return result.status === 'LIMIT_REACHED' && (result.limit === 'iterations' || result.limit === 'no-progress');
 }
 
 /** The stored form drops fields that describe this particular delivery rather than the answer. */

@@ -33,6 +33,7 @@ const LIMIT_TO_WIRE: Record<StopLimit, StopLimit__Output> = {
   iterations: 'STOP_LIMIT_ITERATIONS',
   time: 'STOP_LIMIT_TIME',
   cancelled: 'STOP_LIMIT_CANCELLED',
+  'no-progress': 'STOP_LIMIT_NO_PROGRESS',
 };
 
 function limitFromWire(name: StopLimit__Output): StopLimit | undefined {

@@ -58,6 +58,7 @@ describe('cache policy', () => {
   it('keeps certified and iteration-limited results, never time/cancel limits, infeasible or failed runs', () => {
     expect(isCacheable(sampleResult('a'))).toBe(true);
     expect(isCacheable({ ...sampleResult('a'), status: 'LIMIT_REACHED', limit: 'iterations' })).toBe(true);
+    expect(isCacheable({ ...sampleResult('a'), status: 'LIMIT_REACHED', limit: 'no-progress' })).toBe(true);
     expect(isCacheable({ ...sampleResult('a'), status: 'LIMIT_REACHED', limit: 'time' })).toBe(false);
     expect(isCacheable({ ...sampleResult('a'), status: 'LIMIT_REACHED', limit: 'cancelled' })).toBe(false);
     expect(isCacheable({ ...sampleResult('a'), status: 'INFEASIBLE', certificate: null, certifiedLowerBound: null })).toBe(false);

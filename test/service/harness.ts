@@ -52,3 +52,28 @@ export async function eventually(condition: () => boolean, timeoutMs: number): P
   }
   return true;
 }
+
+/**
+ * A deliberately slow but valid problem for the timing-sensitive tests (deadline, cancellation, shutdown, queue):
+ * H_A ⊗ H_B with dimension n each, fidelity with the maximally entangled state at least `fidelity`, key = Alice's
+ * computational basis. Each Frank–Wolfe iteration costs tens to hundreds of milliseconds at n = 6, so a run is
+ * still going when the test acts; a time limit bounds it.
+ */
+export function slowProblem(fidelity: number, n = 6): unknown {
+  const d = n * n;
+  const identity = { rows: d, cols: d, re: Array.from({ length: d * d }, (_, k) => (k % (d + 1) === 0 ? 1 : 0)) };
+  const maximallyEntangled = new Array<number>(d * d).fill(0);
+  for (let a = 0; a < n; a++) for (let b = 0; b < n; b++) maximallyEntangled[(a * n + a) * d + (b * n + b)] = 1 / n;
+  const keyProjectors = Array.from({ length: n }, (_, a) => {
+    const re = new Array<number>(d * d).fill(0);
+    for (let b = 0; b < n; b++) re[(a * n + b) * d + (a * n + b)] = 1;
+    return { rows: d, cols: d, re };
+  });
+  return {
+    dimensionA: n,
+    dimensionB: n,
+    constraints: [{ label: 'fidelity', operator: { rows: d, cols: d, re: maximallyEntangled }, lower: fidelity, upper: 1 }],
+    branches: [{ label: 'key', krausOperators: [identity], keyProjectors }],
+    description: 'slow synthetic test problem',
+  };
+}

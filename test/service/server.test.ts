@@ -14,22 +14,24 @@ import { FIELD_METADATA_KEY } from '../../src/service/errors.js';
 import type { BatchRequest } from '../../src/service/generated/renyibound/v1/BatchRequest.js';
 import type { SolveRequest } from '../../src/service/generated/renyibound/v1/SolveRequest.js';
 import { SERVICE_NAME } from '../../src/service/proto.js';
-import { binaryEntropy, eventually, sleep, startTestServer, type TestServer } from './harness.js';
+import { binaryEntropy, eventually, sleep, slowProblem, startTestServer, type TestServer } from './harness.js';
 
 /** Loose gap: these tests check plumbing and certificates, not convergence speed. */
 const GAP = 1e-4;
-/**
- * A solve that runs until stopped: 1e-12 lies below the floating-point margin of the certificate, so the gap
- * can never be certified and the run ends only by its time limit or by cancellation.
- */
+/** Below the certificate's floating-point margin: the slow problem can only end by its time limit or a cancel. */
 const UNREACHABLE_GAP = 1e-12;
 
 function bb84(qberX: number, qberZ = qberX): unknown {
   return buildExample('bb84-entangled', { 'qber-z': qberZ, 'qber-x': qberX });
 }
 
-function slowRequest(qberX: number, timeLimitMs: number): { problem: unknown; entropy: string; settings: { gapTolerance: number; timeLimitMs: number } } {
-  return { problem: bb84(qberX), entropy: 'von-neumann', settings: { gapTolerance: UNREACHABLE_GAP, timeLimitMs } };
+function slowRequest(fidelity: number, timeLimitMs: number): { problem: unknown; entropy: string; settings: { gapTolerance: number; timeLimitMs: number } } {
+  return { problem: slowProblem(fidelity), entropy: 'von-neumann', settings: { gapTolerance: UNREACHABLE_GAP, timeLimitMs } };
+}
+
+/** The same slow request as a wire message for explicit-list batches. */
+function slowWireRequest(fidelity: number, timeLimitMs: number): SolveRequest {
+  return { problem: slowProblem(fidelity) as never, entropy: 'VON_NEUMANN', settings: { gapTolerance: UNREACHABLE_GAP, timeLimitMs } };
 }
 
 function verifies(problemJson: unknown, kind: string, alpha: number | undefined, result: SolveResult): boolean {
@@ -290,7 +292,7 @@ describe('RenyiBound service on loopback', () => {
 
     const timeLimitMs = 8000;
     const started = Date.now();
-    const error = await solveRemote(address, { ...slowRequest(0.041, timeLimitMs), requestId: 'deadline' }, { deadlineMs: 400 }).catch((e: unknown) => e);
+    const error = await solveRemote(address, { ...slowRequest(0.941, timeLimitMs), requestId: 'deadline' }, { deadlineMs: 400 }).catch((e: unknown) => e);
     expect(error).toBeInstanceOf(RemoteCallError);
     expect((error as RemoteCallError).code).toBe(grpc.status.DEADLINE_EXCEEDED);
     // The solve stopped on the flag, long before its own time limit.
@@ -303,14 +305,9 @@ describe('RenyiBound service on loopback', () => {
 
   it('cancelling a batch mid-way stops its running solves and sends nothing more', async () => {
     const timeLimitMs = 8000;
+    const fast = (q: number): SolveRequest => ({ problem: bb84(q) as never, entropy: 'VON_NEUMANN', settings: { gapTolerance: GAP } });
     const batch = solveBatchRemote(address, {
-      grid: {
-        example: 'bb84-entangled',
-        baseParameters: {},
-        axes: [{ name: 'qber-x', values: [0.061, 0.062, 0.063, 0.064, 0.065, 0.066] }],
-        entropies: ['VON_NEUMANN'],
-        settings: { gapTolerance: UNREACHABLE_GAP, timeLimitMs },
-      },
+      requests: { requests: [fast(0.061), fast(0.062), ...[0.951, 0.952, 0.953, 0.954].map((f) => slowWireRequest(f, timeLimitMs))] },
       requestId: 'cancelled-batch',
     });
     const received: RemoteBatchItem[] = [];
@@ -322,7 +319,8 @@ describe('RenyiBound service on loopback', () => {
       }
       return undefined;
     })();
-    expect(await eventually(() => harness.server.pool.pending === 2, 4000)).toBe(true);
+    // Both quick points are in, and both threads are busy with slow ones.
+    expect(await eventually(() => received.length === 2 && harness.server.pool.pending === 2, 8000)).toBe(true);
     const cancelledAt = Date.now();
     batch.cancel();
     const error = await consumer;
@@ -332,42 +330,30 @@ describe('RenyiBound service on loopback', () => {
     expect(await eventually(() => harness.logs.some((l) => l.event === 'batch' && l.requestId === 'cancelled-batch' && l.cancelled === true), 2000)).toBe(true);
     const finished = harness.logs.find((l) => l.event === 'batch' && l.requestId === 'cancelled-batch' && 'done' in l)!;
     expect(finished.done as number).toBeLessThan(6);
-    expect(received).toHaveLength(0);
-    const stopped = solveLogs(harness).filter((l) => l.requestId === 'cancelled-batch');
-    expect(stopped.length).toBeGreaterThan(0);
-    expect(stopped.every((l) => l.limit === 'cancelled')).toBe(true);
-  }, 20_000);
+    expect(received).toHaveLength(2);
+    const slowLines = solveLogs(harness).filter((l) => l.requestId === 'cancelled-batch' && l.status === 'LIMIT_REACHED');
+    expect(slowLines.length).toBe(2);
+    expect(slowLines.every((l) => l.limit === 'cancelled')).toBe(true);
+  }, 30_000);
 
   it('loses no point when a worker thread is killed mid-batch', async () => {
-    const values = [0.071, 0.072, 0.073, 0.074, 0.075, 0.076, 0.077, 0.078];
-    const batch = solveBatchRemote(address, {
-      grid: {
-        example: 'bb84-entangled',
-        baseParameters: {},
-        axes: [{ name: 'qber-x', values }],
-        entropies: ['VON_NEUMANN'],
-        settings: { gapTolerance: UNREACHABLE_GAP, timeLimitMs: 400 },
-      },
-    });
+    const fidelities = [0.961, 0.962, 0.963, 0.964];
     const lossesBefore = harness.server.pool.threadLosses;
-    const items: RemoteBatchItem[] = [];
-    let killed = false;
-    for await (const item of batch.items) {
-      items.push(item);
-      if (!killed) {
-        killed = true;
-        // Both threads are busy with the remaining points at this moment.
-        await harness.server.pool.threads[0].terminate();
-      }
-    }
+    const batch = solveBatchRemote(address, { requests: { requests: fidelities.map((f) => slowWireRequest(f, 600)) } });
+    const consumer = collect(batch.items);
+    // Kill a thread while both are running a point.
+    expect(await eventually(() => harness.server.pool.pending === 2, 8000)).toBe(true);
+    await sleep(150);
+    await harness.server.pool.threads[0].terminate();
+    const items = await consumer;
     expect(harness.server.pool.threadLosses).toBeGreaterThan(lossesBefore);
-    expect(items.map((i) => i.index).sort((a, b) => a - b)).toEqual(values.map((_, i) => i));
+    expect(items.map((i) => i.index).sort((a, b) => a - b)).toEqual(fidelities.map((_, i) => i));
     for (const item of items) {
       expect(item.error).toBeUndefined();
       expect(item.result!.status).toBe('LIMIT_REACHED');
-      expect(verifies(buildExample('bb84-entangled', { 'qber-x': item.point['qber-x'] }), 'von-neumann', undefined, item.result!)).toBe(true);
+      expect(verifies(slowProblem(fidelities[item.index]), 'von-neumann', undefined, item.result!)).toBe(true);
     }
-  }, 30_000);
+  }, 60_000);
 });
 
 describe('queue bound', () => {
@@ -375,9 +361,9 @@ describe('queue bound', () => {
     const harness = await startTestServer({ workers: 1, queueLimit: 0, cacheDirectory: false });
     try {
       const address = harness.server.address;
-      const running = solveRemote(address, slowRequest(0.081, 1500));
+      const running = solveRemote(address, slowRequest(0.971, 1500));
       expect(await eventually(() => harness.server.pool.pending === 1, 4000)).toBe(true);
-      const refused = await solveRemote(address, slowRequest(0.082, 1500)).catch((e: unknown) => e);
+      const refused = await solveRemote(address, slowRequest(0.972, 1500)).catch((e: unknown) => e);
       expect((refused as RemoteCallError).code).toBe(grpc.status.RESOURCE_EXHAUSTED);
       const batchRefused = await rawBatchError(address, {
         grid: { example: 'bb84-entangled', axes: [{ name: 'qber-x', values: [0.05] }], entropies: ['VON_NEUMANN'] },
@@ -394,7 +380,7 @@ describe('graceful shutdown', () => {
   it('goes NOT_SERVING, refuses new calls, and completes the solve in flight', async () => {
     const harness = await startTestServer({ workers: 1, cacheDirectory: false });
     const address = harness.server.address;
-    const running = solveRemote(address, slowRequest(0.091, 1500));
+    const running = solveRemote(address, slowRequest(0.981, 1500));
     expect(await eventually(() => harness.server.pool.pending === 1, 4000)).toBe(true);
     const shutdown = harness.server.shutdown();
     expect(harness.server.status).toBe('NOT_SERVING');

@@ -5,6 +5,7 @@ export const StopLimit = {
   STOP_LIMIT_ITERATIONS: 'STOP_LIMIT_ITERATIONS',
   STOP_LIMIT_TIME: 'STOP_LIMIT_TIME',
   STOP_LIMIT_CANCELLED: 'STOP_LIMIT_CANCELLED',
+  STOP_LIMIT_NO_PROGRESS: 'STOP_LIMIT_NO_PROGRESS',
 } as const;
 
 export type StopLimit =
@@ -16,5 +17,7 @@ export type StopLimit =
   | 2
   | 'STOP_LIMIT_CANCELLED'
   | 3
+  | 'STOP_LIMIT_NO_PROGRESS'
+  | 4
 
 export type StopLimit__Output = typeof StopLimit[keyof typeof StopLimit]
