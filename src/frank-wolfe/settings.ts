@@ -57,6 +57,10 @@ export const TUNING = Object.freeze({
   progressWindow: 150,
   /** …where rising means by more than this share of the requested gap. */
   progressShare: 1e-3,
+  /** Step pairs remembered by the quasi-Newton steps in the tangent space of the equalities. */
+  quasiNewtonMemory: 12,
+  /** A quasi-Newton step whose room (cone or interval) is shorter than this is replaced by a Frank–Wolfe step. */
+  shortestQuasiNewtonStep: 1e-3,
   /** Atoms kept by pairwise steps before the two lightest are merged into their weighted mean. */
   maxAtoms: 60,
   /** Line search stops when |φ'(t)| ≤ this share of |φ'(0)|. */

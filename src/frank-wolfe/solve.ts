@@ -26,6 +26,7 @@ import { linearizationBound, referenceFromSupport, type BoundBreakdown } from '.
 import { SOLVER_VERSION } from '../certificate/version.js';
 import { ActiveSet } from './active-set.js';
 import { derivativeLineSearch } from './line-search.js';
+import { TangentQuasiNewton } from './quasi-newton.js';
 import { resolveSettings, TUNING } from './settings.js';
 import type { Certificate, SolveControl, SolveResult, SolverSettings, StopLimit } from './types.js';
 
@@ -186,6 +187,32 @@ export function solve(
     }
   };
 
+  const qn = new TangentQuasiNewton(TUNING.quasiNewtonMemory);
+  let previous: { state: ComplexMatrix; tangentGradient: ComplexMatrix } | null = null;
+  let quasiNewtonSteps = 0;
+  /** Exact line search along x + t·d on [0, maxStep]; null when F does not decrease. */
+  const lineStep = (direction: ComplexMatrix, slope: number, maxStep: number) => {
+    const trials = new Map<number, ObjectiveEvaluation>();
+    const search = derivativeLineSearch(
+      (step) => {
+        const point = x.clone();
+        addScaledInPlace(point, direction, step);
+        const e = objective.evaluate(point, { assumeFullRank: true });
+        if (!e.gradient) return null;
+        trials.set(step, e);
+        return { step, point, value: e.value, gradient: e.gradient };
+      },
+      direction,
+      slope,
+      maxStep,
+      TUNING.lineSearchTolerance,
+      TUNING.lineSearchEvaluations,
+    );
+    const chosen = search.best;
+    if (!chosen || !(chosen.value <= evaluation.value) || chosen.step <= 0) return null;
+    return { step: chosen.step, point: chosen.point, evaluation: trials.get(chosen.step) as ObjectiveEvaluation };
+  };
+
   for (;;) {
     if (control.isCancelled?.()) {
       limit = 'cancelled';
@@ -235,34 +262,45 @@ export function solve(
       gapAtWindowStart = estimatedGap;
     }
 
+    iterations++;
+    // Quasi-Newton pair from the last move, in the tangent space of the equalities.
+    if (previous) {
+      qn.update(subtract(x, previous.state), subtract(split.stripped, previous.tangentGradient));
+    }
+    previous = { state: x, tangentGradient: split.stripped };
+
+    if (qn.ready) {
+      const direction = oracle.stripEqualitySpan(hermitianPart(qn.direction(split.stripped))).stripped;
+      const slope = traceProductReal(split.stripped, direction);
+      if (slope < 0) {
+        const maxStep = Math.min(
+          1,
+          stepToEigenvalueFloor(x, direction, TUNING.eigenvalueFloor),
+          stepToIntervalBounds(restricted, x, direction),
+        );
+        // A step cut short by the cone or an interval says the optimum sits on a face: Frank–Wolfe handles that.
+        const moved = maxStep >= TUNING.shortestQuasiNewtonStep ? lineStep(direction, slope, maxStep) : null;
+        if (moved) {
+          x = moved.point;
+          evaluation = moved.evaluation;
+          atoms.reset(x);
+          quasiNewtonSteps++;
+          continue;
+        }
+      }
+    }
+
     const toward = hermitianPart(oracle.projectOntoEqualities(answer.point));
     const away = atoms.awayAtom(gradient);
     const direction = subtract(toward, away.point);
     const slope = traceProductReal(gradient, direction);
-    const maxStep = Math.min(away.weight, stepToEigenvalueFloor(x, direction, TUNING.eigenvalueFloor));
-    iterations++;
     if (!(slope < 0)) continue;
-    const trials = new Map<number, ObjectiveEvaluation>();
-    const search = derivativeLineSearch(
-      (step) => {
-        const point = x.clone();
-        addScaledInPlace(point, direction, step);
-        const e = objective.evaluate(point, { assumeFullRank: true });
-        if (!e.gradient) return null;
-        trials.set(step, e);
-        return { step, point, value: e.value, gradient: e.gradient };
-      },
-      direction,
-      slope,
-      maxStep,
-      TUNING.lineSearchTolerance,
-      TUNING.lineSearchEvaluations,
-    );
-    const chosen = search.best;
-    if (!chosen || !(chosen.value <= evaluation.value)) continue;
-    atoms.pairwiseStep(away.index, toward, chosen.step);
-    x = chosen.point;
-    evaluation = trials.get(chosen.step) as ObjectiveEvaluation;
+    const maxStep = Math.min(away.weight, stepToEigenvalueFloor(x, direction, TUNING.eigenvalueFloor));
+    const moved = lineStep(direction, slope, maxStep);
+    if (!moved) continue;
+    atoms.pairwiseStep(away.index, toward, moved.step);
+    x = moved.point;
+    evaluation = moved.evaluation;
   }
 
   // Always certify the last iterate too: a limit is a result with a valid bound.
@@ -322,11 +360,13 @@ export function solve(
 export function stepToEigenvalueFloor(x: ComplexMatrix, direction: ComplexMatrix, floor: number): number {
   const { values, vectors } = eigh(x);
   const n = values.length;
-  // An iterate already below the floor (a warm start, a face point) may not sink further than halfway to zero.
-  floor = Math.min(floor, 0.5 * values[0]);
-  const scaled = multiplyAdjointLeft(vectors, multiply(direction, vectors));
+  if (!(values[0] > 0)) return 0;
   const inverseRoot = new Float64Array(n);
-  for (let i = 0; i < n; i++) inverseRoot[i] = 1 / Math.sqrt(Math.max(values[i] - floor, Number.MIN_VALUE));
+  // An iterate already below the floor (a warm start, a face point) may not sink any further.
+  floor = Math.min(floor, values[0]);
+  const scaled = multiplyAdjointLeft(vectors, multiply(direction, vectors));
+  // At the floor itself only directions that do not lower λ_min are allowed (the scaled matrix is then ill-posed).
+  for (let i = 0; i < n; i++) inverseRoot[i] = 1 / Math.sqrt(Math.max(values[i] - floor, 1e-300));
   for (let i = 0; i < n; i++) {
     for (let j = 0; j < n; j++) {
       scaled.re[i * n + j] *= -inverseRoot[i] * inverseRoot[j];
@@ -336,6 +376,19 @@ export function stepToEigenvalueFloor(x: ComplexMatrix, direction: ComplexMatrix
   // x − floor + t·d ⪰ 0 ⟺ 1 − t·M ⪰ 0 with M = (Λ−floor)^{-1/2} V†(−d)V (Λ−floor)^{-1/2}.
   const largest = eigvalsh(scaled)[n - 1];
   return largest > 0 ? 1 / largest : Infinity;
+}
+
+/** The largest t keeping every interval constraint lower ≤ Tr(Γ(x + t·d)) ≤ upper (equalities are kept by d). */
+export function stepToIntervalBounds(problem: Problem, x: ComplexMatrix, direction: ComplexMatrix): number {
+  let step = Infinity;
+  for (const c of problem.constraints) {
+    if (c.lower === c.upper) continue;
+    const rate = traceProductReal(c.operator, direction);
+    const value = traceProductReal(c.operator, x);
+    if (rate > 0 && Number.isFinite(c.upper)) step = Math.min(step, Math.max(0, (c.upper - value) / rate));
+    if (rate < 0 && Number.isFinite(c.lower)) step = Math.min(step, Math.max(0, (c.lower - value) / rate));
+  }
+  return step;
 }
 
 /** The oracle's interior point, or a warm start projected onto the equalities and pulled inside the cone. */
