@@ -4,6 +4,8 @@ import { Command } from 'commander';
 import { packageVersion } from './io.js';
 import { register as registerExample } from './example.js';
 import { register as registerEvaluate } from './evaluate.js';
+import { register as registerSolve } from './solve.js';
+import { register as registerVerify } from './verify.js';
 
 const program = new Command('renyi-bound')
   .description('certified lower bounds on single-round conditional Rényi entropies for QKD security proofs')
@@ -11,5 +13,7 @@ const program = new Command('renyi-bound')
 
 registerExample(program);
 registerEvaluate(program);
+registerSolve(program);
+registerVerify(program);
 
 await program.parseAsync(process.argv);

@@ -1,0 +1,91 @@
+// `renyi-bound solve <problem.json | -> --entropy <kind> [--alpha a] [--gap g] [--max-iterations n]
+//  [--time-limit-ms t] [--warm-start matrix.json] [--server host:port]`: a certified bound as JSON.
+import { Command } from 'commander';
+import { solve } from '../frank-wolfe/solve.js';
+import { SettingsError } from '../frank-wolfe/settings.js';
+import type { SolveResult, SolverSettings } from '../frank-wolfe/types.js';
+import { densityOperatorFromJson } from '../problem/state.js';
+import { ValidationError, entropyRequestFrom, parseProblemJson } from '../problem/validate.js';
+import { closeClients, RemoteCallError, solveRemote } from '../service/client.js';
+import { parseNumberOption, printJson, readJsonInput, withInputErrors } from './io.js';
+
+/** Exit codes by status: a limit is a result (0); infeasible data and numerical failure have their own codes. */
+export const EXIT_CODES: Record<SolveResult['status'], number> = {
+  CERTIFIED: 0,
+  LIMIT_REACHED: 0,
+  INFEASIBLE: 2,
+  NUMERICAL_ERROR: 3,
+};
+
+interface SolveOptions {
+  entropy?: string;
+  alpha?: string;
+  gap?: string;
+  maxIterations?: string;
+  timeLimitMs?: string;
+  warmStart?: string;
+  server?: string;
+}
+
+function settingsFrom(options: SolveOptions): Partial<SolverSettings> {
+  const settings: Partial<SolverSettings> = {};
+  if (options.gap !== undefined) settings.gapTolerance = parseNumberOption(options.gap, 'gap');
+  if (options.maxIterations !== undefined) settings.maxIterations = parseNumberOption(options.maxIterations, 'max-iterations');
+  if (options.timeLimitMs !== undefined) settings.timeLimitMs = parseNumberOption(options.timeLimitMs, 'time-limit-ms');
+  return settings;
+}
+
+export function register(program: Command): void {
+  program
+    .command('solve')
+    .description('certified lower bound on the entropy over every state consistent with the problem')
+    .argument('<problem>', 'problem JSON file, or - for standard input')
+    .option('--entropy <kind>', 'von-neumann, petz-up, petz-down or sandwiched-up (default: the problem’s entropy field)')
+    .option('--alpha <a>', 'Rényi order in (1, 2] (Rényi kinds only)')
+    .option('--gap <g>', 'requested certified gap in bits (default 1e-6)')
+    .option('--max-iterations <n>', 'iteration limit (default 20000)')
+    .option('--time-limit-ms <t>', 'time limit in milliseconds (default 120000)')
+    .option('--warm-start <matrix.json>', 'density operator to start from')
+    .option('--server <host:port>', 'send the request to a running renyi-bound server instead of solving here')
+    .action(
+      withInputErrors(async (problemSource: string, options: SolveOptions) => {
+        const alpha = options.alpha === undefined ? undefined : parseNumberOption(options.alpha, 'alpha');
+        if (options.entropy === undefined && alpha !== undefined) throw new ValidationError('alpha', 'given without --entropy');
+        const problemJson = readJsonInput(problemSource, 'problem');
+        const parsed = parseProblemJson(problemJson);
+        const request = options.entropy === undefined ? parsed.request : entropyRequestFrom(options.entropy, alpha);
+        if (request === undefined) throw new ValidationError('entropy', 'is required: give --entropy or set entropy in the problem');
+        const settings = settingsFrom(options);
+        const dimension = parsed.problem.dimensionA * parsed.problem.dimensionB;
+        const warmStartJson = options.warmStart === undefined ? undefined : readJsonInput(options.warmStart, 'warm-start');
+        const warmStart =
+          warmStartJson === undefined ? undefined : densityOperatorFromJson(warmStartJson, 'warm-start', dimension);
+        let result: SolveResult;
+        if (options.server !== undefined) {
+          try {
+            result = await solveRemote(options.server, {
+              problem: problemJson,
+              entropy: request.kind,
+              alpha: request.alpha,
+              settings,
+              warmStart: warmStartJson as never,
+            });
+          } catch (error) {
+            if (error instanceof RemoteCallError && error.field) throw new ValidationError(error.field, error.details);
+            throw error;
+          } finally {
+            closeClients();
+          }
+        } else {
+          try {
+            result = solve(parsed.problem, request, settings, { warmStart });
+          } catch (error) {
+            if (error instanceof SettingsError) throw new ValidationError(error.field.replace(/^settings\./, ''), error.reason);
+            throw error;
+          }
+        }
+        printJson(result);
+        process.exitCode = EXIT_CODES[result.status];
+      }),
+    );
+}

@@ -1,0 +1,36 @@
+// `renyi-bound verify <result.json | -> --problem <problem.json>`: recomputes a certificate's bound from the
+// problem alone (no optimisation) and says whether the claimed bound holds.
+import { Command } from 'commander';
+import { verifyResult, type VerificationReport } from '../certificate/verify.js';
+import type { SolveResult } from '../frank-wolfe/types.js';
+import { ValidationError, entropyRequestFrom, problemFromJson } from '../problem/validate.js';
+import { printJson, readJsonInput, withInputErrors } from './io.js';
+
+export function register(program: Command): void {
+  program
+    .command('verify')
+    .description('re-check the certificate of a solve result against its problem')
+    .argument('<result>', 'result JSON as printed by solve, or - for standard input')
+    .requiredOption('--problem <problem.json>', 'the problem the result claims to bound')
+    .action(
+      withInputErrors((resultSource: string, options: { problem: string }) => {
+        const result = readJsonInput(resultSource, 'result') as Partial<SolveResult> | null;
+        if (result === null || typeof result !== 'object') throw new ValidationError('result', 'must be a JSON object');
+        const problem = problemFromJson(readJsonInput(options.problem, 'problem'));
+        let report: VerificationReport;
+        try {
+          const request = entropyRequestFrom(String(result.entropy), result.alpha ?? undefined);
+          report = verifyResult(problem, request, {
+            certificate: result.certificate ?? null,
+            certifiedLowerBound: result.certifiedLowerBound ?? null,
+            inputHash: String(result.inputHash),
+          });
+        } catch (error) {
+          // A malformed certificate is an invalid certificate, reported as such.
+          report = { valid: false, certifiedLowerBound: null, reason: (error as Error).message };
+        }
+        printJson(report);
+        process.exitCode = report.valid ? 0 : 1;
+      }),
+    );
+}
