@@ -6,6 +6,10 @@ import { register as registerExample } from './example.js';
 import { register as registerEvaluate } from './evaluate.js';
 import { register as registerSolve } from './solve.js';
 import { register as registerVerify } from './verify.js';
+import { register as registerServe } from './serve.js';
+import { register as registerSweep } from './sweep.js';
+import { register as registerHealth } from './health.js';
+import { register as registerDemo } from './demo.js';
 
 const program = new Command('renyi-bound')
   .description('certified lower bounds on single-round conditional Rényi entropies for QKD security proofs')
@@ -15,5 +19,9 @@ registerExample(program);
 registerEvaluate(program);
 registerSolve(program);
 registerVerify(program);
+registerServe(program);
+registerSweep(program);
+registerHealth(program);
+registerDemo(program);
 
 await program.parseAsync(process.argv);

@@ -1,0 +1,61 @@
+// `renyi-bound serve`: runs the gRPC service until SIGTERM/SIGINT, then drains and exits 0.
+import { Command } from 'commander';
+import { DEFAULT_HOST, DEFAULT_PORT, RenyiBoundServer } from '../service/server.js';
+import { defaultCacheDirectory } from '../cache/sqlite.js';
+import { ValidationError } from '../problem/errors.js';
+import { withInputErrors } from './io.js';
+import { integerOption, MAX_WORKERS } from './service-options.js';
+
+/** Largest queue accepted on the command line. */
+const MAX_QUEUE_LIMIT = 1_000_000;
+
+interface ServeOptions {
+  host: string;
+  port: string;
+  workers?: string;
+  cacheDir?: string;
+  diskCache: boolean;
+  redisUrl?: string;
+  queueLimit?: string;
+}
+
+export function register(program: Command): void {
+  program
+    .command('serve')
+    .description('run the gRPC service (renyibound.v1.RenyiBound, grpc.health.v1.Health, server reflection)')
+    .option('--host <host>', 'interface to bind (loopback unless told otherwise)', DEFAULT_HOST)
+    .option('--port <port>', 'TCP port; 0 picks a free one', String(DEFAULT_PORT))
+    .option('--workers <n>', 'solver threads (default: the number of cores)')
+    .option('--cache-dir <dir>', `directory of the SQLite result cache (default: ${defaultCacheDirectory()})`)
+    .option('--no-disk-cache', 'keep results in memory only (no SQLite file)')
+    .option('--redis-url <url>', 'Redis shared between replicas, e.g. redis://127.0.0.1:6379')
+    .option('--queue-limit <n>', 'solves allowed to wait for a thread before RESOURCE_EXHAUSTED (default: 16 per thread)')
+    .action(
+      withInputErrors(async (options: ServeOptions) => {
+        const settings = {
+          host: options.host,
+          port: integerOption(options.port, '--port', 0, 65535),
+          workers: integerOption(options.workers, '--workers', 1, MAX_WORKERS),
+          queueLimit: integerOption(options.queueLimit, '--queue-limit', 0, MAX_QUEUE_LIMIT),
+          cacheDirectory: options.diskCache ? options.cacheDir : (false as const),
+          redisUrl: options.redisUrl,
+        };
+        let server: RenyiBoundServer;
+        try {
+          server = await RenyiBoundServer.start(settings);
+        } catch (error) {
+          // The usual start-up failures are bad option values: an unreachable Redis, a port in use.
+          const message = (error as Error).message;
+          if (/Redis/.test(message)) throw new ValidationError('--redis-url', message);
+          if (/bind|address|EADDRINUSE|port/i.test(message)) throw new ValidationError('--port', message);
+          throw error;
+        }
+        const stop = (signal: string) => {
+          server.logger.info({ event: 'signal', signal }, 'shutting down');
+          void server.shutdown().then(() => process.exit(0));
+        };
+        process.once('SIGTERM', () => stop('SIGTERM'));
+        process.once('SIGINT', () => stop('SIGINT'));
+      }),
+    );
+}
