@@ -10,6 +10,9 @@ import {
 import { eigh } from '../linear-algebra/eigen.js';
 import type { Objective, ReferenceBlocks, BranchSupport } from '../objectives/index.js';
 import type { Problem } from '../problem/model.js';
+import { compressToFace, type FeasibleFace } from '../problem/feasible-face.js';
+import { matrixFromJson } from '../problem/json.js';
+import type { Certificate } from '../frank-wolfe/types.js';
 import { pinchedBlocks } from '../objectives/spectral-blocks.js';
 
 /** Generous constant c in the eigensolver backward-error scale c·n·u·‖A‖_F used for the margin. */
@@ -123,4 +126,33 @@ export function referenceToSupport(support: BranchSupport, referenceOnOutput: Co
 /** Blocks on the pinched support → τ_c on H_c. */
 export function referenceFromSupport(support: BranchSupport, blocks: ComplexMatrix[]): ComplexMatrix {
   return conjugate(support.basis, directSum(blocks));
+}
+
+/**
+ * The bound exactly as a verifier recomputes it from a certificate's stored numbers (compressing the stored state
+ * onto the face, converting stored τ to the supports); the solver claims this very number, so a re-check on the
+ * same platform reproduces it bit for bit.
+ */
+export function certificateBreakdown(
+  face: FeasibleFace,
+  restricted: Problem,
+  objective: Objective,
+  certificate: Pick<Certificate, 'linearizationState' | 'referenceStates' | 'multipliersLower' | 'multipliersUpper'>,
+): BoundBreakdown {
+  const reduced = compressToFace(face, matrixFromJson(certificate.linearizationState, 'certificate.linearizationState'));
+  const stored = certificate.referenceStates;
+  const reference =
+    objective.request.kind === 'sandwiched-up' && stored
+      ? objective.supports.map((support, c) =>
+          referenceToSupport(support, matrixFromJson(stored[c], `certificate.referenceStates[${c}]`)),
+        )
+      : undefined;
+  return linearizationBound(
+    restricted,
+    objective,
+    reduced,
+    certificate.multipliersLower,
+    certificate.multipliersUpper,
+    reference,
+  );
 }

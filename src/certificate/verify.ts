@@ -7,7 +7,7 @@ import { inputHash } from '../problem/hash.js';
 import { matrixFromJson } from '../problem/json.js';
 import type { EntropyRequest, Problem } from '../problem/model.js';
 import type { Certificate, SolveResult } from '../frank-wolfe/types.js';
-import { linearizationBound, referenceToSupport } from './bound.js';
+import { certificateBreakdown, referenceToSupport } from './bound.js';
 import { SOLVER_VERSION } from './version.js';
 
 export interface VerificationReport {
@@ -80,33 +80,23 @@ export function verifyCertificate(
   if (!(eigh(reduced).values[0] > 0)) return reject('linearization state is not full rank on the feasible face');
 
   const objective = createObjective(restricted, request);
-  let reference;
   if (objective.request.kind === 'sandwiched-up') {
     const stored = certificate.referenceStates;
     if (!stored || stored.length !== objective.supports.length) {
       return reject(`sandwiched-up needs ${objective.supports.length} reference states`);
     }
     try {
-      reference = objective.supports.map((support, c) =>
-        referenceToSupport(support, matrixFromJson(stored[c], `certificate.referenceStates[${c}]`)),
-      );
+      for (const [c, support] of objective.supports.entries()) {
+        const blocks = referenceToSupport(support, matrixFromJson(stored[c], `certificate.referenceStates[${c}]`));
+        for (const block of blocks) {
+          if (!(eigh(block).values[0] > 0)) return reject('reference state τ is not full rank on every key block');
+        }
+      }
     } catch (error) {
       return reject((error as Error).message);
     }
-    for (const blocks of reference) {
-      for (const block of blocks) {
-        if (!(eigh(block).values[0] > 0)) return reject('reference state τ is not full rank on every key block');
-      }
-    }
   }
-  const breakdown = linearizationBound(
-    restricted,
-    objective,
-    reduced,
-    certificate.multipliersLower,
-    certificate.multipliersUpper,
-    reference,
-  );
+  const breakdown = certificateBreakdown(face, restricted, objective, certificate);
   if (!Number.isFinite(breakdown.lowerBound)) return reject('recomputed bound is not finite');
   if (breakdown.lowerBound < claimed) {
     return reject(`recomputed bound ${breakdown.lowerBound} is below the claimed ${claimed}`, breakdown.lowerBound);

@@ -22,7 +22,12 @@ import { compressToFace, feasibleFace, liftFromFace, restrictToFace, type Feasib
 import { inputHash } from '../problem/hash.js';
 import { matrixToJson } from '../problem/json.js';
 import type { EntropyRequest, Problem } from '../problem/model.js';
-import { linearizationBound, referenceFromSupport, type BoundBreakdown } from '../certificate/bound.js';
+import {
+  certificateBreakdown,
+  linearizationBound,
+  referenceFromSupport,
+  type BoundBreakdown,
+} from '../certificate/bound.js';
 import { SOLVER_VERSION } from '../certificate/version.js';
 import { ActiveSet } from './active-set.js';
 import { derivativeLineSearch } from './line-search.js';
@@ -312,7 +317,18 @@ export function solve(
   if (best === null) return failure('no finite certified bound could be computed', iterations);
   const certified: CertifiedPoint = best;
   const upperBound = evaluation.value;
-  const lowerBound = certified.breakdown.lowerBound;
+  const stored = {
+    linearizationState: matrixToJson(liftFromFace(face, certified.state)),
+    referenceStates: certified.reference
+      ? objective.supports.map((support, c) => matrixToJson(referenceFromSupport(support, certified.reference![c])))
+      : undefined,
+    multipliersLower: Array.from(certified.multipliersLower),
+    multipliersUpper: Array.from(certified.multipliersUpper),
+  };
+  // Claim exactly what a verifier recomputes from the stored numbers.
+  const claimed = certificateBreakdown(face, restricted, objective, stored);
+  if (!Number.isFinite(claimed.lowerBound)) return failure('the stored certificate does not give a finite bound', iterations);
+  const lowerBound = claimed.lowerBound;
   const gap = upperBound - lowerBound;
   const certificate: Certificate = {
     inputHash: hash,
@@ -320,14 +336,9 @@ export function solve(
     settings: { gapTolerance: settings.gapTolerance, maxIterations: settings.maxIterations },
     entropy: entropy.kind,
     alpha,
-    linearizationState: matrixToJson(liftFromFace(face, certified.state)),
-    referenceStates: certified.reference
-      ? objective.supports.map((support, c) => matrixToJson(referenceFromSupport(support, certified.reference![c])))
-      : undefined,
-    multipliersLower: Array.from(certified.multipliersLower),
-    multipliersUpper: Array.from(certified.multipliersUpper),
+    ...stored,
     claimedBound: lowerBound,
-    toleranceMargin: certified.breakdown.margin,
+    toleranceMargin: claimed.margin,
   };
   const finalState = liftFromFace(face, x);
   const status = gap <= settings.gapTolerance ? 'CERTIFIED' : 'LIMIT_REACHED';
@@ -342,8 +353,8 @@ export function solve(
     certifiedLowerBound: lowerBound,
     upperBound,
     gap,
-    toleranceMargin: certified.breakdown.margin,
-    statisticalSlack: certified.breakdown.statisticalSlack,
+    toleranceMargin: claimed.margin,
+    statisticalSlack: claimed.statisticalSlack,
     maxConstraintViolation: maxConstraintViolation(problem, finalState),
     iterations,
     seconds: elapsed(),
