@@ -1,0 +1,96 @@
+import { describe, expect, it } from 'vitest';
+import { ComplexMatrix, directSum, kron } from '../../src/linear-algebra/complex-matrix.js';
+import { eigh, eighJacobi, eigvalsh } from '../../src/linear-algebra/eigen.js';
+import { randomDensity, randomHermitian, randomIsometry, seededRandom } from '../helpers/random.js';
+import { fromSpectrum, orthonormalityDefect, relativeResidual } from './eigen-helpers.js';
+
+const ACCURACY = 1e-12;
+
+/** Wilkinson's W⁺_{2m+1}: diagonal |m−i|, unit off-diagonals; its large eigenvalues come in nearly equal pairs. */
+function wilkinson(m: number): ComplexMatrix {
+  const n = 2 * m + 1;
+  const w = new ComplexMatrix(n, n);
+  for (let i = 0; i < n; i++) {
+    w.re[i * n + i] = Math.abs(m - i);
+    if (i + 1 < n) {
+      w.re[i * n + i + 1] = 1;
+      w.re[(i + 1) * n + i] = 1;
+    }
+  }
+  return w;
+}
+
+describe('hard cases for the eigensolver', () => {
+  it('Wilkinson W⁺21: nearly equal eigenvalue pairs, orthonormal vectors, agreement with Jacobi', () => {
+    const w = wilkinson(10);
+    const e = eigh(w);
+    expect(relativeResidual(w, e)).toBeLessThanOrEqual(ACCURACY);
+    expect(orthonormalityDefect(e.vectors)).toBeLessThanOrEqual(ACCURACY);
+    // Published value, from memory (Wilkinson, The Algebraic Eigenvalue Problem, 1965): largest eigenvalue 10.746194182903…
+    expect(e.values[20]).toBeCloseTo(10.746194182903, 11);
+    const reference = eighJacobi(w).values;
+    for (let i = 0; i < 21; i++) expect(Math.abs(e.values[i] - reference[i])).toBeLessThanOrEqual(1e-13 * 11);
+  });
+
+  it('graded spectrum 1 … 1e-15 in a random basis', () => {
+    const n = 16;
+    const d = Array.from({ length: n }, (_, i) => 10 ** -i);
+    const a = fromSpectrum(randomIsometry(n, n, seededRandom(1)), d);
+    const e = eigh(a);
+    expect(relativeResidual(a, e)).toBeLessThanOrEqual(ACCURACY);
+    expect(orthonormalityDefect(e.vectors)).toBeLessThanOrEqual(ACCURACY);
+    expect(e.values[n - 1]).toBeCloseTo(1, 14);
+  });
+
+  it('tight cluster 1 + k·1e-14 plus outliers', () => {
+    const d = [...Array.from({ length: 10 }, (_, k) => 1 + k * 1e-14), -3, 5, 0];
+    const a = fromSpectrum(randomIsometry(d.length, d.length, seededRandom(2)), d);
+    const e = eigh(a);
+    expect(relativeResidual(a, e)).toBeLessThanOrEqual(ACCURACY);
+    expect(orthonormalityDefect(e.vectors)).toBeLessThanOrEqual(ACCURACY);
+  });
+
+  it('block-diagonal (pinched) and Kronecker-structured inputs with exact zero blocks', () => {
+    const rng = seededRandom(3);
+    const blocks = directSum([randomHermitian(3, rng), ComplexMatrix.zeros(2), randomDensity(4, rng, 1), randomHermitian(1, rng)]);
+    const structured = kron(randomDensity(3, rng, 2), randomHermitian(4, rng));
+    for (const a of [blocks, structured]) {
+      const e = eigh(a);
+      expect(relativeResidual(a, e)).toBeLessThanOrEqual(ACCURACY);
+      expect(orthonormalityDefect(e.vectors)).toBeLessThanOrEqual(ACCURACY);
+      const only = eigvalsh(a);
+      for (let i = 0; i < a.rows; i++) expect(Math.abs(only[i] - e.values[i])).toBeLessThanOrEqual(1e-13 * a.rows);
+    }
+  });
+
+  it('one dominant entry with the rest at rounding level, and a permuted diagonal with complex phases', () => {
+    const n = 9;
+    const a = randomHermitian(n, seededRandom(4));
+    for (let k = 0; k < n * n; k++) {
+      a.re[k] *= 1e-17;
+      a.im[k] *= 1e-17;
+    }
+    a.re[4 * n + 4] = 1;
+    const e = eigh(a);
+    expect(relativeResidual(a, e)).toBeLessThanOrEqual(ACCURACY);
+    expect(orthonormalityDefect(e.vectors)).toBeLessThanOrEqual(ACCURACY);
+
+    // Off-diagonal-only complex "permutation" matrix: eigenvalues ±1.
+    const p = new ComplexMatrix(4, 4);
+    p.set(0, 3, 0, 1);
+    p.set(3, 0, 0, -1);
+    p.set(1, 2, Math.SQRT1_2, Math.SQRT1_2);
+    p.set(2, 1, Math.SQRT1_2, -Math.SQRT1_2);
+    const ep = eigh(p);
+    expect(Array.from(ep.values).map((x) => Math.round(x * 1e12) / 1e12)).toEqual([-1, -1, 1, 1]);
+    expect(relativeResidual(p, ep)).toBeLessThanOrEqual(ACCURACY);
+  });
+
+  it('many calls of mixed sizes reuse scratch buffers without cross-talk', () => {
+    const rng = seededRandom(5);
+    const inputs = [3, 7, 3, 12, 7, 2, 12].map((n) => randomHermitian(n, rng));
+    const first = inputs.map((a) => eigh(a).values);
+    const second = inputs.map((a) => eigh(a).values);
+    for (let k = 0; k < inputs.length; k++) expect(Array.from(second[k])).toEqual(Array.from(first[k]));
+  });
+});
