@@ -1,0 +1,115 @@
+// The independent verifier: tampering is caught, the margin covers rounding, and no optimiser code is imported.
+import { readFileSync } from 'node:fs';
+import { dirname, join, resolve } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { describe, expect, it } from 'vitest';
+import { linearizationBound } from '../../src/certificate/bound.js';
+import { verifyResult } from '../../src/certificate/verify.js';
+import { solve } from '../../src/frank-wolfe/solve.js';
+import { ComplexMatrix, conjugate, multiply, adjoint } from '../../src/linear-algebra/complex-matrix.js';
+import { createObjective } from '../../src/objectives/index.js';
+import { matrixFromJson } from '../../src/problem/json.js';
+import type { EntropyKind, Problem } from '../../src/problem/model.js';
+import { randomUnitary, seededRandom } from '../helpers/random.js';
+import { example } from '../frank-wolfe/helpers.js';
+
+const here = dirname(fileURLToPath(import.meta.url));
+const sourceRoot = resolve(here, '../../src');
+
+/** Every module reachable from `file` through non-type imports. */
+function importClosure(file: string, seen = new Set<string>()): Set<string> {
+  if (seen.has(file)) return seen;
+  seen.add(file);
+  const text = readFileSync(file, 'utf8');
+  for (const match of text.matchAll(/^\s*(?:import|export)\s+(?!type\b)[^'"]*?from\s+'(\.[^']+)'/gm)) {
+    importClosure(resolve(dirname(file), match[1].replace(/\.js$/, '.ts')), seen);
+  }
+  return seen;
+}
+
+describe('the verifier stands alone', () => {
+  it('imports no optimiser code (Frank–Wolfe driver, line search, oracle)', () => {
+    const closure = [...importClosure(join(sourceRoot, 'certificate/verify.ts'))].map((f) => f.slice(sourceRoot.length + 1));
+    expect(closure).toContain('certificate/bound.ts');
+    expect(closure.filter((f) => f.startsWith('frank-wolfe/') || f.startsWith('oracle/'))).toEqual([]);
+  });
+});
+
+describe('tampered certificates are rejected', () => {
+  const problem = example('bb84-entangled', { 'qber-z': 0.04, 'qber-x': 0.06 });
+  const request = { kind: 'petz-up' as EntropyKind, alpha: 1.5 };
+  const result = solve(problem, request);
+  const copy = () => JSON.parse(JSON.stringify(result)) as typeof result;
+
+  it('accepts the untouched certificate, and verifies after a JSON round trip', () => {
+    expect(verifyResult(problem, request, copy()).valid).toBe(true);
+  });
+
+  it('rejects a raised claimed bound', () => {
+    const tampered = copy();
+    tampered.certificate!.claimedBound += 1e-9;
+    tampered.certifiedLowerBound = tampered.certificate!.claimedBound;
+    const report = verifyResult(problem, request, tampered);
+    expect(report.valid).toBe(false);
+    expect(report.reason).toMatch(/below the claimed/);
+  });
+
+  it('rejects a changed multiplier', () => {
+    const tampered = copy();
+    const c = tampered.certificate!;
+    const i = c.multipliersLower.findIndex((y, k) => y + c.multipliersUpper[k] > 0);
+    c.multipliersLower[i] += 0.5;
+    expect(verifyResult(problem, request, tampered).valid).toBe(false);
+  });
+
+  it('rejects a certificate for another problem (input hash)', () => {
+    const other = example('bb84-entangled', { 'qber-z': 0.04, 'qber-x': 0.061 });
+    const report = verifyResult(other, request, copy());
+    expect(report.valid).toBe(false);
+    expect(report.reason).toMatch(/input hash/);
+  });
+
+  it('rejects a negative multiplier and another entropy kind', () => {
+    const negative = copy();
+    negative.certificate!.multipliersUpper[0] = -1;
+    expect(verifyResult(problem, request, negative).reason).toMatch(/non-negative/);
+    expect(verifyResult(problem, { kind: 'petz-down', alpha: 1.5 }, copy()).valid).toBe(false);
+  });
+});
+
+/**
+ * Deliberately perturbed computation: the same bound evaluated in a random unitary basis (Kraus K·U†,
+ * constraints UΓU†, ρ' → Uρ'U†) is mathematically identical, so the spread must stay inside the reported margin.
+ */
+function rotated(problem: Problem, u: ComplexMatrix): Problem {
+  return {
+    ...problem,
+    constraints: problem.constraints.map((c) => ({ ...c, operator: conjugate(u, c.operator) })),
+    branches: problem.branches.map((b) => ({ ...b, krausOperators: b.krausOperators.map((k) => multiply(k, adjoint(u))) })),
+  };
+}
+
+describe('the floating-point margin covers rounding (MATH.md §5: conservative estimate, not interval arithmetic)', () => {
+  const cases: [string, Record<string, number>, EntropyKind, number | undefined][] = [
+    ['bb84-entangled', { 'qber-z': 0.03, 'qber-x': 0.05 }, 'von-neumann', undefined],
+    ['chsh-tested', { 'win-probability': 0.85 }, 'petz-up', 1.3],
+    ['six-state', { qber: 0.04 }, 'petz-down', 1.7],
+  ];
+  for (const [name, params, kind, alpha] of cases) {
+    it(`${name}, ${kind}: bounds recomputed in 8 random bases stay within the margin`, () => {
+      const problem = example(name, params);
+      const result = solve(problem, { kind, alpha });
+      const cert = result.certificate!;
+      const state = matrixFromJson(cert.linearizationState, 'state');
+      const reference = linearizationBound(problem, createObjective(problem, { kind, alpha }), state, cert.multipliersLower, cert.multipliersUpper);
+      const rng = seededRandom(2024);
+      for (let trial = 0; trial < 8; trial++) {
+        const u = randomUnitary(problem.dimensionA * problem.dimensionB, rng);
+        const turned = rotated(problem, u);
+        const again = linearizationBound(turned, createObjective(turned, { kind, alpha }), conjugate(u, state), cert.multipliersLower, cert.multipliersUpper);
+        const unmargined = reference.lowerBound + reference.margin;
+        expect(Math.abs(again.lowerBound + again.margin - unmargined)).toBeLessThanOrEqual(Math.min(reference.margin, again.margin));
+      }
+    });
+  }
+});
