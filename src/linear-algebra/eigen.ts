@@ -191,6 +191,9 @@ const workspaces = new Map<number, Tridiagonal>();
 /** Distinct sizes whose scratch buffers are kept; beyond this the cache is cleared. */
 const MAX_CACHED_WORKSPACES = 16;
 
+/** Sizes above this get fresh buffers each call (their O(n³) work dwarfs allocation; keeps memory bounded). */
+const MAX_CACHED_WORKSPACE_SIZE = 512;
+
 function workspaceFor(n: number): Tridiagonal {
   const cached = workspaces.get(n);
   if (cached !== undefined) return cached;
@@ -213,7 +216,7 @@ function workspaceFor(n: number): Tridiagonal {
     sines: new Float64Array(n),
     back: Array.from({ length: 8 }, () => new Float64Array(n)),
   };
-  workspaces.set(n, created);
+  if (n <= MAX_CACHED_WORKSPACE_SIZE) workspaces.set(n, created);
   return created;
 }
 
