@@ -1,0 +1,203 @@
+// Benchmarks of the entropy objectives (value + gradient) and of whole certified solves on the examples.
+import { ComplexMatrix, kron, traceProductReal } from '../linear-algebra/complex-matrix.js';
+import { solve } from '../frank-wolfe/solve.js';
+import { createObjective } from '../objectives/index.js';
+import type { EntropyKind, EntropyRequest, Problem } from '../problem/model.js';
+import { problemFromJson } from '../problem/validate.js';
+import { buildExample } from '../protocols/index.js';
+import { medianMilliseconds, type BenchTable } from './linear-algebra.js';
+
+/** Deterministic uniform numbers so every run times the same inputs. */
+function uniformSource(seed: number): () => number {
+  let state = seed >>> 0;
+  return () => {
+    state = (Math.imul(state, 1664525) + 1013904223) >>> 0;
+    return state / 4294967296;
+  };
+}
+
+function randomMatrix(rows: number, cols: number, rng: () => number): ComplexMatrix {
+  const m = new ComplexMatrix(rows, cols);
+  for (let k = 0; k < m.re.length; k++) {
+    m.re[k] = rng() - 0.5;
+    m.im[k] = rng() - 0.5;
+  }
+  return m;
+}
+
+/** A full-rank density operator G·G†/Tr. */
+function benchDensity(d: number, seed: number): ComplexMatrix {
+  const g = randomMatrix(d, d, uniformSource(seed));
+  const rho = new ComplexMatrix(d, d);
+  for (let i = 0; i < d; i++) {
+    for (let j = 0; j < d; j++) {
+      let sr = 0;
+      let si = 0;
+      for (let k = 0; k < d; k++) {
+        sr += g.re[i * d + k] * g.re[j * d + k] + g.im[i * d + k] * g.im[j * d + k];
+        si += g.im[i * d + k] * g.re[j * d + k] - g.re[i * d + k] * g.im[j * d + k];
+      }
+      rho.re[i * d + j] = sr;
+      rho.im[i * d + j] = si;
+    }
+  }
+  let trace = 0;
+  for (let i = 0; i < d; i++) trace += rho.re[i * d + i];
+  for (let k = 0; k < rho.re.length; k++) {
+    rho.re[k] /= trace;
+    rho.im[k] /= trace;
+  }
+  return rho;
+}
+
+/** Key = Alice's qubit outcome on C² ⊗ C^{d/2}, one branch with the identity Kraus operator. */
+function qubitKeyProblem(d: number): Problem {
+  const dB = d / 2;
+  const projector = (k: number) => {
+    const p = ComplexMatrix.zeros(2);
+    p.re[k * 3] = 1;
+    return kron(p, ComplexMatrix.identity(dB));
+  };
+  return {
+    dimensionA: 2,
+    dimensionB: dB,
+    constraints: [],
+    branches: [{ label: 'key', krausOperators: [ComplexMatrix.identity(d)], keyProjectors: [projector(0), projector(1)], score: 0 }],
+  };
+}
+
+const KINDS: EntropyRequest[] = [
+  { kind: 'von-neumann' },
+  { kind: 'petz-up', alpha: 1.5 },
+  { kind: 'petz-down', alpha: 1.5 },
+  { kind: 'sandwiched-up', alpha: 1.5 },
+];
+
+function round(x: number): number {
+  return Number(x.toPrecision(3));
+}
+
+/** Objective value + gradient, median ms per call, per dimension and kind. */
+export function benchObjectives(): BenchTable {
+  const rows: (string | number)[][] = [];
+  for (const d of [4, 16, 64, 128]) {
+    const problem = qubitKeyProblem(d);
+    const rho = benchDensity(d, d);
+    const row: (string | number)[] = [d];
+    for (const request of KINDS) {
+      const objective = createObjective(problem, request);
+      row.push(round(medianMilliseconds(() => objective.evaluate(rho, { assumeFullRank: true }))));
+    }
+    rows.push(row);
+  }
+  return {
+    title: 'Objective value + gradient (ms per call, median, one core; α = 1.5)',
+    columns: ['d', ...KINDS.map((k) => k.kind)],
+    rows,
+  };
+}
+
+interface SolveCase {
+  label: string;
+  problem: () => Problem;
+  request: EntropyRequest;
+  targetMs: number | null;
+  timeLimitMs?: number;
+}
+
+function exampleProblem(name: string, params: Record<string, number>): () => Problem {
+  return () => problemFromJson(buildExample(name, params));
+}
+
+/** A synthetic d = 32 problem: random Hermitian constraints with ±1e-3 intervals around a random state. */
+function syntheticProblem(): Problem {
+  const d = 32;
+  const rng = uniformSource(77);
+  const truth = benchDensity(d, 5);
+  const base = qubitKeyProblem(d);
+  const constraints = Array.from({ length: 30 }, (_, i) => {
+    const g = randomMatrix(d, d, rng);
+    const op = new ComplexMatrix(d, d);
+    for (let r = 0; r < d; r++) {
+      for (let c = 0; c < d; c++) {
+        op.re[r * d + c] = g.re[r * d + c] + g.re[c * d + r];
+        op.im[r * d + c] = g.im[r * d + c] - g.im[c * d + r];
+      }
+    }
+    const value = traceProductReal(op, truth);
+    return { label: `synthetic[${i}]`, operator: op, lower: value - 1e-3, upper: value + 1e-3 };
+  });
+  return { ...base, constraints };
+}
+
+function solveCases(): SolveCase[] {
+  const bb84 = exampleProblem('bb84-entangled', { 'qber-z': 0.05, 'qber-x': 0.05 });
+  const six = exampleProblem('six-state', { qber: 0.05 });
+  const lossless = exampleProblem('bb84-prepare-measure', { qber: 0.02, transmittance: 1 });
+  const lossy = exampleProblem('bb84-prepare-measure', { qber: 0.02, transmittance: 0.1 });
+  const chsh = exampleProblem('chsh-tested', { 'win-probability': 0.85 });
+  const vn: EntropyRequest = { kind: 'von-neumann' };
+  const up: EntropyRequest = { kind: 'petz-up', alpha: 1.5 };
+  const sw: EntropyRequest = { kind: 'sandwiched-up', alpha: 1.5 };
+  return [
+    { label: 'bb84-entangled Q=5%', problem: bb84, request: vn, targetMs: 5 },
+    { label: 'bb84-entangled Q=5%', problem: bb84, request: up, targetMs: 5 },
+    { label: 'bb84-entangled Q=5%', problem: bb84, request: sw, targetMs: 25 },
+    { label: 'six-state Q=5%', problem: six, request: vn, targetMs: 5 },
+    { label: 'six-state Q=5%', problem: six, request: up, targetMs: 5 },
+    { label: 'six-state Q=5%', problem: six, request: sw, targetMs: 25 },
+    { label: 'bb84-prepare-measure η=1', problem: lossless, request: vn, targetMs: 10 },
+    { label: 'bb84-prepare-measure η=0.1', problem: lossy, request: vn, targetMs: 15 },
+    { label: 'bb84-prepare-measure η=0.1', problem: lossy, request: sw, targetMs: 40 },
+    { label: 'chsh-tested w=0.85', problem: chsh, request: vn, targetMs: 25 },
+    { label: 'chsh-tested w=0.85', problem: chsh, request: sw, targetMs: 60 },
+    { label: 'synthetic d=32, 30 intervals', problem: syntheticProblem, request: vn, targetMs: 2000, timeLimitMs: 60000 },
+  ];
+}
+
+/** Untimed warm-up per case (process-level JIT compilation is not what the targets are about). */
+const WARM_UP_MS = 400;
+
+/** Whole solves at gap 1e-6, cold start (no warm start), median of several runs after one untimed run. */
+export function benchSolves(runs = 9): BenchTable {
+  const rows: (string | number)[][] = [];
+  for (const c of solveCases()) {
+    const problem = c.problem();
+    const settings = { gapTolerance: 1e-6, timeLimitMs: c.timeLimitMs ?? 60000 };
+    const heavy = (c.timeLimitMs ?? 0) > 0;
+    const measured = heavy ? 1 : runs;
+    // Untimed runs first so the JIT has compiled the hot paths (a long-lived service is always warm).
+    const warmUntil = performance.now() + WARM_UP_MS;
+    for (let w = 0; !heavy && (w < 2 || (performance.now() < warmUntil && w < 50)); w++) solve(problem, c.request, settings);
+    const times: number[] = [];
+    let last = solve(problem, c.request, settings);
+    for (let r = 0; r < measured; r++) {
+      const t0 = performance.now();
+      last = solve(problem, c.request, settings);
+      times.push(performance.now() - t0);
+    }
+    times.sort((a, b) => a - b);
+    const median = times[Math.floor(times.length / 2)];
+    rows.push([
+      c.label,
+      requestLabel(c.request),
+      round(median),
+      c.targetMs ?? '',
+      c.targetMs !== null && median <= c.targetMs ? 'met' : 'missed',
+      last.status,
+      last.gap === null ? '' : last.gap.toExponential(1),
+      last.iterations,
+      last.seconds > 0 ? `${Math.round((100 * last.oracleSeconds) / last.seconds)} %` : '',
+    ]);
+  }
+  return {
+    title: 'Certified solves (gap 1e-6, cold start, in-process, single thread; median ms)',
+    columns: ['problem', 'entropy', 'median ms', 'target ms', 'target', 'status', 'gap', 'iterations', 'oracle share'],
+    rows,
+  };
+}
+
+function requestLabel(request: EntropyRequest): string {
+  const kind: EntropyKind = request.kind;
+  return kind === 'von-neumann' ? kind : `${kind} α=${request.alpha}`;
+}
