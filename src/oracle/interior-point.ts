@@ -13,11 +13,12 @@ import {
   lowerTriangularInverse,
   multiplyByLowerAdjointRightHermitian,
   multiplyByLowerLeft,
-  multiplyByLowerRight,
+  lowerCongruence,
   multiplyInto,
   realCholeskyInPlace,
   realCholeskySolveInPlace,
   smallestEigenvalueInPlace,
+  transposeInto,
   TridiagonalWorkspace,
 } from './kernels.js';
 
@@ -32,6 +33,8 @@ const CENTRING_EXPONENT = 3;
 const SCHUR_REGULARIZATION = 1e-13;
 /** Smallest slack value used at the start, relative to 1/d (keeps the start well inside the LP cone). */
 const START_SLACK_FLOOR = 1;
+/** Relative accuracy of the smallest eigenvalue behind each step length (the lower end is used: conservative). */
+const STEP_EIGENVALUE_TOLERANCE = 1e-9;
 /** Iterations over which the primal residual must fall by STALL_FACTOR once the gap is closed. */
 const STALL_WINDOW = 3;
 const STALL_FACTOR = 0.5;
@@ -413,9 +416,21 @@ export class InteriorPointSolver {
   private assembleSchur(): boolean {
     const { n, m, rows } = this;
     const size = n * n;
+    transposeInto(this.lxRe, this.lxIm, n, this.tmp2Re, this.tmp2Im);
     for (let k = 0; k < m; k++) {
-      multiplyByLowerRight(rows.re[k], rows.im[k], this.lxRe, this.lxIm, n, this.tmpRe, this.tmpIm);
-      multiplyByLowerLeft(this.uzRe, this.uzIm, this.tmpRe, this.tmpIm, n, this.schurViewsRe[k], this.schurViewsIm[k]);
+      lowerCongruence(
+        rows.re[k],
+        rows.im[k],
+        this.tmp2Re,
+        this.tmp2Im,
+        this.uzRe,
+        this.uzIm,
+        n,
+        this.tmpRe,
+        this.tmpIm,
+        this.schurViewsRe[k],
+        this.schurViewsIm[k],
+      );
     }
     const M = this.schur;
     const qRe = this.schurRe;
@@ -634,7 +649,8 @@ export class InteriorPointSolver {
     const n = this.n;
     multiplyByLowerLeft(uRe, uIm, dRe, dIm, n, this.tmpRe, this.tmpIm);
     multiplyByLowerAdjointRightHermitian(this.tmpRe, this.tmpIm, uRe, uIm, n, this.tmp2Re, this.tmp2Im);
-    const lambda = smallestEigenvalueInPlace(this.tmp2Re, this.tmp2Im, n, this.tridiagonal);
+    // Only a negative λ_min limits the step, and a relative 1e-9 is far finer than the step fraction needs.
+    const lambda = smallestEigenvalueInPlace(this.tmp2Re, this.tmp2Im, n, this.tridiagonal, STEP_EIGENVALUE_TOLERANCE, 0);
     return lambda >= 0 ? Infinity : -1 / lambda;
   }
 }

@@ -1,7 +1,7 @@
 // The semidefinite linear oracle of MATH.md §4: min ⟨G, σ⟩ over {σ ⪰ 0, Tr σ = 1, ℓ ≤ Tr(Γσ) ≤ u},
 // with dual bounds recomputed independently and Farkas certificates for infeasible constraint sets.
 import { ComplexMatrix } from '../linear-algebra/complex-matrix.js';
-import { eigh } from '../linear-algebra/eigen.js';
+import { eigh, eigvalsh } from '../linear-algebra/eigen.js';
 import { EqualitySpan, DEPENDENCE_TOLERANCE } from './equality-span.js';
 import { InteriorPointSolver, type InteriorPointRows, type InteriorPointStatus } from './interior-point.js';
 import { hermitianInner } from './kernels.js';
@@ -41,7 +41,7 @@ const EXPOSING_SEARCH_FLOOR = -6;
  */
 const EXPOSING_ROUNDING_SHARE = 0.1;
 /** Share of the requested gap given to the interior-point method's own (unverified) stopping test. */
-const INTERNAL_GAP_SHARE = 0.5;
+const INTERNAL_GAP_SHARE = 1;
 /** Each retry after a verified gap came out too large tightens the internal test by this factor. */
 const GAP_TIGHTENING = 0.1;
 /** A Farkas violation must exceed this (relative to the data's scale) to be reported: rounding cannot fake it. */
@@ -579,7 +579,7 @@ export class LinearOracle {
         shifted.im[t] -= yi * im[t];
       }
     }
-    return linear + eigh(shifted).values[0];
+    return linear + eigvalsh(shifted)[0];
   }
 
   /** Normalises y (Σ|y| = 1) and returns the Farkas certificate if its violation, recomputed with eigh, is convincing. */
@@ -606,7 +606,7 @@ export class LinearOracle {
         combination.im[t] += yi * this.operatorIm[i][t];
       }
     }
-    const values = eigh(combination).values;
+    const values = eigvalsh(combination);
     const violation = linear - values[n - 1];
     if (!(violation > INFEASIBILITY_MARGIN * this.dataScale)) return null;
     const magnitudes = Array.from({ length: y.length }, (_, i) => ({ i, size: lower[i] + upper[i] }));
