@@ -339,7 +339,7 @@ describe('RenyiBound service on loopback', () => {
   it('loses no point when a worker thread is killed mid-batch', async () => {
     const fidelities = [0.961, 0.962, 0.963, 0.964];
     const lossesBefore = harness.server.pool.threadLosses;
-    const batch = solveBatchRemote(address, { requests: { requests: fidelities.map((f) => slowWireRequest(f, 600)) } });
+    const batch = solveBatchRemote(address, { requests: { requests: fidelities.map((f) => slowWireRequest(f, 300)) } });
     const consumer = collect(batch.items);
     // Kill a thread while both are running a point.
     expect(await eventually(() => harness.server.pool.pending === 2, 8000)).toBe(true);
