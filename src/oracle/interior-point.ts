@@ -22,7 +22,6 @@ import {
   TridiagonalWorkspace,
 } from './kernels.js';
 
-const TRACE = process.env.ORACLE_TRACE === '1';
 /** Fraction of the distance to the cone boundary taken by a step, before the adaptive increase (SDPT3 practice). */
 const BASE_STEP_FRACTION = 0.9;
 /** Added to the step fraction in proportion to the predictor's step lengths, so long steps go closer to the boundary. */
@@ -337,7 +336,6 @@ export class InteriorPointSolver {
         if (dualObjective > this.objectiveNorm + this.dualResidualNorm && targets.certifyInfeasible(this.y)) return 'INFEASIBLE';
       }
       const mu = gap / nu;
-      if (TRACE) console.log(`it ${this.iterations} p=${primalObjective} gap=${gap.toExponential(2)} rp=${this.primalResidualNorm.toExponential(2)} rd=${this.dualResidualNorm.toExponential(2)}`);
       // Factorizations: X = L_X L_X†, Z = L_Z L_Z†, U = L⁻¹, Z⁻¹ = U_Z† U_Z.
       this.lxRe.set(this.xRe);
       this.lxIm.set(this.xIm);
@@ -391,7 +389,6 @@ export class InteriorPointSolver {
       const fraction = BASE_STEP_FRACTION + ADAPTIVE_STEP_FRACTION * Math.min(primalStepAffine, dualStepAffine);
       const primalStep = Math.min(1, fraction * this.maxPrimalStep());
       const dualStep = Math.min(1, fraction * this.maxDualStep());
-      if (TRACE) console.log(`   sigma=${sigma.toExponential(2)} ap=${primalStep} ad=${dualStep}`);
       if (!(primalStep > 0) || !(dualStep > 0)) return 'NUMERICAL_ERROR';
       for (let t = 0; t < size; t++) {
         this.xRe[t] += primalStep * this.dxRe[t];
