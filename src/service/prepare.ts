@@ -1,4 +1,6 @@
 // Turns one request (problem JSON, entropy, order, settings, warm start) into a validated, hashed solve job.
+import { createHash } from 'node:crypto';
+import { LRUCache } from 'lru-cache';
 import type { MatrixJson, SolverSettings } from '../frank-wolfe/types.js';
 import { resolveSettings, SOLVER_VERSION } from '../frank-wolfe/solve.js';
 import { SettingsError } from '../frank-wolfe/settings.js';
@@ -88,4 +90,26 @@ export function prepareSolve(input: SolveInput): PreparedSolve {
     prepared.warmStart = matrixToJson(densityOperatorFromJson(input.warmStart, 'warmStart', d));
   }
   return prepared;
+}
+
+/** Prepared requests remembered for repeats (validation and hashing cost milliseconds on larger problems). */
+export const PREPARED_MEMO_ENTRIES = 512;
+
+/**
+ * Remembers the outcome of prepareSolve by a SHA-256 fingerprint of the decoded request message: the same
+ * message always validates and hashes the same way, so a repeat (the usual cache hit) is answered without
+ * re-reading the problem. Failures are not remembered. Callers get a shallow copy they may change.
+ */
+export class PreparedRequestMemo {
+  private readonly entries = new LRUCache<string, PreparedSolve>({ max: PREPARED_MEMO_ENTRIES });
+
+  prepare(message: unknown, prepare: () => PreparedSolve): PreparedSolve {
+    const fingerprint = createHash('sha256').update(JSON.stringify(message)).digest('hex');
+    let prepared = this.entries.get(fingerprint);
+    if (prepared === undefined) {
+      prepared = prepare();
+      this.entries.set(fingerprint, prepared);
+    }
+    return { ...prepared };
+  }
 }

@@ -22,7 +22,7 @@ import type { SolveReply } from './generated/renyibound/v1/SolveReply.js';
 import type { SolveRequest__Output } from './generated/renyibound/v1/SolveRequest.js';
 import type { VerifyReply } from './generated/renyibound/v1/VerifyReply.js';
 import type { VerifyRequest__Output } from './generated/renyibound/v1/VerifyRequest.js';
-import { prepareSolve } from './prepare.js';
+import { PreparedRequestMemo, prepareSolve } from './prepare.js';
 import { loadServiceDefinition, loadServicePackage, SERVICE_NAME } from './proto.js';
 import { SolveCoordinator } from './solve-coordinator.js';
 import type { SolveTask } from './solve-worker.js';
@@ -63,6 +63,8 @@ function bindAddress(host: string, port: number): string {
 
 export class RenyiBoundServer {
   readonly health: HealthImplementation;
+  /** Validated, hashed requests by fingerprint: a repeated request skips validation and hashing. */
+  private readonly preparedRequests = new PreparedRequestMemo();
   private readonly batchControllers = new Set<AbortController>();
   private readonly callControllers = new Set<AbortController>();
   private shuttingDown: Promise<void> | undefined;
@@ -175,7 +177,7 @@ export class RenyiBoundServer {
   ): Promise<void> {
     let prepared;
     try {
-      prepared = prepareSolve(solveInputFromWire(call.request));
+      prepared = this.preparedRequests.prepare(call.request, () => prepareSolve(solveInputFromWire(call.request)));
     } catch (error) {
       callback(toServiceError(error));
       return;
