@@ -1,5 +1,5 @@
 // Benchmarks of the semidefinite linear oracle: median wall time of minimize() on random constraint sets.
-import { ComplexMatrix } from '../linear-algebra/complex-matrix.js';
+import { ComplexMatrix, kron, partialTraceB } from '../linear-algebra/complex-matrix.js';
 import { LinearOracle, type OracleConstraint } from '../oracle/index.js';
 
 export interface BenchTable {
@@ -18,6 +18,15 @@ const WARMUP_CALLS = 3;
 const INTERVAL_HALF_WIDTH = 0.02;
 /** Every third constraint is an equality, the others two-sided intervals. */
 const EQUALITY_EVERY = 3;
+/** Half-width of the joint-table intervals in the structured cases. */
+const TABLE_TOLERANCE = 0.001;
+/** (d_A, d_B) of the structured cases. */
+const STRUCTURED_CASES: readonly (readonly [number, number])[] = [
+  [2, 2],
+  [4, 2],
+  [4, 3],
+  [4, 4],
+];
 
 /** Deterministic generator for benchmark inputs (same matrices on every run). */
 function uniformSource(seed: number): () => number {
@@ -106,37 +115,80 @@ const CASES: readonly (readonly [number, number])[] = [
   [64, 100],
 ];
 
-export async function benchOracle(): Promise<BenchTable[]> {
-  const rows: (string | number)[][] = [];
-  for (const [n, count] of CASES) {
-    const rng = uniformSource(1000 * n + count);
-    const constraints = benchConstraints(n, count, rng);
-    const setupStart = performance.now();
-    const oracle = new LinearOracle(n, constraints);
-    const setupMs = performance.now() - setupStart;
-    const feasibleStart = performance.now();
-    const feasible = oracle.findFeasiblePoint();
-    const feasibleMs = performance.now() - feasibleStart;
-    const gradients = Array.from({ length: 8 }, () => benchHermitian(n, rng));
-    for (let k = 0; k < WARMUP_CALLS; k++) oracle.minimize(gradients[k % gradients.length]);
-    const times: number[] = [];
-    let iterations = 0;
-    let worstGap = 0;
-    let optimal = 0;
-    const cellStart = performance.now();
-    while (times.length < MIN_CALLS || performance.now() - cellStart < CELL_BUDGET_MS) {
-      const G = gradients[times.length % gradients.length];
-      const started = performance.now();
-      const result = oracle.minimize(G);
-      times.push(performance.now() - started);
-      iterations += result.iterations;
-      if (result.status === 'OPTIMAL') optimal++;
-      worstGap = Math.max(worstGap, (result.primalValue - result.dualBound) / (1 + Math.abs(result.primalValue)));
+/**
+ * A prepare-and-measure shaped constraint set on H_A ⊗ H_B: Alice's marginal fixed by d_A² equalities (a Hermitian
+ * operator basis ⊗ 1_B) and a computational-basis joint table p(x, y) ± tolerance, which repeats the marginal's
+ * diagonal (redundant by design). Operators are sparse.
+ */
+function structuredConstraints(dA: number, dB: number, rng: () => number): OracleConstraint[] {
+  const rho = benchState(dA * dB, rng);
+  const marginal = partialTraceB(rho, dA, dB);
+  const identityB = ComplexMatrix.identity(dB);
+  const constraints: OracleConstraint[] = [];
+  for (let i = 0; i < dA; i++) {
+    for (let j = i; j < dA; j++) {
+      const parts: [ComplexMatrix, number][] = [];
+      if (i === j) {
+        const e = new ComplexMatrix(dA, dA);
+        e.re[i * dA + i] = 1;
+        parts.push([e, marginal.re[i * dA + i]]);
+      } else {
+        const symmetric = new ComplexMatrix(dA, dA);
+        symmetric.re[i * dA + j] = 1;
+        symmetric.re[j * dA + i] = 1;
+        parts.push([symmetric, 2 * marginal.re[i * dA + j]]);
+        const antisymmetric = new ComplexMatrix(dA, dA);
+        antisymmetric.im[i * dA + j] = -1;
+        antisymmetric.im[j * dA + i] = 1;
+        // B = −i|i⟩⟨j| + i|j⟩⟨i| has Tr(B·ρ_A) = i(ρ_ij − ρ_ji) = −2·Im ρ_ij.
+        parts.push([antisymmetric, -2 * marginal.im[i * dA + j]]);
+      }
+      for (const [operatorA, value] of parts) {
+        constraints.push({ label: `marginal-${i}${j}-${constraints.length}`, operator: kron(operatorA, identityB), lower: value, upper: value });
+      }
     }
-    const equalities = constraints.filter((c) => c.lower === c.upper).length;
-    rows.push([
-      n,
-      `${count} (${equalities} eq, ${count - equalities} interval)`,
+  }
+  const n = dA * dB;
+  for (let x = 0; x < dA; x++) {
+    for (let y = 0; y < dB; y++) {
+      const operator = new ComplexMatrix(n, n);
+      operator.re[(x * dB + y) * n + x * dB + y] = 1;
+      const value = rho.re[(x * dB + y) * n + x * dB + y];
+      constraints.push({ label: `table-${x}${y}`, operator, lower: value - TABLE_TOLERANCE, upper: value + TABLE_TOLERANCE });
+    }
+  }
+  return constraints;
+}
+
+interface CaseMeasurement {
+  cells: (string | number)[];
+}
+
+function measure(n: number, constraints: OracleConstraint[], rng: () => number): CaseMeasurement {
+  const setupStart = performance.now();
+  const oracle = new LinearOracle(n, constraints);
+  const setupMs = performance.now() - setupStart;
+  const feasibleStart = performance.now();
+  const feasible = oracle.findFeasiblePoint();
+  const feasibleMs = performance.now() - feasibleStart;
+  const gradients = Array.from({ length: 8 }, () => benchHermitian(n, rng));
+  for (let k = 0; k < WARMUP_CALLS; k++) oracle.minimize(gradients[k % gradients.length]);
+  const times: number[] = [];
+  let iterations = 0;
+  let worstGap = 0;
+  let optimal = 0;
+  const cellStart = performance.now();
+  while (times.length < MIN_CALLS || performance.now() - cellStart < CELL_BUDGET_MS) {
+    const G = gradients[times.length % gradients.length];
+    const started = performance.now();
+    const result = oracle.minimize(G);
+    times.push(performance.now() - started);
+    iterations += result.iterations;
+    if (result.status === 'OPTIMAL') optimal++;
+    worstGap = Math.max(worstGap, (result.primalValue - result.dualBound) / (1 + Math.abs(result.primalValue)));
+  }
+  return {
+    cells: [
       Number(median(times).toFixed(3)),
       Number((iterations / times.length).toFixed(1)),
       `${optimal}/${times.length}`,
@@ -144,23 +196,47 @@ export async function benchOracle(): Promise<BenchTable[]> {
       Number(feasibleMs.toFixed(2)),
       feasible.status,
       Number(setupMs.toFixed(2)),
-    ]);
+    ],
+  };
+}
+
+const MEASURED_COLUMNS = [
+  'median ms / minimize',
+  'IPM iterations',
+  'OPTIMAL',
+  'worst relative gap',
+  'findFeasiblePoint ms',
+  'feasibility',
+  'constructor ms',
+];
+
+export async function benchOracle(): Promise<BenchTable[]> {
+  const structuredRows: (string | number)[][] = [];
+  for (const [dA, dB] of STRUCTURED_CASES) {
+    const rng = uniformSource(77 * dA + dB);
+    const constraints = structuredConstraints(dA, dB, rng);
+    const { cells } = measure(dA * dB, constraints, rng);
+    structuredRows.push([`${dA}×${dB} = ${dA * dB}`, `${dA * dA} marginal eq + ${dA * dB} table intervals`, ...cells]);
+  }
+
+  const rows: (string | number)[][] = [];
+  for (const [n, count] of CASES) {
+    const rng = uniformSource(1000 * n + count);
+    const constraints = benchConstraints(n, count, rng);
+    const equalities = constraints.filter((c) => c.lower === c.upper).length;
+    const { cells } = measure(n, constraints, rng);
+    rows.push([n, `${count} (${equalities} eq, ${count - equalities} interval)`, ...cells]);
   }
   return [
     {
-      title: 'Linear oracle: minimize() on random Hermitian constraints around a full-rank state (relative accuracy 1e-7)',
-      columns: [
-        'd',
-        'constraints',
-        'median ms / minimize',
-        'IPM iterations',
-        'OPTIMAL',
-        'worst relative gap',
-        'findFeasiblePoint ms',
-        'feasibility',
-        'constructor ms',
-      ],
+      title: 'Linear oracle: minimize() on random dense Hermitian constraints around a full-rank state (relative accuracy 1e-7)',
+      columns: ['d', 'constraints', ...MEASURED_COLUMNS],
       rows,
+    },
+    {
+      title: 'Linear oracle: prepare-and-measure shaped constraints (sparse; source marginal + redundant joint table ± 0.001)',
+      columns: ['d_A×d_B', 'constraints', ...MEASURED_COLUMNS],
+      rows: structuredRows,
     },
   ];
 }

@@ -14,12 +14,16 @@ import {
   multiplyByLowerAdjointRightHermitian,
   multiplyByLowerLeft,
   lowerCongruence,
-  multiplyInto,
+  lowerTimesTransposed,
+  multiplyByHermitian,
   realCholeskyInPlace,
   realCholeskySolveInPlace,
   smallestEigenvalueInPlace,
+  toSparse,
+  transposedSparseProductWithLower,
   transposeInto,
   TridiagonalWorkspace,
+  type SparseOperator,
 } from './kernels.js';
 
 /** Fraction of the distance to the cone boundary taken by a step, before the adaptive increase (SDPT3 practice). */
@@ -32,6 +36,8 @@ const CENTRING_EXPONENT = 3;
 const SCHUR_REGULARIZATION = 1e-13;
 /** Smallest slack value used at the start, relative to 1/d (keeps the start well inside the LP cone). */
 const START_SLACK_FLOOR = 1;
+/** A row with at most this share of nonzero entries enters the Schur complement through a sparse product. */
+const SPARSE_ROW_DENSITY = 0.25;
 /** Relative accuracy of the smallest eigenvalue behind each step length (the lower end is used: conservative). */
 const STEP_EIGENVALUE_TOLERANCE = 1e-9;
 /** Iterations over which the primal residual must fall by STALL_FACTOR once the gap is closed. */
@@ -128,6 +134,8 @@ export class InteriorPointSolver {
   /** Views of Q_k inside schurRe/schurIm, made once. */
   private readonly schurViewsRe: Float64Array[];
   private readonly schurViewsIm: Float64Array[];
+  /** Sparse copies of the rows with few nonzeros (null for dense rows). */
+  private readonly sparseRows: (SparseOperator | null)[];
   private readonly schurBackup: Float64Array;
   private readonly primalResidual: Float64Array;
   private readonly rhs: Float64Array;
@@ -194,6 +202,11 @@ export class InteriorPointSolver {
     this.schurIm = new Float64Array(this.m * size);
     this.schur = new Float64Array(this.m * this.m);
     this.schurViewsRe = Array.from({ length: this.m }, (_, k) => this.schurRe.subarray(k * size, (k + 1) * size));
+    this.sparseRows = rows.re.map((re, k) => {
+      let count = 0;
+      for (let t = 0; t < size; t++) if (re[t] !== 0 || rows.im[k][t] !== 0) count++;
+      return count <= SPARSE_ROW_DENSITY * size ? toSparse(re, rows.im[k], n) : null;
+    });
     this.schurViewsIm = Array.from({ length: this.m }, (_, k) => this.schurIm.subarray(k * size, (k + 1) * size));
     this.schurBackup = new Float64Array(this.m * this.m);
     this.y = new Float64Array(this.m);
@@ -250,7 +263,7 @@ export class InteriorPointSolver {
     for (let j = 0; j < this.slackCount; j++) {
       const k = rows.slackRow[j];
       if (k < 0) continue;
-      const value = (rows.rhs[k] - hermitianInner(rows.re[k], rows.im[k], this.xRe, this.xIm)) / rows.slackSign[j];
+      const value = (rows.rhs[k] - this.rowInner(k, this.xRe, this.xIm)) / rows.slackSign[j];
       this.slack[j] = Math.max(value, floor);
     }
     for (let q = 0; q < this.boxCount; q++) {
@@ -279,7 +292,7 @@ export class InteriorPointSolver {
     for (let iteration = 0; iteration < targets.maxIterations; iteration++) {
       // Residuals.
       let primal2 = 0;
-      for (let k = 0; k < m; k++) this.primalResidual[k] = rows.rhs[k] - hermitianInner(rows.re[k], rows.im[k], this.xRe, this.xIm);
+      for (let k = 0; k < m; k++) this.primalResidual[k] = rows.rhs[k] - this.rowInner(k, this.xRe, this.xIm);
       for (let j = 0; j < this.slackCount; j++) {
         if (rows.slackRow[j] >= 0) this.primalResidual[rows.slackRow[j]] -= rows.slackSign[j] * this.slack[j];
       }
@@ -291,16 +304,7 @@ export class InteriorPointSolver {
       }
       this.rdRe.set(this.objectiveRe);
       this.rdIm.set(this.objectiveIm);
-      for (let k = 0; k < m; k++) {
-        const yk = this.y[k];
-        if (yk === 0) continue;
-        const aRe = rows.re[k];
-        const aIm = rows.im[k];
-        for (let t = 0; t < size; t++) {
-          this.rdRe[t] -= yk * aRe[t];
-          this.rdIm[t] -= yk * aIm[t];
-        }
-      }
+      for (let k = 0; k < m; k++) this.addRowScaled(k, -this.y[k], this.rdRe, this.rdIm);
       let dual2 = 0;
       for (let t = 0; t < size; t++) {
         this.rdRe[t] -= this.zRe[t];
@@ -348,9 +352,10 @@ export class InteriorPointSolver {
       lowerGram(this.uzRe, this.uzIm, n, this.zInvRe, this.zInvIm);
       if (!this.assembleSchur()) return 'NUMERICAL_ERROR';
       // X·R_d·Z⁻¹ (Hermitian part) enters both right-hand sides.
+      // Even a rounding-level R_d matters here: Z⁻¹ is huge late in the run.
       if (this.dualResidualNorm > 0) {
-        multiplyInto(this.xRe, this.xIm, this.rdRe, this.rdIm, n, this.tmpRe, this.tmpIm);
-        multiplyInto(this.tmpRe, this.tmpIm, this.zInvRe, this.zInvIm, n, this.xrzRe, this.xrzIm);
+        multiplyByHermitian(this.xRe, this.xIm, this.rdRe, this.rdIm, n, this.tmpRe, this.tmpIm);
+        multiplyByHermitian(this.tmpRe, this.tmpIm, this.zInvRe, this.zInvIm, n, this.xrzRe, this.xrzIm);
         hermitianPartInPlace(this.xrzRe, this.xrzIm, n);
       } else {
         this.xrzRe.fill(0);
@@ -381,8 +386,8 @@ export class InteriorPointSolver {
       this.dzAffineIm.set(this.dzIm);
       this.dSlackAffine.set(this.dSlack);
       this.dSlackDualAffine.set(this.dSlackDual);
-      multiplyInto(this.dxAffineRe, this.dxAffineIm, this.dzAffineRe, this.dzAffineIm, n, this.tmpRe, this.tmpIm);
-      multiplyInto(this.tmpRe, this.tmpIm, this.zInvRe, this.zInvIm, n, this.correctionRe, this.correctionIm);
+      multiplyByHermitian(this.dxAffineRe, this.dxAffineIm, this.dzAffineRe, this.dzAffineIm, n, this.tmpRe, this.tmpIm);
+      multiplyByHermitian(this.tmpRe, this.tmpIm, this.zInvRe, this.zInvIm, n, this.correctionRe, this.correctionIm);
       hermitianPartInPlace(this.correctionRe, this.correctionIm, n);
       this.computeDirection(sigma * mu, true);
       this.restoreLinearization();
@@ -409,12 +414,58 @@ export class InteriorPointSolver {
     return 'ITERATION_LIMIT';
   }
 
+  /** Re Tr(A_k·H) for Hermitian H, over the nonzeros of A_k when it is sparse. */
+  private rowInner(k: number, hRe: Float64Array, hIm: Float64Array): number {
+    const sparse = this.sparseRows[k];
+    if (!sparse) return hermitianInner(this.rows.re[k], this.rows.im[k], hRe, hIm);
+    const { rowStart, columns, re, im } = sparse;
+    const n = this.n;
+    let sum = 0;
+    for (let i = 0; i < n; i++) {
+      for (let p = rowStart[i]; p < rowStart[i + 1]; p++) {
+        const t = i * n + columns[p];
+        sum += re[p] * hRe[t] + im[p] * hIm[t];
+      }
+    }
+    return sum;
+  }
+
+  /** H += c·A_k. */
+  private addRowScaled(k: number, c: number, hRe: Float64Array, hIm: Float64Array): void {
+    if (c === 0) return;
+    const sparse = this.sparseRows[k];
+    if (!sparse) {
+      const aRe = this.rows.re[k];
+      const aIm = this.rows.im[k];
+      for (let t = 0; t < aRe.length; t++) {
+        hRe[t] += c * aRe[t];
+        hIm[t] += c * aIm[t];
+      }
+      return;
+    }
+    const { rowStart, columns, re, im } = sparse;
+    const n = this.n;
+    for (let i = 0; i < n; i++) {
+      for (let p = rowStart[i]; p < rowStart[i + 1]; p++) {
+        const t = i * n + columns[p];
+        hRe[t] += c * re[p];
+        hIm[t] += c * im[p];
+      }
+    }
+  }
+
   /** Schur complement M_ik = Re Tr(A_i X A_k Z⁻¹) = Re⟨Q_i, Q_k⟩ with Q_k = U_Z A_k L_X, plus the LP block x_j/z_j. */
   private assembleSchur(): boolean {
     const { n, m, rows } = this;
     const size = n * n;
     transposeInto(this.lxRe, this.lxIm, n, this.tmp2Re, this.tmp2Im);
     for (let k = 0; k < m; k++) {
+      const sparse = this.sparseRows[k];
+      if (sparse) {
+        transposedSparseProductWithLower(sparse, this.lxRe, this.lxIm, n, this.tmpRe, this.tmpIm);
+        lowerTimesTransposed(this.uzRe, this.uzIm, this.tmpRe, this.tmpIm, n, this.schurViewsRe[k], this.schurViewsIm[k]);
+        continue;
+      }
       lowerCongruence(
         rows.re[k],
         rows.im[k],
@@ -503,15 +554,11 @@ export class InteriorPointSolver {
     const { n, m, rows } = this;
     const size = n * n;
     // T = σµ Z⁻¹ − X − herm(X R_d Z⁻¹) − [correction]
+    const { zInvRe, zInvIm, xRe, xIm, xrzRe, xrzIm, correctionRe, correctionIm, targetRe, targetIm } = this;
+    const correction = corrected ? 1 : 0;
     for (let t = 0; t < size; t++) {
-      let r = sigmaMu * this.zInvRe[t] - this.xRe[t] - this.xrzRe[t];
-      let s = sigmaMu * this.zInvIm[t] - this.xIm[t] - this.xrzIm[t];
-      if (corrected) {
-        r -= this.correctionRe[t];
-        s -= this.correctionIm[t];
-      }
-      this.targetRe[t] = r;
-      this.targetIm[t] = s;
+      targetRe[t] = sigmaMu * zInvRe[t] - xRe[t] - xrzRe[t] - correction * correctionRe[t];
+      targetIm[t] = sigmaMu * zInvIm[t] - xIm[t] - xrzIm[t] - correction * correctionIm[t];
     }
     for (let j = 0; j < this.slackCount; j++) {
       const x = this.slack[j];
@@ -519,7 +566,7 @@ export class InteriorPointSolver {
       const second = corrected ? this.dSlackAffine[j] * this.dSlackDualAffine[j] : 0;
       this.slackTarget[j] = (sigmaMu - x * z - second) / z - (x / z) * this.slackResidual[j];
     }
-    for (let k = 0; k < m; k++) this.rhs[k] = this.primalResidual[k] - hermitianInner(rows.re[k], rows.im[k], this.targetRe, this.targetIm);
+    for (let k = 0; k < m; k++) this.rhs[k] = this.primalResidual[k] - this.rowInner(k, this.targetRe, this.targetIm);
     for (let j = 0; j < this.slackCount; j++) {
       if (rows.slackRow[j] >= 0) this.rhs[rows.slackRow[j]] -= rows.slackSign[j] * this.slackTarget[j];
     }
@@ -548,16 +595,7 @@ export class InteriorPointSolver {
     // dZ = R_d − Σ dy A; dz = r_dl − Bᵀ dy.
     this.dzRe.set(this.rdRe);
     this.dzIm.set(this.rdIm);
-    for (let k = 0; k < m; k++) {
-      const d = this.dy[k];
-      if (d === 0) continue;
-      const aRe = rows.re[k];
-      const aIm = rows.im[k];
-      for (let t = 0; t < size; t++) {
-        this.dzRe[t] -= d * aRe[t];
-        this.dzIm[t] -= d * aIm[t];
-      }
-    }
+    for (let k = 0; k < m; k++) this.addRowScaled(k, -this.dy[k], this.dzRe, this.dzIm);
     for (let q = 0; q < this.boxCount; q++) {
       const first = rows.boxFirst[q];
       const second = rows.boxSecond[q];
@@ -571,18 +609,13 @@ export class InteriorPointSolver {
       this.dSlackDual[j] = this.slackResidual[j] - (row >= 0 ? rows.slackSign[j] * this.dy[row] : 0) - (box >= 0 ? this.dBoxDual[box] : 0);
     }
     // dX = σµ Z⁻¹ − X − herm(X dZ Z⁻¹) − [correction]
-    multiplyInto(this.xRe, this.xIm, this.dzRe, this.dzIm, n, this.tmpRe, this.tmpIm);
-    multiplyInto(this.tmpRe, this.tmpIm, this.zInvRe, this.zInvIm, n, this.dxRe, this.dxIm);
+    multiplyByHermitian(this.xRe, this.xIm, this.dzRe, this.dzIm, n, this.tmpRe, this.tmpIm);
+    multiplyByHermitian(this.tmpRe, this.tmpIm, this.zInvRe, this.zInvIm, n, this.dxRe, this.dxIm);
     hermitianPartInPlace(this.dxRe, this.dxIm, n);
+    const { dxRe, dxIm } = this;
     for (let t = 0; t < size; t++) {
-      let r = sigmaMu * this.zInvRe[t] - this.xRe[t] - this.dxRe[t];
-      let s = sigmaMu * this.zInvIm[t] - this.xIm[t] - this.dxIm[t];
-      if (corrected) {
-        r -= this.correctionRe[t];
-        s -= this.correctionIm[t];
-      }
-      this.dxRe[t] = r;
-      this.dxIm[t] = s;
+      dxRe[t] = sigmaMu * zInvRe[t] - xRe[t] - dxRe[t] - correction * correctionRe[t];
+      dxIm[t] = sigmaMu * zInvIm[t] - xIm[t] - dxIm[t] - correction * correctionIm[t];
     }
     for (let j = 0; j < this.slackCount; j++) {
       const x = this.slack[j];
@@ -599,19 +632,11 @@ export class InteriorPointSolver {
   private restoreLinearization(): void {
     const { m, rows } = this;
     const size = this.n * this.n;
-    for (let k = 0; k < m; k++) this.refinement[k] = this.primalResidual[k] - hermitianInner(rows.re[k], rows.im[k], this.dxRe, this.dxIm);
+    for (let k = 0; k < m; k++) this.refinement[k] = this.primalResidual[k] - this.rowInner(k, this.dxRe, this.dxIm);
     for (let j = 0; j < this.slackCount; j++) {
       if (rows.slackRow[j] >= 0) this.refinement[rows.slackRow[j]] -= rows.slackSign[j] * this.dSlack[j];
     }
-    for (let k = 0; k < rows.orthonormalRows; k++) {
-      const defect = this.refinement[k];
-      const aRe = rows.re[k];
-      const aIm = rows.im[k];
-      for (let t = 0; t < size; t++) {
-        this.dxRe[t] += defect * aRe[t];
-        this.dxIm[t] += defect * aIm[t];
-      }
-    }
+    for (let k = 0; k < rows.orthonormalRows; k++) this.addRowScaled(k, this.refinement[k], this.dxRe, this.dxIm);
     for (let k = rows.orthonormalRows; k < m; k++) {
       const j = this.slackOfRow[k];
       if (j >= 0) this.dSlack[j] += rows.slackSign[j] * this.refinement[k];

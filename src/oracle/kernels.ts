@@ -454,6 +454,20 @@ export function lowerCongruence(
   outRe: Float64Array,
   outIm: Float64Array,
 ): void {
+  transposedProductWithLower(aRe, aIm, ltRe, ltIm, n, wtRe, wtIm);
+  lowerTimesTransposed(uRe, uIm, wtRe, wtIm, n, outRe, outIm);
+}
+
+/** wt = (A·L)ᵀ for dense A and lower-triangular L, given lt = Lᵀ. */
+export function transposedProductWithLower(
+  aRe: Float64Array,
+  aIm: Float64Array,
+  ltRe: Float64Array,
+  ltIm: Float64Array,
+  n: number,
+  wtRe: Float64Array,
+  wtIm: Float64Array,
+): void {
   // Wᵀ[j][i] = (A·L)[i][j] = Σ_{k ≥ j} A[i][k]·Lᵀ[j][k]  (Lᵀ[j+1][j] = 0, so row j+1 may start at k = j).
   for (let i = 0; i < n; i += 2) {
     const i1 = i + 1 < n ? i + 1 : i;
@@ -499,6 +513,18 @@ export function lowerCongruence(
       wtIm[c1 + i1] = s11i;
     }
   }
+}
+
+/** out = U·W for lower-triangular U, given wt = Wᵀ. */
+export function lowerTimesTransposed(
+  uRe: Float64Array,
+  uIm: Float64Array,
+  wtRe: Float64Array,
+  wtIm: Float64Array,
+  n: number,
+  outRe: Float64Array,
+  outIm: Float64Array,
+): void {
   // out[i][j] = Σ_{k ≤ i} U[i][k]·Wᵀ[j][k]  (U[i][i+1] = 0, so row i may run to k = i+1).
   for (let i = 0; i < n; i += 2) {
     const i1 = i + 1 < n ? i + 1 : i;
@@ -526,6 +552,126 @@ export function lowerCongruence(
         const b0i = wtIm[c0 + k];
         const b1r = wtRe[c1 + k];
         const b1i = wtIm[c1 + k];
+        s00r += a0r * b0r - a0i * b0i;
+        s00i += a0r * b0i + a0i * b0r;
+        s01r += a0r * b1r - a0i * b1i;
+        s01i += a0r * b1i + a0i * b1r;
+        s10r += a1r * b0r - a1i * b0i;
+        s10i += a1r * b0i + a1i * b0r;
+        s11r += a1r * b1r - a1i * b1i;
+        s11i += a1r * b1i + a1i * b1r;
+      }
+      outRe[r0 + j] = s00r;
+      outIm[r0 + j] = s00i;
+      outRe[r0 + j1] = s01r;
+      outIm[r0 + j1] = s01i;
+      outRe[r1 + j] = s10r;
+      outIm[r1 + j] = s10i;
+      outRe[r1 + j1] = s11r;
+      outIm[r1 + j1] = s11i;
+    }
+  }
+}
+
+/** A Hermitian operator with few nonzeros, in compressed sparse rows. */
+export interface SparseOperator {
+  rowStart: Int32Array;
+  columns: Int32Array;
+  re: Float64Array;
+  im: Float64Array;
+}
+
+/** Compressed-sparse-row copy of a dense n×n matrix. */
+export function toSparse(re: Float64Array, im: Float64Array, n: number): SparseOperator {
+  let count = 0;
+  for (let t = 0; t < n * n; t++) if (re[t] !== 0 || im[t] !== 0) count++;
+  const rowStart = new Int32Array(n + 1);
+  const columns = new Int32Array(count);
+  const values = { re: new Float64Array(count), im: new Float64Array(count) };
+  let p = 0;
+  for (let i = 0; i < n; i++) {
+    rowStart[i] = p;
+    for (let j = 0; j < n; j++) {
+      const r = re[i * n + j];
+      const s = im[i * n + j];
+      if (r === 0 && s === 0) continue;
+      columns[p] = j;
+      values.re[p] = r;
+      values.im[p] = s;
+      p++;
+    }
+  }
+  rowStart[n] = p;
+  return { rowStart, columns, re: values.re, im: values.im };
+}
+
+/** wt = (A·L)ᵀ for sparse A and lower-triangular L: nnz(A)·n/2 multiply-adds instead of n³/2. */
+export function transposedSparseProductWithLower(
+  a: SparseOperator,
+  lRe: Float64Array,
+  lIm: Float64Array,
+  n: number,
+  wtRe: Float64Array,
+  wtIm: Float64Array,
+): void {
+  wtRe.fill(0);
+  wtIm.fill(0);
+  for (let i = 0; i < n; i++) {
+    for (let p = a.rowStart[i]; p < a.rowStart[i + 1]; p++) {
+      const k = a.columns[p];
+      const ar = a.re[p];
+      const ai = a.im[p];
+      const rowK = k * n;
+      // (A·L)[i][j] += A[i][k]·L[k][j] for j ≤ k, stored at wt[j][i].
+      for (let j = 0; j <= k; j++) {
+        const br = lRe[rowK + j];
+        const bi = lIm[rowK + j];
+        wtRe[j * n + i] += ar * br - ai * bi;
+        wtIm[j * n + i] += ar * bi + ai * br;
+      }
+    }
+  }
+}
+
+/**
+ * out = A·B for dense A and Hermitian B (out must not alias A or B): (A·B)_ij = Σ_k A_ik·conj(B_jk) runs along
+ * rows of both, in 2×2 blocks (the same access pattern as {@link lowerCongruence}).
+ */
+export function multiplyByHermitian(
+  aRe: Float64Array,
+  aIm: Float64Array,
+  bRe: Float64Array,
+  bIm: Float64Array,
+  n: number,
+  outRe: Float64Array,
+  outIm: Float64Array,
+): void {
+  for (let i = 0; i < n; i += 2) {
+    const i1 = i + 1 < n ? i + 1 : i;
+    const r0 = i * n;
+    const r1 = i1 * n;
+    for (let j = 0; j < n; j += 2) {
+      const j1 = j + 1 < n ? j + 1 : j;
+      const c0 = j * n;
+      const c1 = j1 * n;
+      let s00r = 0;
+      let s00i = 0;
+      let s01r = 0;
+      let s01i = 0;
+      let s10r = 0;
+      let s10i = 0;
+      let s11r = 0;
+      let s11i = 0;
+      for (let k = 0; k < n; k++) {
+        const a0r = aRe[r0 + k];
+        const a0i = aIm[r0 + k];
+        const a1r = aRe[r1 + k];
+        const a1i = aIm[r1 + k];
+        // conj(B_jk) = B_kj
+        const b0r = bRe[c0 + k];
+        const b0i = -bIm[c0 + k];
+        const b1r = bRe[c1 + k];
+        const b1i = -bIm[c1 + k];
         s00r += a0r * b0r - a0i * b0i;
         s00i += a0r * b0i + a0i * b0r;
         s01r += a0r * b1r - a0i * b1i;

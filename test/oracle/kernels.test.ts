@@ -1,11 +1,17 @@
 import { CholeskyDecomposition, Matrix } from 'ml-matrix';
 import { describe, expect, it } from 'vitest';
-import { ComplexMatrix, multiplyAdjointRight } from '../../src/linear-algebra/complex-matrix.js';
+import { ComplexMatrix, multiply, multiplyAdjointRight } from '../../src/linear-algebra/complex-matrix.js';
 import {
   choleskyInPlace,
+  lowerCongruence,
   lowerGram,
+  lowerTimesTransposed,
   lowerTriangularInverse,
+  multiplyByHermitian,
   multiplyInto,
+  toSparse,
+  transposedSparseProductWithLower,
+  transposeInto,
   realCholeskyInPlace,
   realCholeskySolveInPlace,
   smallestEigenvalueInPlace,
@@ -83,6 +89,52 @@ describe('oracle kernels', () => {
     // −v·v† has eigenvalues −‖v‖² and 0 (four times).
     expect(smallestEigenvalueInPlace(negated.re, negated.im, 5, work)).toBeCloseTo(-norm2, 12);
     expect(Math.abs(smallestEigenvalueInPlace(rankOne.re, rankOne.im, 5, work))).toBeLessThan(1e-13 * norm2);
+  });
+
+  it.each([1, 4, 7, 10])('U·A·L: blocked dense and sparse kernels agree with plain products (n=%i)', (n) => {
+    const rng = seededRandom(60 + n);
+    const l = randomDensity(n, rng);
+    choleskyInPlace(l.re, l.im, n);
+    const z = randomDensity(n, rng);
+    choleskyInPlace(z.re, z.im, n);
+    const u = new ComplexMatrix(n, n);
+    lowerTriangularInverse(z.re, z.im, n, u.re, u.im);
+    // A sparse Hermitian operator: a few symmetric pairs.
+    const a = new ComplexMatrix(n, n);
+    for (let pair = 0; pair < n; pair++) {
+      const i = Math.floor(rng() * n);
+      const j = Math.floor(rng() * n);
+      const re = rng() - 0.5;
+      const im = i === j ? 0 : rng() - 0.5;
+      a.set(i, j, re, im);
+      a.set(j, i, re, -im);
+    }
+    // Reference: two plain dense products.
+    const al = new ComplexMatrix(n, n);
+    multiplyInto(a.re, a.im, l.re, l.im, n, al.re, al.im);
+    const expected = new ComplexMatrix(n, n);
+    multiplyInto(u.re, u.im, al.re, al.im, n, expected.re, expected.im);
+    const lt = new ComplexMatrix(n, n);
+    transposeInto(l.re, l.im, n, lt.re, lt.im);
+    const scratch = new ComplexMatrix(n, n);
+    const dense = new ComplexMatrix(n, n);
+    lowerCongruence(a.re, a.im, lt.re, lt.im, u.re, u.im, n, scratch.re, scratch.im, dense.re, dense.im);
+    const sparse = new ComplexMatrix(n, n);
+    transposedSparseProductWithLower(toSparse(a.re, a.im, n), l.re, l.im, n, scratch.re, scratch.im);
+    lowerTimesTransposed(u.re, u.im, scratch.re, scratch.im, n, sparse.re, sparse.im);
+    const size = Math.max(1, ...expected.re.map(Math.abs));
+    expect(maxAbsDifference(dense, expected)).toBeLessThan(1e-13 * size);
+    expect(maxAbsDifference(sparse, expected)).toBeLessThan(1e-13 * size);
+  });
+
+  it.each([1, 2, 5, 8])('product with a Hermitian right factor agrees with the shared complex product (n=%i)', (n) => {
+    const rng = seededRandom(90 + n);
+    const a = randomComplexGaussian(n, n, rng);
+    const b = randomHermitian(n, rng);
+    const out = new ComplexMatrix(n, n);
+    multiplyByHermitian(a.re, a.im, b.re, b.im, n, out.re, out.im);
+    // Reference: the shared dense product of src/linear-algebra.
+    expect(maxAbsDifference(out, multiply(a, b))).toBeLessThan(1e-13 * n);
   });
 
   it('real Cholesky solve agrees with ml-matrix', () => {
