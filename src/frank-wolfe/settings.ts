@@ -61,6 +61,10 @@ export const TUNING = Object.freeze({
   quasiNewtonMemory: 12,
   /** A quasi-Newton step whose room (cone or interval) is shorter than this is replaced by a Frank–Wolfe step. */
   shortestQuasiNewtonStep: 1e-3,
+  /** Quasi-Newton steps allowed in a row without consulting the oracle. */
+  longestQuasiNewtonRun: 8,
+  /** …as long as each lowers F by at least this share of the last estimated gap. */
+  quasiNewtonPayoff: 0.05,
   /** Atoms kept by pairwise steps before the two lightest are merged into their weighted mean. */
   maxAtoms: 60,
   /** Line search stops when |φ'(t)| ≤ this share of |φ'(0)|. */

@@ -30,6 +30,7 @@ import {
 } from '../certificate/bound.js';
 import { SOLVER_VERSION } from '../certificate/version.js';
 import { ActiveSet } from './active-set.js';
+import { Matrix, solve as solveLinear } from 'ml-matrix';
 import { derivativeLineSearch } from './line-search.js';
 import { TangentQuasiNewton } from './quasi-newton.js';
 import { resolveSettings, TUNING } from './settings.js';
@@ -218,6 +219,47 @@ export function solve(
     return { step: chosen.step, point: chosen.point, evaluation: trials.get(chosen.step) as ObjectiveEvaluation };
   };
 
+  // Interval operators seen in the tangent space of the equalities, for keeping quasi-Newton steps on active faces.
+  const intervalTangents = restricted.constraints.map((c) =>
+    c.lower === c.upper ? null : oracle.stripEqualitySpan(c.operator).stripped,
+  );
+  let quasiNewtonRun = 0;
+  let lastDecrease = 0;
+  let lastEstimatedGap = Infinity;
+  /** One oracle call: gap estimate, certification when it looks close, accuracy tightening on stalls. */
+  const consultOracle = (split: ReturnType<LinearOracle['stripEqualitySpan']>): OracleResult | 'stop' | string => {
+    quasiNewtonRun = 0;
+    const clockStart = performance.now();
+    const answer = oracle.minimize(split.stripped, { relativeAccuracy: oracleAccuracy });
+    oracleSeconds += (performance.now() - clockStart) / 1000;
+    if (!answer.point) return `linear oracle failed: ${answer.message ?? answer.status}`;
+    const multipliers = restoreMultipliers(answer, split.equalityCoefficients);
+    const estimatedGap = traceProductReal(split.stripped, x) - answer.dualBound;
+    lastEstimatedGap = estimatedGap;
+    const upper = evaluation.value;
+    const bestLower = best ? (best as CertifiedPoint).breakdown.lowerBound : -Infinity;
+    if (
+      estimatedGap <= TUNING.certifyShare * settings.gapTolerance ||
+      oracleCalls % TUNING.certifyEvery === 0 ||
+      upper - bestLower <= settings.gapTolerance
+    ) {
+      certify(multipliers);
+      if (best && upper - (best as CertifiedPoint).breakdown.lowerBound <= settings.gapTolerance) return 'stop';
+    }
+    oracleCalls++;
+    // Tighten the oracle when the estimated gap stalls (its rounding then dominates the step).
+    if (estimatedGap < 0.9 * gapAtWindowStart) {
+      gapAtWindowStart = estimatedGap;
+      windowStart = iterations;
+    } else if (iterations - windowStart >= TUNING.stallWindow && oracleAccuracy > TUNING.finestOracleAccuracy) {
+      oracleAccuracy = Math.max(oracleAccuracy / 10, TUNING.finestOracleAccuracy);
+      windowStart = iterations;
+      gapAtWindowStart = estimatedGap;
+    }
+    return answer;
+  };
+  let oracleCalls = 0;
+
   for (;;) {
     if (control.isCancelled?.()) {
       limit = 'cancelled';
@@ -241,32 +283,6 @@ export function solve(
     }
     const gradient = evaluation.gradient as ComplexMatrix;
     const split = oracle.stripEqualitySpan(gradient);
-    clock = performance.now();
-    const answer = oracle.minimize(split.stripped, { relativeAccuracy: oracleAccuracy });
-    oracleSeconds += (performance.now() - clock) / 1000;
-    if (!answer.point) return failure(`linear oracle failed: ${answer.message ?? answer.status}`, iterations);
-    const multipliers = restoreMultipliers(answer, split.equalityCoefficients);
-    const estimatedGap = traceProductReal(split.stripped, x) - answer.dualBound;
-    const upper = evaluation.value;
-    const bestLower = best ? (best as CertifiedPoint).breakdown.lowerBound : -Infinity;
-    if (
-      estimatedGap <= TUNING.certifyShare * settings.gapTolerance ||
-      iterations % TUNING.certifyEvery === 0 ||
-      upper - bestLower <= settings.gapTolerance
-    ) {
-      certify(multipliers);
-      if (best && upper - (best as CertifiedPoint).breakdown.lowerBound <= settings.gapTolerance) break;
-    }
-    // Tighten the oracle when the estimated gap stalls (its rounding then dominates the step).
-    if (estimatedGap < 0.9 * gapAtWindowStart) {
-      gapAtWindowStart = estimatedGap;
-      windowStart = iterations;
-    } else if (iterations - windowStart >= TUNING.stallWindow && oracleAccuracy > TUNING.finestOracleAccuracy) {
-      oracleAccuracy = Math.max(oracleAccuracy / 10, TUNING.finestOracleAccuracy);
-      windowStart = iterations;
-      gapAtWindowStart = estimatedGap;
-    }
-
     iterations++;
     // Quasi-Newton pair from the last move, in the tangent space of the equalities.
     if (previous) {
@@ -274,8 +290,25 @@ export function solve(
     }
     previous = { state: x, tangentGradient: split.stripped };
 
+    // The oracle (gap estimate, certificate, Frank–Wolfe vertex) is skipped while quasi-Newton steps pay off.
+    const oracleDue =
+      !qn.ready || quasiNewtonRun >= TUNING.longestQuasiNewtonRun || lastDecrease < TUNING.quasiNewtonPayoff * lastEstimatedGap;
+    let answer: OracleResult | null = null;
+    if (oracleDue) {
+      const consulted = consultOracle(split);
+      if (consulted === 'stop') break;
+      if (typeof consulted === 'string') return failure(consulted, iterations);
+      answer = consulted;
+    }
+
     if (qn.ready) {
-      const direction = oracle.stripEqualitySpan(hermitianPart(qn.direction(split.stripped))).stripped;
+      const direction = alongActiveIntervals(
+        restricted,
+        x,
+        oracle.stripEqualitySpan(hermitianPart(qn.direction(split.stripped))).stripped,
+        intervalTangents,
+        TUNING.shortestQuasiNewtonStep,
+      );
       const slope = traceProductReal(split.stripped, direction);
       if (slope < 0) {
         const maxStep = Math.min(
@@ -286,16 +319,26 @@ export function solve(
         // A step cut short by the cone or an interval says the optimum sits on a face: Frank–Wolfe handles that.
         const moved = maxStep >= TUNING.shortestQuasiNewtonStep ? lineStep(direction, slope, maxStep) : null;
         if (moved) {
+          lastDecrease = evaluation.value - moved.evaluation.value;
           x = moved.point;
           evaluation = moved.evaluation;
           atoms.reset(x);
           quasiNewtonSteps++;
+          quasiNewtonRun++;
           continue;
         }
       }
     }
+    lastDecrease = 0;
+    if (answer === null) {
+      const consulted = consultOracle(split);
+      if (consulted === 'stop') break;
+      if (typeof consulted === 'string') return failure(consulted, iterations);
+      answer = consulted;
+    }
+    const vertex = answer.point as ComplexMatrix;
 
-    const toward = hermitianPart(oracle.projectOntoEqualities(answer.point));
+    const toward = hermitianPart(oracle.projectOntoEqualities(vertex));
     const away = atoms.awayAtom(gradient);
     const direction = subtract(toward, away.point);
     const slope = traceProductReal(gradient, direction);
@@ -401,6 +444,45 @@ export function stepToIntervalBounds(problem: Problem, x: ComplexMatrix, directi
   }
   return step;
 }
+
+/**
+ * Removes from a tangent direction its components along the interval constraints that would stop it almost at
+ * once (active bounds it pushes against), so quasi-Newton steps slide along those faces instead of stalling.
+ */
+export function alongActiveIntervals(
+  problem: Problem,
+  x: ComplexMatrix,
+  direction: ComplexMatrix,
+  tangents: readonly (ComplexMatrix | null)[],
+  shortestStep: number,
+): ComplexMatrix {
+  const active: ComplexMatrix[] = [];
+  let d = direction;
+  for (let round = 0; round < ACTIVE_SET_ROUNDS; round++) {
+    let added = false;
+    problem.constraints.forEach((c, i) => {
+      const tangent = tangents[i];
+      if (tangent === null || active.includes(tangent)) return;
+      const single: Problem = { ...problem, constraints: [c] };
+      if (stepToIntervalBounds(single, x, d) < shortestStep) {
+        active.push(tangent);
+        added = true;
+      }
+    });
+    if (!added) break;
+    const gram = new Matrix(active.length, active.length);
+    const rhs = new Matrix(active.length, 1);
+    active.forEach((a, i) => {
+      rhs.set(i, 0, traceProductReal(a, direction));
+      active.forEach((b, j) => gram.set(i, j, traceProductReal(a, b)));
+    });
+    const coefficients = solveLinear(gram, rhs, true);
+    d = direction.clone();
+    active.forEach((a, i) => addScaledInPlace(d, a, -coefficients.get(i, 0)));
+  }
+  return d;
+}
+const ACTIVE_SET_ROUNDS = 4;
 
 /** The oracle's interior point, or a warm start projected onto the equalities and pulled inside the cone. */
 function startingPoint(
