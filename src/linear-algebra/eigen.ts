@@ -63,12 +63,16 @@ function powerOfTwoScale(re: Float64Array, im: Float64Array): number {
 export function eighJacobi(input: ComplexMatrix): HermitianEigen {
   assertFiniteSquare(input, 'eigh');
   const n = input.rows;
+  // Exact power-of-two scaling keeps the sum of squares below from overflowing or underflowing.
+  const scale = powerOfTwoScale(input.re, input.im);
+  if (scale === 0) return { values: new Float64Array(n), vectors: ComplexMatrix.identity(n) };
+  const inv = 1 / scale;
   const ar = new Float64Array(n * n);
   const ai = new Float64Array(n * n);
   for (let i = 0; i < n; i++) {
     for (let j = 0; j < n; j++) {
-      ar[i * n + j] = 0.5 * (input.re[i * n + j] + input.re[j * n + i]);
-      ai[i * n + j] = 0.5 * (input.im[i * n + j] - input.im[j * n + i]);
+      ar[i * n + j] = 0.5 * (input.re[i * n + j] + input.re[j * n + i]) * inv;
+      ai[i * n + j] = 0.5 * (input.im[i * n + j] - input.im[j * n + i]) * inv;
     }
   }
   const v = ComplexMatrix.identity(n);
@@ -149,7 +153,7 @@ export function eighJacobi(input: ComplexMatrix): HermitianEigen {
   const vectors = new ComplexMatrix(n, n);
   for (let jj = 0; jj < n; jj++) {
     const j = order[jj];
-    values[jj] = ar[j * n + j];
+    values[jj] = ar[j * n + j] * scale;
     for (let k = 0; k < n; k++) {
       vectors.re[k * n + jj] = vr[k * n + j];
       vectors.im[k * n + jj] = vi[k * n + j];
@@ -184,6 +188,12 @@ interface Tridiagonal {
   /** Back-transformation buffers: real and imaginary parts of four eigenvectors. */
   back: Float64Array[];
 }
+
+/**
+ * Squared norm of a column part below which the Householder step treats it as zero: (u²)² ≈ 2.4e-63,
+ * i.e. entries below u² ≈ 1.2e-32 relative to the largest entry (far below the backward error u).
+ */
+const NEGLIGIBLE_COLUMN_SQUARED = UNIT_ROUNDOFF ** 4;
 
 /** Scratch buffers reused across calls of the same size (the optimiser calls eigh thousands of times). */
 const workspaces = new Map<number, Tridiagonal>();
@@ -248,7 +258,9 @@ function tridiagonalise(input: ComplexMatrix, scale: number): Tridiagonal {
     const alphaIm = workIm[k1 * n + k];
     let sigma = 0;
     for (let i = k + 2; i < n; i++) sigma += workRe[i * n + k] ** 2 + workIm[i * n + k] ** 2;
-    if (sigma === 0) {
+    if (sigma <= NEGLIGIBLE_COLUMN_SQUARED) {
+      // Entries this small (the matrix is scaled to max |entry| ≈ 1) are dropped: a perturbation far
+      // below the backward error, and it keeps ‖x‖ away from the subnormal range.
       tau[k] = 0;
       subRe[k] = alphaRe;
       subIm[k] = alphaIm;
@@ -256,21 +268,36 @@ function tridiagonalise(input: ComplexMatrix, scale: number): Tridiagonal {
     }
     const alphaAbs = Math.hypot(alphaRe, alphaIm);
     const xNorm = Math.sqrt(alphaAbs * alphaAbs + sigma);
-    // Phase of alpha (1 when alpha = 0) chosen so u_{k+1} = alpha + phase·‖x‖ has no cancellation.
-    const phRe = alphaAbs === 0 ? 1 : alphaRe / alphaAbs;
-    const phIm = alphaAbs === 0 ? 0 : alphaIm / alphaAbs;
-    const t = 1 / (xNorm * (xNorm + alphaAbs)); // tau = 2/(u†u) = 1/(‖x‖(‖x‖+|alpha|))
-    tau[k] = t;
+    // Phase of alpha (1 when alpha = 0) chosen so u_{k+1} = alpha + phase·‖x‖ has no cancellation;
+    // renormalised because a subnormal alpha gives alpha/|alpha| a visibly wrong modulus.
+    let phRe = alphaAbs === 0 ? 1 : alphaRe / alphaAbs;
+    let phIm = alphaAbs === 0 ? 0 : alphaIm / alphaAbs;
+    const phAbs = Math.hypot(phRe, phIm);
+    phRe /= phAbs;
+    phIm /= phAbs;
     subRe[k] = -phRe * xNorm;
     subIm[k] = -phIm * xNorm;
-    // Store u in row k (upper triangle, unused by the lower-triangle update).
+    // u = x + phase·‖x‖·e_{k+1}, divided by its first entry w so that u_{k+1} = 1 and every intermediate
+    // stays at the scale of the matrix however small x is. tau = 2/(u†u) from the stored u itself, so the
+    // reflector is unitary to rounding even if the phase is slightly off.
+    const wRe = alphaRe + phRe * xNorm;
+    const wIm = alphaIm + phIm * xNorm;
+    const wAbs2 = wRe * wRe + wIm * wIm;
     const uRow = k * n;
-    workRe[uRow + k1] = alphaRe + phRe * xNorm;
-    workIm[uRow + k1] = alphaIm + phIm * xNorm;
+    workRe[uRow + k1] = 1;
+    workIm[uRow + k1] = 0;
+    let uNorm2 = 1;
     for (let i = k + 2; i < n; i++) {
-      workRe[uRow + i] = workRe[i * n + k];
-      workIm[uRow + i] = workIm[i * n + k];
+      const xr = workRe[i * n + k];
+      const xi = workIm[i * n + k];
+      const vr = (xr * wRe + xi * wIm) / wAbs2;
+      const vi = (xi * wRe - xr * wIm) / wAbs2;
+      workRe[uRow + i] = vr;
+      workIm[uRow + i] = vi;
+      uNorm2 += vr * vr + vi * vi;
     }
+    const t = 2 / uNorm2;
+    tau[k] = t;
     // p = tau·S·u over the trailing block S = A[k+1:, k+1:] from its lower triangle.
     for (let i = k1; i < n; i++) {
       pRe[i] = 0;

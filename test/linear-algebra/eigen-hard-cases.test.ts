@@ -1,5 +1,6 @@
+import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { ComplexMatrix, directSum, kron } from '../../src/linear-algebra/complex-matrix.js';
+import { ComplexMatrix, directSum, hermitianPart, kron } from '../../src/linear-algebra/complex-matrix.js';
 import { eigh, eighJacobi, eigvalsh } from '../../src/linear-algebra/eigen.js';
 import { randomDensity, randomHermitian, randomIsometry, seededRandom } from '../helpers/random.js';
 import { fromSpectrum, orthonormalityDefect, relativeResidual } from './eigen-helpers.js';
@@ -84,6 +85,53 @@ describe('hard cases for the eigensolver', () => {
     const ep = eigh(p);
     expect(Array.from(ep.values).map((x) => Math.round(x * 1e12) / 1e12)).toEqual([-1, -1, 1, 1]);
     expect(relativeResidual(p, ep)).toBeLessThanOrEqual(ACCURACY);
+  });
+
+  it('off-diagonal entries near the square-root underflow range (1e-140 … 1e-200) still converge', () => {
+    for (const tiny of [1e-140, 1e-150, 1e-155, 1e-160, 1e-170, 1e-200]) {
+      const a = ComplexMatrix.diagonal([1, 0.5, 0.3, 0.2, 0.1]);
+      a.set(2, 0, tiny, tiny);
+      a.set(0, 2, tiny, -tiny);
+      a.set(3, 0, tiny, 0);
+      a.set(0, 3, tiny, 0);
+      const e = eigh(a);
+      expect(Array.from(e.values)).toEqual([0.1, 0.2, 0.3, 0.5, 1]);
+      expect(orthonormalityDefect(e.vectors)).toBeLessThanOrEqual(ACCURACY);
+      expect(Array.from(eigvalsh(a))).toEqual([0.1, 0.2, 0.3, 0.5, 1]);
+    }
+  });
+
+  it('property: entries spread over 600 orders of magnitude (fast-check)', () => {
+    const entry = fc
+      .tuple(fc.double({ min: -1, max: 1, noNaN: true }), fc.integer({ min: -300, max: 300 }), fc.boolean())
+      .map(([mantissa, exponent, zero]) => (zero ? 0 : mantissa * 10 ** exponent));
+    const matrix = fc.integer({ min: 2, max: 8 }).chain((n) =>
+      fc.array(fc.tuple(entry, entry), { minLength: n * n, maxLength: n * n }).map((pairs) => {
+        const m = new ComplexMatrix(n, n);
+        pairs.forEach(([re, im], k) => {
+          m.re[k] = re;
+          m.im[k] = im;
+        });
+        return hermitianPart(m);
+      }),
+    );
+    fc.assert(
+      fc.property(matrix, (a) => {
+        // Eigenvalues of a matrix whose largest entry is itself near the subnormal range are not
+        // representable to 53 bits, so neither they nor the residual can be checked to 1e-12.
+        let largest = 0;
+        for (let k = 0; k < a.re.length; k++) largest = Math.max(largest, Math.abs(a.re[k]), Math.abs(a.im[k]));
+        fc.pre(largest === 0 || largest > 1e-250);
+        for (const solve of [eigh, eighJacobi]) {
+          const e = solve(a);
+          expect(relativeResidual(a, e)).toBeLessThanOrEqual(ACCURACY);
+          expect(orthonormalityDefect(e.vectors)).toBeLessThanOrEqual(ACCURACY);
+        }
+        const only = eigvalsh(a);
+        expect(only.every(Number.isFinite)).toBe(true);
+      }),
+      { numRuns: 300, seed: 1202 },
+    );
   });
 
   it('many calls of mixed sizes reuse scratch buffers without cross-talk', () => {

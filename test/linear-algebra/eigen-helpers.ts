@@ -3,6 +3,7 @@ import {
   adjoint,
   ComplexMatrix,
   frobeniusNorm,
+  frobeniusNormSafe,
   multiply,
   multiplyAdjointLeft,
   subtract,
@@ -13,8 +14,9 @@ import type { HermitianEigen } from '../../src/linear-algebra/eigen.js';
 export function relativeResidual(a: ComplexMatrix, eig: HermitianEigen): number {
   const av = multiply(a, eig.vectors);
   const vl = multiply(eig.vectors, ComplexMatrix.diagonal(eig.values));
-  const r = frobeniusNorm(subtract(av, vl));
-  const norm = frobeniusNorm(a);
+  // Safe norms: entries up to 1e300 would overflow a plain sum of squares.
+  const r = frobeniusNormSafe(subtract(av, vl));
+  const norm = frobeniusNormSafe(a);
   return norm === 0 ? r : r / norm;
 }
 
