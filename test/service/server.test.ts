@@ -361,9 +361,9 @@ describe('queue bound', () => {
     const harness = await startTestServer({ workers: 1, queueLimit: 0, cacheDirectory: false });
     try {
       const address = harness.server.address;
-      const running = solveRemote(address, slowRequest(0.971, 1500));
+      const running = solveRemote(address, slowRequest(0.971, 600));
       expect(await eventually(() => harness.server.pool.pending === 1, 4000)).toBe(true);
-      const refused = await solveRemote(address, slowRequest(0.972, 1500)).catch((e: unknown) => e);
+      const refused = await solveRemote(address, slowRequest(0.972, 600)).catch((e: unknown) => e);
       expect((refused as RemoteCallError).code).toBe(grpc.status.RESOURCE_EXHAUSTED);
       const batchRefused = await rawBatchError(address, {
         grid: { example: 'bb84-entangled', axes: [{ name: 'qber-x', values: [0.05] }], entropies: ['VON_NEUMANN'] },
@@ -380,7 +380,7 @@ describe('graceful shutdown', () => {
   it('goes NOT_SERVING, refuses new calls, and completes the solve in flight', async () => {
     const harness = await startTestServer({ workers: 1, cacheDirectory: false });
     const address = harness.server.address;
-    const running = solveRemote(address, slowRequest(0.981, 1500));
+    const running = solveRemote(address, slowRequest(0.981, 800));
     expect(await eventually(() => harness.server.pool.pending === 1, 4000)).toBe(true);
     const shutdown = harness.server.shutdown();
     expect(harness.server.status).toBe('NOT_SERVING');
