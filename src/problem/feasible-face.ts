@@ -55,13 +55,16 @@ export function feasibleFace(problem: Problem): FeasibleFace {
       const n = operator.rows;
       if (n <= 1) break;
       const { values, vectors } = eigh(operator);
-      const tolerance = edgeTolerance(n, operator);
+      // Relative to the operator as given: its restriction inherits absolute rounding errors of that size, and a
+      // restriction that vanishes (a direction already excluded) must not have its noise read as a spectrum.
+      const tolerance = edgeTolerance(constraint.operator.rows, constraint.operator);
       let keep: ComplexMatrix | null = null;
-      if (constraint.upper <= values[0] + tolerance) {
+      if (values[n - 1] - values[0] <= tolerance) continue;
+      if (Math.abs(constraint.upper - values[0]) <= tolerance) {
         let count = 0;
         while (count < n && values[count] <= values[0] + tolerance) count++;
         if (count < n) keep = columns(vectors, 0, count);
-      } else if (constraint.lower >= values[n - 1] - tolerance) {
+      } else if (Math.abs(constraint.lower - values[n - 1]) <= tolerance) {
         let first = n - 1;
         while (first > 0 && values[first - 1] >= values[n - 1] - tolerance) first--;
         if (first > 0) keep = columns(vectors, first, n);

@@ -130,6 +130,7 @@ describe('single-photon prepare-and-measure BB84 with loss (common practice: los
     [1, 0.5, 0.02],
     [0.1, 0.5, 0.02],
     [0.3, 0.8, 0.04],
+    [0.2, 0.9, 0], // zero error rate: several table entries vanish and pin ρ to a smaller face
   ]) {
     it(`η = ${eta}, p_Z = ${pz}, q = ${q}: von Neumann value p_Z²·η·(1 − h(q)) within the gap`, () => {
       const problem = example('bb84-prepare-measure', { qber: q, transmittance: eta, 'z-basis-probability': pz });
