@@ -631,7 +631,6 @@ export class InteriorPointSolver {
    */
   private restoreLinearization(): void {
     const { m, rows } = this;
-    const size = this.n * this.n;
     for (let k = 0; k < m; k++) this.refinement[k] = this.primalResidual[k] - this.rowInner(k, this.dxRe, this.dxIm);
     for (let j = 0; j < this.slackCount; j++) {
       if (rows.slackRow[j] >= 0) this.refinement[rows.slackRow[j]] -= rows.slackSign[j] * this.dSlack[j];

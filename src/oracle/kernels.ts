@@ -95,65 +95,6 @@ export function lowerGram(uRe: Float64Array, uIm: Float64Array, n: number, outRe
   }
 }
 
-/** out = A·B for dense n×n matrices (out must not alias A or B). */
-export function multiplyInto(
-  aRe: Float64Array,
-  aIm: Float64Array,
-  bRe: Float64Array,
-  bIm: Float64Array,
-  n: number,
-  outRe: Float64Array,
-  outIm: Float64Array,
-): void {
-  outRe.fill(0);
-  outIm.fill(0);
-  for (let i = 0; i < n; i++) {
-    const rowI = i * n;
-    for (let k = 0; k < n; k++) {
-      const ar = aRe[rowI + k];
-      const ai = aIm[rowI + k];
-      if (ar === 0 && ai === 0) continue;
-      const rowK = k * n;
-      for (let j = 0; j < n; j++) {
-        const br = bRe[rowK + j];
-        const bi = bIm[rowK + j];
-        outRe[rowI + j] += ar * br - ai * bi;
-        outIm[rowI + j] += ar * bi + ai * br;
-      }
-    }
-  }
-}
-
-/** out = A·L for dense A and lower-triangular L. */
-export function multiplyByLowerRight(
-  aRe: Float64Array,
-  aIm: Float64Array,
-  lRe: Float64Array,
-  lIm: Float64Array,
-  n: number,
-  outRe: Float64Array,
-  outIm: Float64Array,
-): void {
-  outRe.fill(0);
-  outIm.fill(0);
-  for (let i = 0; i < n; i++) {
-    const rowI = i * n;
-    for (let k = 0; k < n; k++) {
-      const ar = aRe[rowI + k];
-      const ai = aIm[rowI + k];
-      if (ar === 0 && ai === 0) continue;
-      const rowK = k * n;
-      // L_kj is nonzero only for j ≤ k.
-      for (let j = 0; j <= k; j++) {
-        const br = lRe[rowK + j];
-        const bi = lIm[rowK + j];
-        outRe[rowI + j] += ar * br - ai * bi;
-        outIm[rowI + j] += ar * bi + ai * br;
-      }
-    }
-  }
-}
-
 /** out = L·B for lower-triangular L and dense B. */
 export function multiplyByLowerLeft(
   lRe: Float64Array,
