@@ -205,6 +205,17 @@ export const naturalLogFunction: ScalarFunction = {
 };
 
 /**
+ * x·ln x (0 at x = 0) with f' = ln x + 1 and a cancellation-free
+ * x ln x − y ln y = x·log1p((x−y)/y) + (x−y)·ln y.
+ */
+export const entropyDensityFunction: ScalarFunction = {
+  value: (x) => (x > 0 ? x * Math.log(x) : 0),
+  derivative: (x) => Math.log(x) + 1,
+  difference: (x, y) =>
+    closePositive(x, y) ? x * Math.log1p((x - y) / y) + (x - y) * Math.log(y) : entropyDensityFunction.value(x) - entropyDensityFunction.value(y),
+};
+
+/**
  * Eigenvalues of a PSD matrix with rounding-level negatives (|λ| ≤ the support tolerance) set to 0;
  * throws if one is clearly negative.
  */

@@ -14,6 +14,7 @@ import { eigh } from '../../src/linear-algebra/eigen.js';
 import {
   DIVIDED_DIFFERENCE_RELATIVE_GAP,
   dividedDifferences,
+  entropyDensityFunction,
   frechetDerivative,
   matrixLog,
   matrixPower,
@@ -49,6 +50,7 @@ const functions: [string, ScalarFunction][] = [
   ['x^0.5', powerFunction(0.5)],
   ['x^1.5', powerFunction(1.5)],
   ['ln x', naturalLogFunction],
+  ['x ln x', entropyDensityFunction],
 ];
 
 describe('Fréchet derivative (Daleckii–Krein) against central finite differences', () => {
