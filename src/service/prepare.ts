@@ -103,8 +103,9 @@ export const PREPARED_MEMO_ENTRIES = 512;
 export class PreparedRequestMemo {
   private readonly entries = new LRUCache<string, PreparedSolve>({ max: PREPARED_MEMO_ENTRIES });
 
-  prepare(message: unknown, prepare: () => PreparedSolve): PreparedSolve {
-    const fingerprint = createHash('sha256').update(JSON.stringify(message)).digest('hex');
+  prepare(message: { requestId?: string }, prepare: () => PreparedSolve): PreparedSolve {
+    // The request id is free text that does not change the answer.
+    const fingerprint = createHash('sha256').update(JSON.stringify({ ...message, requestId: '' })).digest('hex');
     let prepared = this.entries.get(fingerprint);
     if (prepared === undefined) {
       prepared = prepare();

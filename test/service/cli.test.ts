@@ -140,6 +140,21 @@ describe('renyi-bound sweep', () => {
     expect(result.stdout).toMatch(/qber-x\s+von-neumann\s+petz-up α=1\.5/);
   }, 60_000);
 
+  it('sends the grid to a running server with --server', async () => {
+    const harness = await startTestServer({ workers: 1, cacheDirectory: false });
+    try {
+      const gridPath = join(directory, 'remote-grid.json');
+      writeFileSync(gridPath, JSON.stringify({ example: 'six-state', axes: [{ name: 'qber', values: [0.02, 0.04] }], entropies: ['von-neumann'], settings: { gapTolerance: 1e-4 } }));
+      const csv = join(directory, 'remote', 'results.csv');
+      const result = await run(['sweep', gridPath, '--server', harness.server.address, '--out', csv]);
+      expect(result.status, result.stderr).toBe(0);
+      expect(readFileSync(csv, 'utf8').trim().split('\n')).toHaveLength(3);
+      expect(harness.logs.filter((l) => l.event === 'solve')).toHaveLength(2);
+    } finally {
+      await harness.stop();
+    }
+  }, 30_000);
+
   it('exits 1 naming the field of a bad grid', async () => {
     const gridPath = join(directory, 'bad-grid.json');
     writeFileSync(gridPath, JSON.stringify({ example: 'bb84-entangled', axes: [{ name: 'qber-x', values: [0.1] }], entropies: ['VON_NEUMANN'], colour: 'red' }));
