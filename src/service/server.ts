@@ -56,6 +56,8 @@ export const DEFAULT_HOST = '127.0.0.1';
 export const DEFAULT_PORT = 50051;
 /** Long enough for a typical solve to finish; after it the remaining solves are cancelled (they still answer). */
 export const DEFAULT_DRAIN_TIMEOUT_MS = 60_000;
+/** After cancelling what is left, connections are closed if calls still have not finished by then. */
+const FORCE_SHUTDOWN_AFTER_CANCEL_MS = 15_000;
 
 function bindAddress(host: string, port: number): string {
   return host.includes(':') && !host.startsWith('[') ? `[${host}]:${port}` : `${host}:${port}`;
@@ -231,6 +233,10 @@ export class RenyiBoundServer {
         },
       });
       if (!controller.signal.aborted) call.end();
+      else if (!call.cancelled) {
+        // Aborted by the server (drain timeout), not by the client: say so instead of leaving the stream open.
+        call.emit('error', { code: grpc.status.UNAVAILABLE, details: `the server is shutting down; ${done} of ${total} points were sent` });
+      }
     } catch (error) {
       call.emit('error', toServiceError(error));
     } finally {
@@ -271,7 +277,10 @@ export class RenyiBoundServer {
       if ((await Promise.race([drained, timedOut])) === 'timeout') {
         this.logger.warn({ event: 'shutdown', inFlight: this.pool.pending }, 'drain timeout: cancelling in-flight solves');
         for (const controller of [...this.callControllers, ...this.batchControllers]) controller.abort();
+        // Cancelled solves stop within an iteration; if something still hangs, close the connections.
+        const forced = setTimeout(() => this.grpcServer.forceShutdown(), FORCE_SHUTDOWN_AFTER_CANCEL_MS);
         await drained;
+        clearTimeout(forced);
       }
       clearTimeout(timer);
       await this.pool.destroy();

@@ -394,4 +394,23 @@ describe('graceful shutdown', () => {
     expect(await checkHealth(address, '', { deadlineMs: 500 })).not.toBe('SERVING');
     await harness.stop();
   }, 20_000);
+
+  it('after the drain timeout cancels what is left: unary calls get their bound, batches an UNAVAILABLE', async () => {
+    const harness = await startTestServer({ workers: 2, cacheDirectory: false, drainTimeoutMs: 300 });
+    const address = harness.server.address;
+    const unaryCall = solveRemote(address, slowRequest(0.982, 20_000));
+    const batch = solveBatchRemote(address, { requests: { requests: [slowWireRequest(0.983, 20_000), slowWireRequest(0.984, 20_000)] } });
+    const batchOutcome = collect(batch.items).catch((e: unknown) => e);
+    expect(await eventually(() => harness.server.pool.pending === 3, 8000)).toBe(true);
+    const started = Date.now();
+    await harness.server.shutdown();
+    expect(Date.now() - started).toBeLessThan(10_000);
+    const result = await unaryCall;
+    expect(result.status).toBe('LIMIT_REACHED');
+    expect(result.limit).toBe('cancelled');
+    const error = await batchOutcome;
+    expect((error as RemoteCallError).code).toBe(grpc.status.UNAVAILABLE);
+    expect((error as RemoteCallError).details).toMatch(/shutting down/);
+    await harness.stop();
+  }, 30_000);
 });
