@@ -249,10 +249,6 @@ export class LinearOracle {
       const feasibility = this.findFeasiblePoint();
       if (feasibility.status === 'INFEASIBLE') return feasibility;
     }
-    if (this.face) {
-      const reduced = this.minimizeOnFace(this.face, G, resolved);
-      if (reduced) return reduced;
-    }
     const n = this.dimension;
     const size = n * n;
     const gRe = new Float64Array(size);
@@ -279,6 +275,11 @@ export class LinearOracle {
       const feasible = this.findFeasiblePoint();
       if (feasible.status !== 'OPTIMAL' || !feasible.point) return feasible;
       return this.assembleResult(G, feasible.point, new Float64Array(this.solver.m), 0, spanCoefficients, feasible.iterations, 'OPTIMAL');
+    }
+    if (this.face) {
+      const stripped = new ComplexMatrix(n, n, strippedRe.slice(), strippedIm.slice());
+      const reduced = this.minimizeOnFace(this.face, G, stripped, spanCoefficients, resolved);
+      if (reduced) return reduced;
     }
     for (let t = 0; t < size; t++) {
       strippedRe[t] /= objectiveScale;
@@ -404,11 +405,20 @@ export class LinearOracle {
   }
 
   /** Solves on the face and lifts back; the bound adds the exposing multipliers with the weight that maximizes (★). */
-  private minimizeOnFace(face: FaceReduction, G: ComplexMatrix, settings: OracleSettings): OracleResult | null {
-    const inner = face.inner.minimize(compressHermitian(face.isometry, G), settings);
+  private minimizeOnFace(
+    face: FaceReduction,
+    G: ComplexMatrix,
+    stripped: ComplexMatrix,
+    spanCoefficients: Float64Array,
+    settings: OracleSettings,
+  ): OracleResult | null {
+    // The face problem sees the stripped G; the full-space span part goes back into y exactly, so the off-face
+    // blocks it carries cost nothing in the full-space bound.
+    const inner = face.inner.minimize(compressHermitian(face.isometry, stripped), settings);
     if (inner.status !== 'OPTIMAL' || !inner.point) return null;
     const point = expandHermitian(face.isometry, inner.point);
     const innerY = Float64Array.from(inner.multipliersLower, (x, i) => x - inner.multipliersUpper[i]);
+    this.span.toOriginal(spanCoefficients, innerY);
     let scaleOfData = Math.sqrt(hermitianInner(G.re, G.im, G.re, G.im));
     innerY.forEach((y, i) => (scaleOfData += Math.abs(y) * this.operatorNorms[i]));
     const boundAt = (logWeight: number): { bound: number; lower: Float64Array; upper: Float64Array } => {
