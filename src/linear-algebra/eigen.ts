@@ -303,25 +303,64 @@ function tridiagonalise(input: ComplexMatrix, scale: number): Tridiagonal {
       pRe[i] = 0;
       pIm[i] = 0;
     }
-    for (let i = k1; i < n; i++) {
-      const row = i * n;
-      const uiR = workRe[uRow + i];
-      const uiI = workIm[uRow + i];
-      let sR = workRe[row + i] * uiR;
-      let sI = workRe[row + i] * uiI;
-      for (let j = k1; j < i; j++) {
+    // Two rows per pass share the loads of u_j and the updates of p_j.
+    let r = k1;
+    for (; r + 1 < n; r += 2) {
+      const row0 = r * n;
+      const row1 = row0 + n;
+      const u0R = workRe[uRow + r];
+      const u0I = workIm[uRow + r];
+      const u1R = workRe[uRow + r + 1];
+      const u1I = workIm[uRow + r + 1];
+      let s0R = workRe[row0 + r] * u0R;
+      let s0I = workRe[row0 + r] * u0I;
+      let s1R = workRe[row1 + r + 1] * u1R;
+      let s1I = workRe[row1 + r + 1] * u1I;
+      for (let j = k1; j < r; j++) {
+        const aR = workRe[row0 + j];
+        const aI = workIm[row0 + j];
+        const bR = workRe[row1 + j];
+        const bI = workIm[row1 + j];
+        const ujR = workRe[uRow + j];
+        const ujI = workIm[uRow + j];
+        // S_ij·u_j into p_i, and S_ji·u_i = conj(S_ij)·u_i into p_j.
+        s0R += aR * ujR - aI * ujI;
+        s0I += aR * ujI + aI * ujR;
+        s1R += bR * ujR - bI * ujI;
+        s1I += bR * ujI + bI * ujR;
+        pRe[j] += aR * u0R + aI * u0I + bR * u1R + bI * u1I;
+        pIm[j] += aR * u0I - aI * u0R + bR * u1I - bI * u1R;
+      }
+      // The coupling S_{r+1,r} between the two rows.
+      const cR = workRe[row1 + r];
+      const cI = workIm[row1 + r];
+      s1R += cR * u0R - cI * u0I;
+      s1I += cR * u0I + cI * u0R;
+      s0R += cR * u1R + cI * u1I;
+      s0I += cR * u1I - cI * u1R;
+      pRe[r] += s0R;
+      pIm[r] += s0I;
+      pRe[r + 1] += s1R;
+      pIm[r + 1] += s1I;
+    }
+    for (; r < n; r++) {
+      const row = r * n;
+      const uiR = workRe[uRow + r];
+      const uiI = workIm[uRow + r];
+      let sR = workRe[row + r] * uiR;
+      let sI = workRe[row + r] * uiI;
+      for (let j = k1; j < r; j++) {
         const aR = workRe[row + j];
         const aI = workIm[row + j];
         const ujR = workRe[uRow + j];
         const ujI = workIm[uRow + j];
-        // S_ij·u_j into p_i, and S_ji·u_i = conj(S_ij)·u_i into p_j.
         sR += aR * ujR - aI * ujI;
         sI += aR * ujI + aI * ujR;
         pRe[j] += aR * uiR + aI * uiI;
         pIm[j] += aR * uiI - aI * uiR;
       }
-      pRe[i] += sR;
-      pIm[i] += sI;
+      pRe[r] += sR;
+      pIm[r] += sI;
     }
     let upRe = 0; // u†p (real up to rounding)
     for (let i = k1; i < n; i++) {
@@ -335,7 +374,37 @@ function tridiagonalise(input: ComplexMatrix, scale: number): Tridiagonal {
       pRe[i] -= half * workRe[uRow + i];
       pIm[i] -= half * workIm[uRow + i];
     }
-    for (let i = k1; i < n; i++) {
+    // Two rows per pass share the loads of u_j and q_j.
+    let i = k1;
+    for (; i + 1 < n; i += 2) {
+      const row0 = i * n;
+      const row1 = row0 + n;
+      const u0R = workRe[uRow + i];
+      const u0I = workIm[uRow + i];
+      const q0R = pRe[i];
+      const q0I = pIm[i];
+      const u1R = workRe[uRow + i + 1];
+      const u1I = workIm[uRow + i + 1];
+      const q1R = pRe[i + 1];
+      const q1I = pIm[i + 1];
+      for (let j = k1; j < i; j++) {
+        const ujR = workRe[uRow + j];
+        const ujI = workIm[uRow + j];
+        const qjR = pRe[j];
+        const qjI = pIm[j];
+        // u_i·conj(q_j) + q_i·conj(u_j)
+        workRe[row0 + j] -= u0R * qjR + u0I * qjI + q0R * ujR + q0I * ujI;
+        workIm[row0 + j] -= u0I * qjR - u0R * qjI + q0I * ujR - q0R * ujI;
+        workRe[row1 + j] -= u1R * qjR + u1I * qjI + q1R * ujR + q1I * ujI;
+        workIm[row1 + j] -= u1I * qjR - u1R * qjI + q1I * ujR - q1R * ujI;
+      }
+      // Entry (i+1, i) and the two diagonal entries.
+      workRe[row1 + i] -= u1R * q0R + u1I * q0I + q1R * u0R + q1I * u0I;
+      workIm[row1 + i] -= u1I * q0R - u1R * q0I + q1I * u0R - q1R * u0I;
+      workRe[row0 + i] -= 2 * (u0R * q0R + u0I * q0I);
+      workRe[row1 + i + 1] -= 2 * (u1R * q1R + u1I * q1I);
+    }
+    for (; i < n; i++) {
       const row = i * n;
       const uiR = workRe[uRow + i];
       const uiI = workIm[uRow + i];
@@ -346,7 +415,6 @@ function tridiagonalise(input: ComplexMatrix, scale: number): Tridiagonal {
         const ujI = workIm[uRow + j];
         const qjR = pRe[j];
         const qjI = pIm[j];
-        // u_i·conj(q_j) + q_i·conj(u_j)
         workRe[row + j] -= uiR * qjR + uiI * qjI + qiR * ujR + qiI * ujI;
         workIm[row + j] -= uiI * qjR - uiR * qjI + qiI * ujR - qiR * ujI;
       }
