@@ -51,11 +51,13 @@ export function linearizationBound(
   let gradient: ComplexMatrix;
   let referenceTerm = 0;
   let referenceError = 0;
+  let evaluationConditioning = 1;
   if (objective.request.kind === 'sandwiched-up') {
     if (!reference) throw new Error('linearizationBound: sandwiched-up needs reference states τ');
     const joint = objective.evaluateAtReference(rho, reference);
     objectiveValue = joint.value;
     gradient = joint.gradientState;
+    evaluationConditioning = joint.conditioning;
     let innerProduct = 0;
     let smallest = Infinity;
     joint.gradientReference.forEach((blocks, c) =>
@@ -70,6 +72,7 @@ export function linearizationBound(
     const evaluation = objective.evaluate(rho, { withGradient: true, assumeFullRank: true });
     objectiveValue = evaluation.value;
     gradient = evaluation.gradient as ComplexMatrix;
+    evaluationConditioning = evaluation.conditioning ?? 1;
   }
   const shifted = gradient.clone();
   let dualConstant = 0;
@@ -93,7 +96,9 @@ export function linearizationBound(
   // Backward-error scale of each eigendecomposition; the gradient term grows like ‖ρ'‖/λ_min(ρ') because the
   // derivative of log or of a negative power amplifies a backward error by the inverse smallest eigenvalue.
   const rhoEigenvalues = eigh(rho).values;
-  const conditioning = frobeniusNorm(rho) / Math.max(rhoEigenvalues[0], Number.MIN_VALUE);
+  // The worst of ρ' itself and every positive matrix the objective took a function of (branch outputs, pinched
+  // blocks, sandwiched products): Kraus maps can make an output worse conditioned than ρ'.
+  const conditioning = Math.max(frobeniusNorm(rho) / Math.max(rhoEigenvalues[0], Number.MIN_VALUE), evaluationConditioning);
   const scale = MARGIN_CONSTANT * n * UNIT_ROUNDOFF;
   const margin =
     scale *

@@ -11,6 +11,7 @@ import {
   type ReferenceBlocks,
   type ReferenceSettings,
 } from './sandwiched-up.js';
+import { readConditioning, resetConditioning } from './spectral-blocks.js';
 import { relativeEntropyToPinched } from './von-neumann.js';
 
 export interface ObjectiveEvaluation {
@@ -21,6 +22,8 @@ export interface ObjectiveEvaluation {
   /** Sandwiched-up only: the optimal key-block-diagonal τ at this ρ and the certified inner gap on Q. */
   reference?: ReferenceBlocks;
   innerGap?: number;
+  /** Largest ‖A‖_F/λ_min(A) over the positive matrices whose functions were taken (for the certificate margin). */
+  conditioning?: number;
 }
 
 export interface EvaluateOptions {
@@ -35,6 +38,8 @@ export interface JointEvaluation {
   gradientState: ComplexMatrix;
   /** ∇_τ F per branch and key block. */
   gradientReference: ComplexMatrix[][];
+  /** As in ObjectiveEvaluation. */
+  conditioning: number;
 }
 
 export interface Objective {
@@ -126,6 +131,12 @@ class EntropyObjective implements Objective {
   }
 
   evaluate(rho: ComplexMatrix, options: EvaluateOptions = {}): ObjectiveEvaluation {
+    resetConditioning();
+    const evaluation = this.evaluateTracked(rho, options);
+    return { ...evaluation, conditioning: readConditioning() };
+  }
+
+  private evaluateTracked(rho: ComplexMatrix, options: EvaluateOptions): ObjectiveEvaluation {
     if (rho.rows !== this.dimension || rho.cols !== this.dimension) {
       throw new RangeError(`state: expected ${this.dimension}x${this.dimension}, got ${rho.rows}x${rho.cols}`);
     }
@@ -204,6 +215,7 @@ class EntropyObjective implements Objective {
   evaluateAtReference(rho: ComplexMatrix, reference: ReferenceBlocks): JointEvaluation {
     if (this.request.kind !== 'sandwiched-up') throw new Error('evaluateAtReference: only for sandwiched-up');
     const beta = sandwichedOrder(this.request.alpha);
+    resetConditioning();
     const states = this.branchStates(rho);
     const terms = this.supports.map((support, c) =>
       sandwichedBranchTerm(scale(states[c], this.weights[c]), support, reference[c], beta),
@@ -215,6 +227,7 @@ class EntropyObjective implements Objective {
       value: coefficient * Math.log2(total),
       gradientState: this.pullBack(terms.map((t, c) => scale(t.gradientState, factor * this.weights[c]))),
       gradientReference: terms.map((t) => t.gradientReference.map((g) => scale(g, factor))),
+      conditioning: readConditioning(),
     };
   }
 }

@@ -1,5 +1,4 @@
 import { add, ComplexMatrix, traceProductReal } from '../linear-algebra/complex-matrix.js';
-import { eigh } from '../linear-algebra/eigen.js';
 import { spectralFunction } from '../linear-algebra/matrix-functions.js';
 import type { BranchSupport } from './branch-supports.js';
 import {
@@ -10,6 +9,7 @@ import {
   expand,
   frechet,
   pinchedBlocks,
+  positiveEigen,
   powerFunction,
 } from './spectral-blocks.js';
 
@@ -27,7 +27,7 @@ export function petzDownQuasiEntropy(
   const { blockSizes: sizes, blockOffsets: offsets, outputRange: range } = support;
   const blockEigs = eigenBlocks(pinchedBlocks(x, sizes, offsets));
   const pinchedPower = blockSpectralFunction(blockEigs, (t) => Math.max(t, 0) ** (1 - beta));
-  const xe = eigh(range === null ? x : compress(range, x));
+  const xe = positiveEigen(range === null ? x : compress(range, x));
   const statePowerReduced = spectralFunction(xe, (t) => Math.max(t, 0) ** beta);
   const pinchedPowerReduced = range === null ? pinchedPower : compress(range, pinchedPower);
   const value = traceProductReal(statePowerReduced, pinchedPowerReduced);

@@ -16,6 +16,34 @@ import {
 
 export { powerFunction } from '../linear-algebra/matrix-functions.js';
 
+/**
+ * Conditioning ledger: the largest ‖A‖_F/λ_min(A) over the positive matrices whose spectral functions an
+ * evaluation takes. A backward error of size u·‖A‖ moves a log or a negative power by about u·‖A‖/λ_min, so the
+ * certificate margin scales with this number (src/certificate/bound.ts). Evaluations run one at a time per thread.
+ */
+let ledger = 1;
+
+export function resetConditioning(): void {
+  ledger = 1;
+}
+
+export function readConditioning(): number {
+  return ledger;
+}
+
+/** eigh of a positive semidefinite matrix, recording its conditioning in the ledger. */
+export function positiveEigen(a: ComplexMatrix): HermitianEigen {
+  const e = eigh(a);
+  const n = e.values.length;
+  if (n > 0) {
+    let norm = 0;
+    for (let i = 0; i < n; i++) norm += e.values[i] * e.values[i];
+    const ratio = Math.sqrt(norm) / Math.max(e.values[0], Number.MIN_VALUE);
+    if (ratio > ledger) ledger = ratio;
+  }
+  return e;
+}
+
 /** x·ln x, whose derivative ln x + 1 is the gradient of Tr X ln X. */
 export const entropyFunction: ScalarFunction = {
   value: (x) => (x > 0 ? x * Math.log(x) : 0),
@@ -28,7 +56,7 @@ export function pinchedBlocks(x: ComplexMatrix, sizes: readonly number[], offset
 }
 
 export function eigenBlocks(blocks: readonly ComplexMatrix[]): HermitianEigen[] {
-  return blocks.map((b) => eigh(b));
+  return blocks.map((b) => positiveEigen(b));
 }
 
 /** ⊕_k f(Y_k) from the blocks' eigendecompositions. */
@@ -85,15 +113,15 @@ export function sandwichedPower(
 ): { quasiEntropy: number; weight: ComplexMatrix; powerOfM: ComplexMatrix } {
   if (outputRange === null) {
     const m = multiply(multiply(ys, x), ys);
-    const me = eigh(m);
+    const me = positiveEigen(m);
     const quasiEntropy = traceFunction(me.values, (t) => (t > 0 ? t ** gamma : 0));
     const weight = spectralFunction(me, (t) => gamma * t ** (gamma - 1));
     const powerOfM = spectralFunction(me, (t) => (t > 0 ? t ** gamma : 0));
     return { quasiEntropy, weight, powerOfM };
   }
-  const xe = eigh(compress(outputRange, x));
+  const xe = positiveEigen(compress(outputRange, x));
   const factor = multiply(multiply(ys, outputRange), spectralFunction(xe, (t) => Math.sqrt(Math.max(t, 0))));
-  const ne = eigh(multiplyAdjointLeft(factor, factor));
+  const ne = positiveEigen(multiplyAdjointLeft(factor, factor));
   const quasiEntropy = traceFunction(ne.values, (t) => (t > 0 ? t ** gamma : 0));
   const weight = expand(factor, spectralFunction(ne, (t) => gamma * t ** (gamma - 2)));
   const powerOfM = expand(factor, spectralFunction(ne, (t) => t ** (gamma - 1)));

@@ -1,5 +1,4 @@
 import { ComplexMatrix, subtract } from '../linear-algebra/complex-matrix.js';
-import { eigh } from '../linear-algebra/eigen.js';
 import { spectralFunction } from '../linear-algebra/matrix-functions.js';
 import type { BranchSupport } from './branch-supports.js';
 import {
@@ -9,6 +8,7 @@ import {
   entropyFunction,
   expand,
   pinchedBlocks,
+  positiveEigen,
   traceFunction,
 } from './spectral-blocks.js';
 
@@ -25,7 +25,7 @@ export function relativeEntropyToPinched(
   let pinchedPart = 0;
   for (const e of blockEigs) pinchedPart += traceFunction(e.values, entropyFunction.value);
   const range = support.outputRange;
-  const xe = eigh(range === null ? x : compress(range, x));
+  const xe = positiveEigen(range === null ? x : compress(range, x));
   const statePart = traceFunction(xe.values, entropyFunction.value);
   const value = statePart - pinchedPart;
   if (!withGradient) return { value, gradient: null };
