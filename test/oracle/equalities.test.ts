@@ -213,6 +213,43 @@ describe('LinearOracle: rank-deficient feasible set (pure source marginal)', () 
   });
 });
 
+describe('LinearOracle: equalities that pin the state completely', () => {
+  it.each([3, 2, 1])('a full Hermitian basis fixes a rank-%i state on d=3: point and bound are ⟨G, ρ⟩', (rank) => {
+    const rng = seededRandom(900 + rank);
+    const d = 3;
+    const rho = randomDensity(d, rng, rank);
+    const constraints: OracleConstraint[] = [];
+    for (let i = 0; i < d; i++) {
+      for (let j = 0; j < d; j++) {
+        const operator = new ComplexMatrix(d, d);
+        if (i === j) operator.re[i * d + i] = 1;
+        if (i < j) {
+          operator.set(i, j, 1);
+          operator.set(j, i, 1);
+        }
+        if (i > j) {
+          operator.set(i, j, 0, 1);
+          operator.set(j, i, 0, -1);
+        }
+        const value = traceOfProduct(operator, rho);
+        constraints.push({ label: `basis-${i}${j}`, operator, lower: value, upper: value });
+      }
+    }
+    const G = randomHermitian(d, rng);
+    const result = new LinearOracle(d, constraints).minimize(G);
+    // Reference: the d² operators span all Hermitian matrices, so ρ is the only feasible state (common practice).
+    const optimum = traceOfProduct(G, rho);
+    expect(result.status).toBe('OPTIMAL');
+    expect(Math.abs(result.primalValue - optimum)).toBeLessThan(1e-9);
+    expect(result.dualBound).toBeLessThanOrEqual(optimum + 1e-12);
+    expect(optimum - result.dualBound).toBeLessThan(1e-9);
+    for (let t = 0; t < d * d; t++) {
+      expect(Math.abs(result.point!.re[t] - rho.re[t])).toBeLessThan(1e-9);
+      expect(Math.abs(result.point!.im[t] - rho.im[t])).toBeLessThan(1e-9);
+    }
+  });
+});
+
 describe('LinearOracle: projection onto the equalities and stripping the equality span', () => {
   const rng = seededRandom(800);
   const dB = 3;
