@@ -234,7 +234,7 @@ export class LinearOracle {
     for (const y of candidates) {
       const certificate = this.farkasCertificate(y);
       if (certificate) {
-        this.knownInfeasibility = this.infeasibleResult(certificate, 0, 'constraints are inconsistent (found while preprocessing the equalities)');
+        this.knownInfeasibility = this.infeasibleResult(certificate, 0, 'constraints are inconsistent (found while preprocessing: dependent equalities or intervals fixed by the equalities)');
         break;
       }
     }

@@ -230,6 +230,40 @@ describe('LinearOracle: weak duality', () => {
   });
 });
 
+describe('LinearOracle: larger sizes (odd and even, dense and sparse rows)', () => {
+  it.each([
+    [17, 12],
+    [24, 20],
+  ])('d=%i with %i constraints: feasible optimum, certified gap, bound below ⟨G, ρ⟩', (d, count) => {
+    const rng = seededRandom(40 + d);
+    const rho = randomDensity(d, rng);
+    const constraints: OracleConstraint[] = [];
+    for (let i = 0; i < count; i++) {
+      // Alternate dense random operators with sparse ones (a single symmetric pair of entries).
+      let operator = randomHermitian(d, rng);
+      if (i % 2 === 1) {
+        operator = new ComplexMatrix(d, d);
+        const a = Math.floor(rng() * d);
+        const b = Math.floor(rng() * d);
+        operator.set(a, b, 1, a === b ? 0 : 0.5);
+        operator.set(b, a, 1, a === b ? 0 : -0.5);
+      }
+      const value = traceOfProduct(operator, rho);
+      constraints.push(
+        i % 3 === 0
+          ? { label: `eq${i}`, operator, lower: value, upper: value }
+          : { label: `in${i}`, operator, lower: value - 0.01, upper: value + 0.01 },
+      );
+    }
+    const G = randomHermitian(d, rng);
+    const result = new LinearOracle(d, constraints).minimize(G);
+    expectCertifiedGap(result, G, constraints);
+    expectFeasible(result.point, constraints);
+    // ρ is feasible, so (★) must stay below ⟨G, ρ⟩.
+    expect(result.dualBound).toBeLessThanOrEqual(traceOfProduct(G, rho) + 1e-9);
+  });
+});
+
 describe('LinearOracle: CHSH and Tsirelson’s bound', () => {
   const W = chshWinOperator();
   const tsirelson = Math.cos(Math.PI / 8) ** 2; // Tsirelson 1980: max win probability cos²(π/8) ≈ 0.8536
