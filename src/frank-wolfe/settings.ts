@@ -51,6 +51,10 @@ export const TUNING = Object.freeze({
   certifyEvery: 25,
   /** Shares ε of the interior point mixed into the iterate when certifying near the boundary of the cone. */
   certificateMixtures: [1e-10, 1e-9, 1e-8, 1e-7, 1e-6, 1e-5, 1e-4] as readonly number[],
+  /** Levels μ to which the iterate's small eigenvalues are lifted for the same purpose. */
+  certificateLiftLevels: [1e-9, 1e-8, 1e-7, 1e-6, 1e-5] as readonly number[],
+  /** An iterate whose smallest eigenvalue is at least this needs no better-conditioned neighbour. */
+  wellConditionedEigenvalue: 1e-4,
   /** Smallest eigenvalue a step may leave in the iterate (its trace is 1). */
   eigenvalueFloor: 1e-9,
   /** With the oracle at its finest accuracy, stop after this many iterations without the certified bound rising. */

@@ -1,5 +1,7 @@
 import {
+  add,
   addScaledInPlace,
+  adjoint,
   ComplexMatrix,
   hermitianPart,
   multiply,
@@ -176,20 +178,32 @@ export function solve(
   };
   // Near the boundary of the cone the margin grows like 1/λ_min(ρ'); linearizing at (1−ε)x + ε·x₀ trades a
   // linearization loss of order ε against it, so a few ε are tried and the best bound is kept.
+  const certifyAt = (state: ComplexMatrix) => {
+    const e = objective.evaluate(state, { assumeFullRank: true });
+    if (!e.gradient || !Number.isFinite(e.value)) return;
+    const split = oracle.stripEqualitySpan(e.gradient);
+    const clockStart = performance.now();
+    const answer = oracle.minimize(split.stripped, { relativeAccuracy: oracleAccuracy });
+    oracleSeconds += (performance.now() - clockStart) / 1000;
+    if (answer.point || answer.status === 'ITERATION_LIMIT') consider(state, e, restoreMultipliers(answer, split.equalityCoefficients));
+  };
+  // Near the boundary of the cone the margin grows like 1/λ_min(ρ'). Any full-rank ρ' gives a valid bound, so a
+  // few better-conditioned neighbours are tried as well and the best bound is kept: mixtures (1−ε)x + ε·x₀ with
+  // the interior point, and x with its small eigenvalues lifted to a level μ (trace and feasibility not needed).
   const certify = (y: { lower: Float64Array; upper: Float64Array }) => {
     consider(x, evaluation, y);
-    const smallest = eigh(x).values[0];
+    const { values, vectors } = eigh(x);
+    if (values[0] >= TUNING.wellConditionedEigenvalue) return;
     for (const share of TUNING.certificateMixtures) {
-      if (share <= smallest) continue;
+      if (share <= values[0]) continue;
       const state = scale(x, 1 - share);
       addScaledInPlace(state, interiorPoint, share);
-      const e = objective.evaluate(state, { assumeFullRank: true });
-      if (!e.gradient || !Number.isFinite(e.value)) continue;
-      const split = oracle.stripEqualitySpan(e.gradient);
-      const started = performance.now();
-      const answer = oracle.minimize(split.stripped, { relativeAccuracy: oracleAccuracy });
-      oracleSeconds += (performance.now() - started) / 1000;
-      if (answer.point || answer.status === 'ITERATION_LIMIT') consider(state, e, restoreMultipliers(answer, split.equalityCoefficients));
+      certifyAt(state);
+    }
+    for (const level of TUNING.certificateLiftLevels) {
+      if (level <= values[0]) continue;
+      const lifted = Float64Array.from(values, (v) => Math.max(v, level) - v);
+      certifyAt(add(x, hermitianPart(multiply(multiply(vectors, ComplexMatrix.diagonal(lifted)), adjoint(vectors)))));
     }
   };
 
