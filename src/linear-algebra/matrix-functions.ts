@@ -1,7 +1,7 @@
 // Functions of Hermitian matrices through their eigendecomposition, and their Fréchet derivatives
 // (Daleckii–Krein formula).
 import { adjoint, ComplexMatrix, multiply, multiplyAdjointLeft, multiplyAdjointRight } from './complex-matrix.js';
-import { eigh, type HermitianEigen } from './eigen.js';
+import { eigh, UNIT_ROUNDOFF, type HermitianEigen } from './eigen.js';
 import { zeroEigenvalueTolerance } from './support.js';
 
 /**
@@ -10,7 +10,7 @@ import { zeroEigenvalueTolerance } from './support.js';
  * derivative is off by about |f'''|·(x−y)²/24, so the crossover sits near u^{1/3} ≈ 5e-6 relative;
  * both errors are then ~1e-11 relative for powers and logarithms.
  */
-export const DIVIDED_DIFFERENCE_RELATIVE_GAP = Math.cbrt(2 ** -53);
+export const DIVIDED_DIFFERENCE_RELATIVE_GAP = Math.cbrt(UNIT_ROUNDOFF);
 
 /** A scalar function with its derivative and, optionally, a cancellation-free difference f(x) − f(y). */
 export interface ScalarFunction {
