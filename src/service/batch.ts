@@ -2,12 +2,12 @@
 // taken from the nearest point already solved.
 import { ValidationError } from '../problem/errors.js';
 import type { MatrixJson } from '../frank-wolfe/types.js';
-import { ENTROPY_ENUM_NAMES } from '../problem/validate.js';
+import { ENTROPY_ENUM_NAMES, entropyRequestFrom } from '../problem/validate.js';
 import { buildExample, EXAMPLES } from '../protocols/index.js';
 import type { ParameterGrid__Output } from './generated/renyibound/v1/ParameterGrid.js';
 import type { SolveRequest__Output } from './generated/renyibound/v1/SolveRequest.js';
 import type { SolveRequestList__Output } from './generated/renyibound/v1/SolveRequestList.js';
-import { checkSettings, prepareSolve, type PreparedSolve, type SolveInput, underField } from './prepare.js';
+import { checkSettings, type PreparedSolve, type SolveInput, underField } from './prepare.js';
 import { entropyKindFromWire, settingsFromWire, wireToJson, type DeliveredResult } from './wire.js';
 
 /** The grid's pseudo-parameter for the Rényi order. */
@@ -15,19 +15,21 @@ export const ALPHA_PARAMETER = 'alpha';
 /** Largest number of points one batch may hold (a guard against a typo'd grid, not a performance limit). */
 export const MAX_BATCH_POINTS = 100_000;
 
-/** One point of a batch, valid (with `prepared`) or not (with `error`). */
+/** One point of a batch: a request to prepare and solve (`input`), or one already known to be bad (`error`). */
 export interface BatchPoint {
   index: number;
   /** Swept parameter values, plus "alpha" for Rényi kinds. */
   point: Record<string, number>;
-  /** Proto enum name of the entropy kind ('' when the request was too broken to say). */
+  /** Proto enum name of the entropy kind ('' while unknown). */
   entropy: string;
-  prepared?: PreparedSolve;
+  input?: SolveInput;
   error?: { field: string; message: string };
   /** Points share warm starts only within a group: same kind, order and dimensions. */
   group: string;
   /** Position on the grid, each axis scaled to [0, 1], for "nearest solved point". */
   coordinates: number[];
+  /** Where a preparation error's field path sits in the batch request. */
+  placeError: (error: ValidationError) => { field: string; message: string };
 }
 
 /** A wire SolveRequest as a domain-level solve input. */
@@ -41,9 +43,12 @@ export function solveInputFromWire(request: SolveRequest__Output): SolveInput {
   };
 }
 
-function groupOf(prepared: PreparedSolve): string {
-  const { problem, request } = prepared;
-  return `${request.kind}|${request.alpha ?? ''}|${problem.dimensionA}x${problem.dimensionB}`;
+/** The warm-start group from what a request says (before validation; a wrong guess only costs a cold start). */
+function groupOf(kind: string | undefined, alpha: number | undefined, problemJson: unknown): string {
+  const problem = (problemJson ?? {}) as Record<string, unknown>;
+  const ownKind = typeof problem.entropy === 'string' ? problem.entropy : '';
+  const ownAlpha = typeof problem.alpha === 'number' ? problem.alpha : undefined;
+  return `${kind ?? ownKind}|${alpha ?? ownAlpha ?? ''}|${String(problem.dimensionA)}x${String(problem.dimensionB)}`;
 }
 
 function failure(error: unknown): { field: string; message: string } {
@@ -56,19 +61,17 @@ export function expandRequestList(list: SolveRequestList__Output): BatchPoint[] 
     throw new ValidationError('requests.requests', `holds ${list.requests.length} requests; at most ${MAX_BATCH_POINTS}`);
   }
   return list.requests.map((request, index) => {
-    const point: BatchPoint = { index, point: {}, entropy: request.entropy, group: '', coordinates: [] };
-    try {
-      point.prepared = prepareSolve(solveInputFromWire(request));
-      point.entropy = ENTROPY_ENUM_NAMES[point.prepared.request.kind];
-      point.group = groupOf(point.prepared);
-    } catch (error) {
-      try {
-        underField(`requests.requests[${index}]`, error);
-      } catch (placed) {
-        point.error = failure(placed);
-      }
-    }
-    return point;
+    const input = solveInputFromWire(request);
+    const prefix = `requests.requests[${index}]`;
+    return {
+      index,
+      point: {},
+      entropy: request.entropy === 'ENTROPY_KIND_UNSPECIFIED' ? '' : request.entropy,
+      input,
+      group: groupOf(input.entropy, input.alpha, input.problemJson),
+      coordinates: [],
+      placeError: (error) => ({ field: `${prefix}.${error.field}`, message: error.reason }),
+    };
   });
 }
 
@@ -180,7 +183,11 @@ function gridPoint(
     }
   });
   if (alpha !== undefined && kind !== 'VON_NEUMANN') point[ALPHA_PARAMETER] = alpha;
-  const batchPoint: BatchPoint = { index, point, entropy: kind, group: '', coordinates };
+  const placeError = (error: ValidationError) =>
+    error.field === ALPHA_PARAMETER
+      ? { field: alphaField, message: error.reason }
+      : { field: `grid.${error.field}`, message: error.reason };
+  const batchPoint: BatchPoint = { index, point, entropy: kind, group: '', coordinates, placeError };
   try {
     let problemJson: unknown;
     try {
@@ -192,13 +199,15 @@ function gridPoint(
       }
       throw error;
     }
+    // The order is cheap to check here; validating and hashing the problem is left to a pool thread.
     try {
-      batchPoint.prepared = prepareSolve({ problemJson, entropy: kind, alpha, settings });
+      entropyRequestFrom(kind, alpha);
     } catch (error) {
-      if (error instanceof ValidationError && error.field === ALPHA_PARAMETER) throw new ValidationError(alphaField, error.reason);
-      underField('grid', error);
+      if (error instanceof ValidationError) throw new ValidationError(placeError(error).field, error.reason);
+      throw error;
     }
-    batchPoint.group = groupOf(batchPoint.prepared!);
+    batchPoint.input = { problemJson, entropy: kind, alpha, settings };
+    batchPoint.group = groupOf(kind, alpha, problemJson);
   } catch (error) {
     batchPoint.error = failure(error);
   }
@@ -212,6 +221,8 @@ interface SolvedPoint {
 }
 
 export interface BatchRunOptions {
+  /** Validates and hashes one point (on a pool thread); bad input throws ValidationError. */
+  prepare: (input: SolveInput) => Promise<PreparedSolve>;
   /** Solves one prepared point (the coordinator, with the batch's cancellation signal). */
   solve: (prepared: PreparedSolve) => Promise<DeliveredResult>;
   /** Points solved at the same time (the pool's thread count). */
@@ -275,13 +286,21 @@ export async function runBatch(points: BatchPoint[], options: BatchRunOptions): 
   };
 
   const runOne = async (point: BatchPoint): Promise<void> => {
-    const prepared = point.prepared!;
-    if (options.warmStarts && prepared.warmStart === undefined) {
-      const warmStart = warmStartFor(point);
-      if (warmStart !== undefined) prepared.warmStart = warmStart;
-    }
     running.set(point.group, (running.get(point.group) ?? 0) + 1);
     try {
+      let prepared: PreparedSolve;
+      try {
+        prepared = await options.prepare(point.input!);
+      } catch (error) {
+        if (!(error instanceof ValidationError)) throw error;
+        options.onPoint(point, { error: point.placeError(error) });
+        return;
+      }
+      point.entropy = ENTROPY_ENUM_NAMES[prepared.request.kind];
+      if (options.warmStarts && prepared.warmStart === undefined) {
+        const warmStart = warmStartFor(point);
+        if (warmStart !== undefined && warmStart.rows === prepared.dimensionA * prepared.dimensionB) prepared.warmStart = warmStart;
+      }
       const result = await options.solve(prepared);
       if (result.finalState !== undefined && result.status !== 'INFEASIBLE') {
         const list = solved.get(point.group) ?? [];

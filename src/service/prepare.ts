@@ -11,11 +11,17 @@ import type { EntropyRequest, Problem } from '../problem/model.js';
 import { densityOperatorFromJson } from '../problem/state.js';
 import { entropyRequestFrom, parseProblemJson } from '../problem/validate.js';
 
-/** A request that passed validation: everything the worker, the cache and the log line need. */
+/**
+ * A request that passed validation: everything the worker, the cache and the log line need. Plain data, so that
+ * it can be made in a worker thread and sent back; `problem` is present only where it was read.
+ */
 export interface PreparedSolve {
   /** The problem as protobuf JSON; workers re-read it (class instances do not survive the thread boundary). */
   problemJson: unknown;
-  problem: Problem;
+  /** The validated problem, when this thread read it (see problemOf). */
+  problem?: Problem;
+  dimensionA: number;
+  dimensionB: number;
   request: EntropyRequest;
   /** Complete settings (server defaults filled in). */
   settings: SolverSettings;
@@ -57,7 +63,7 @@ export function checkSettings(settings: Partial<SolverSettings>): SolverSettings
 }
 
 /** Validates one request; throws ValidationError with a field path relative to the request message. */
-export function prepareSolve(input: SolveInput): PreparedSolve {
+export function prepareSolve(input: SolveInput): PreparedSolve & { problem: Problem } {
   if (input.problemJson === undefined || input.problemJson === null) {
     throw new ValidationError('problem', 'is required');
   }
@@ -78,9 +84,11 @@ export function prepareSolve(input: SolveInput): PreparedSolve {
     throw new ValidationError('entropy', 'must be given in the request or in the problem');
   }
   const settings = checkSettings(input.settings ?? {});
-  const prepared: PreparedSolve = {
+  const prepared: PreparedSolve & { problem: Problem } = {
     problemJson: input.problemJson,
     problem: parsed.problem,
+    dimensionA: parsed.problem.dimensionA,
+    dimensionB: parsed.problem.dimensionB,
     request,
     settings,
     inputHash: inputHash(parsed.problem, request, settings, SOLVER_VERSION),
@@ -90,6 +98,18 @@ export function prepareSolve(input: SolveInput): PreparedSolve {
     prepared.warmStart = matrixToJson(densityOperatorFromJson(input.warmStart, 'warmStart', d));
   }
   return prepared;
+}
+
+/** The validated problem of a prepared request, read again from its JSON when it was prepared on another thread. */
+export function problemOf(prepared: PreparedSolve): Problem {
+  prepared.problem ??= parseProblemJson(prepared.problemJson).problem;
+  return prepared.problem;
+}
+
+/** The plain-data part of a prepared request (what crosses the thread boundary). */
+export function withoutProblem(prepared: PreparedSolve): PreparedSolve {
+  const { problem: _problem, ...rest } = prepared;
+  return rest;
 }
 
 /** Prepared requests remembered for repeats (validation and hashing cost milliseconds on larger problems). */

@@ -11,7 +11,6 @@ import { RedisCacheLayer } from '../cache/redis.js';
 import { ResultCache } from '../cache/result-cache.js';
 import { defaultCacheDirectory, SqliteCacheLayer } from '../cache/sqlite.js';
 import { verifyResult } from '../certificate/verify.js';
-import type { SolveResult } from '../frank-wolfe/types.js';
 import { ValidationError } from '../problem/errors.js';
 import { expandGrid, expandRequestList, runBatch, solveInputFromWire, type BatchPoint } from './batch.js';
 import { toServiceError } from './errors.js';
@@ -25,7 +24,7 @@ import type { VerifyRequest__Output } from './generated/renyibound/v1/VerifyRequ
 import { PreparedRequestMemo, prepareSolve } from './prepare.js';
 import { loadServiceDefinition, loadServicePackage, SERVICE_NAME } from './proto.js';
 import { SolveCoordinator } from './solve-coordinator.js';
-import type { SolveTask } from './solve-worker.js';
+import type { WorkerReply, WorkerTask } from './solve-worker.js';
 import { QueueFullError, SolverPool } from './solver-pool.js';
 import { entropyKindFromWire, resultFromWire, resultToWire, wireToJson } from './wire.js';
 
@@ -74,7 +73,7 @@ export class RenyiBoundServer {
 
   private constructor(
     readonly grpcServer: grpc.Server,
-    readonly pool: SolverPool<SolveTask, SolveResult>,
+    readonly pool: SolverPool<WorkerTask, WorkerReply>,
     readonly cache: ResultCache,
     readonly coordinator: SolveCoordinator,
     readonly logger: Logger,
@@ -108,7 +107,7 @@ export class RenyiBoundServer {
       );
     }
     const cache = new ResultCache(layers, (event) => logger.warn({ event: 'cache', ...event }, `cache entry ${event.kind}`));
-    const pool = new SolverPool<SolveTask, SolveResult>({
+    const pool = new SolverPool<WorkerTask, WorkerReply>({
       workers: options.workers,
       queueLimit: options.queueLimit,
       maxAttempts: options.workerAttempts,
@@ -213,6 +212,7 @@ export class RenyiBoundServer {
     this.logger.info({ event: 'batch', requestId: call.request.requestId || undefined, points: total }, 'batch started');
     try {
       await runBatch(points, {
+        prepare: (input) => this.coordinator.prepare(input),
         solve: (prepared) =>
           this.coordinator.solve(prepared, { signal: controller.signal, requestId: call.request.requestId, admitted: true }),
         concurrency: this.pool.workers,

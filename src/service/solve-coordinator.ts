@@ -3,9 +3,10 @@ import type { Logger } from 'pino';
 import { verifyResult } from '../certificate/verify.js';
 import type { SolveResult } from '../frank-wolfe/types.js';
 import type { ResultCache, ResultCheck } from '../cache/result-cache.js';
+import { ValidationError } from '../problem/errors.js';
 import { createCancelFlag, raiseCancelFlag } from './cancel-flag.js';
-import type { PreparedSolve } from './prepare.js';
-import type { SolveTask } from './solve-worker.js';
+import { problemOf, type PreparedSolve, type SolveInput } from './prepare.js';
+import type { Verification, WorkerReply, WorkerTask } from './solve-worker.js';
 import type { SolverPool } from './solver-pool.js';
 import type { DeliveredResult } from './wire.js';
 
@@ -26,11 +27,14 @@ export interface SolveContext {
   admitted?: boolean;
 }
 
-/** The verifier bound to one request, plus the hash check the cache relies on. */
+/**
+ * The verifier bound to one request, plus the hash check the cache relies on. Used for entries read from an
+ * untrusted tier (rare: a hit is promoted to memory), so it runs here, reading the problem if this thread has not.
+ */
 export function checkFor(prepared: PreparedSolve): ResultCheck {
   return (result) => {
     if (result.inputHash !== prepared.inputHash) return { valid: false, reason: 'result answers another input hash' };
-    return verifyResult(prepared.problem, prepared.request, result);
+    return verifyResult(problemOf(prepared), prepared.request, result);
   };
 }
 
@@ -38,7 +42,7 @@ export class SolveCoordinator {
   private readonly inFlight = new Map<string, InFlightSolve>();
 
   constructor(
-    private readonly pool: SolverPool<SolveTask, SolveResult>,
+    private readonly pool: SolverPool<WorkerTask, WorkerReply>,
     private readonly cache: ResultCache,
     private readonly logger: Logger,
   ) {}
@@ -46,6 +50,14 @@ export class SolveCoordinator {
   /** Solves currently running or queued (distinct input hashes). */
   get inFlightCount(): number {
     return this.inFlight.size;
+  }
+
+  /** Validates and hashes a request on a pool thread (batch points); bad input throws ValidationError. */
+  async prepare(input: SolveInput): Promise<PreparedSolve> {
+    const reply = await this.pool.run({ kind: 'prepare', input }, true);
+    if (reply.kind === 'invalid') throw new ValidationError(reply.field, reply.reason);
+    if (reply.kind !== 'prepared') throw new Error(`unexpected worker reply ${reply.kind}`);
+    return reply.prepared;
   }
 
   async solve(prepared: PreparedSolve, context: SolveContext = {}): Promise<DeliveredResult> {
@@ -84,7 +96,8 @@ export class SolveCoordinator {
 
   private startSolve(prepared: PreparedSolve, context: SolveContext): InFlightSolve {
     const cancelFlag = createCancelFlag();
-    const task: SolveTask = {
+    const task: WorkerTask = {
+      kind: 'solve',
       problemJson: prepared.problemJson,
       entropy: prepared.request.kind,
       alpha: prepared.request.alpha,
@@ -95,11 +108,14 @@ export class SolveCoordinator {
     const entry: InFlightSolve = { cancelFlag, waiters: 1, promise: Promise.resolve(undefined as unknown as SolveResult) };
     entry.promise = (async () => {
       try {
-        const result = await this.pool.run(task, context.admitted ?? false);
+        const reply = await this.pool.run(task, context.admitted ?? false);
+        if (reply.kind !== 'solved') throw new Error(`unexpected worker reply ${reply.kind}`);
+        const { result, verification } = reply;
         if (result.inputHash !== prepared.inputHash) {
           this.logger.error({ inputHash: prepared.inputHash, solverHash: result.inputHash }, 'solver and service disagree on the input hash');
         }
-        await this.cache.store(prepared.inputHash, result, checkFor(prepared));
+        // The worker ran the independent verifier on this result; only a verified certificate is stored.
+        await this.cache.store(prepared.inputHash, result, (): Verification => verification);
         return result;
       } finally {
         if (this.inFlight.get(prepared.inputHash) === entry) this.inFlight.delete(prepared.inputHash);

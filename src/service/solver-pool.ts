@@ -3,9 +3,9 @@
 import { availableParallelism } from 'node:os';
 import { Piscina } from 'piscina';
 
-/** Tasks carry the shared cancel flag so that a retry after a lost thread can be skipped once cancelled. */
+/** Tasks may carry the shared cancel flag, so that a retry after a lost thread is skipped once cancelled. */
 export interface CancellableTask {
-  cancelFlag: SharedArrayBuffer;
+  cancelFlag?: SharedArrayBuffer;
 }
 
 export interface SolverPoolOptions {
@@ -118,7 +118,7 @@ export class SolverPool<Task extends CancellableTask, Result> {
         } catch (error) {
           if (!isThreadLoss(error)) throw error;
           this.lostThreads++;
-          const cancelled = Atomics.load(new Int32Array(task.cancelFlag), 0) !== 0;
+          const cancelled = task.cancelFlag !== undefined && Atomics.load(new Int32Array(task.cancelFlag), 0) !== 0;
           if (attempt >= this.maxAttempts || cancelled) throw new WorkerLostError(attempt, error);
         }
       }

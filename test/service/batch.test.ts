@@ -1,7 +1,10 @@
 // Grid expansion and batch scheduling (the solve step injected; the real solver runs in server.test.ts).
 import { describe, expect, it } from 'vitest';
 import type { MatrixJson } from '../../src/frank-wolfe/types.js';
-import { expandGrid, runBatch, type BatchPoint } from '../../src/service/batch.js';
+import { expandGrid, expandRequestList, runBatch, type BatchPoint } from '../../src/service/batch.js';
+import { prepareSolve } from '../../src/service/prepare.js';
+import { ENTROPY_ENUM_NAMES } from '../../src/problem/validate.js';
+import { buildExample } from '../../src/protocols/index.js';
 import type { ParameterGrid__Output } from '../../src/service/generated/renyibound/v1/ParameterGrid.js';
 import type { DeliveredResult } from '../../src/service/wire.js';
 import { renderSvg, sweepCsv, sweepPlotSpec, sweepTable } from '../../src/service/report.js';
@@ -31,7 +34,7 @@ describe('expandGrid', () => {
       { 'qber-x': 0.01, alpha: 1.5 },
       { 'qber-x': 0.01, alpha: 2 },
     ]);
-    expect(points.every((p) => p.error === undefined && p.prepared !== undefined)).toBe(true);
+    expect(points.every((p) => p.error === undefined && p.input !== undefined)).toBe(true);
     // Warm-start groups: one for von Neumann, one per order.
     expect(new Set(points.map((p) => p.group)).size).toBe(3);
     expect(points[2].coordinates).toEqual([1]);
@@ -56,7 +59,8 @@ function fakeResult(tag: number, warmStart: MatrixJson | undefined): DeliveredRe
     status: 'CERTIFIED', entropy: 'von-neumann', alpha: null, certifiedLowerBound: tag, upperBound: tag, gap: 0,
     toleranceMargin: 0, statisticalSlack: 0, maxConstraintViolation: 0, iterations: warmStart ? 1 : 10, seconds: 0,
     oracleSeconds: 0, inputHash: String(tag), certificate: null, fromCache: false,
-    finalState: { rows: 1, cols: 1, re: [tag] },
+    // A 4×4 final state (bb84-entangled's dimension) tagged with the point it came from.
+    finalState: { rows: 4, cols: 4, re: [tag, ...new Array<number>(15).fill(0)] },
   };
 }
 
@@ -67,8 +71,9 @@ describe('runBatch', () => {
     await runBatch(points, {
       concurrency: 1,
       warmStarts: true,
+      prepare: async (input) => prepareSolve(input),
       solve: async (prepared) => {
-        const point = points.find((p) => p.prepared === prepared)!;
+        const point = points.find((p) => p.input!.problemJson === prepared.problemJson && p.input!.entropy === ENTROPY_ENUM_NAMES[prepared.request.kind])!;
         startedFrom.set(point.index, prepared.warmStart?.re[0]);
         return fakeResult(point.index, prepared.warmStart);
       },
@@ -86,7 +91,13 @@ describe('runBatch', () => {
   it('reports every point once, errors included, and stops dispatching when aborted', async () => {
     const points: BatchPoint[] = expandGrid(grid({ axes: [{ name: 'qber-x', values: [0.01, 5, 0.03, 0.04] }], entropies: ['VON_NEUMANN'] }));
     const seen: number[] = [];
-    await runBatch(points, { concurrency: 2, warmStarts: false, solve: async (p) => fakeResult(0, p.warmStart), onPoint: (p) => seen.push(p.index) });
+    await runBatch(points, {
+      concurrency: 2,
+      warmStarts: false,
+      prepare: async (input) => prepareSolve(input),
+      solve: async (p) => fakeResult(0, p.warmStart),
+      onPoint: (p) => seen.push(p.index),
+    });
     expect(seen.sort()).toEqual([0, 1, 2, 3]);
 
     const controller = new AbortController();
@@ -95,6 +106,7 @@ describe('runBatch', () => {
       concurrency: 1,
       warmStarts: false,
       signal: controller.signal,
+      prepare: async (input) => prepareSolve(input),
       solve: async (p) => {
         controller.abort();
         return fakeResult(0, p.warmStart);
@@ -102,6 +114,28 @@ describe('runBatch', () => {
       onPoint: (p) => solved.push(p.index),
     });
     expect(solved).toEqual([0]);
+  });
+});
+
+describe('request lists', () => {
+  it('places a preparation error under the request that caused it', async () => {
+    const problem = buildExample('bb84-entangled', {});
+    const points = expandRequestList({
+      requests: [
+        { problem: problem as never, entropy: 'VON_NEUMANN', alpha: undefined, settings: null, warmStart: null, requestId: '' },
+        { problem: { ...problem, dimensionA: 0 } as never, entropy: 'VON_NEUMANN', alpha: undefined, settings: null, warmStart: null, requestId: '' },
+      ],
+    });
+    const outcomes = new Map<number, unknown>();
+    await runBatch(points, {
+      concurrency: 1,
+      warmStarts: false,
+      prepare: async (input) => prepareSolve(input),
+      solve: async (p) => fakeResult(1, p.warmStart),
+      onPoint: (p, outcome) => outcomes.set(p.index, outcome.error?.field ?? outcome.result?.status),
+    });
+    expect(outcomes.get(0)).toBe('CERTIFIED');
+    expect(outcomes.get(1)).toBe('requests.requests[1].problem.dimensionA');
   });
 });
 
