@@ -316,17 +316,17 @@ export class LinearOracle {
         this.roundingLevel(gradientNorm, result),
       );
       if (result.primalValue - result.dualBound <= threshold) return result;
-      if (this.solver.iterations >= resolved.maxIterations || stalledAcceptably) {
-        status = 'ITERATION_LIMIT';
-        break;
-      }
+      if (this.solver.iterations >= resolved.maxIterations || stalledAcceptably) break;
       internalShare *= GAP_TIGHTENING;
     }
     const fallback = this.resultFromSolver(G, objectiveScale, spanCoefficients, status === 'NUMERICAL_ERROR' ? 'NUMERICAL_ERROR' : 'ITERATION_LIMIT');
+    const gapNote = `gap ${(fallback.primalValue - fallback.dualBound).toExponential(2)}; the dual bound is still valid`;
     fallback.message =
       status === 'NUMERICAL_ERROR'
-        ? 'a factorization failed inside the interior-point method; the dual bound is still valid'
-        : `stopped after ${this.solver.iterations} interior-point iterations; the dual bound is still valid`;
+        ? `a factorization failed inside the interior-point method after ${this.solver.iterations} iterations; ${gapNote}`
+        : status === 'STALLED'
+          ? `progress stalled after ${this.solver.iterations} interior-point iterations (primal residual ${this.solver.primalResidualNorm.toExponential(2)}); ${gapNote}`
+          : `stopped after ${this.solver.iterations} interior-point iterations; ${gapNote}`;
     // No convergence: infeasible data is the usual reason; the feasibility run decides and is cached.
     const feasibility = this.findFeasiblePoint();
     if (feasibility.status === 'INFEASIBLE') return this.copyInfeasible(feasibility);
