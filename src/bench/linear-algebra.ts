@@ -15,7 +15,7 @@ const CELL_BUDGET_MS = 250;
 const MIN_BATCHES = 7;
 /** Untimed warm-up per cell, so that the JIT has optimised the code for this size before timing. */
 const WARM_UP_MS = 150;
-const MIN_WARM_UP_CALLS = 20;
+const MIN_WARM_UP_CALLS = 2;
 
 /** Deterministic generator for benchmark inputs (same matrices on every run). */
 function uniformSource(seed: number): () => number {
