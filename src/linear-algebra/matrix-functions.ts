@@ -31,40 +31,17 @@ export function spectralFunction(eig: HermitianEigen, f: (x: number) => number):
   if (cols !== n) throw new RangeError(`spectralFunction: ${n} eigenvalues but ${cols} eigenvectors`);
   const fv = new Float64Array(n);
   for (let k = 0; k < n; k++) fv[k] = f(values[k]);
-  // F = V·diag(f), then (F·V†)_ij = Σ_k F_ik·conj(V_jk), rows of F and V contiguous in k.
-  const fr = new Float64Array(rows * n);
-  const fi = new Float64Array(rows * n);
+  // F = V·diag(f), then f(A) = F·V†, Hermitian, so only its lower triangle is computed.
+  const scaled = new ComplexMatrix(rows, n);
+  const fr = scaled.re;
+  const fi = scaled.im;
   for (let i = 0; i < rows; i++) {
     for (let k = 0; k < n; k++) {
       fr[i * n + k] = vr[i * n + k] * fv[k];
       fi[i * n + k] = vi[i * n + k] * fv[k];
     }
   }
-  const out = new ComplexMatrix(rows, rows);
-  const or = out.re;
-  const oi = out.im;
-  for (let i = 0; i < rows; i++) {
-    const ri = i * n;
-    for (let j = 0; j <= i; j++) {
-      const rj = j * n;
-      let sr = 0;
-      let si = 0;
-      for (let k = 0; k < n; k++) {
-        const ar = fr[ri + k];
-        const ai = fi[ri + k];
-        const br = vr[rj + k];
-        const bi = vi[rj + k];
-        sr += ar * br + ai * bi;
-        si += ai * br - ar * bi;
-      }
-      or[i * rows + j] = sr;
-      oi[i * rows + j] = si;
-      or[j * rows + i] = sr;
-      oi[j * rows + i] = -si;
-    }
-    oi[i * rows + i] = 0;
-  }
-  return out;
+  return lowerTimesAdjoint(scaled, vectors);
 }
 
 /**
@@ -149,13 +126,45 @@ function lowerTimesAdjoint(x: ComplexMatrix, y: ComplexMatrix): ComplexMatrix {
   const n = x.rows;
   const p = x.cols;
   const out = new ComplexMatrix(n, n);
+  const or = out.re;
+  const oi = out.im;
   const xr = x.re;
   const xi = x.im;
   const yr = y.re;
   const yi = y.im;
   for (let i = 0; i < n; i++) {
     const ri = i * p;
-    for (let j = 0; j <= i; j++) {
+    // Two rows of Y per pass share each load of row i of X.
+    let j = 0;
+    for (; j + 1 <= i; j += 2) {
+      const r0 = j * p;
+      const r1 = r0 + p;
+      let s0r = 0;
+      let s0i = 0;
+      let s1r = 0;
+      let s1i = 0;
+      for (let k = 0; k < p; k++) {
+        const ar = xr[ri + k];
+        const ai = xi[ri + k];
+        const b0r = yr[r0 + k];
+        const b0i = yi[r0 + k];
+        const b1r = yr[r1 + k];
+        const b1i = yi[r1 + k];
+        s0r += ar * b0r + ai * b0i;
+        s0i += ai * b0r - ar * b0i;
+        s1r += ar * b1r + ai * b1i;
+        s1i += ai * b1r - ar * b1i;
+      }
+      or[i * n + j] = s0r;
+      oi[i * n + j] = s0i;
+      or[j * n + i] = s0r;
+      oi[j * n + i] = -s0i;
+      or[i * n + j + 1] = s1r;
+      oi[i * n + j + 1] = s1i;
+      or[(j + 1) * n + i] = s1r;
+      oi[(j + 1) * n + i] = -s1i;
+    }
+    for (; j <= i; j++) {
       const rj = j * p;
       let sr = 0;
       let si = 0;
@@ -167,12 +176,12 @@ function lowerTimesAdjoint(x: ComplexMatrix, y: ComplexMatrix): ComplexMatrix {
         sr += ar * br + ai * bi;
         si += ai * br - ar * bi;
       }
-      out.re[i * n + j] = sr;
-      out.im[i * n + j] = si;
-      out.re[j * n + i] = sr;
-      out.im[j * n + i] = -si;
+      or[i * n + j] = sr;
+      oi[i * n + j] = si;
+      or[j * n + i] = sr;
+      oi[j * n + i] = -si;
     }
-    out.im[i * n + i] = 0;
+    oi[i * n + i] = 0;
   }
   return out;
 }

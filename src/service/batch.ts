@@ -227,7 +227,10 @@ export interface BatchRunOptions {
   solve: (prepared: PreparedSolve) => Promise<DeliveredResult>;
   /** Points solved at the same time (the pool's thread count). */
   concurrency: number;
+  /** Start points from their nearest solved neighbour (dropped per group once a warm start does worse than cold). */
   warmStarts: boolean;
+  /** Called when a group goes back to cold starts. */
+  onWarmStartsDropped?: (group: string, warmIterations: number, coldIterations: number) => void;
   signal?: AbortSignal;
   /** Called once per point, in completion order. */
   onPoint: (point: BatchPoint, outcome: { result?: DeliveredResult; error?: { field: string; message: string } }) => void;
@@ -241,12 +244,18 @@ function squaredDistance(a: number[], b: number[]): number {
 
 /**
  * Runs the valid points `concurrency` at a time. Each warm-start group is walked in grid order, and groups with
- * nothing running go first, so that a point usually starts from its direct neighbour's final state.
+ * nothing running go first, so that a point usually starts from its direct neighbour's final state. A group's
+ * first point starts cold and sets the reference; once a warm-started point needs more iterations than that, the
+ * rest of the group starts cold.
  */
 export async function runBatch(points: BatchPoint[], options: BatchRunOptions): Promise<void> {
   const queues = new Map<string, BatchPoint[]>();
   const running = new Map<string, number>();
   const solved = new Map<string, SolvedPoint[]>();
+  // Iterations of a group's first cold solve; a warm start that needs more than that turns warm starts off for
+  // the rest of the group (measured: from a neighbour's boundary optimum some solvers take longer than cold).
+  const coldIterations = new Map<string, number>();
+  const warmDisabled = new Set<string>();
   for (const point of points) {
     if (point.error !== undefined) {
       options.onPoint(point, { error: point.error });
@@ -297,11 +306,23 @@ export async function runBatch(points: BatchPoint[], options: BatchRunOptions): 
         return;
       }
       point.entropy = ENTROPY_ENUM_NAMES[prepared.request.kind];
-      if (options.warmStarts && prepared.warmStart === undefined) {
+      let warmStarted = false;
+      if (options.warmStarts && prepared.warmStart === undefined && !warmDisabled.has(point.group)) {
         const warmStart = warmStartFor(point);
-        if (warmStart !== undefined && warmStart.rows === prepared.dimensionA * prepared.dimensionB) prepared.warmStart = warmStart;
+        if (warmStart !== undefined && warmStart.rows === prepared.dimensionA * prepared.dimensionB) {
+          prepared.warmStart = warmStart;
+          warmStarted = true;
+        }
       }
       const result = await options.solve(prepared);
+      if (!result.fromCache) {
+        const reference = coldIterations.get(point.group);
+        if (!warmStarted && reference === undefined) coldIterations.set(point.group, result.iterations);
+        if (warmStarted && reference !== undefined && result.iterations > reference) {
+          warmDisabled.add(point.group);
+          options.onWarmStartsDropped?.(point.group, result.iterations, reference);
+        }
+      }
       if (result.finalState !== undefined && result.status !== 'INFEASIBLE') {
         const list = solved.get(point.group) ?? [];
         list.push({ coordinates: point.coordinates, finalState: result.finalState });

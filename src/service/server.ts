@@ -217,6 +217,8 @@ export class RenyiBoundServer {
           this.coordinator.solve(prepared, { signal: controller.signal, requestId: call.request.requestId, admitted: true }),
         concurrency: this.pool.workers,
         warmStarts: !call.request.disableWarmStart,
+        onWarmStartsDropped: (group, warmIterations, coldIterations) =>
+          this.logger.info({ event: 'warm-start', group, warmIterations, coldIterations }, 'warm starts dropped for this group: slower than cold'),
         signal: controller.signal,
         onPoint: (point, outcome) => {
           done++;

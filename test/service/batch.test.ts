@@ -88,6 +88,26 @@ describe('runBatch', () => {
     expect(startedFrom.get(7)).toBe(6);
   });
 
+  it('goes back to cold starts in a group once a warm start needs more iterations than the cold one did', async () => {
+    const points = expandGrid(grid({ axes: [{ name: 'qber-x', values: [0.01, 0.02, 0.03, 0.04, 0.05] }], entropies: ['VON_NEUMANN'] }));
+    const warm: boolean[] = [];
+    const dropped: number[] = [];
+    await runBatch(points, {
+      concurrency: 1,
+      warmStarts: true,
+      prepare: async (input) => prepareSolve(input),
+      // Cold: 5 iterations; warm: 8 (worse).
+      solve: async (prepared) => {
+        warm.push(prepared.warmStart !== undefined);
+        return { ...fakeResult(0, prepared.warmStart), iterations: prepared.warmStart ? 8 : 5 };
+      },
+      onWarmStartsDropped: (_, warmIterations, coldIterations) => dropped.push(warmIterations, coldIterations),
+      onPoint: () => {},
+    });
+    expect(warm).toEqual([false, true, false, false, false]);
+    expect(dropped).toEqual([8, 5]);
+  });
+
   it('reports every point once, errors included, and stops dispatching when aborted', async () => {
     const points: BatchPoint[] = expandGrid(grid({ axes: [{ name: 'qber-x', values: [0.01, 5, 0.03, 0.04] }], entropies: ['VON_NEUMANN'] }));
     const seen: number[] = [];

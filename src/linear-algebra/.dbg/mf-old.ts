@@ -1,0 +1,263 @@
+// Functions of Hermitian matrices through their eigendecomposition, and their Fréchet derivatives
+// (Daleckii–Krein formula).
+import { adjoint, ComplexMatrix, multiply, multiplyAdjointLeft, multiplyAdjointRight } from '../complex-matrix.js';
+import { eigh, UNIT_ROUNDOFF, type HermitianEigen } from '../eigen.js';
+import { zeroEigenvalueTolerance } from '../support.js';
+
+/**
+ * Relative eigenvalue gap below which a divided difference (f(x) − f(y))/(x − y) is replaced by f'
+ * at the midpoint. The quotient loses about u·|f|/(|x−y|·|f'|) to cancellation while the midpoint
+ * derivative is off by about |f'''|·(x−y)²/24, so the crossover sits near u^{1/3} ≈ 5e-6 relative;
+ * both errors are then ~1e-11 relative for powers and logarithms.
+ */
+export const DIVIDED_DIFFERENCE_RELATIVE_GAP = Math.cbrt(UNIT_ROUNDOFF);
+
+/** A scalar function with its derivative and, optionally, a cancellation-free difference f(x) − f(y). */
+export interface ScalarFunction {
+  value: (x: number) => number;
+  derivative: (x: number) => number;
+  /** f(x) − f(y) computed without cancellation for nearby x, y (used for divided differences). */
+  difference?: (x: number, y: number) => number;
+}
+
+/** f(A) = V·f(Λ)·V† for A = V·Λ·V†; the result is exactly Hermitian (lower triangle mirrored). */
+export function spectralFunction(eig: HermitianEigen, f: (x: number) => number): ComplexMatrix {
+  const { values, vectors } = eig;
+  const n = values.length;
+  const vr = vectors.re;
+  const vi = vectors.im;
+  const cols = vectors.cols;
+  const rows = vectors.rows;
+  if (cols !== n) throw new RangeError(`spectralFunction: ${n} eigenvalues but ${cols} eigenvectors`);
+  const fv = new Float64Array(n);
+  for (let k = 0; k < n; k++) fv[k] = f(values[k]);
+  // F = V·diag(f), then (F·V†)_ij = Σ_k F_ik·conj(V_jk), rows of F and V contiguous in k.
+  const fr = new Float64Array(rows * n);
+  const fi = new Float64Array(rows * n);
+  for (let i = 0; i < rows; i++) {
+    for (let k = 0; k < n; k++) {
+      fr[i * n + k] = vr[i * n + k] * fv[k];
+      fi[i * n + k] = vi[i * n + k] * fv[k];
+    }
+  }
+  const out = new ComplexMatrix(rows, rows);
+  const or = out.re;
+  const oi = out.im;
+  for (let i = 0; i < rows; i++) {
+    const ri = i * n;
+    for (let j = 0; j <= i; j++) {
+      const rj = j * n;
+      let sr = 0;
+      let si = 0;
+      for (let k = 0; k < n; k++) {
+        const ar = fr[ri + k];
+        const ai = fi[ri + k];
+        const br = vr[rj + k];
+        const bi = vi[rj + k];
+        sr += ar * br + ai * bi;
+        si += ai * br - ar * bi;
+      }
+      or[i * rows + j] = sr;
+      oi[i * rows + j] = si;
+      or[j * rows + i] = sr;
+      oi[j * rows + i] = -si;
+    }
+    oi[i * rows + i] = 0;
+  }
+  return out;
+}
+
+/**
+ * The first divided differences Γ_ij = (f(λ_i) − f(λ_j))/(λ_i − λ_j), n×n row-major, symmetric.
+ * Γ_ii = f'(λ_i). For |λ_i − λ_j| ≤ DIVIDED_DIFFERENCE_RELATIVE_GAP·max(|λ_i|, |λ_j|) the quotient
+ * would cancel, so f' at the midpoint is used (error ~ |f'''|·Δ²/24). When a cancellation-free
+ * `difference(x, y) = f(x) − f(y)` is supplied the quotient is used for every distinct pair instead.
+ */
+export function dividedDifferences(
+  values: Float64Array,
+  f: (x: number) => number,
+  fPrime: (x: number) => number,
+  difference?: (x: number, y: number) => number,
+): Float64Array {
+  const n = values.length;
+  const gamma = new Float64Array(n * n);
+  const fv = new Float64Array(n);
+  for (let i = 0; i < n; i++) fv[i] = f(values[i]);
+  for (let i = 0; i < n; i++) {
+    const x = values[i];
+    gamma[i * n + i] = fPrime(x);
+    for (let j = 0; j < i; j++) {
+      const y = values[j];
+      const gap = x - y;
+      let g: number;
+      if (gap === 0) g = fPrime(x);
+      else if (difference !== undefined) g = difference(x, y) / gap;
+      else if (Math.abs(gap) <= DIVIDED_DIFFERENCE_RELATIVE_GAP * Math.max(Math.abs(x), Math.abs(y))) g = fPrime(0.5 * (x + y));
+      else g = (fv[i] - fv[j]) / gap;
+      gamma[i * n + j] = g;
+      gamma[j * n + i] = g;
+    }
+  }
+  return gamma;
+}
+
+/**
+ * Daleckii–Krein: the Fréchet derivative Df(A)[H] = V·(Γ ∘ (V†·H·V))·V† for A = V·Λ·V†,
+ * Γ = dividedDifferences(Λ, f, f'). Works for any square H; an exactly Hermitian H takes a faster
+ * path that forms only the lower triangles of the Hermitian intermediates and gives an exactly
+ * Hermitian result.
+ */
+export function frechetDerivative(eig: HermitianEigen, gamma: Float64Array, h: ComplexMatrix): ComplexMatrix {
+  const n = eig.values.length;
+  const v = eig.vectors;
+  if (v.rows !== n || v.cols !== n) throw new RangeError(`frechetDerivative: eigenvectors are ${v.rows}x${v.cols}, expected ${n}x${n}`);
+  if (h.rows !== n || h.cols !== n) throw new RangeError(`frechetDerivative: direction is ${h.rows}x${h.cols}, expected ${n}x${n}`);
+  if (gamma.length !== n * n) throw new RangeError(`frechetDerivative: ${gamma.length} divided differences, expected ${n * n}`);
+  if (!isExactlyHermitian(h)) {
+    const inner = multiply(multiplyAdjointLeft(v, h), v);
+    for (let k = 0; k < n * n; k++) {
+      inner.re[k] *= gamma[k];
+      inner.im[k] *= gamma[k];
+    }
+    return multiplyAdjointRight(multiply(v, inner), v);
+  }
+  // W = V†, S = W·H = (H·V)†, T = Γ ∘ (W·S†) (Hermitian: lower triangle, mirrored), P = V·T, result P·V†.
+  const w = adjoint(v);
+  const s = multiply(w, h);
+  const t = lowerTimesAdjoint(w, s);
+  for (let k = 0; k < n * n; k++) {
+    t.re[k] *= gamma[k];
+    t.im[k] *= gamma[k];
+  }
+  return lowerTimesAdjoint(multiply(v, t), v);
+}
+
+/** H equals its adjoint entry by entry (no tolerance: only then is the Hermitian fast path exact). */
+function isExactlyHermitian(h: ComplexMatrix): boolean {
+  const n = h.rows;
+  for (let i = 0; i < n; i++) {
+    if (h.im[i * n + i] !== 0) return false;
+    for (let j = 0; j < i; j++) {
+      if (h.re[i * n + j] !== h.re[j * n + i] || h.im[i * n + j] !== -h.im[j * n + i]) return false;
+    }
+  }
+  return true;
+}
+
+/** X·Y† for a product known to be Hermitian: lower triangle by row dot products, then mirrored. */
+function lowerTimesAdjoint(x: ComplexMatrix, y: ComplexMatrix): ComplexMatrix {
+  const n = x.rows;
+  const p = x.cols;
+  const out = new ComplexMatrix(n, n);
+  const xr = x.re;
+  const xi = x.im;
+  const yr = y.re;
+  const yi = y.im;
+  for (let i = 0; i < n; i++) {
+    const ri = i * p;
+    for (let j = 0; j <= i; j++) {
+      const rj = j * p;
+      let sr = 0;
+      let si = 0;
+      for (let k = 0; k < p; k++) {
+        const ar = xr[ri + k];
+        const ai = xi[ri + k];
+        const br = yr[rj + k];
+        const bi = yi[rj + k];
+        sr += ar * br + ai * bi;
+        si += ai * br - ar * bi;
+      }
+      out.re[i * n + j] = sr;
+      out.im[i * n + j] = si;
+      out.re[j * n + i] = sr;
+      out.im[j * n + i] = -si;
+    }
+    out.im[i * n + i] = 0;
+  }
+  return out;
+}
+
+/**
+ * Relative separation above which f(x) − f(y) is taken directly: there is no cancellation to avoid,
+ * and the log1p/expm1 forms could overflow for extreme ratios.
+ */
+const DIRECT_DIFFERENCE_RELATIVE_GAP = 0.5;
+
+/** True when x and y are positive and close enough for the log1p/expm1 forms to be the better choice. */
+function closePositive(x: number, y: number): boolean {
+  return x > 0 && y > 0 && Math.abs(x - y) <= DIRECT_DIFFERENCE_RELATIVE_GAP * Math.max(x, y);
+}
+
+/** x^p for x > 0 with f', and a cancellation-free x^p − y^p = y^p·expm1(p·log1p((x−y)/y)). */
+export function powerFunction(p: number): ScalarFunction {
+  return {
+    value: (x) => x ** p,
+    derivative: (x) => p * x ** (p - 1),
+    difference: (x, y) => (closePositive(x, y) ? y ** p * Math.expm1(p * Math.log1p((x - y) / y)) : x ** p - y ** p),
+  };
+}
+
+/** Natural logarithm with f' = 1/x and a cancellation-free ln x − ln y = log1p((x−y)/y). */
+export const naturalLogFunction: ScalarFunction = {
+  value: (x) => Math.log(x),
+  derivative: (x) => 1 / x,
+  difference: (x, y) => (closePositive(x, y) ? Math.log1p((x - y) / y) : Math.log(x) - Math.log(y)),
+};
+
+/**
+ * x·ln x (0 at x = 0) with f' = ln x + 1 and a cancellation-free
+ * x ln x − y ln y = x·log1p((x−y)/y) + (x−y)·ln y.
+ */
+export const entropyDensityFunction: ScalarFunction = {
+  value: (x) => (x > 0 ? x * Math.log(x) : 0),
+  derivative: (x) => Math.log(x) + 1,
+  difference: (x, y) =>
+    closePositive(x, y) ? x * Math.log1p((x - y) / y) + (x - y) * Math.log(y) : entropyDensityFunction.value(x) - entropyDensityFunction.value(y),
+};
+
+/**
+ * Eigenvalues of a PSD matrix with rounding-level negatives (|λ| ≤ the support tolerance) set to 0;
+ * throws if one is clearly negative.
+ */
+function positiveSemidefiniteEigen(a: ComplexMatrix, caller: string): { eig: HermitianEigen; rank: number } {
+  const eig = eigh(a);
+  const tolerance = zeroEigenvalueTolerance(a);
+  const values = eig.values;
+  let rank = 0;
+  for (let k = 0; k < values.length; k++) {
+    if (values[k] < -tolerance) {
+      throw new RangeError(`${caller}: matrix is not positive semidefinite (eigenvalue ${values[k]} < −${tolerance})`);
+    }
+    if (values[k] <= tolerance) values[k] = 0;
+    else rank++;
+  }
+  return { eig, rank };
+}
+
+/**
+ * A^p of a Hermitian PSD matrix. For p > 0 zero eigenvalues stay 0; p ≤ 0 needs full numerical rank
+ * (restrict to the support first, see rangeIsometry) and throws otherwise.
+ */
+export function matrixPower(a: ComplexMatrix, p: number): ComplexMatrix {
+  if (!Number.isFinite(p)) throw new RangeError(`matrixPower: exponent ${p} is not finite`);
+  const { eig, rank } = positiveSemidefiniteEigen(a, 'matrixPower');
+  if (p <= 0 && rank < a.rows) {
+    throw new RangeError(`matrixPower: exponent ${p} ≤ 0 needs a full-rank matrix, but numerical rank is ${rank} of ${a.rows}`);
+  }
+  return spectralFunction(eig, (x) => (x === 0 ? 0 : x ** p));
+}
+
+/** √A of a Hermitian PSD matrix (the PSD square root). */
+export function matrixSqrt(a: ComplexMatrix): ComplexMatrix {
+  const { eig } = positiveSemidefiniteEigen(a, 'matrixSqrt');
+  return spectralFunction(eig, Math.sqrt);
+}
+
+/** Natural logarithm of a Hermitian positive-definite matrix; throws if it is not full rank. */
+export function matrixLog(a: ComplexMatrix): ComplexMatrix {
+  const { eig, rank } = positiveSemidefiniteEigen(a, 'matrixLog');
+  if (rank < a.rows) {
+    throw new RangeError(`matrixLog: matrix is not positive definite (numerical rank ${rank} of ${a.rows})`);
+  }
+  return spectralFunction(eig, Math.log);
+}
