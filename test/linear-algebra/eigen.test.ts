@@ -157,6 +157,34 @@ describe('eigenvalues against independent libraries', () => {
     for (let i = 0; i < n; i++) expect(Math.abs(ours[i] - reference[i])).toBeLessThanOrEqual(1e-12 * scaleA);
   });
 
+  it.each([3, 6])('mathjs eigs eigenvectors: the same rank-one projectors v·v† (n=%i)', (n) => {
+    const a = randomHermitian(n, seededRandom(4500 + n));
+    const entries = Array.from({ length: n }, (_, i) =>
+      Array.from({ length: n }, (_, j) => math.complex(a.re[i * n + j], a.im[i * n + j])),
+    );
+    // Reference: mathjs 15 `eigs` with eigenvectors; eigenvectors are unique up to a phase for simple eigenvalues.
+    const pairs = math.eigs(entries).eigenvectors.map((pair) => ({
+      value: typeof pair.value === 'number' ? pair.value : (pair.value as math.Complex).re,
+      vector: (math.isMatrix(pair.vector) ? pair.vector.toArray() : pair.vector) as (number | math.Complex)[],
+    }));
+    pairs.sort((x, y) => x.value - y.value);
+    const ours = eigh(a);
+    for (let c = 0; c < n; c++) {
+      const ref = pairs[c].vector.map((z) => (typeof z === 'number' ? { re: z, im: 0 } : { re: z.re, im: z.im }));
+      const norm = Math.sqrt(ref.reduce((s, z) => s + z.re * z.re + z.im * z.im, 0));
+      // |⟨ours, ref⟩| = 1 for unit vectors spanning the same line.
+      let ipRe = 0;
+      let ipIm = 0;
+      for (let i = 0; i < n; i++) {
+        const vr = ours.vectors.re[i * n + c];
+        const vi = ours.vectors.im[i * n + c];
+        ipRe += vr * ref[i].re + vi * ref[i].im;
+        ipIm += vr * ref[i].im - vi * ref[i].re;
+      }
+      expect(Math.abs(Math.hypot(ipRe, ipIm) / norm - 1)).toBeLessThanOrEqual(1e-10);
+    }
+  });
+
   it.each([3, 10, 40])('ml-matrix on the real embedding [[Re A, −Im A], [Im A, Re A]] (n=%i): each eigenvalue twice', (n) => {
     const a = randomHermitian(n, seededRandom(5000 + n));
     const rows: number[][] = [];

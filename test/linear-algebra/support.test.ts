@@ -1,3 +1,4 @@
+import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import {
   add,
@@ -68,6 +69,30 @@ describe('range and kernel isometries', () => {
       expect(frobeniusNorm(subtract(projector(kernel), complement))).toBeLessThanOrEqual(1e-12);
       expect(frobeniusNorm(multiplyAdjointLeft(range, kernel))).toBeLessThanOrEqual(1e-12);
     }
+  });
+
+  it('property: the rank of V·D·V† is the number of columns of V, for any size, rank and scale (fast-check)', () => {
+    fc.assert(
+      fc.property(
+        fc.integer({ min: 1, max: 12 }),
+        fc.integer({ min: 0, max: 12 }),
+        fc.integer({ min: -100, max: 100 }),
+        fc.integer({ min: 1, max: 1_000_000 }),
+        (n, rankWanted, exponent, seed) => {
+          const r = Math.min(rankWanted, n);
+          const rng = seededRandom(seed);
+          const v = randomIsometry(n, r, rng);
+          // Spread of eigenvalues over [1, 1e3]: well above the tolerance, far from it in condition.
+          const d = Array.from({ length: r }, () => 10 ** (exponent + 3 * rng()));
+          const a = multiply(multiply(v, ComplexMatrix.diagonal(d)), adjointOf(v));
+          expect(numericalRank(a)).toBe(r);
+          const range = rangeIsometry(a);
+          expect(range.cols).toBe(r);
+          if (r > 0) expect(frobeniusNorm(subtract(projector(range), projector(v)))).toBeLessThanOrEqual(1e-11);
+        },
+      ),
+      { numRuns: 150, seed: 77 },
+    );
   });
 
   it('rank of a Kronecker product of rank-deficient factors is the product of ranks', () => {
