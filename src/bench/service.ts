@@ -114,16 +114,28 @@ async function batchThroughput(): Promise<BenchTable> {
     try {
       // Warm-up (JIT and thread start-up in every thread), not timed.
       await runGrid(server.address, grid(0.5), false);
-      const timings: { points: number; seconds: number }[] = [];
+      const timings: { points: number; seconds: number; cpuSeconds: number }[] = [];
       for (let repetition = 0; repetition < THROUGHPUT_REPETITIONS; repetition++) {
+        // CPU time of the whole process (all threads), to tell missing parallelism from a busy machine.
+        const cpuBefore = process.cpuUsage();
         const { items, seconds } = await runGrid(server.address, grid(0.2 + 0.01 * repetition), false);
-        timings.push({ points: items.length, seconds });
+        const cpu = process.cpuUsage(cpuBefore);
+        timings.push({ points: items.length, seconds, cpuSeconds: (cpu.user + cpu.system) / 1e6 });
       }
       timings.sort((a, b) => a.seconds - b.seconds);
       const median = timings[Math.floor(timings.length / 2)];
       const rate = median.points / median.seconds;
       if (workers === 1) single = rate;
-      rows.push([workers, median.points, round(median.seconds), round(rate, 1), round(rate / single, 2), workers === 2 ? `≥ ${SPEEDUP_TARGET}` : '']);
+      rows.push([
+        workers,
+        median.points,
+        round(median.seconds),
+        round(rate, 1),
+        round(rate / single, 2),
+        round((1000 * median.cpuSeconds) / median.points, 1),
+        round(median.cpuSeconds / median.seconds, 2),
+        workers === 2 ? `≥ ${SPEEDUP_TARGET}` : '',
+      ]);
     } finally {
       closeClients();
       await server.shutdown();
@@ -133,7 +145,7 @@ async function batchThroughput(): Promise<BenchTable> {
     title:
       `Batch throughput (bb84-prepare-measure, von Neumann + Petz-up α=1.5, gap 1e-6, median of ${THROUGHPUT_REPETITIONS} batches; ` +
       `${availableParallelism()} cores, load average ${loadavg()[0].toFixed(1)} when measured)`,
-    columns: ['worker threads', 'points', 'seconds', 'points/s', 'speed-up', 'target'],
+    columns: ['worker threads', 'points', 'seconds', 'points/s', 'speed-up', 'CPU ms/point', 'cores busy', 'target'],
     rows,
   };
 }
