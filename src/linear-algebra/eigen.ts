@@ -753,8 +753,9 @@ export function eigvalsh(input: ComplexMatrix): Float64Array {
  * Complex eigenvectors x + iy come from real eigenvectors [x; y]; within each cluster of equal
  * eigenvalues a column-pivoted complex Gram–Schmidt picks an orthonormal basis of half the cluster
  * size, since [x; y] and [−y; x] give the same complex line. Kept for benchmarks and tests.
- * Limitation: if two eigenvalues of A differ by about the cluster tolerance, a computed pair can be
- * split between clusters; the function then throws rather than return non-orthonormal vectors.
+ * Rayleigh–Ritz within each cluster separates nearby distinct eigenvalues that fell into one cluster.
+ * Limitation: a computed pair whose two copies differ by more than the cluster tolerance would be split
+ * between clusters (not seen in tests); the function then throws rather than return wrong vectors.
  */
 export function eighRealEmbedding(input: ComplexMatrix): HermitianEigen {
   assertFiniteSquare(input, 'eighRealEmbedding');
@@ -789,6 +790,7 @@ export function eighRealEmbedding(input: ComplexMatrix): HermitianEigen {
     let end = start + 1;
     while (end < m && realValues[order[end]] - realValues[order[end - 1]] <= clusterTolerance) end++;
     const wanted = Math.round((end - start) / 2);
+    const clusterStart = basisRe.length;
     const candRe: Float64Array[] = [];
     const candIm: Float64Array[] = [];
     for (let c = start; c < end; c++) {
@@ -829,6 +831,9 @@ export function eighRealEmbedding(input: ComplexMatrix): HermitianEigen {
       candIm.splice(best, 1);
       valuesOut.push(rayleighQuotient(input, vr, vi));
     }
+    // Within a cluster the picked vectors span the invariant subspace but may mix nearby distinct
+    // eigenvalues: Rayleigh–Ritz on that subspace separates them again.
+    if (basisRe.length - clusterStart > 1) rayleighRitz(input, basisRe, basisIm, valuesOut, clusterStart);
     start = end;
   }
   const values = Float64Array.from(valuesOut);
@@ -865,6 +870,71 @@ function projectOut(xr: Float64Array, xi: Float64Array, basisRe: Float64Array[],
       xr[i] -= pr * br[i] - pi * bi[i];
       xi[i] -= pr * bi[i] + pi * br[i];
     }
+  }
+}
+
+/**
+ * Replaces the orthonormal vectors basis[from..] by Ritz vectors of A on their span (eigenvectors of the
+ * small projected matrix B†·A·B, found with Jacobi), and their values by the Ritz values.
+ */
+function rayleighRitz(a: ComplexMatrix, basisRe: Float64Array[], basisIm: Float64Array[], values: number[], from: number): void {
+  const n = a.rows;
+  const m = basisRe.length - from;
+  // Columns B_c, then A·B_c, then P = B†·A·B.
+  const abRe: Float64Array[] = [];
+  const abIm: Float64Array[] = [];
+  for (let c = 0; c < m; c++) {
+    const xr = basisRe[from + c];
+    const xi = basisIm[from + c];
+    const yr = new Float64Array(n);
+    const yi = new Float64Array(n);
+    for (let i = 0; i < n; i++) {
+      let sr = 0;
+      let si = 0;
+      for (let j = 0; j < n; j++) {
+        // (A + A†)/2 applied to x, as everywhere in this module.
+        const hr = 0.5 * (a.re[i * n + j] + a.re[j * n + i]);
+        const hi = 0.5 * (a.im[i * n + j] - a.im[j * n + i]);
+        sr += hr * xr[j] - hi * xi[j];
+        si += hr * xi[j] + hi * xr[j];
+      }
+      yr[i] = sr;
+      yi[i] = si;
+    }
+    abRe.push(yr);
+    abIm.push(yi);
+  }
+  const projected = new ComplexMatrix(m, m);
+  for (let r = 0; r < m; r++) {
+    for (let c = 0; c < m; c++) {
+      let sr = 0;
+      let si = 0;
+      for (let i = 0; i < n; i++) {
+        const br = basisRe[from + r][i];
+        const bi = basisIm[from + r][i];
+        sr += br * abRe[c][i] + bi * abIm[c][i];
+        si += br * abIm[c][i] - bi * abRe[c][i];
+      }
+      projected.set(r, c, sr, si);
+    }
+  }
+  const small = eighJacobi(projected);
+  const oldRe = basisRe.slice(from).map((v) => v.slice());
+  const oldIm = basisIm.slice(from).map((v) => v.slice());
+  for (let c = 0; c < m; c++) {
+    const vr = new Float64Array(n);
+    const vi = new Float64Array(n);
+    for (let r = 0; r < m; r++) {
+      const wr = small.vectors.re[r * m + c];
+      const wi = small.vectors.im[r * m + c];
+      for (let i = 0; i < n; i++) {
+        vr[i] += oldRe[r][i] * wr - oldIm[r][i] * wi;
+        vi[i] += oldRe[r][i] * wi + oldIm[r][i] * wr;
+      }
+    }
+    basisRe[from + c] = vr;
+    basisIm[from + c] = vi;
+    values[from + c] = small.values[c];
   }
 }
 

@@ -117,6 +117,19 @@ describe.each(solvers)('%s', (_name, solve, maxSize) => {
   });
 });
 
+describe('eighRealEmbedding on nearly degenerate spectra', () => {
+  it('distinct eigenvalues closer than its cluster tolerance keep accurate eigenvectors', () => {
+    const n = 64;
+    const rng = seededRandom(8080);
+    const spectrum = Array.from({ length: n }, () => 2 * rng() - 1);
+    // Six eigenvalues 0.5 + k·5e-12: inside one cluster of the embedding, yet far apart for a 1e-12 residual.
+    for (let k = 0; k < 6; k++) spectrum[k] = 0.5 + k * 5e-12;
+    const a = withSpectrum(spectrum, 8081);
+    const eig = eighRealEmbedding(a);
+    expectAccurate(a, eig);
+  });
+});
+
 describe('input checks (messages pinned)', () => {
   it('rejects non-square input', () => {
     expect(() => eigh(new ComplexMatrix(2, 3))).toThrow('eigh: matrix is 2x3, not square');
