@@ -134,6 +134,31 @@ describe('hard cases for the eigensolver', () => {
     );
   });
 
+  it('property: sparse matrices with small integer entries (exact ties, zero blocks; fast-check)', () => {
+    const entry = fc.oneof(fc.constant(0), fc.constant(0), fc.integer({ min: -3, max: 3 }));
+    const matrix = fc.integer({ min: 1, max: 12 }).chain((n) =>
+      fc.array(fc.tuple(entry, entry), { minLength: n * n, maxLength: n * n }).map((pairs) => {
+        const m = new ComplexMatrix(n, n);
+        pairs.forEach(([re, im], k) => {
+          m.re[k] = re;
+          m.im[k] = im;
+        });
+        return hermitianPart(m);
+      }),
+    );
+    fc.assert(
+      fc.property(matrix, (a) => {
+        const e = eigh(a);
+        expect(relativeResidual(a, e)).toBeLessThanOrEqual(ACCURACY);
+        expect(orthonormalityDefect(e.vectors)).toBeLessThanOrEqual(ACCURACY);
+        // Reference: Jacobi, an independent method, on the eigenvalues.
+        const reference = eighJacobi(a).values;
+        for (let i = 0; i < a.rows; i++) expect(Math.abs(e.values[i] - reference[i])).toBeLessThanOrEqual(1e-12 * (1 + Math.abs(reference[i])) * a.rows);
+      }),
+      { numRuns: 400, seed: 4242 },
+    );
+  });
+
   it('many calls of mixed sizes reuse scratch buffers without cross-talk', () => {
     const rng = seededRandom(5);
     const inputs = [3, 7, 3, 12, 7, 2, 12].map((n) => randomHermitian(n, rng));
