@@ -24,6 +24,15 @@ import {
   transposeInto,
   TridiagonalWorkspace,
   type SparseOperator,
+  choleskyInPlaceReal,
+  lowerCongruenceSymmetricReal,
+  lowerGramReal,
+  lowerTimesTransposedReal,
+  lowerTriangularInverseReal,
+  multiplyBySymmetricReal,
+  smallestEigenvalueInPlaceReal,
+  transposedProductWithLowerReal,
+  transposedSparseProductWithLowerReal,
 } from './kernels.js';
 
 /** Fraction of the distance to the cone boundary taken by a step, before the adaptive increase (SDPT3 practice). */
@@ -156,6 +165,12 @@ export class InteriorPointSolver {
   private readonly boxRight: Float64Array;
   private readonly dBoxDual: Float64Array;
   private readonly residualHistory: Float64Array;
+  /** Every constraint operator is real. */
+  private readonly rowsReal: boolean;
+  /** The current objective is real too: all iterates stay real and the real kernels run. */
+  private realMode = false;
+  /** A complex run may have left imaginary parts in the work buffers; cleared before the next real run. */
+  private imaginaryDirty = true;
 
   constructor(n: number, rows: InteriorPointRows) {
     this.n = n;
@@ -237,18 +252,25 @@ export class InteriorPointSolver {
     this.slackOfRow = new Int32Array(this.m).fill(-1);
     for (let j = 0; j < s; j++) if (rows.slackRow[j] >= 0) this.slackOfRow[rows.slackRow[j]] = j;
     this.residualHistory = new Float64Array(STALL_WINDOW);
+    this.rowsReal = rows.im.every((im) => im.every((x) => x === 0));
   }
 
   /** Sets the objective C (Hermitian, copied) and records its Frobenius norm. */
   setObjective(re: Float64Array, im: Float64Array): void {
     this.objectiveRe.set(re);
     this.objectiveIm.set(im);
+    this.realMode = this.rowsReal && im.every((x) => x === 0);
     this.objectiveNorm = Math.sqrt(hermitianInner(re, im, re, im));
   }
 
   /** Standard start: X = 1/n (so Tr X = 1), Z = 1, y = 0, slacks at their value at X (at least a floor), centred duals. */
   private initialize(): void {
     const { n, rows } = this;
+    if (this.realMode && this.imaginaryDirty) {
+      for (const buffer of this.imaginaryBuffers()) buffer.fill(0);
+      this.imaginaryDirty = false;
+    }
+    if (!this.realMode) this.imaginaryDirty = true;
     this.xRe.fill(0);
     this.xIm.fill(0);
     this.zRe.fill(0);
@@ -343,19 +365,25 @@ export class InteriorPointSolver {
       // Factorizations: X = L_X L_X†, Z = L_Z L_Z†, U = L⁻¹, Z⁻¹ = U_Z† U_Z.
       this.lxRe.set(this.xRe);
       this.lxIm.set(this.xIm);
-      if (!choleskyInPlace(this.lxRe, this.lxIm, n)) return 'NUMERICAL_ERROR';
       this.tmpRe.set(this.zRe);
       this.tmpIm.set(this.zIm);
-      if (!choleskyInPlace(this.tmpRe, this.tmpIm, n)) return 'NUMERICAL_ERROR';
-      lowerTriangularInverse(this.lxRe, this.lxIm, n, this.uxRe, this.uxIm);
-      lowerTriangularInverse(this.tmpRe, this.tmpIm, n, this.uzRe, this.uzIm);
-      lowerGram(this.uzRe, this.uzIm, n, this.zInvRe, this.zInvIm);
+      if (this.realMode) {
+        if (!choleskyInPlaceReal(this.lxRe, n) || !choleskyInPlaceReal(this.tmpRe, n)) return 'NUMERICAL_ERROR';
+        lowerTriangularInverseReal(this.lxRe, n, this.uxRe);
+        lowerTriangularInverseReal(this.tmpRe, n, this.uzRe);
+        lowerGramReal(this.uzRe, n, this.zInvRe);
+      } else {
+        if (!choleskyInPlace(this.lxRe, this.lxIm, n) || !choleskyInPlace(this.tmpRe, this.tmpIm, n)) return 'NUMERICAL_ERROR';
+        lowerTriangularInverse(this.lxRe, this.lxIm, n, this.uxRe, this.uxIm);
+        lowerTriangularInverse(this.tmpRe, this.tmpIm, n, this.uzRe, this.uzIm);
+        lowerGram(this.uzRe, this.uzIm, n, this.zInvRe, this.zInvIm);
+      }
       if (!this.assembleSchur()) return 'NUMERICAL_ERROR';
       // X·R_d·Z⁻¹ (Hermitian part) enters both right-hand sides.
       // Even a rounding-level R_d matters here: Z⁻¹ is huge late in the run.
       if (this.dualResidualNorm > 0) {
-        multiplyByHermitian(this.xRe, this.xIm, this.rdRe, this.rdIm, n, this.tmpRe, this.tmpIm);
-        multiplyByHermitian(this.tmpRe, this.tmpIm, this.zInvRe, this.zInvIm, n, this.xrzRe, this.xrzIm);
+        this.productWithHermitian(this.xRe, this.xIm, this.rdRe, this.rdIm, this.tmpRe, this.tmpIm);
+        this.productWithHermitian(this.tmpRe, this.tmpIm, this.zInvRe, this.zInvIm, this.xrzRe, this.xrzIm);
         hermitianPartInPlace(this.xrzRe, this.xrzIm, n);
       } else {
         this.xrzRe.fill(0);
@@ -386,8 +414,8 @@ export class InteriorPointSolver {
       this.dzAffineIm.set(this.dzIm);
       this.dSlackAffine.set(this.dSlack);
       this.dSlackDualAffine.set(this.dSlackDual);
-      multiplyByHermitian(this.dxAffineRe, this.dxAffineIm, this.dzAffineRe, this.dzAffineIm, n, this.tmpRe, this.tmpIm);
-      multiplyByHermitian(this.tmpRe, this.tmpIm, this.zInvRe, this.zInvIm, n, this.correctionRe, this.correctionIm);
+      this.productWithHermitian(this.dxAffineRe, this.dxAffineIm, this.dzAffineRe, this.dzAffineIm, this.tmpRe, this.tmpIm);
+      this.productWithHermitian(this.tmpRe, this.tmpIm, this.zInvRe, this.zInvIm, this.correctionRe, this.correctionIm);
       hermitianPartInPlace(this.correctionRe, this.correctionIm, n);
       this.computeDirection(sigma * mu, true);
       this.restoreLinearization();
@@ -412,6 +440,92 @@ export class InteriorPointSolver {
       this.iterations++;
     }
     return 'ITERATION_LIMIT';
+  }
+
+  private imaginaryBuffers(): Float64Array[] {
+    return [
+      this.xIm,
+      this.zIm,
+      this.lxIm,
+      this.uxIm,
+      this.uzIm,
+      this.zInvIm,
+      this.rdIm,
+      this.xrzIm,
+      this.correctionIm,
+      this.targetIm,
+      this.dxIm,
+      this.dzIm,
+      this.dxAffineIm,
+      this.dzAffineIm,
+      this.tmpIm,
+      this.tmp2Im,
+      this.schurIm,
+    ];
+  }
+
+  /** out = A·B for Hermitian B, in real arithmetic when every iterate is real. */
+  private productWithHermitian(
+    aRe: Float64Array,
+    aIm: Float64Array,
+    bRe: Float64Array,
+    bIm: Float64Array,
+    outRe: Float64Array,
+    outIm: Float64Array,
+  ): void {
+    if (this.realMode) multiplyBySymmetricReal(aRe, bRe, this.n, outRe);
+    else multiplyByHermitian(aRe, aIm, bRe, bIm, this.n, outRe, outIm);
+  }
+
+  /** {@link assembleSchur} for real data: Q_k = U_Z·A_k·L_X and M = Gram(Q) in real arithmetic (L_Xᵀ in tmp2Re). */
+  private assembleSchurReal(): boolean {
+    const { n, m, rows } = this;
+    const size = n * n;
+    for (let k = 0; k < m; k++) {
+      const sparse = this.sparseRows[k];
+      if (sparse) transposedSparseProductWithLowerReal(sparse, this.lxRe, n, this.tmpRe);
+      else transposedProductWithLowerReal(rows.re[k], this.tmp2Re, n, this.tmpRe);
+      lowerTimesTransposedReal(this.uzRe, this.tmpRe, n, this.schurViewsRe[k]);
+    }
+    const M = this.schur;
+    const q = this.schurRe;
+    for (let i = 0; i < m; i++) {
+      const offsetI = i * size;
+      let k = 0;
+      for (; k + 3 <= i; k += 4) {
+        const o0 = k * size;
+        const o1 = o0 + size;
+        const o2 = o1 + size;
+        const o3 = o2 + size;
+        let s0 = 0;
+        let s1 = 0;
+        let s2 = 0;
+        let s3 = 0;
+        for (let t = 0; t < size; t++) {
+          const a = q[offsetI + t];
+          s0 += a * q[o0 + t];
+          s1 += a * q[o1 + t];
+          s2 += a * q[o2 + t];
+          s3 += a * q[o3 + t];
+        }
+        M[i * m + k] = s0;
+        M[k * m + i] = s0;
+        M[i * m + k + 1] = s1;
+        M[(k + 1) * m + i] = s1;
+        M[i * m + k + 2] = s2;
+        M[(k + 2) * m + i] = s2;
+        M[i * m + k + 3] = s3;
+        M[(k + 3) * m + i] = s3;
+      }
+      for (; k <= i; k++) {
+        const offsetK = k * size;
+        let sum = 0;
+        for (let t = 0; t < size; t++) sum += q[offsetI + t] * q[offsetK + t];
+        M[i * m + k] = sum;
+        M[k * m + i] = sum;
+      }
+    }
+    return this.finishSchur();
   }
 
   /** Re Tr(A_k·H) for Hermitian H, over the nonzeros of A_k when it is sparse. */
@@ -459,6 +573,7 @@ export class InteriorPointSolver {
     const { n, m, rows } = this;
     const size = n * n;
     transposeInto(this.lxRe, this.lxIm, n, this.tmp2Re, this.tmp2Im);
+    if (this.realMode) return this.assembleSchurReal();
     for (let k = 0; k < m; k++) {
       const sparse = this.sparseRows[k];
       if (sparse) {
@@ -522,6 +637,13 @@ export class InteriorPointSolver {
         M[k * m + i] = sum;
       }
     }
+    return this.finishSchur();
+  }
+
+  /** Adds the LP block to the Gram part of the Schur complement, eliminates the box rows and factors it. */
+  private finishSchur(): boolean {
+    const { m, rows } = this;
+    const M = this.schur;
     for (let j = 0; j < this.slackCount; j++) {
       const k = rows.slackRow[j];
       if (k >= 0) M[k * m + k] += this.slack[j] / this.slackDual[j];
@@ -609,8 +731,8 @@ export class InteriorPointSolver {
       this.dSlackDual[j] = this.slackResidual[j] - (row >= 0 ? rows.slackSign[j] * this.dy[row] : 0) - (box >= 0 ? this.dBoxDual[box] : 0);
     }
     // dX = σµ Z⁻¹ − X − herm(X dZ Z⁻¹) − [correction]
-    multiplyByHermitian(this.xRe, this.xIm, this.dzRe, this.dzIm, n, this.tmpRe, this.tmpIm);
-    multiplyByHermitian(this.tmpRe, this.tmpIm, this.zInvRe, this.zInvIm, n, this.dxRe, this.dxIm);
+    this.productWithHermitian(this.xRe, this.xIm, this.dzRe, this.dzIm, this.tmpRe, this.tmpIm);
+    this.productWithHermitian(this.tmpRe, this.tmpIm, this.zInvRe, this.zInvIm, this.dxRe, this.dxIm);
     hermitianPartInPlace(this.dxRe, this.dxIm, n);
     const { dxRe, dxIm } = this;
     for (let t = 0; t < size; t++) {
@@ -668,6 +790,11 @@ export class InteriorPointSolver {
   /** With U = L⁻¹ for the current factor L of the cone variable: −1/λ_min(U·D·U†), or Infinity when λ_min ≥ 0. */
   private coneStep(uRe: Float64Array, uIm: Float64Array, dRe: Float64Array, dIm: Float64Array): number {
     const n = this.n;
+    if (this.realMode) {
+      lowerCongruenceSymmetricReal(uRe, dRe, n, this.tmpRe, this.tmp2Re);
+      const lambdaReal = smallestEigenvalueInPlaceReal(this.tmp2Re, n, this.tridiagonal, STEP_EIGENVALUE_TOLERANCE, 0);
+      return lambdaReal >= 0 ? Infinity : -1 / lambdaReal;
+    }
     multiplyByLowerLeft(uRe, uIm, dRe, dIm, n, this.tmpRe, this.tmpIm);
     multiplyByLowerAdjointRightHermitian(this.tmpRe, this.tmpIm, uRe, uIm, n, this.tmp2Re, this.tmp2Im);
     // Only a negative λ_min limits the step, and a relative 1e-9 is far finer than the step fraction needs.

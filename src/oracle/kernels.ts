@@ -633,3 +633,226 @@ export function multiplyByHermitian(
     }
   }
 }
+
+// Real-arithmetic twins of the kernels above, used when G and every constraint operator are real (then every
+// iterate stays real and the imaginary parts would only multiply zeros): about a quarter of the work.
+
+/** Real symmetric version of {@link choleskyInPlace}. */
+export function choleskyInPlaceReal(a: Float64Array, n: number): boolean {
+  for (let j = 0; j < n; j++) {
+    const rowJ = j * n;
+    let pivot = a[rowJ + j];
+    for (let k = 0; k < j; k++) pivot -= a[rowJ + k] * a[rowJ + k];
+    if (!(pivot > 0)) return false;
+    const diagonal = Math.sqrt(pivot);
+    a[rowJ + j] = diagonal;
+    const inverse = 1 / diagonal;
+    for (let i = j + 1; i < n; i++) {
+      const rowI = i * n;
+      let sum = a[rowI + j];
+      for (let k = 0; k < j; k++) sum -= a[rowI + k] * a[rowJ + k];
+      a[rowI + j] = sum * inverse;
+    }
+  }
+  for (let i = 0; i < n; i++) for (let j = i + 1; j < n; j++) a[i * n + j] = 0;
+  return true;
+}
+
+/** Real version of {@link lowerTriangularInverse}. */
+export function lowerTriangularInverseReal(l: Float64Array, n: number, out: Float64Array): void {
+  out.fill(0);
+  for (let j = 0; j < n; j++) {
+    out[j * n + j] = 1 / l[j * n + j];
+    for (let i = j + 1; i < n; i++) {
+      let sum = 0;
+      for (let k = j; k < i; k++) sum += l[i * n + k] * out[k * n + j];
+      out[i * n + j] = -sum / l[i * n + i];
+    }
+  }
+}
+
+/** Real version of {@link lowerGram}: out = Uᵀ·U. */
+export function lowerGramReal(u: Float64Array, n: number, out: Float64Array): void {
+  for (let a = 0; a < n; a++) {
+    for (let b = a; b < n; b++) {
+      let sum = 0;
+      for (let c = b; c < n; c++) sum += u[c * n + a] * u[c * n + b];
+      out[a * n + b] = sum;
+      out[b * n + a] = sum;
+    }
+  }
+}
+
+/** Real version of {@link multiplyByHermitian}: out = A·B for symmetric B, as rows-by-rows dot products in 2×2 blocks. */
+export function multiplyBySymmetricReal(a: Float64Array, b: Float64Array, n: number, out: Float64Array): void {
+  for (let i = 0; i < n; i += 2) {
+    const i1 = i + 1 < n ? i + 1 : i;
+    const r0 = i * n;
+    const r1 = i1 * n;
+    for (let j = 0; j < n; j += 2) {
+      const j1 = j + 1 < n ? j + 1 : j;
+      const c0 = j * n;
+      const c1 = j1 * n;
+      let s00 = 0;
+      let s01 = 0;
+      let s10 = 0;
+      let s11 = 0;
+      for (let k = 0; k < n; k++) {
+        const a0 = a[r0 + k];
+        const a1 = a[r1 + k];
+        const b0 = b[c0 + k];
+        const b1 = b[c1 + k];
+        s00 += a0 * b0;
+        s01 += a0 * b1;
+        s10 += a1 * b0;
+        s11 += a1 * b1;
+      }
+      out[r0 + j] = s00;
+      out[r0 + j1] = s01;
+      out[r1 + j] = s10;
+      out[r1 + j1] = s11;
+    }
+  }
+}
+
+/** Real version of {@link transposedProductWithLower}: wt = (A·L)ᵀ given lt = Lᵀ. */
+export function transposedProductWithLowerReal(a: Float64Array, lt: Float64Array, n: number, wt: Float64Array): void {
+  for (let i = 0; i < n; i += 2) {
+    const i1 = i + 1 < n ? i + 1 : i;
+    const r0 = i * n;
+    const r1 = i1 * n;
+    for (let j = 0; j < n; j += 2) {
+      const j1 = j + 1 < n ? j + 1 : j;
+      const c0 = j * n;
+      const c1 = j1 * n;
+      let s00 = 0;
+      let s01 = 0;
+      let s10 = 0;
+      let s11 = 0;
+      for (let k = j; k < n; k++) {
+        const a0 = a[r0 + k];
+        const a1 = a[r1 + k];
+        const l0 = lt[c0 + k];
+        const l1 = lt[c1 + k];
+        s00 += a0 * l0;
+        s01 += a0 * l1;
+        s10 += a1 * l0;
+        s11 += a1 * l1;
+      }
+      wt[c0 + i] = s00;
+      wt[c1 + i] = s01;
+      wt[c0 + i1] = s10;
+      wt[c1 + i1] = s11;
+    }
+  }
+}
+
+/** Real version of {@link lowerTimesTransposed}: out = U·W given wt = Wᵀ. */
+export function lowerTimesTransposedReal(u: Float64Array, wt: Float64Array, n: number, out: Float64Array): void {
+  for (let i = 0; i < n; i += 2) {
+    const i1 = i + 1 < n ? i + 1 : i;
+    const r0 = i * n;
+    const r1 = i1 * n;
+    const end = i1 + 1;
+    for (let j = 0; j < n; j += 2) {
+      const j1 = j + 1 < n ? j + 1 : j;
+      const c0 = j * n;
+      const c1 = j1 * n;
+      let s00 = 0;
+      let s01 = 0;
+      let s10 = 0;
+      let s11 = 0;
+      for (let k = 0; k < end; k++) {
+        const a0 = u[r0 + k];
+        const a1 = u[r1 + k];
+        const b0 = wt[c0 + k];
+        const b1 = wt[c1 + k];
+        s00 += a0 * b0;
+        s01 += a0 * b1;
+        s10 += a1 * b0;
+        s11 += a1 * b1;
+      }
+      out[r0 + j] = s00;
+      out[r0 + j1] = s01;
+      out[r1 + j] = s10;
+      out[r1 + j1] = s11;
+    }
+  }
+}
+
+/** Real version of {@link transposedSparseProductWithLower}. */
+export function transposedSparseProductWithLowerReal(a: SparseOperator, l: Float64Array, n: number, wt: Float64Array): void {
+  wt.fill(0);
+  for (let i = 0; i < n; i++) {
+    for (let p = a.rowStart[i]; p < a.rowStart[i + 1]; p++) {
+      const k = a.columns[p];
+      const value = a.re[p];
+      const rowK = k * n;
+      for (let j = 0; j <= k; j++) wt[j * n + i] += value * l[rowK + j];
+    }
+  }
+}
+
+/** Real version of the step-length congruence: out = U·D·Uᵀ (symmetric) for lower-triangular U; tmp is scratch. */
+export function lowerCongruenceSymmetricReal(u: Float64Array, d: Float64Array, n: number, tmp: Float64Array, out: Float64Array): void {
+  // tmp = U·D (rows of U have nonzeros up to the diagonal).
+  for (let i = 0; i < n; i++) {
+    for (let j = 0; j < n; j++) {
+      let sum = 0;
+      for (let k = 0; k <= i; k++) sum += u[i * n + k] * d[k * n + j];
+      tmp[i * n + j] = sum;
+    }
+  }
+  // out = tmp·Uᵀ: out_ij = Σ_{k ≤ j} tmp_ik·U_jk, symmetric.
+  for (let i = 0; i < n; i++) {
+    for (let j = i; j < n; j++) {
+      let sum = 0;
+      for (let k = 0; k <= j; k++) sum += tmp[i * n + k] * u[j * n + k];
+      out[i * n + j] = sum;
+      out[j * n + i] = sum;
+    }
+  }
+}
+
+/** Real symmetric version of {@link smallestEigenvalueInPlace} (Householder tridiagonalisation + Sturm bisection). */
+export function smallestEigenvalueInPlaceReal(
+  a: Float64Array,
+  n: number,
+  work: TridiagonalWorkspace,
+  relativeTolerance = FULL_PRECISION,
+  stopIfAbove = -Infinity,
+): number {
+  const { diagonal, offDiagonalSquared, vRe: v, pRe: p } = work;
+  for (let k = 0; k < n - 2; k++) {
+    let norm2 = 0;
+    for (let i = k + 1; i < n; i++) norm2 += a[i * n + k] * a[i * n + k];
+    const x0 = a[(k + 1) * n + k];
+    const tailNorm2 = norm2 - x0 * x0;
+    if (tailNorm2 <= 0) {
+      offDiagonalSquared[k] = norm2;
+      continue;
+    }
+    const norm = Math.sqrt(norm2);
+    const sign = x0 >= 0 ? 1 : -1;
+    v.fill(0);
+    v[k + 1] = x0 + sign * norm;
+    for (let i = k + 2; i < n; i++) v[i] = a[i * n + k];
+    const vNorm = Math.sqrt(tailNorm2 + (Math.abs(x0) + norm) ** 2);
+    for (let i = k + 1; i < n; i++) v[i] /= vNorm;
+    let kappa = 0;
+    for (let i = k + 1; i < n; i++) {
+      let sum = 0;
+      for (let j = k + 1; j < n; j++) sum += a[i * n + j] * v[j];
+      p[i] = sum;
+      kappa += v[i] * sum;
+    }
+    for (let i = k + 1; i < n; i++) p[i] -= kappa * v[i];
+    for (let i = k + 1; i < n; i++) {
+      for (let j = k + 1; j < n; j++) a[i * n + j] -= 2 * (v[i] * p[j] + p[i] * v[j]);
+    }
+    offDiagonalSquared[k] = norm2;
+  }
+  for (let i = 0; i < n; i++) diagonal[i] = a[i * n + i];
+  if (n >= 2) offDiagonalSquared[n - 2] = a[(n - 1) * n + n - 2] ** 2;
+  return smallestTridiagonalEigenvalue(diagonal, offDiagonalSquared, n, relativeTolerance, stopIfAbove);
+}

@@ -15,6 +15,15 @@ import {
   realCholeskySolveInPlace,
   smallestEigenvalueInPlace,
   TridiagonalWorkspace,
+  choleskyInPlaceReal,
+  lowerCongruenceSymmetricReal,
+  lowerGramReal,
+  lowerTimesTransposedReal,
+  lowerTriangularInverseReal,
+  multiplyBySymmetricReal,
+  smallestEigenvalueInPlaceReal,
+  transposedProductWithLowerReal,
+  transposedSparseProductWithLowerReal,
 } from '../../src/oracle/kernels.js';
 import { randomComplexGaussian, randomDensity, randomHermitian, seededRandom } from '../helpers/random.js';
 import { referenceEigenvalues } from './reference.js';
@@ -130,6 +139,54 @@ describe('oracle kernels', () => {
     multiplyByHermitian(a.re, a.im, b.re, b.im, n, out.re, out.im);
     // Reference: the shared dense product of src/linear-algebra.
     expect(maxAbsDifference(out, multiply(a, b))).toBeLessThan(1e-13 * n);
+  });
+
+  it.each([1, 2, 5, 8, 13])('real twins agree with the complex kernels on real data (n=%i)', (n) => {
+    const rng = seededRandom(120 + n);
+    const real = (m: ComplexMatrix): ComplexMatrix => new ComplexMatrix(m.rows, m.cols, m.re.slice(), new Float64Array(m.re.length));
+    const x = real(randomDensity(n, rng));
+    const z = real(randomDensity(n, rng));
+    const a = real(randomHermitian(n, rng));
+    const size = n * n;
+    // Cholesky, inverse, Gram.
+    const lComplex = x.clone();
+    choleskyInPlace(lComplex.re, lComplex.im, n);
+    const lReal = x.re.slice();
+    expect(choleskyInPlaceReal(lReal, n)).toBe(true);
+    const uComplex = new ComplexMatrix(n, n);
+    lowerTriangularInverse(lComplex.re, lComplex.im, n, uComplex.re, uComplex.im);
+    const uReal = new Float64Array(size);
+    lowerTriangularInverseReal(lReal, n, uReal);
+    const gramComplex = new ComplexMatrix(n, n);
+    lowerGram(uComplex.re, uComplex.im, n, gramComplex.re, gramComplex.im);
+    const gramReal = new Float64Array(size);
+    lowerGramReal(uReal, n, gramReal);
+    for (let t = 0; t < size; t++) {
+      expect(lReal[t]).toBeCloseTo(lComplex.re[t], 12);
+      expect(gramReal[t]).toBeCloseTo(gramComplex.re[t], 8);
+    }
+    // U·A·L, dense and sparse.
+    const lt = new ComplexMatrix(n, n);
+    transposeInto(lComplex.re, lComplex.im, n, lt.re, lt.im);
+    const expected = multiply(uComplex, multiply(a, lComplex));
+    const wt = new Float64Array(size);
+    const out = new Float64Array(size);
+    transposedProductWithLowerReal(a.re, lt.re, n, wt);
+    lowerTimesTransposedReal(uReal, wt, n, out);
+    for (let t = 0; t < size; t++) expect(Math.abs(out[t] - expected.re[t])).toBeLessThan(1e-10 * (1 + Math.abs(expected.re[t])));
+    transposedSparseProductWithLowerReal(toSparse(a.re, a.im, n), lReal, n, wt);
+    lowerTimesTransposedReal(uReal, wt, n, out);
+    for (let t = 0; t < size; t++) expect(Math.abs(out[t] - expected.re[t])).toBeLessThan(1e-10 * (1 + Math.abs(expected.re[t])));
+    // Product with a symmetric factor; step-length congruence and its smallest eigenvalue.
+    multiplyBySymmetricReal(a.re, z.re, n, out);
+    const product = multiply(a, z);
+    for (let t = 0; t < size; t++) expect(Math.abs(out[t] - product.re[t])).toBeLessThan(1e-13 * n);
+    const congruence = new Float64Array(size);
+    lowerCongruenceSymmetricReal(uReal, a.re, n, wt, congruence);
+    const reference = multiplyAdjointRight(multiply(uComplex, a), uComplex);
+    for (let t = 0; t < size; t++) expect(Math.abs(congruence[t] - reference.re[t])).toBeLessThan(1e-8 * (1 + Math.abs(reference.re[t])));
+    const lambda = smallestEigenvalueInPlaceReal(a.re.slice(), n, new TridiagonalWorkspace(n));
+    expect(Math.abs(lambda - referenceEigenvalues(a)[0])).toBeLessThan(1e-12 * Math.max(1, Math.abs(lambda)));
   });
 
   it('real Cholesky solve agrees with ml-matrix', () => {

@@ -264,6 +264,68 @@ describe('LinearOracle: larger sizes (odd and even, dense and sparse rows)', () 
   });
 });
 
+describe('LinearOracle: real data and the real embedding', () => {
+  const realPart = (m: ComplexMatrix): ComplexMatrix => new ComplexMatrix(m.rows, m.cols, m.re.slice(), new Float64Array(m.re.length));
+  /** [[Re A, −Im A], [Im A, Re A]]: the real symmetric embedding of a Hermitian A. */
+  const embed = (a: ComplexMatrix): ComplexMatrix => {
+    const n = a.rows;
+    const out = new ComplexMatrix(2 * n, 2 * n);
+    for (let i = 0; i < n; i++) {
+      for (let j = 0; j < n; j++) {
+        out.re[i * 2 * n + j] = a.re[i * n + j];
+        out.re[(i + n) * 2 * n + j + n] = a.re[i * n + j];
+        out.re[i * 2 * n + j + n] = -a.im[i * n + j];
+        out.re[(i + n) * 2 * n + j] = a.im[i * n + j];
+      }
+    }
+    return out;
+  };
+
+  function randomProblem(d: number, count: number, rng: RandomSource, makeReal: boolean): { constraints: OracleConstraint[]; G: ComplexMatrix } {
+    const shape = (m: ComplexMatrix): ComplexMatrix => (makeReal ? realPart(m) : m);
+    const rho = shape(randomDensity(d, rng));
+    const constraints: OracleConstraint[] = [];
+    for (let i = 0; i < count; i++) {
+      const operator = shape(randomHermitian(d, rng));
+      const value = traceOfProduct(operator, rho);
+      constraints.push(i % 3 === 0 ? { label: `eq${i}`, operator, lower: value, upper: value } : { label: `in${i}`, operator, lower: value - 0.02, upper: value + 0.02 });
+    }
+    return { constraints, G: shape(randomHermitian(d, rng)) };
+  }
+
+  it('real data (real arithmetic path) gives the same answer as the complex path', () => {
+    const { constraints, G } = randomProblem(7, 9, seededRandom(51), true);
+    const oracle = new LinearOracle(7, constraints);
+    const real = oracle.minimize(G);
+    // A 1e-300 imaginary part changes nothing numerically but sends the solve down the complex path.
+    const nudged = G.clone();
+    nudged.im[1] = 1e-300;
+    nudged.im[7] = -1e-300;
+    const complex = oracle.minimize(nudged);
+    expectCertifiedGap(real, G, constraints);
+    expect(complex.status).toBe('OPTIMAL');
+    expect(Math.abs(real.primalValue - complex.primalValue)).toBeLessThan(1e-9);
+    expect(Math.abs(real.dualBound - complex.dualBound)).toBeLessThan(1e-9);
+  });
+
+  it('a complex problem and its real embedding have the same optimum', () => {
+    // Reference identity (common practice): σ ↦ embed(σ)/2 maps complex density operators to real ones with the same
+    // constraint values, and averaging a real feasible X with J·X·Jᵀ (J = [[0, −1], [1, 0]]) maps back, so the optima agree.
+    const d = 5;
+    const { constraints, G } = randomProblem(d, 6, seededRandom(52), false);
+    const complex = new LinearOracle(d, constraints).minimize(G);
+    const embedded = new LinearOracle(
+      2 * d,
+      constraints.map((c) => ({ ...c, operator: embed(c.operator) })),
+    ).minimize(embed(G));
+    expectCertifiedGap(complex, G, constraints);
+    expect(embedded.status).toBe('OPTIMAL');
+    expect(Math.abs(complex.primalValue - embedded.primalValue)).toBeLessThan(5e-7);
+    expect(embedded.dualBound).toBeLessThanOrEqual(complex.primalValue + 1e-9);
+    expect(complex.dualBound).toBeLessThanOrEqual(embedded.primalValue + 1e-9);
+  });
+});
+
 describe('LinearOracle: CHSH and Tsirelson’s bound', () => {
   const W = chshWinOperator();
   const tsirelson = Math.cos(Math.PI / 8) ** 2; // Tsirelson 1980: max win probability cos²(π/8) ≈ 0.8536
