@@ -137,6 +137,67 @@ export function adjoint(a: ComplexMatrix): ComplexMatrix {
   return c;
 }
 
+/**
+ * Adds x·(row of B at bRow) to the row of C at cRow, m entries (one term of an i-k-j product).
+ * Shared by the products below for rows that cannot join a four-row pass.
+ */
+function addScaledRow(
+  cr: Float64Array,
+  ci: Float64Array,
+  cRow: number,
+  xr: number,
+  xi: number,
+  br: Float64Array,
+  bi: Float64Array,
+  bRow: number,
+  m: number,
+): void {
+  for (let j = 0; j < m; j++) {
+    const yr = br[bRow + j];
+    const yi = bi[bRow + j];
+    cr[cRow + j] += xr * yr - xi * yi;
+    ci[cRow + j] += xr * yi + xi * yr;
+  }
+}
+
+/**
+ * Adds x_t·(row of B at bRow) to four rows of C at once (each load of B serves four rows).
+ * Every entry still sums its terms in the same order as one row at a time, so results are bit-identical.
+ */
+function addScaledRowFour(
+  cr: Float64Array,
+  ci: Float64Array,
+  c0: number,
+  c1: number,
+  c2: number,
+  c3: number,
+  x0r: number,
+  x0i: number,
+  x1r: number,
+  x1i: number,
+  x2r: number,
+  x2i: number,
+  x3r: number,
+  x3i: number,
+  br: Float64Array,
+  bi: Float64Array,
+  bRow: number,
+  m: number,
+): void {
+  for (let j = 0; j < m; j++) {
+    const yr = br[bRow + j];
+    const yi = bi[bRow + j];
+    cr[c0 + j] += x0r * yr - x0i * yi;
+    ci[c0 + j] += x0r * yi + x0i * yr;
+    cr[c1 + j] += x1r * yr - x1i * yi;
+    ci[c1 + j] += x1r * yi + x1i * yr;
+    cr[c2 + j] += x2r * yr - x2i * yi;
+    ci[c2 + j] += x2r * yi + x2i * yr;
+    cr[c3 + j] += x3r * yr - x3i * yi;
+    ci[c3 + j] += x3r * yi + x3i * yr;
+  }
+}
+
 /** C = A·B. */
 export function multiply(a: ComplexMatrix, b: ComplexMatrix): ComplexMatrix {
   if (a.cols !== b.rows) throw new RangeError(`multiply: ${a.rows}x${a.cols} times ${b.rows}x${b.cols}`);
@@ -150,46 +211,39 @@ export function multiply(a: ComplexMatrix, b: ComplexMatrix): ComplexMatrix {
   const ai = a.im;
   const br = b.re;
   const bi = b.im;
-  // i-k-j order streams rows of B and C contiguously; two rows of A per pass share each load of B
-  // (same summation order per entry as one row at a time, so results are bit-identical).
+  // i-k-j order streams rows of B and C contiguously; four rows of A per pass share each load of B.
+  // Exact zeros of A are skipped (sparse Kraus operators), as a single-row loop would.
   let i = 0;
-  for (; i + 1 < n; i += 2) {
-    const c0 = i * m;
-    const c1 = c0 + m;
+  for (; i + 3 < n; i += 4) {
     const a0 = i * p;
     const a1 = a0 + p;
+    const a2 = a1 + p;
+    const a3 = a2 + p;
+    const c0 = i * m;
+    const c1 = c0 + m;
+    const c2 = c1 + m;
+    const c3 = c2 + m;
     for (let k = 0; k < p; k++) {
       const x0r = ar[a0 + k];
       const x0i = ai[a0 + k];
       const x1r = ar[a1 + k];
       const x1i = ai[a1 + k];
+      const x2r = ar[a2 + k];
+      const x2i = ai[a2 + k];
+      const x3r = ar[a3 + k];
+      const x3i = ai[a3 + k];
       const zero0 = x0r === 0 && x0i === 0;
       const zero1 = x1r === 0 && x1i === 0;
-      if (zero0 && zero1) continue;
+      const zero2 = x2r === 0 && x2i === 0;
+      const zero3 = x3r === 0 && x3i === 0;
       const bRow = k * m;
-      if (zero1) {
-        for (let j = 0; j < m; j++) {
-          const yr = br[bRow + j];
-          const yi = bi[bRow + j];
-          cr[c0 + j] += x0r * yr - x0i * yi;
-          ci[c0 + j] += x0r * yi + x0i * yr;
-        }
-      } else if (zero0) {
-        for (let j = 0; j < m; j++) {
-          const yr = br[bRow + j];
-          const yi = bi[bRow + j];
-          cr[c1 + j] += x1r * yr - x1i * yi;
-          ci[c1 + j] += x1r * yi + x1i * yr;
-        }
+      if (!zero0 && !zero1 && !zero2 && !zero3) {
+        addScaledRowFour(cr, ci, c0, c1, c2, c3, x0r, x0i, x1r, x1i, x2r, x2i, x3r, x3i, br, bi, bRow, m);
       } else {
-        for (let j = 0; j < m; j++) {
-          const yr = br[bRow + j];
-          const yi = bi[bRow + j];
-          cr[c0 + j] += x0r * yr - x0i * yi;
-          ci[c0 + j] += x0r * yi + x0i * yr;
-          cr[c1 + j] += x1r * yr - x1i * yi;
-          ci[c1 + j] += x1r * yi + x1i * yr;
-        }
+        if (!zero0) addScaledRow(cr, ci, c0, x0r, x0i, br, bi, bRow, m);
+        if (!zero1) addScaledRow(cr, ci, c1, x1r, x1i, br, bi, bRow, m);
+        if (!zero2) addScaledRow(cr, ci, c2, x2r, x2i, br, bi, bRow, m);
+        if (!zero3) addScaledRow(cr, ci, c3, x3r, x3i, br, bi, bRow, m);
       }
     }
   }
@@ -199,13 +253,7 @@ export function multiply(a: ComplexMatrix, b: ComplexMatrix): ComplexMatrix {
       const xr = ar[i * p + k];
       const xi = ai[i * p + k];
       if (xr === 0 && xi === 0) continue;
-      const bRow = k * m;
-      for (let j = 0; j < m; j++) {
-        const yr = br[bRow + j];
-        const yi = bi[bRow + j];
-        cr[cRow + j] += xr * yr - xi * yi;
-        ci[cRow + j] += xr * yi + xi * yr;
-      }
+      addScaledRow(cr, ci, cRow, xr, xi, br, bi, k * m, m);
     }
   }
   return c;
@@ -284,57 +332,43 @@ export function multiplyAdjointLeft(a: ComplexMatrix, b: ComplexMatrix): Complex
   const ai = a.im;
   const br = b.re;
   const bi = b.im;
-  // k-i-j order streams rows of B and C; two rows of C per pass share each load of B (order kept).
+  // k-i-j order streams rows of B and C; four rows of C per pass share each load of B (order kept,
+  // exact zeros of A skipped).
   for (let k = 0; k < p; k++) {
     const rb = k * m;
     const ra = k * n;
     let i = 0;
-    for (; i + 1 < n; i += 2) {
+    for (; i + 3 < n; i += 4) {
       const x0r = ar[ra + i];
       const x0i = -ai[ra + i];
       const x1r = ar[ra + i + 1];
       const x1i = -ai[ra + i + 1];
+      const x2r = ar[ra + i + 2];
+      const x2i = -ai[ra + i + 2];
+      const x3r = ar[ra + i + 3];
+      const x3i = -ai[ra + i + 3];
       const zero0 = x0r === 0 && x0i === 0;
       const zero1 = x1r === 0 && x1i === 0;
-      if (zero0 && zero1) continue;
+      const zero2 = x2r === 0 && x2i === 0;
+      const zero3 = x3r === 0 && x3i === 0;
       const c0 = i * m;
       const c1 = c0 + m;
-      if (zero1) {
-        for (let j = 0; j < m; j++) {
-          const yr = br[rb + j];
-          const yi = bi[rb + j];
-          cr[c0 + j] += x0r * yr - x0i * yi;
-          ci[c0 + j] += x0r * yi + x0i * yr;
-        }
-      } else if (zero0) {
-        for (let j = 0; j < m; j++) {
-          const yr = br[rb + j];
-          const yi = bi[rb + j];
-          cr[c1 + j] += x1r * yr - x1i * yi;
-          ci[c1 + j] += x1r * yi + x1i * yr;
-        }
+      const c2 = c1 + m;
+      const c3 = c2 + m;
+      if (!zero0 && !zero1 && !zero2 && !zero3) {
+        addScaledRowFour(cr, ci, c0, c1, c2, c3, x0r, x0i, x1r, x1i, x2r, x2i, x3r, x3i, br, bi, rb, m);
       } else {
-        for (let j = 0; j < m; j++) {
-          const yr = br[rb + j];
-          const yi = bi[rb + j];
-          cr[c0 + j] += x0r * yr - x0i * yi;
-          ci[c0 + j] += x0r * yi + x0i * yr;
-          cr[c1 + j] += x1r * yr - x1i * yi;
-          ci[c1 + j] += x1r * yi + x1i * yr;
-        }
+        if (!zero0) addScaledRow(cr, ci, c0, x0r, x0i, br, bi, rb, m);
+        if (!zero1) addScaledRow(cr, ci, c1, x1r, x1i, br, bi, rb, m);
+        if (!zero2) addScaledRow(cr, ci, c2, x2r, x2i, br, bi, rb, m);
+        if (!zero3) addScaledRow(cr, ci, c3, x3r, x3i, br, bi, rb, m);
       }
     }
     for (; i < n; i++) {
       const xr = ar[ra + i];
       const xi = -ai[ra + i];
       if (xr === 0 && xi === 0) continue;
-      const c0 = i * m;
-      for (let j = 0; j < m; j++) {
-        const yr = br[rb + j];
-        const yi = bi[rb + j];
-        cr[c0 + j] += xr * yr - xi * yi;
-        ci[c0 + j] += xr * yi + xi * yr;
-      }
+      addScaledRow(cr, ci, i * m, xr, xi, br, bi, rb, m);
     }
   }
   return c;
