@@ -210,7 +210,66 @@ const MEASURED_COLUMNS = [
   'constructor ms',
 ];
 
+/** [[Re A, −Im A], [Im A, Re A]]: the real symmetric embedding of a Hermitian A (each eigenvalue twice). */
+function realEmbedding(a: ComplexMatrix): ComplexMatrix {
+  const n = a.rows;
+  const out = new ComplexMatrix(2 * n, 2 * n);
+  for (let i = 0; i < n; i++) {
+    for (let j = 0; j < n; j++) {
+      out.re[i * 2 * n + j] = a.re[i * n + j];
+      out.re[(i + n) * 2 * n + j + n] = a.re[i * n + j];
+      out.re[i * 2 * n + j + n] = -a.im[i * n + j];
+      out.re[(i + n) * 2 * n + j] = a.im[i * n + j];
+    }
+  }
+  return out;
+}
+
+/** Median ms per minimize() over a cell budget, after warm-up, for fixed gradients. */
+function medianMinimizeMs(oracle: LinearOracle, gradients: ComplexMatrix[]): { ms: number; optima: number[] } {
+  const optima = gradients.map((G) => oracle.minimize(G).primalValue);
+  const times: number[] = [];
+  const cellStart = performance.now();
+  while (times.length < MIN_CALLS || performance.now() - cellStart < CELL_BUDGET_MS) {
+    const G = gradients[times.length % gradients.length];
+    const started = performance.now();
+    oracle.minimize(G);
+    times.push(performance.now() - started);
+  }
+  return { ms: median(times), optima };
+}
+
+/** Cases for the native-complex versus real-embedding comparison. */
+const EMBEDDING_CASES: readonly (readonly [number, number])[] = [
+  [4, 3],
+  [8, 20],
+  [12, 40],
+];
+
 export async function benchOracle(): Promise<BenchTable[]> {
+  const embeddingRows: (string | number)[][] = [];
+  for (const [n, count] of EMBEDDING_CASES) {
+    const rng = uniformSource(2000 * n + count);
+    const constraints = benchConstraints(n, count, rng);
+    const gradients = Array.from({ length: 8 }, () => benchHermitian(n, rng));
+    const complex = medianMinimizeMs(new LinearOracle(n, constraints), gradients);
+    const embedded = medianMinimizeMs(
+      new LinearOracle(
+        2 * n,
+        constraints.map((c) => ({ ...c, operator: realEmbedding(c.operator) })),
+      ),
+      gradients.map(realEmbedding),
+    );
+    embeddingRows.push([
+      n,
+      count,
+      Number(complex.ms.toFixed(3)),
+      Number(embedded.ms.toFixed(3)),
+      Number((embedded.ms / complex.ms).toFixed(2)),
+      Number(Math.max(...complex.optima.map((v, k) => Math.abs(v - embedded.optima[k]))).toExponential(1)),
+    ]);
+  }
+
   const structuredRows: (string | number)[][] = [];
   for (const [dA, dB] of STRUCTURED_CASES) {
     const rng = uniformSource(77 * dA + dB);
@@ -237,6 +296,11 @@ export async function benchOracle(): Promise<BenchTable[]> {
       title: 'Linear oracle: prepare-and-measure shaped constraints (sparse; source marginal + redundant joint table ± 0.001)',
       columns: ['d_A×d_B', 'constraints', ...MEASURED_COLUMNS],
       rows: structuredRows,
+    },
+    {
+      title: 'Linear oracle: native complex d×d versus the real 2d×2d embedding (real-arithmetic path), same random problems',
+      columns: ['d', 'constraints', 'native complex ms', 'real embedding ms', 'embedding / native', 'largest optimum difference'],
+      rows: embeddingRows,
     },
   ];
 }
