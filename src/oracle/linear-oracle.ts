@@ -288,6 +288,7 @@ export class LinearOracle {
     this.solver.setObjective(strippedRe, strippedIm);
     let internalShare = INTERNAL_GAP_SHARE;
     let resume = false;
+    let best: OracleResult | null = null;
     let status: InteriorPointStatus;
     for (;;) {
       const share = internalShare;
@@ -316,14 +317,19 @@ export class LinearOracle {
         this.roundingLevel(gradientNorm, result),
       );
       if (result.primalValue - result.dualBound <= threshold) return result;
+      // Pushing further can end in a failed factorization; keep the best verified answer in case it does.
+      if (!best || result.primalValue - result.dualBound < best.primalValue - best.dualBound) best = result;
       if (this.solver.iterations >= resolved.maxIterations || stalledAcceptably) break;
       internalShare *= GAP_TIGHTENING;
     }
-    const fallback = this.resultFromSolver(G, objectiveScale, spanCoefficients, status === 'NUMERICAL_ERROR' ? 'NUMERICAL_ERROR' : 'ITERATION_LIMIT');
+    const last = this.resultFromSolver(G, objectiveScale, spanCoefficients, 'ITERATION_LIMIT');
+    const fallback = best && best.primalValue - best.dualBound < last.primalValue - last.dualBound ? best : last;
+    fallback.status = status === 'NUMERICAL_ERROR' ? 'NUMERICAL_ERROR' : 'ITERATION_LIMIT';
+    fallback.iterations = this.solver.iterations;
     const gapNote = `gap ${(fallback.primalValue - fallback.dualBound).toExponential(2)}; the dual bound is still valid`;
     fallback.message =
       status === 'NUMERICAL_ERROR'
-        ? `a factorization failed inside the interior-point method after ${this.solver.iterations} iterations; ${gapNote}`
+        ? `a factorization failed inside the interior-point method after ${this.solver.iterations} iterations (iterates this close to the boundary are at the limit of double precision; relative accuracies below ~1e-11 often end here); ${gapNote}`
         : status === 'STALLED'
           ? `progress stalled after ${this.solver.iterations} interior-point iterations (primal residual ${this.solver.primalResidualNorm.toExponential(2)}); ${gapNote}`
           : `stopped after ${this.solver.iterations} interior-point iterations; ${gapNote}`;
