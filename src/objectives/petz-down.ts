@@ -11,6 +11,7 @@ import {
   pinchedBlocks,
   positiveEigen,
   powerFunction,
+  traceTerm,
 } from './spectral-blocks.js';
 
 /**
@@ -23,6 +24,8 @@ export function petzDownQuasiEntropy(
   alpha: number,
   withGradient: boolean,
 ): { value: number; gradient: ComplexMatrix | null } {
+  // No key in this branch: Q̄(X‖X) = Tr X exactly, gradient 1.
+  if (support.blockSizes.length === 1) return traceTerm(x, withGradient);
   const beta = 2 - alpha;
   const { blockSizes: sizes, blockOffsets: offsets, outputRange: range } = support;
   const blockEigs = eigenBlocks(pinchedBlocks(x, sizes, offsets));

@@ -7,6 +7,7 @@ import {
   pinchedBlocks,
   powerFunction,
   sandwichedPower,
+  traceTerm,
 } from './spectral-blocks.js';
 
 /**
@@ -19,6 +20,9 @@ export function petzUpQuasiEntropy(
   alpha: number,
   withGradient: boolean,
 ): { value: number; gradient: ComplexMatrix | null } {
+  // No key in this branch (one key block): Z(X) = X and Q̃_γ(X‖X) = Tr X exactly, with gradient 1; the general
+  // formula would square X's conditioning (M = X²) for nothing.
+  if (support.blockSizes.length === 1) return traceTerm(x, withGradient);
   const gamma = 1 / alpha;
   const s = (1 - gamma) / (2 * gamma);
   const { blockSizes: sizes, blockOffsets: offsets } = support;

@@ -127,3 +127,10 @@ export function sandwichedPower(
   const powerOfM = expand(factor, spectralFunction(ne, (t) => t ** (gamma - 1)));
   return { quasiEntropy, weight, powerOfM };
 }
+
+/** Tr X with its gradient, the identity on the support (the value of every quasi-entropy of X relative to itself). */
+export function traceTerm(x: ComplexMatrix, withGradient: boolean): { value: number; gradient: ComplexMatrix | null } {
+  let value = 0;
+  for (let i = 0; i < x.rows; i++) value += x.re[i * x.cols + i];
+  return { value, gradient: withGradient ? ComplexMatrix.identity(x.rows) : null };
+}

@@ -21,6 +21,10 @@ export function relativeEntropyToPinched(
   support: BranchSupport,
   withGradient: boolean,
 ): { value: number; gradient: ComplexMatrix | null } {
+  // No key in this branch: D(X‖X) = 0 exactly, and so is its gradient.
+  if (support.blockSizes.length === 1) {
+    return { value: 0, gradient: withGradient ? ComplexMatrix.zeros(support.dimension) : null };
+  }
   const blockEigs = eigenBlocks(pinchedBlocks(x, support.blockSizes, support.blockOffsets));
   let pinchedPart = 0;
   for (const e of blockEigs) pinchedPart += traceFunction(e.values, entropyFunction.value);
