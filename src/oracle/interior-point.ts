@@ -2,37 +2,38 @@
 //   min ⟨C, X⟩  s.t.  Re Tr(A_k X) + Σ_{j: row_j = k} sign_j x_j = b_k   (cone rows),
 //                     x_s + x_t = w_q                                     (box rows: two-sided intervals),
 //                     X ⪰ 0, x ≥ 0,
-// box rows are eliminated from the Schur complement, so a two-sided interval costs one row, not two.
 // with the HKM search direction and Mehrotra's predictor–corrector (Helmberg, Rendl, Vanderbei & Wolkowicz 1996;
-// Kojima, Shindoh & Hara 1997; Monteiro 1997; Mehrotra 1992). Infeasible start; all buffers allocated once.
+// Kojima, Shindoh & Hara 1997; Monteiro 1997; Mehrotra 1992). Box rows are eliminated from the Schur complement,
+// so a two-sided interval costs one row, not two. Infeasible start; all buffers allocated once per problem; real
+// data run on real-arithmetic kernels.
 import {
   choleskyInPlace,
+  choleskyInPlaceReal,
   hermitianInner,
   hermitianPartInPlace,
+  lowerCongruence,
+  lowerCongruenceSymmetricReal,
   lowerGram,
+  lowerGramReal,
+  lowerTimesTransposed,
+  lowerTimesTransposedReal,
   lowerTriangularInverse,
+  lowerTriangularInverseReal,
+  multiplyByHermitian,
   multiplyByLowerAdjointRightHermitian,
   multiplyByLowerLeft,
-  lowerCongruence,
-  lowerTimesTransposed,
-  multiplyByHermitian,
+  multiplyBySymmetricReal,
   realCholeskyInPlace,
   realCholeskySolveInPlace,
   smallestEigenvalueInPlace,
+  smallestEigenvalueInPlaceReal,
   toSparse,
+  transposedProductWithLowerReal,
   transposedSparseProductWithLower,
+  transposedSparseProductWithLowerReal,
   transposeInto,
   TridiagonalWorkspace,
   type SparseOperator,
-  choleskyInPlaceReal,
-  lowerCongruenceSymmetricReal,
-  lowerGramReal,
-  lowerTimesTransposedReal,
-  lowerTriangularInverseReal,
-  multiplyBySymmetricReal,
-  smallestEigenvalueInPlaceReal,
-  transposedProductWithLowerReal,
-  transposedSparseProductWithLowerReal,
 } from './kernels.js';
 
 /** Fraction of the distance to the cone boundary taken by a step, before the adaptive increase (SDPT3 practice). */
@@ -51,6 +52,7 @@ const SPARSE_ROW_DENSITY = 0.25;
 const STEP_EIGENVALUE_TOLERANCE = 1e-9;
 /** Iterations over which the primal residual must fall by STALL_FACTOR once the gap is closed. */
 const STALL_WINDOW = 3;
+/** Required fall of the primal residual over STALL_WINDOW iterations before the run counts as stalled. */
 const STALL_FACTOR = 0.5;
 /** Iterative-refinement passes on each Schur complement solve. */
 const REFINEMENT_STEPS = 1;
