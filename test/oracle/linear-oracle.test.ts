@@ -308,6 +308,26 @@ describe('LinearOracle: real data and the real embedding', () => {
     expect(Math.abs(real.dualBound - complex.dualBound)).toBeLessThan(1e-9);
   });
 
+  it('answers do not depend on earlier calls (real and complex gradients interleaved)', () => {
+    const rng = seededRandom(53);
+    const { constraints, G } = randomProblem(6, 8, rng, true);
+    const complexG = randomHermitian(6, rng);
+    const oracle = new LinearOracle(6, constraints);
+    const first = oracle.minimize(G);
+    oracle.minimize(complexG);
+    oracle.findFeasiblePoint();
+    const again = oracle.minimize(G);
+    expect(again.primalValue).toBe(first.primalValue);
+    expect(again.dualBound).toBe(first.dualBound);
+    expect(Array.from(again.point!.re)).toEqual(Array.from(first.point!.re));
+    expect(Array.from(again.multipliersLower)).toEqual(Array.from(first.multipliersLower));
+    // And a fresh oracle gives the same complex answer as the one that had solved real problems before.
+    const fresh = new LinearOracle(6, constraints).minimize(complexG);
+    const reused = oracle.minimize(complexG);
+    expect(reused.primalValue).toBe(fresh.primalValue);
+    expect(reused.dualBound).toBe(fresh.dualBound);
+  });
+
   it('a complex problem and its real embedding have the same optimum', () => {
     // Reference identity (common practice): σ ↦ embed(σ)/2 maps complex density operators to real ones with the same
     // constraint values, and averaging a real feasible X with J·X·Jᵀ (J = [[0, −1], [1, 0]]) maps back, so the optima agree.
