@@ -55,6 +55,8 @@ export const DEFAULT_HOST = '127.0.0.1';
 export const DEFAULT_PORT = 50051;
 /** Long enough for a typical solve to finish; after it the remaining solves are cancelled (they still answer). */
 export const DEFAULT_DRAIN_TIMEOUT_MS = 60_000;
+/** Abort reason of calls cut short by the drain timeout (client cancels and deadlines abort without one). */
+const SHUTDOWN_ABORT_REASON = 'server shutting down';
 /** After cancelling what is left, connections are closed if calls still have not finished by then. */
 const FORCE_SHUTDOWN_AFTER_CANCEL_MS = 15_000;
 
@@ -235,7 +237,7 @@ export class RenyiBoundServer {
         },
       });
       if (!controller.signal.aborted) call.end();
-      else if (!call.cancelled) {
+      else if (controller.signal.reason === SHUTDOWN_ABORT_REASON) {
         // Aborted by the server (drain timeout), not by the client: say so instead of leaving the stream open.
         call.emit('error', { code: grpc.status.UNAVAILABLE, details: `the server is shutting down; ${done} of ${total} points were sent` });
       }
@@ -278,7 +280,7 @@ export class RenyiBoundServer {
       });
       if ((await Promise.race([drained, timedOut])) === 'timeout') {
         this.logger.warn({ event: 'shutdown', inFlight: this.pool.pending }, 'drain timeout: cancelling in-flight solves');
-        for (const controller of [...this.callControllers, ...this.batchControllers]) controller.abort();
+        for (const controller of [...this.callControllers, ...this.batchControllers]) controller.abort(SHUTDOWN_ABORT_REASON);
         // Cancelled solves stop within an iteration; if something still hangs, close the connections.
         const forced = setTimeout(() => this.grpcServer.forceShutdown(), FORCE_SHUTDOWN_AFTER_CANCEL_MS);
         await drained;

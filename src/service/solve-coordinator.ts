@@ -47,11 +47,6 @@ export class SolveCoordinator {
     private readonly logger: Logger,
   ) {}
 
-  /** Solves currently running or queued (distinct input hashes). */
-  get inFlightCount(): number {
-    return this.inFlight.size;
-  }
-
   /** Validates and hashes a request on a pool thread (batch points); bad input throws ValidationError. */
   async prepare(input: SolveInput): Promise<PreparedSolve> {
     const reply = await this.pool.run({ kind: 'prepare', input }, true);
