@@ -10,6 +10,8 @@ import { startTestRedis, type TestRedis } from '../cache/redis-server.js';
 import { startTestServer, type TestServer } from './harness.js';
 
 const GAP = 1e-4;
+/** Makes this run's problems differ from any a shared (CI) Redis may still hold from earlier runs. */
+const RUN_OFFSET = Math.random() * 1e-4;
 
 describe('replicas sharing Redis', () => {
   let redis: TestRedis | { skipReason: string };
@@ -36,8 +38,7 @@ describe('replicas sharing Redis', () => {
 
   it('a result solved on one replica is a verified cache hit on the other', async (context) => {
     if ('skipReason' in redis) return context.skip();
-    // A parameter unique to this run, so a shared CI Redis cannot already hold it.
-    const qber = 0.02 + (process.pid % 1000) * 1e-6;
+    const qber = 0.02 + RUN_OFFSET;
     const request = { problem: buildExample('bb84-entangled', { 'qber-x': qber }), entropy: 'von-neumann', settings: { gapTolerance: GAP } };
     const first = await solveRemote(replicaA!.server.address, request);
     const second = await solveRemote(replicaB!.server.address, request);
@@ -48,7 +49,7 @@ describe('replicas sharing Redis', () => {
 
   it('rejects a poisoned Redis entry, logs it, recomputes and stores a valid one', async (context) => {
     if ('skipReason' in redis) return context.skip();
-    const qber = 0.03 + (process.pid % 1000) * 1e-6;
+    const qber = 0.03 + RUN_OFFSET;
     const problem = buildExample('bb84-entangled', { 'qber-x': qber });
     const request = { problem, entropy: 'von-neumann', settings: { gapTolerance: GAP } };
     const honest = await solveRemote(replicaA!.server.address, request);
@@ -73,7 +74,7 @@ describe('replicas sharing Redis', () => {
 
   it('discards an entry that is not even JSON and recomputes', async (context) => {
     if ('skipReason' in redis) return context.skip();
-    const qber = 0.04 + (process.pid % 1000) * 1e-6;
+    const qber = 0.04 + RUN_OFFSET;
     const request = { problem: buildExample('bb84-entangled', { 'qber-x': qber }), entropy: 'von-neumann', settings: { gapTolerance: GAP } };
     const honest = await solveRemote(replicaA!.server.address, request);
     await inspector!.client.set(RedisCacheLayer.keyFor(honest.inputHash), '\u0000garbage');
