@@ -117,7 +117,7 @@ export class EqualitySpan {
     return a;
   }
 
-  /** In place: X ← X − Σ_k (a_k − shift_k)·E_k. */
+  /** In place: X ← X − Σ_k a_k·E_k. */
   subtractCombination(re: Float64Array, im: Float64Array, a: ArrayLike<number>): void {
     for (let k = 0; k < this.size; k++) {
       const h = a[k];
