@@ -14,6 +14,7 @@ import { compressToFace, type FeasibleFace } from '../problem/feasible-face.js';
 import { matrixFromJson } from '../problem/json.js';
 import type { Certificate } from '../frank-wolfe/types.js';
 import { pinchedBlocks } from '../objectives/spectral-blocks.js';
+import { isKeyless } from '../objectives/sandwiched-up.js';
 
 /** Generous constant c in the eigensolver backward-error scale c·n·u·‖A‖_F used for the margin. */
 export const MARGIN_CONSTANT = 64;
@@ -122,14 +123,21 @@ export function linearizationBound(
   };
 }
 
-/** τ_c on H_c (block diagonal in the key map) → blocks on the branch's pinched support. */
+/** τ_c on H_c (block diagonal in the key map) → blocks on the branch's pinched support; a keyless branch stores its weight as a 1×1 matrix. */
 export function referenceToSupport(support: BranchSupport, referenceOnOutput: ComplexMatrix): ComplexMatrix[] {
+  if (isKeyless(support)) {
+    if (referenceOnOutput.rows !== 1 || referenceOnOutput.cols !== 1) {
+      throw new RangeError(`a branch without key stores its weight as a 1x1 reference state`);
+    }
+    return [referenceOnOutput];
+  }
   const compressed = conjugateAdjoint(support.basis, referenceOnOutput);
   return pinchedBlocks(compressed, support.blockSizes, support.blockOffsets);
 }
 
-/** Blocks on the pinched support → τ_c on H_c. */
+/** Blocks on the pinched support → τ_c on H_c (the 1×1 weight itself for a branch without key). */
 export function referenceFromSupport(support: BranchSupport, blocks: ComplexMatrix[]): ComplexMatrix {
+  if (isKeyless(support)) return blocks[0];
   return conjugate(support.basis, directSum(blocks));
 }
 

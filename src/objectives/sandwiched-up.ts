@@ -10,7 +10,12 @@ import {
   sandwichedPower,
 } from './spectral-blocks.js';
 
-/** τ on the pinched supports: one Hermitian block per key block, per branch ([branch][block]). */
+/**
+ * τ on the pinched supports: one Hermitian block per key block, per branch ([branch][block]). A branch without key
+ * (a single key block) carries a 1×1 block: its weight t_c, with τ_c = t_c·X_c/Tr X_c implied — for a fixed weight
+ * that is the optimal τ_c (D̃_β(X‖τ) ≥ 0 with equality at τ ∝ X), so nothing is lost, and the branch term
+ * t^{1−β}·(Tr X)^β is exact instead of going through M = X^{1/β} with its conditioning raised to the power 1/β.
+ */
 export type ReferenceBlocks = ComplexMatrix[][];
 
 export interface SandwichedBranchTerm {
@@ -30,6 +35,7 @@ export function sandwichedBranchTerm(
   reference: ComplexMatrix[],
   beta: number,
 ): SandwichedBranchTerm {
+  if (isKeyless(support)) return keylessBranchTerm(weightedState, reference[0].re[0], beta);
   const s = (1 - beta) / (2 * beta);
   const { blockSizes: sizes, blockOffsets: offsets } = support;
   const referenceEigs = eigenBlocks(reference);
@@ -45,6 +51,39 @@ export function sandwichedBranchTerm(
     gradientReference: pinchedBlocks(gradientFull, sizes, offsets),
     pinchedPower: pinchedBlocks(powerOfM, sizes, offsets),
   };
+}
+
+/** A branch whose key map has a single block: no key is produced there. */
+export function isKeyless(support: BranchSupport): boolean {
+  return support.blockSizes.length === 1;
+}
+
+/** Q = t^{1−β}·(Tr X)^β with ∂_X Q = β·t^{1−β}(Tr X)^{β−1}·1 and ∂_t Q = (1−β)·t^{−β}(Tr X)^β. */
+function keylessBranchTerm(weightedState: ComplexMatrix, weight: number, beta: number): SandwichedBranchTerm {
+  let traceX = 0;
+  for (let i = 0; i < weightedState.rows; i++) traceX += weightedState.re[i * weightedState.cols + i];
+  const quasiEntropy = weight ** (1 - beta) * traceX ** beta;
+  const oneByOne = (value: number) => ComplexMatrix.from([[value]]);
+  return {
+    quasiEntropy,
+    gradientState: scale(ComplexMatrix.identity(weightedState.rows), beta * weight ** (1 - beta) * traceX ** (beta - 1)),
+    gradientReference: [oneByOne((1 - beta) * weight ** -beta * traceX ** beta)],
+    // The fixed-point map sends the weight to this branch's share of Q.
+    pinchedPower: [oneByOne(quasiEntropy)],
+  };
+}
+
+/** The starting τ: the pinched outputs (Tr X for a branch without key), normalised together. */
+function initialReference(weightedStates: readonly ComplexMatrix[], supports: readonly BranchSupport[]): ReferenceBlocks {
+  return normalise(
+    supports.map((sup, c) => {
+      const blocks = pinchedBlocks(weightedStates[c], sup.blockSizes, sup.blockOffsets);
+      if (!isKeyless(sup)) return blocks;
+      let traceX = 0;
+      for (let i = 0; i < blocks[0].rows; i++) traceX += blocks[0].re[i * blocks[0].cols + i];
+      return [ComplexMatrix.from([[traceX]])];
+    }),
+  );
 }
 
 export interface ReferenceOptimum {
@@ -99,8 +138,7 @@ export function optimalReference(
   settings: ReferenceSettings = DEFAULT_REFERENCE_SETTINGS,
   start?: ReferenceBlocks,
 ): ReferenceOptimum {
-  let reference: ReferenceBlocks =
-    start ?? normalise(supports.map((sup, c) => pinchedBlocks(weightedStates[c], sup.blockSizes, sup.blockOffsets)));
+  let reference: ReferenceBlocks = start ?? initialReference(weightedStates, supports);
   let iterations = 0;
   let bestGap = Infinity;
   let bestGapIteration = 0;
