@@ -167,6 +167,8 @@ export class InteriorPointSolver {
   private readonly boxRight: Float64Array;
   private readonly dBoxDual: Float64Array;
   private readonly residualHistory: Float64Array;
+  /** A strictly feasible primal point (X, slacks) to start from, e.g. the analytic centre; null for the default start. */
+  primalStart: { xRe: Float64Array; xIm: Float64Array; slack: Float64Array } | null = null;
   /** Every constraint operator is real. */
   private readonly rowsReal: boolean;
   /** The current objective is real too: all iterates stay real and the real kernels run. */
@@ -283,6 +285,25 @@ export class InteriorPointSolver {
     }
     this.y.fill(0);
     this.boxDual.fill(0);
+    if (this.primalStart) {
+      this.xRe.set(this.primalStart.xRe);
+      if (!this.realMode) this.xIm.set(this.primalStart.xIm);
+      this.slack.set(this.primalStart.slack);
+      // Z = C − λ_min(C)·1 + 1, i.e. y_0 on the identity row E_0 = 1/√n: dual feasible for the cone block.
+      this.tmpRe.set(this.objectiveRe);
+      this.tmpIm.set(this.objectiveIm);
+      const lambda = this.realMode
+        ? smallestEigenvalueInPlaceReal(this.tmpRe, n, this.tridiagonal)
+        : smallestEigenvalueInPlace(this.tmpRe, this.tmpIm, n, this.tridiagonal);
+      const shift = 1 - lambda;
+      this.zRe.set(this.objectiveRe);
+      this.zIm.set(this.objectiveIm);
+      for (let i = 0; i < n; i++) this.zRe[i * n + i] += shift;
+      this.y[0] = -shift * Math.sqrt(n);
+      for (let j = 0; j < this.slackCount; j++) this.slackDual[j] = 1 / n / this.slack[j];
+      this.iterations = 0;
+      return;
+    }
     const floor = START_SLACK_FLOOR / n;
     for (let j = 0; j < this.slackCount; j++) {
       const k = rows.slackRow[j];

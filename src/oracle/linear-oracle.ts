@@ -29,6 +29,8 @@ const GAP_ROUNDING_FACTOR = 16;
  * (the feasible set then lies in a face of the cone, and the interior-point method is run on that face).
  */
 export const FACE_EIGENVALUE_RATIO = 1e-9;
+/** The analytic centre serves as the start of later solves only if its eigenvalues are within this ratio of each other. */
+const WARM_START_EIGENVALUE_RATIO = 1e-3;
 /** Gap target of the feasibility run: tight enough that vanishing eigenvalues of the centre fall far below the ratio above. */
 const FEASIBILITY_GAP = 1e-12;
 /** Golden-section steps when choosing the weight of the exposing multipliers in a face-reduced bound. */
@@ -373,7 +375,12 @@ export class LinearOracle {
     const result = this.resultFromSolver(zero, 1, new Float64Array(this.span.size), accepted ? 'OPTIMAL' : status === 'NUMERICAL_ERROR' ? 'NUMERICAL_ERROR' : 'ITERATION_LIMIT');
     if (result.status === 'OPTIMAL') {
       this.feasibleResult = result;
-      if (!this.faceAnalysed) this.analyseFace(result.point as ComplexMatrix, this.multipliersFromSolver(this.solver.y, 1, new Float64Array(this.span.size)));
+      const centre = { xRe: this.solver.xRe.slice(), xIm: this.solver.xIm.slice(), slack: this.solver.slack.slice() };
+      if (!this.faceAnalysed) {
+        const wellInside = this.analyseFace(result.point as ComplexMatrix, this.multipliersFromSolver(this.solver.y, 1, new Float64Array(this.span.size)));
+        // Later solves start from the analytic centre (primal feasible, centred) when it is well inside the cone.
+        if (wellInside && status === 'CONVERGED') this.solver.primalStart = centre;
+      }
       return this.copyResult(result);
     }
     this.faceAnalysed = true;
@@ -383,16 +390,17 @@ export class LinearOracle {
 
   /**
    * Facial reduction from the analytic centre: its range is the smallest face holding S. When that face is proper,
-   * later solves run on it (the full-space problem has no interior point and its multipliers diverge).
+   * later solves run on it (the full-space problem has no interior point and its multipliers diverge). Returns
+   * whether the centre is well inside the cone.
    */
-  private analyseFace(centre: ComplexMatrix, exposing: Float64Array): void {
+  private analyseFace(centre: ComplexMatrix, exposing: Float64Array): boolean {
     this.faceAnalysed = true;
     const { values, vectors } = eigh(centre);
     const n = this.dimension;
     const largest = values[n - 1];
     let first = 0;
     while (first < n && values[first] <= FACE_EIGENVALUE_RATIO * largest) first++;
-    if (first === 0) return;
+    if (first === 0) return values[0] >= WARM_START_EIGENVALUE_RATIO * largest;
     const rank = n - first;
     const isometry = new ComplexMatrix(n, rank);
     for (let i = 0; i < n; i++) {
@@ -408,6 +416,7 @@ export class LinearOracle {
     const inner = new LinearOracle(rank, compressed, this.settings);
     inner.faceAnalysed = true;
     this.face = { isometry, inner, exposing };
+    return false;
   }
 
   /** Solves on the face and lifts back; the bound adds the exposing multipliers with the weight that maximizes (★). */
