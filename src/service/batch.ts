@@ -43,12 +43,10 @@ export function solveInputFromWire(request: SolveRequest__Output): SolveInput {
   };
 }
 
-/** The warm-start group from what a request says (before validation; a wrong guess only costs a cold start). */
-function groupOf(kind: string | undefined, alpha: number | undefined, problemJson: unknown): string {
+/** The warm-start group of a grid point: kind, order and the dimensions the builder produced. */
+function groupOf(kind: string, alpha: number | undefined, problemJson: unknown): string {
   const problem = (problemJson ?? {}) as Record<string, unknown>;
-  const ownKind = typeof problem.entropy === 'string' ? problem.entropy : '';
-  const ownAlpha = typeof problem.alpha === 'number' ? problem.alpha : undefined;
-  return `${kind ?? ownKind}|${alpha ?? ownAlpha ?? ''}|${String(problem.dimensionA)}x${String(problem.dimensionB)}`;
+  return `${kind}|${alpha ?? ''}|${String(problem.dimensionA)}x${String(problem.dimensionB)}`;
 }
 
 function failure(error: unknown): { field: string; message: string } {
@@ -68,7 +66,8 @@ export function expandRequestList(list: SolveRequestList__Output): BatchPoint[] 
       point: {},
       entropy: request.entropy === 'ENTROPY_KIND_UNSPECIFIED' ? '' : request.entropy,
       input,
-      group: groupOf(input.entropy, input.alpha, input.problemJson),
+      // Requests of a list are unrelated problems: each is its own group, so none warm-starts another.
+      group: `request ${index}`,
       coordinates: [],
       placeError: (error) => ({ field: `${prefix}.${error.field}`, message: error.reason }),
     };
