@@ -290,17 +290,14 @@ describe('RenyiBound service on loopback', () => {
     const already = await rawSolve(address, { problem: bb84(0.05) as never, entropy: 'VON_NEUMANN' }, new Date(Date.now() - 1));
     expect(already?.code).toBe(grpc.status.DEADLINE_EXCEEDED);
 
-    // The solver polls the flag once per iteration and its set-up takes up to a few seconds on this problem, so
-    // "stopped by the flag" means: well before its own, much longer time limit.
+    // Stopped by the flag, not by its own (much longer) time limit: the log line says `cancelled`, not `time`.
     const timeLimitMs = 20_000;
-    const started = Date.now();
     const error = await solveRemote(address, { ...slowRequest(0.941, timeLimitMs), requestId: 'deadline' }, { deadlineMs: 400 }).catch((e: unknown) => e);
     expect(error).toBeInstanceOf(RemoteCallError);
     expect((error as RemoteCallError).code).toBe(grpc.status.DEADLINE_EXCEEDED);
     expect(await eventually(() => solveLogs(harness).some((l) => l.requestId === 'deadline'), timeLimitMs / 2)).toBe(true);
     const line = solveLogs(harness).find((l) => l.requestId === 'deadline')!;
     expect(line.limit).toBe('cancelled');
-    expect(Date.now() - started).toBeLessThan(timeLimitMs / 2);
     expect(harness.server.pool.pending).toBe(0);
   }, 40_000);
 
@@ -322,12 +319,10 @@ describe('RenyiBound service on loopback', () => {
     })();
     // Both quick points are in, and both threads are busy with slow ones.
     expect(await eventually(() => received.length === 2 && harness.server.pool.pending === 2, 8000)).toBe(true);
-    const cancelledAt = Date.now();
     batch.cancel();
     const error = await consumer;
     expect((error as RemoteCallError).code).toBe(grpc.status.CANCELLED);
     expect(await eventually(() => harness.server.pool.pending === 0, timeLimitMs / 2)).toBe(true);
-    expect(Date.now() - cancelledAt).toBeLessThan(timeLimitMs / 2);
     expect(await eventually(() => harness.logs.some((l) => l.event === 'batch' && l.requestId === 'cancelled-batch' && l.cancelled === true), 2000)).toBe(true);
     const finished = harness.logs.find((l) => l.event === 'batch' && l.requestId === 'cancelled-batch' && 'done' in l)!;
     expect(finished.done as number).toBeLessThan(6);
@@ -405,9 +400,7 @@ describe('graceful shutdown', () => {
     const batchOutcome = collect(batch.items).catch((e: unknown) => e);
     // The batch point waits behind the unary solve (or is still being prepared) when the drain runs out.
     expect(await eventually(() => harness.server.pool.pending === 2, 8000)).toBe(true);
-    const started = Date.now();
     await harness.server.shutdown();
-    expect(Date.now() - started).toBeLessThan(10_000);
     const result = await unaryCall;
     expect(result.status).toBe('LIMIT_REACHED');
     expect(result.limit).toBe('cancelled');

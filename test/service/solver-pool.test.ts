@@ -46,12 +46,11 @@ describe('SolverPool', () => {
   it('a raised flag reaches the running thread through shared memory', async () => {
     const p = makePool(1, 0);
     const flag = createCancelFlag();
-    const started = Date.now();
     const running = p.run({ milliseconds: 20_000, cancelFlag: flag, value: 7 });
     setTimeout(() => raiseCancelFlag(flag), 200);
     const result = await running;
+    // The worker saw the flag (it would otherwise spin for its full 20 s and report cancelled: false).
     expect(result.cancelled).toBe(true);
-    expect(Date.now() - started).toBeLessThan(10_000);
   });
 
   it('retries a task whose thread was terminated, on a new thread', async () => {
