@@ -5,6 +5,7 @@ import { createObjective } from '../objectives/index.js';
 import type { EntropyKind, EntropyRequest, Problem } from '../problem/model.js';
 import { problemFromJson } from '../problem/validate.js';
 import { buildExample } from '../protocols/index.js';
+import { levenbergMarquardt } from 'ml-levenberg-marquardt';
 import { medianMilliseconds, type BenchTable } from './linear-algebra.js';
 
 /** Deterministic uniform numbers so every run times the same inputs. */
@@ -77,21 +78,41 @@ function round(x: number): number {
   return Number(x.toPrecision(3));
 }
 
-/** Objective value + gradient, median ms per call, per dimension and kind. */
+/**
+ * Fits t(d) = a·d^b to measured times with Levenberg–Marquardt (relative weights), reporting the scaling exponent b
+ * (an O(d³) kernel gives b ≈ 3 once d is large enough for the matrix arithmetic to dominate).
+ */
+export function scalingExponent(dimensions: readonly number[], times: readonly number[]): number {
+  const initialExponent = Math.log(times[times.length - 1] / times[0]) / Math.log(dimensions[dimensions.length - 1] / dimensions[0]);
+  const fit = levenbergMarquardt(
+    { x: dimensions.map(Number), y: times.map(Number) },
+    ([a, b]) => (d) => a * d ** b,
+    {
+      initialValues: [times[0] / dimensions[0] ** initialExponent, initialExponent],
+      weights: times.map((t) => 1 / (t * t)),
+      maxIterations: 200,
+      errorTolerance: 1e-12,
+    },
+  );
+  return fit.parameterValues[1];
+}
+
+/** Objective value + gradient, median ms per call, per dimension and kind, and the fitted scaling exponent. */
 export function benchObjectives(): BenchTable {
-  const rows: (string | number)[][] = [];
-  for (const d of [4, 16, 64, 128]) {
+  const dimensions = [4, 16, 64, 128];
+  const columns: number[][] = KINDS.map(() => []);
+  for (const d of dimensions) {
     const problem = qubitKeyProblem(d);
     const rho = benchDensity(d, d);
-    const row: (string | number)[] = [d];
-    for (const request of KINDS) {
+    KINDS.forEach((request, k) => {
       const objective = createObjective(problem, request);
-      row.push(round(medianMilliseconds(() => objective.evaluate(rho, { assumeFullRank: true }))));
-    }
-    rows.push(row);
+      columns[k].push(round(medianMilliseconds(() => objective.evaluate(rho, { assumeFullRank: true }))));
+    });
   }
+  const rows: (string | number)[][] = dimensions.map((d, i) => [d, ...columns.map((c) => c[i])]);
+  rows.push(['exponent b in t ≈ a·d^b (d ≥ 16)', ...columns.map((c) => round(scalingExponent(dimensions.slice(1), c.slice(1))))]);
   return {
-    title: 'Objective value + gradient (ms per call, median, one core; α = 1.5)',
+    title: 'Objective value + gradient (ms per call, median, one core; α = 1.5; sandwiched-up with τ warm from the previous call)',
     columns: ['d', ...KINDS.map((k) => k.kind)],
     rows,
   };

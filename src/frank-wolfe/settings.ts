@@ -41,8 +41,8 @@ export function resolveSettings(partial: Partial<SolverSettings> = {}, path = 's
 export const TUNING = Object.freeze({
   /** Relative accuracy of the first oracle solves (an interior answer is a better step than an exact vertex). */
   initialOracleAccuracy: 1e-7,
-  /** The oracle accuracy is never tightened beyond this. */
-  finestOracleAccuracy: 1e-12,
+  /** The oracle accuracy is never tightened beyond this (its practical floor in double precision). */
+  finestOracleAccuracy: 1e-11,
   /** Iterations without a 10 % drop of the estimated gap before the oracle accuracy is tightened tenfold. */
   stallWindow: 15,
   /** Certify (full bound with margin) when the estimated gap is below this share of the requested gap. */
