@@ -1,13 +1,9 @@
 // Benchmarks of the Hermitian eigensolvers and matrix-function kernels (median CPU time per call).
 import { ComplexMatrix, multiply } from '../linear-algebra/complex-matrix.js';
 import { eigh, eighHouseholder, eighJacobi, eighRealEmbedding, eigvalsh, JACOBI_MAX_SIZE } from '../linear-algebra/eigen.js';
+import { benchHermitian, uniformSource, type BenchTable } from './inputs.js';
 import { dividedDifferences, frechetDerivative, powerFunction, spectralFunction } from '../linear-algebra/matrix-functions.js';
 
-export interface BenchTable {
-  title: string;
-  columns: string[];
-  rows: (string | number)[][];
-}
 
 /** Wall-time budget per measured cell; repetitions adapt to it. */
 const CELL_BUDGET_MS = 250;
@@ -17,37 +13,9 @@ const MIN_BATCHES = 7;
 const WARM_UP_MS = 150;
 const MIN_WARM_UP_CALLS = 2;
 
-/** Deterministic generator for benchmark inputs (same matrices on every run). */
-function uniformSource(seed: number): () => number {
-  let state = seed >>> 0;
-  return () => {
-    state = (state + 0x6d2b79f5) >>> 0;
-    let t = state;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
-
-/** Random Hermitian matrix with entries uniform in [−1, 1] + i[−1, 1]. */
-function benchHermitian(n: number, seed: number): ComplexMatrix {
-  const rng = uniformSource(seed);
-  const a = new ComplexMatrix(n, n);
-  for (let i = 0; i < n; i++) {
-    a.re[i * n + i] = 2 * rng() - 1;
-    for (let j = 0; j < i; j++) {
-      const re = 2 * rng() - 1;
-      const im = 2 * rng() - 1;
-      a.set(i, j, re, im);
-      a.set(j, i, re, -im);
-    }
-  }
-  return a;
-}
-
 /** Random positive-definite matrix G·G†/n + 0.1·1. */
 function benchPositiveDefinite(n: number, seed: number): ComplexMatrix {
-  const g = benchHermitian(n, seed);
+  const g = benchHermitian(n, uniformSource(seed));
   const a = multiply(g, g);
   for (let i = 0; i < n; i++) a.re[i * n + i] = a.re[i * n + i] / n + 0.1;
   for (let k = 0; k < n * n; k++) if (k % (n + 1) !== 0) {
@@ -91,10 +59,12 @@ function round(ms: number): number {
 }
 
 /** Eigensolver timings (median ms per call) and matrix-function kernels. */
+export type { BenchTable };
+
 export async function benchLinearAlgebra(): Promise<BenchTable[]> {
   // Process-wide warm-up so that the first measured cell is not charged for compilation.
   for (const n of [3, 8]) {
-    const a = benchHermitian(n, n);
+    const a = benchHermitian(n, uniformSource(n));
     for (let k = 0; k < 300; k++) {
       eigh(a);
       eighJacobi(a);
@@ -103,7 +73,7 @@ export async function benchLinearAlgebra(): Promise<BenchTable[]> {
   }
   const solverRows: (string | number)[][] = [];
   for (const n of [4, 16, 64, 128, 256]) {
-    const a = benchHermitian(n, 1000 + n);
+    const a = benchHermitian(n, uniformSource(1000 + n));
     const nativeOnly = n > 128;
     solverRows.push([
       n,
@@ -116,7 +86,7 @@ export async function benchLinearAlgebra(): Promise<BenchTable[]> {
   }
   const crossoverRows: (string | number)[][] = [];
   for (const n of [2, 3, 4, 5, 6, 8]) {
-    const a = benchHermitian(n, 2000 + n);
+    const a = benchHermitian(n, uniformSource(2000 + n));
     const jacobi = medianMilliseconds(() => eighJacobi(a)) * 1000;
     const householder = medianMilliseconds(() => eighHouseholder(a)) * 1000;
     crossoverRows.push([n, round(jacobi), round(householder), n <= JACOBI_MAX_SIZE ? 'Jacobi' : 'Householder–QL']);
@@ -125,7 +95,7 @@ export async function benchLinearAlgebra(): Promise<BenchTable[]> {
   const f = powerFunction(0.5);
   for (const n of [4, 16, 64]) {
     const a = benchPositiveDefinite(n, 3000 + n);
-    const h = benchHermitian(n, 4000 + n);
+    const h = benchHermitian(n, uniformSource(4000 + n));
     const eig = eigh(a);
     const gamma = dividedDifferences(eig.values, f.value, f.derivative, f.difference);
     kernelRows.push([

@@ -1,12 +1,8 @@
 // Benchmarks of the semidefinite linear oracle: median wall time of minimize() on random constraint sets.
 import { ComplexMatrix, kron, partialTraceB } from '../linear-algebra/complex-matrix.js';
 import { LinearOracle, type OracleConstraint } from '../oracle/index.js';
+import { benchHermitian, uniformSource, type BenchTable } from './inputs.js';
 
-export interface BenchTable {
-  title: string;
-  columns: string[];
-  rows: (string | number)[][];
-}
 
 /** Wall-time budget per measured cell; repetitions adapt to it. */
 const CELL_BUDGET_MS = 1500;
@@ -27,33 +23,6 @@ const STRUCTURED_CASES: readonly (readonly [number, number])[] = [
   [4, 3],
   [4, 4],
 ];
-
-/** Deterministic generator for benchmark inputs (same matrices on every run). */
-function uniformSource(seed: number): () => number {
-  let state = seed >>> 0;
-  return () => {
-    state = (state + 0x6d2b79f5) >>> 0;
-    let t = state;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
-
-/** Random Hermitian matrix with entries uniform in [−1, 1] + i[−1, 1]. */
-function benchHermitian(n: number, rng: () => number): ComplexMatrix {
-  const a = new ComplexMatrix(n, n);
-  for (let i = 0; i < n; i++) {
-    a.re[i * n + i] = 2 * rng() - 1;
-    for (let j = 0; j < i; j++) {
-      const re = 2 * rng() - 1;
-      const im = 2 * rng() - 1;
-      a.set(i, j, re, im);
-      a.set(j, i, re, -im);
-    }
-  }
-  return a;
-}
 
 /** Random full-rank density operator B·B†/Tr(B·B†) + mixing with 1/n (keeps it well inside the cone). */
 function benchState(n: number, rng: () => number): ComplexMatrix {

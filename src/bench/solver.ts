@@ -6,50 +6,8 @@ import type { EntropyKind, EntropyRequest, Problem } from '../problem/model.js';
 import { problemFromJson } from '../problem/validate.js';
 import { buildExample } from '../protocols/index.js';
 import { levenbergMarquardt } from 'ml-levenberg-marquardt';
-import { medianMilliseconds, type BenchTable } from './linear-algebra.js';
-
-/** Deterministic uniform numbers so every run times the same inputs. */
-function uniformSource(seed: number): () => number {
-  let state = seed >>> 0;
-  return () => {
-    state = (Math.imul(state, 1664525) + 1013904223) >>> 0;
-    return state / 4294967296;
-  };
-}
-
-function randomMatrix(rows: number, cols: number, rng: () => number): ComplexMatrix {
-  const m = new ComplexMatrix(rows, cols);
-  for (let k = 0; k < m.re.length; k++) {
-    m.re[k] = rng() - 0.5;
-    m.im[k] = rng() - 0.5;
-  }
-  return m;
-}
-
-/** A full-rank density operator G·G†/Tr. */
-function benchDensity(d: number, seed: number): ComplexMatrix {
-  const g = randomMatrix(d, d, uniformSource(seed));
-  const rho = new ComplexMatrix(d, d);
-  for (let i = 0; i < d; i++) {
-    for (let j = 0; j < d; j++) {
-      let sr = 0;
-      let si = 0;
-      for (let k = 0; k < d; k++) {
-        sr += g.re[i * d + k] * g.re[j * d + k] + g.im[i * d + k] * g.im[j * d + k];
-        si += g.im[i * d + k] * g.re[j * d + k] - g.re[i * d + k] * g.im[j * d + k];
-      }
-      rho.re[i * d + j] = sr;
-      rho.im[i * d + j] = si;
-    }
-  }
-  let trace = 0;
-  for (let i = 0; i < d; i++) trace += rho.re[i * d + i];
-  for (let k = 0; k < rho.re.length; k++) {
-    rho.re[k] /= trace;
-    rho.im[k] /= trace;
-  }
-  return rho;
-}
+import { benchDensity, benchHermitian, uniformSource, type BenchTable } from './inputs.js';
+import { medianMilliseconds } from './linear-algebra.js';
 
 /** Key = Alice's qubit outcome on C² ⊗ C^{d/2}, one branch with the identity Kraus operator. */
 function qubitKeyProblem(d: number): Problem {
@@ -103,7 +61,7 @@ export function benchObjectives(): BenchTable {
   const columns: number[][] = KINDS.map(() => []);
   for (const d of dimensions) {
     const problem = qubitKeyProblem(d);
-    const rho = benchDensity(d, d);
+    const rho = benchDensity(d, uniformSource(d));
     KINDS.forEach((request, k) => {
       const objective = createObjective(problem, request);
       columns[k].push(round(medianMilliseconds(() => objective.evaluate(rho, { assumeFullRank: true }))));
@@ -134,17 +92,10 @@ function exampleProblem(name: string, params: Record<string, number>): () => Pro
 function syntheticProblem(): Problem {
   const d = 32;
   const rng = uniformSource(77);
-  const truth = benchDensity(d, 5);
+  const truth = benchDensity(d, uniformSource(5));
   const base = qubitKeyProblem(d);
   const constraints = Array.from({ length: 30 }, (_, i) => {
-    const g = randomMatrix(d, d, rng);
-    const op = new ComplexMatrix(d, d);
-    for (let r = 0; r < d; r++) {
-      for (let c = 0; c < d; c++) {
-        op.re[r * d + c] = g.re[r * d + c] + g.re[c * d + r];
-        op.im[r * d + c] = g.im[r * d + c] - g.im[c * d + r];
-      }
-    }
+    const op = benchHermitian(d, rng);
     const value = traceProductReal(op, truth);
     return { label: `synthetic[${i}]`, operator: op, lower: value - 1e-3, upper: value + 1e-3 };
   });
