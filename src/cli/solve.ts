@@ -71,7 +71,11 @@ export function register(program: Command): void {
               warmStart: warmStartJson as never,
             });
           } catch (error) {
-            if (error instanceof RemoteCallError && error.field) throw new ValidationError(error.field, error.details);
+            if (error instanceof RemoteCallError && error.field) {
+              // The server's message already starts with the field path.
+              const reason = error.details.startsWith(`${error.field}: `) ? error.details.slice(error.field.length + 2) : error.details;
+              throw new ValidationError(error.field, reason);
+            }
             throw error;
           } finally {
             closeClients();

@@ -109,11 +109,19 @@ export function solve(
     certificate: null,
   });
 
+  /** Cancelled before any feasible point existed: no bound can be given. */
+  const cancelledBeforeStart = (): SolveResult => ({
+    ...failure('cancelled before a feasible starting point was found', 0),
+    status: 'LIMIT_REACHED',
+    limit: 'cancelled',
+  });
   const face = feasibleFace(problem);
   const restricted = restrictToFace(problem, face);
   const oracle = new LinearOracle(face.dimension, restricted.constraints, {
     relativeAccuracy: TUNING.initialOracleAccuracy,
   });
+  // Set-up can take a while on large problems: a cancelled request stops before each expensive phase too.
+  if (control.isCancelled?.()) return cancelledBeforeStart();
   let clock = performance.now();
   const feasible = oracle.findFeasiblePoint();
   oracleSeconds += (performance.now() - clock) / 1000;
@@ -143,6 +151,7 @@ export function solve(
   }
   if (!feasible.point) return failure(`no feasible starting point: ${feasible.message ?? feasible.status}`, 0);
 
+  if (control.isCancelled?.()) return cancelledBeforeStart();
   const objective = createObjective(restricted, entropy);
   const interiorPoint = feasible.point;
   let x = startingPoint(oracle, restricted, face, feasible.point, control.warmStart);
