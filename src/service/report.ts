@@ -94,7 +94,8 @@ export function sweepPlotSpec(items: RemoteBatchItem[], axisNames: string[], tit
     encoding: {
       x: { field: 'x', type: 'quantitative', title: x },
       y: { field: 'bound', type: 'quantitative', title: 'certified lower bound (bits per round)' },
-      color: { field: 'series', type: 'nominal', title: 'entropy' },
+      // Series names such as "sandwiched-up α=1.25" must not be cut short in the legend.
+      color: { field: 'series', type: 'nominal', title: 'entropy', legend: { labelLimit: 400 } },
     },
   };
 }
