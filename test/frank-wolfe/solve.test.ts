@@ -157,11 +157,20 @@ describe('limits are results', () => {
     expectVerified(problem, 'sandwiched-up', 1.2, result);
   });
 
-  it('a cancellation flag stops the run with LIMIT_REACHED/cancelled', () => {
-    const result = solve(problem, { kind: 'petz-up', alpha: 1.5 }, { gapTolerance: 1e-12 }, { isCancelled: () => true });
+  it('a cancellation flag raised during the iterations stops the run with LIMIT_REACHED/cancelled and a valid bound', () => {
+    let polls = 0;
+    // Set-up polls the flag twice; it is raised at the first poll inside the iteration loop.
+    const result = solve(problem, { kind: 'petz-up', alpha: 1.5 }, { gapTolerance: 1e-12 }, { isCancelled: () => ++polls > 2 });
     expect(result.status).toBe('LIMIT_REACHED');
     expect(result.limit).toBe('cancelled');
     expectVerified(problem, 'petz-up', 1.5, result);
+  });
+
+  it('a request cancelled before set-up ends without a bound', () => {
+    const result = solve(problem, { kind: 'petz-up', alpha: 1.5 }, {}, { isCancelled: () => true });
+    expect(result.status).toBe('LIMIT_REACHED');
+    expect(result.limit).toBe('cancelled');
+    expect(result.certifiedLowerBound).toBeNull();
   });
 
   it('a warm start from a previous solution reaches the same certified value', () => {
