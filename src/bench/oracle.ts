@@ -1,7 +1,7 @@
 // Benchmarks of the semidefinite linear oracle: median wall time of minimize() on random constraint sets.
 import { ComplexMatrix, kron, partialTraceB } from '../linear-algebra/complex-matrix.js';
 import { LinearOracle, type OracleConstraint } from '../oracle/index.js';
-import { benchHermitian, uniformSource, type BenchTable } from './inputs.js';
+import { benchDensity, benchHermitian, uniformSource, type BenchTable } from './inputs.js';
 
 
 /** Wall-time budget per measured cell; repetitions adapt to it. */
@@ -24,28 +24,12 @@ const STRUCTURED_CASES: readonly (readonly [number, number])[] = [
   [4, 4],
 ];
 
-/** Random full-rank density operator B·B†/Tr(B·B†) + mixing with 1/n (keeps it well inside the cone). */
+/** Random full-rank density operator, half B·B†/Tr(B·B†) and half 1/n (keeps it well inside the cone). */
 function benchState(n: number, rng: () => number): ComplexMatrix {
-  const b = benchHermitian(n, rng);
-  const rho = new ComplexMatrix(n, n);
-  let trace = 0;
-  for (let i = 0; i < n; i++) {
-    for (let j = 0; j < n; j++) {
-      let sr = 0;
-      let si = 0;
-      for (let k = 0; k < n; k++) {
-        // B_ik · conj(B_jk)
-        sr += b.re[i * n + k] * b.re[j * n + k] + b.im[i * n + k] * b.im[j * n + k];
-        si += b.im[i * n + k] * b.re[j * n + k] - b.re[i * n + k] * b.im[j * n + k];
-      }
-      rho.re[i * n + j] = sr;
-      rho.im[i * n + j] = si;
-    }
-    trace += rho.re[i * n + i];
-  }
+  const rho = benchDensity(n, rng);
   for (let t = 0; t < n * n; t++) {
-    rho.re[t] = (0.5 * rho.re[t]) / trace;
-    rho.im[t] = (0.5 * rho.im[t]) / trace;
+    rho.re[t] *= 0.5;
+    rho.im[t] *= 0.5;
   }
   for (let i = 0; i < n; i++) rho.re[i * n + i] += 0.5 / n;
   return rho;

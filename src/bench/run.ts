@@ -1,5 +1,5 @@
 // `npm run bench`: every benchmark section as Markdown tables (paste into the README). `--only name` runs one.
-import type { BenchTable } from './linear-algebra.js';
+import type { BenchTable } from './inputs.js';
 
 const SERVICE_MODULE = './service.js';
 

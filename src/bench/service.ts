@@ -7,12 +7,9 @@ import { closeClients, renyiBoundClient, solveBatchRemote, type RemoteBatchItem 
 import type { ParameterGrid } from '../service/generated/renyibound/v1/ParameterGrid.js';
 import type { SolveRequest } from '../service/generated/renyibound/v1/SolveRequest.js';
 import { RenyiBoundServer } from '../service/server.js';
+import type { BenchTable } from './inputs.js';
 
-export interface BenchTable {
-  title: string;
-  columns: string[];
-  rows: (string | number)[][];
-}
+export type { BenchTable };
 
 /** Round trips timed for the cache-hit median. */
 const CACHE_HIT_CALLS = 300;

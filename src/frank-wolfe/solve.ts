@@ -93,6 +93,7 @@ export function solve(
     inputHash: hash,
   };
   const elapsed = () => (performance.now() - started) / 1000;
+  /** A result without a bound (the status is overridden for infeasible data and early cancellation). */
   const failure = (message: string, iterations: number): SolveResult => ({
     ...base,
     status: 'NUMERICAL_ERROR',
@@ -128,19 +129,8 @@ export function solve(
   if (feasible.status === 'INFEASIBLE' && feasible.infeasibility) {
     const f = feasible.infeasibility;
     return {
-      ...base,
+      ...failure(`no density operator meets the constraints; largest multipliers on: ${f.dominantConstraints.join(', ')}`, 0),
       status: 'INFEASIBLE',
-      message: `no density operator meets the constraints; largest multipliers on: ${f.dominantConstraints.join(', ')}`,
-      certifiedLowerBound: null,
-      upperBound: null,
-      gap: null,
-      toleranceMargin: null,
-      statisticalSlack: null,
-      maxConstraintViolation: null,
-      iterations: 0,
-      seconds: elapsed(),
-      oracleSeconds,
-      certificate: null,
       infeasibility: {
         multipliersLower: Array.from(f.multipliersLower),
         multipliersUpper: Array.from(f.multipliersUpper),
