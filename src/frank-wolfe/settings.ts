@@ -41,6 +41,10 @@ export function resolveSettings(partial: Partial<SolverSettings> = {}, path = 's
 export const TUNING = Object.freeze({
   /** Relative accuracy of the first oracle solves (an interior answer is a better step than an exact vertex). */
   initialOracleAccuracy: 1e-7,
+  /** While the estimated gap is large the oracle is asked for this share of it as its relative accuracy… */
+  oracleAccuracyShare: 1e-2,
+  /** …but never for less than this. */
+  coarsestOracleAccuracy: 1e-3,
   /** The oracle accuracy is never tightened beyond this (its practical floor in double precision). */
   finestOracleAccuracy: 1e-11,
   /** Iterations without a 10 % drop of the estimated gap before the oracle accuracy is tightened tenfold. */

@@ -243,7 +243,9 @@ export function solve(
   const consultOracle = (split: ReturnType<LinearOracle['stripEqualitySpan']>): OracleResult | 'stop' | string => {
     quasiNewtonRun = 0;
     const clockStart = performance.now();
-    const answer = oracle.minimize(split.stripped, { relativeAccuracy: oracleAccuracy });
+    // Far from the optimum a rough answer steps as well as an exact one and costs fewer interior-point iterations.
+    const accuracy = Math.max(oracleAccuracy, Math.min(TUNING.coarsestOracleAccuracy, TUNING.oracleAccuracyShare * lastEstimatedGap));
+    const answer = oracle.minimize(split.stripped, { relativeAccuracy: accuracy });
     oracleSeconds += (performance.now() - clockStart) / 1000;
     if (!answer.point) return `linear oracle failed: ${answer.message ?? answer.status}`;
     const multipliers = restoreMultipliers(answer, split.equalityCoefficients);
