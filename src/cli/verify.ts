@@ -1,7 +1,8 @@
 // `renyi-bound verify <result.json | -> --problem <problem.json>`: recomputes a certificate's bound from the
-// problem alone (no optimisation) and says whether the claimed bound holds.
+// problem alone (no optimisation) and says whether the claimed bound holds; for an INFEASIBLE result it re-checks
+// the Farkas certificate instead.
 import { Command } from 'commander';
-import { verifyResult, type VerificationReport } from '../certificate/verify.js';
+import { verifyInfeasibility, verifyResult, type VerificationReport } from '../certificate/verify.js';
 import type { SolveResult } from '../frank-wolfe/types.js';
 import { ValidationError, entropyRequestFrom, problemFromJson } from '../problem/validate.js';
 import { printJson, readJsonInput, withInputErrors } from './io.js';
@@ -19,6 +20,13 @@ export function register(program: Command): void {
         const problem = problemFromJson(readJsonInput(options.problem, 'problem'));
         let report: VerificationReport;
         try {
+          if (result.status === 'INFEASIBLE') {
+            if (!result.infeasibility) throw new ValidationError('result.infeasibility', 'is missing for an INFEASIBLE result');
+            report = verifyInfeasibility(problem, result.infeasibility);
+            printJson(report);
+            process.exitCode = report.valid ? 0 : 1;
+            return;
+          }
           const request = entropyRequestFrom(String(result.entropy), result.alpha ?? undefined);
           report = verifyResult(problem, request, {
             certificate: result.certificate ?? null,

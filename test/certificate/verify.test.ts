@@ -4,7 +4,9 @@ import { dirname, join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { describe, expect, it } from 'vitest';
 import { linearizationBound } from '../../src/certificate/bound.js';
-import { verifyResult } from '../../src/certificate/verify.js';
+import { verifyInfeasibility, verifyResult } from '../../src/certificate/verify.js';
+import { buildExample } from '../../src/protocols/index.js';
+import { problemFromJson } from '../../src/problem/validate.js';
 import { solve } from '../../src/frank-wolfe/solve.js';
 import { ComplexMatrix, conjugate, multiply, adjoint } from '../../src/linear-algebra/complex-matrix.js';
 import { createObjective } from '../../src/objectives/index.js';
@@ -112,4 +114,35 @@ describe('the floating-point margin covers rounding (MATH.md §5: conservative e
       }
     });
   }
+});
+
+describe('Farkas certificates of infeasible data are re-checked (MATH.md §4; Tsirelson 1980 for the CHSH case)', () => {
+  it('accepts the solver’s certificate for a CHSH win probability above cos²(π/8)', () => {
+    const problem = example('chsh-tested', { 'win-probability': 0.9 });
+    const result = solve(problem, { kind: 'von-neumann' });
+    expect(result.status).toBe('INFEASIBLE');
+    const report = verifyInfeasibility(problem, result.infeasibility!);
+    expect(report.valid).toBe(true);
+  });
+
+  it('accepts it for statistics inconsistent with the source marginal, and names the table entries', () => {
+    const json = buildExample('bb84-prepare-measure', { qber: 0.02 }) as { observations: { probabilities: number[] }[] };
+    // Move weight between two entries of Alice's |0⟩ row and |1⟩ row: the table's marginal no longer matches ρ_A.
+    json.observations[0].probabilities[0] += 0.05;
+    json.observations[0].probabilities[5] -= 0.05;
+    const problem = problemFromJson(json);
+    const result = solve(problem, { kind: 'von-neumann' });
+    expect(result.status).toBe('INFEASIBLE');
+    expect(result.infeasibility!.dominantConstraints.join(' ')).toMatch(/probabilities|sourceMarginal/);
+    expect(verifyInfeasibility(problem, result.infeasibility!).valid).toBe(true);
+  });
+
+  it('rejects multipliers that prove nothing, and a certificate held against feasible data', () => {
+    const infeasible = example('chsh-tested', { 'win-probability': 0.9 });
+    const zero = { multipliersLower: [0], multipliersUpper: [0] };
+    expect(verifyInfeasibility(infeasible, zero).valid).toBe(false);
+    const result = solve(infeasible, { kind: 'von-neumann' });
+    const feasible = example('chsh-tested', { 'win-probability': 0.8 });
+    expect(verifyInfeasibility(feasible, result.infeasibility!).valid).toBe(false);
+  });
 });

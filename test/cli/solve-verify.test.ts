@@ -48,11 +48,15 @@ describe('renyi-bound solve / verify', () => {
     expect(JSON.parse(rejected.stdout).valid).toBe(false);
   });
 
-  it('exits 2 for infeasible statistics (CHSH above Tsirelson’s bound)', () => {
+  it('exits 2 for infeasible statistics (CHSH above Tsirelson’s bound), and verify accepts the Farkas certificate', () => {
     const chsh = file('chsh.json', buildExample('chsh-tested', { 'win-probability': 0.9 }));
     const r = run(['solve', chsh, '--entropy', 'von-neumann']);
     expect(r.status).toBe(2);
     expect(JSON.parse(r.stdout).status).toBe('INFEASIBLE');
+    // The Farkas certificate re-checks from the problem alone.
+    const checked = run(['verify', '-', '--problem', chsh], r.stdout);
+    expect(checked.status).toBe(0);
+    expect(JSON.parse(checked.stdout).reason).toMatch(/infeasibility verified/);
   });
 
   it('exits 1 and names the field for bad input', () => {
