@@ -10,7 +10,7 @@ import type { CacheLayer } from '../cache/layer.js';
 import { RedisCacheLayer } from '../cache/redis.js';
 import { ResultCache } from '../cache/result-cache.js';
 import { defaultCacheDirectory, SqliteCacheLayer } from '../cache/sqlite.js';
-import { verifyResult } from '../certificate/verify.js';
+import { verifyInfeasibility, verifyResult } from '../certificate/verify.js';
 import { ValidationError } from '../problem/errors.js';
 import { expandGrid, expandRequestList, runBatch, solveInputFromWire, type BatchPoint } from './batch.js';
 import { toServiceError } from './errors.js';
@@ -258,7 +258,12 @@ export class RenyiBoundServer {
         alpha: request.alpha,
       });
       if (request.result === null) throw new ValidationError('result', 'is required');
-      const report = verifyResult(prepared.problem, prepared.request, resultFromWire(request.result));
+      const result = resultFromWire(request.result);
+      // An INFEASIBLE result carries a Farkas certificate instead of a bound.
+      const report =
+        result.status === 'INFEASIBLE' && result.infeasibility
+          ? verifyInfeasibility(prepared.problem, result.infeasibility)
+          : verifyResult(prepared.problem, prepared.request, result);
       callback(null, { valid: report.valid, certifiedLowerBound: report.certifiedLowerBound ?? undefined, reason: report.reason });
     } catch (error) {
       callback(toServiceError(error));

@@ -163,6 +163,10 @@ describe('RenyiBound service on loopback', () => {
     expect(result.certifiedLowerBound).toBeNull();
     expect(result.infeasibility!.violation).toBeGreaterThan(0);
     expect(result.infeasibility!.dominantConstraints.length).toBeGreaterThan(0);
+    // Verify re-checks the Farkas certificate from the problem alone.
+    const verdict = await verifyRemote(address, { problem, entropy: 'von-neumann', result });
+    expect(verdict.valid).toBe(true);
+    expect(verdict.reason).toMatch(/infeasibility verified/);
   });
 
   it('streams a 50-point grid: every point once, progress counting up, each certificate verified', async () => {
