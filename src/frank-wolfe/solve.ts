@@ -12,6 +12,7 @@ import {
   traceProductReal,
 } from '../linear-algebra/complex-matrix.js';
 import { eigh, eigvalsh } from '../linear-algebra/eigen.js';
+import { numericalRank } from '../linear-algebra/support.js';
 import {
   createObjective,
   normaliseRequest,
@@ -145,10 +146,18 @@ export function solve(
   const objective = createObjective(restricted, entropy);
   const interiorPoint = feasible.point;
   let x = startingPoint(oracle, restricted, face, feasible.point, control.warmStart);
-  let evaluation = objective.evaluate(x, { assumeFullRank: true });
-  if (!Number.isFinite(evaluation.value) || !evaluation.gradient) {
-    return failure('the objective is not finite at the starting point', 0);
+  const firstEvaluation = evaluateSafely(objective, x);
+  if (!firstEvaluation) {
+    const rank = numericalRank(feasible.point);
+    return failure(
+      rank < face.dimension
+        ? `the feasible set has no full-rank state: its most interior point has rank ${rank} of ${face.dimension} ` +
+            '(constraints pin ρ to a face that the exact reductions from the source marginal and spectral edges do not find)'
+        : 'the objective is not finite at the starting point',
+      0,
+    );
   }
+  let evaluation: ObjectiveEvaluation = firstEvaluation;
   const atoms = new ActiveSet(x, TUNING.maxAtoms, TUNING.atomWeightFloor);
   let oracleAccuracy: number = TUNING.initialOracleAccuracy;
   let best: CertifiedPoint | null = null;
@@ -178,8 +187,8 @@ export function solve(
   // Near the boundary of the cone the margin grows like 1/λ_min(ρ'); linearizing at (1−ε)x + ε·x₀ trades a
   // linearization loss of order ε against it, so a few ε are tried and the best bound is kept.
   const certifyAt = (state: ComplexMatrix) => {
-    const e = objective.evaluate(state, { assumeFullRank: true });
-    if (!e.gradient || !Number.isFinite(e.value)) return;
+    const e = evaluateSafely(objective, state);
+    if (!e) return;
     const split = oracle.stripEqualitySpan(e.gradient);
     const clockStart = performance.now();
     const answer = oracle.minimize(split.stripped, { relativeAccuracy: oracleAccuracy });
@@ -216,8 +225,8 @@ export function solve(
       (step) => {
         const point = x.clone();
         addScaledInPlace(point, direction, step);
-        const e = objective.evaluate(point, { assumeFullRank: true });
-        if (!e.gradient) return null;
+        const e = evaluateSafely(objective, point);
+        if (!e) return null;
         trials.set(step, e);
         return { step, point, value: e.value, gradient: e.gradient };
       },
@@ -445,6 +454,25 @@ export function stepToEigenvalueFloor(x: ComplexMatrix, direction: ComplexMatrix
   // x − floor + t·d ⪰ 0 ⟺ 1 − t·M ⪰ 0 with M = (Λ−floor)^{-1/2} V†(−d)V (Λ−floor)^{-1/2}.
   const largest = eigvalsh(scaled)[n - 1];
   return largest > 0 ? 1 / largest : Infinity;
+}
+
+/**
+ * F and ∇F at a point the optimiser believes full rank, or null when rounding has made some branch output
+ * numerically singular there (non-finite numbers): the caller treats that point as outside the domain.
+ */
+function evaluateSafely(objective: Objective, state: ComplexMatrix): (ObjectiveEvaluation & { gradient: ComplexMatrix }) | null {
+  let e: ObjectiveEvaluation;
+  try {
+    e = objective.evaluate(state, { assumeFullRank: true });
+  } catch (error) {
+    if (error instanceof RangeError) return null;
+    throw error;
+  }
+  const g = e.gradient;
+  if (!g || !Number.isFinite(e.value)) return null;
+  let sum = 0;
+  for (let k = 0; k < g.re.length; k++) sum += Math.abs(g.re[k]) + Math.abs(g.im[k]);
+  return Number.isFinite(sum) ? { ...e, gradient: g } : null;
 }
 
 /** The largest t keeping every interval constraint lower ≤ Tr(Γ(x + t·d)) ≤ upper (equalities are kept by d). */

@@ -1,4 +1,4 @@
-import { addScaledInPlace, ComplexMatrix, conjugate, conjugateAdjoint, multiply, scale } from '../linear-algebra/complex-matrix.js';
+import { addScaledInPlace, ComplexMatrix, conjugate, conjugateAdjoint, hermitianPart, multiply, scale } from '../linear-algebra/complex-matrix.js';
 import { supportDecomposition } from '../linear-algebra/support.js';
 import type { EntropyRequest, Problem } from '../problem/model.js';
 import { branchSupport, type BranchSupport } from './branch-supports.js';
@@ -121,13 +121,13 @@ class EntropyObjective implements Objective {
     });
   }
 
-  /** ∇_ρ = Σ_c Σ_j K̂_{c,j}† G_c K̂_{c,j}. */
+  /** ∇_ρ = Σ_c Σ_j K̂_{c,j}† G_c K̂_{c,j}, symmetrised: products in different orders leave a rounding-level anti-Hermitian part. */
   private pullBack(gradients: readonly ComplexMatrix[]): ComplexMatrix {
     const total = ComplexMatrix.zeros(this.dimension);
     this.supports.forEach((support, c) => {
       for (const k of support.krausOperators) addScaledInPlace(total, conjugateAdjoint(k, gradients[c]), 1);
     });
-    return total;
+    return hermitianPart(total);
   }
 
   evaluate(rho: ComplexMatrix, options: EvaluateOptions = {}): ObjectiveEvaluation {
