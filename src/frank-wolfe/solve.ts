@@ -247,6 +247,7 @@ export function solve(
   );
   let quasiNewtonRun = 0;
   let lastDecrease = 0;
+  let afterFrankWolfe = false;
   let lastEstimatedGap = Infinity;
   /** One oracle call: gap estimate, certification when it looks close, accuracy tightening on stalls. */
   const consultOracle = (split: ReturnType<LinearOracle['stripEqualitySpan']>): OracleResult | 'stop' | string => {
@@ -314,9 +315,12 @@ export function solve(
     }
     previous = { state: x, tangentGradient: split.stripped };
 
-    // The oracle (gap estimate, certificate, Frank–Wolfe vertex) is skipped while quasi-Newton steps pay off.
-    const oracleDue =
-      !qn.ready || quasiNewtonRun >= TUNING.longestQuasiNewtonRun || lastDecrease < TUNING.quasiNewtonPayoff * lastEstimatedGap;
+    // The oracle (gap estimate, certificate, Frank–Wolfe vertex) is skipped while quasi-Newton steps pay off; when
+    // they stop paying (a decrease small against the estimated gap), one Frank–Wolfe step is taken instead.
+    const quasiNewtonPaying = lastDecrease >= TUNING.quasiNewtonPayoff * lastEstimatedGap;
+    const tryQuasiNewton = qn.ready && (quasiNewtonPaying || afterFrankWolfe);
+    const oracleDue = !tryQuasiNewton || afterFrankWolfe || quasiNewtonRun >= TUNING.longestQuasiNewtonRun;
+    afterFrankWolfe = false;
     let answer: OracleResult | null = null;
     if (oracleDue) {
       const consulted = consultOracle(split);
@@ -325,7 +329,7 @@ export function solve(
       answer = consulted;
     }
 
-    if (qn.ready) {
+    if (tryQuasiNewton) {
       const direction = alongActiveIntervals(
         restricted,
         x,
@@ -353,7 +357,9 @@ export function solve(
         }
       }
     }
+    // Quasi-Newton gets another chance after this Frank–Wolfe step.
     lastDecrease = 0;
+    afterFrankWolfe = true;
     if (answer === null) {
       const consulted = consultOracle(split);
       if (consulted === 'stop') break;
