@@ -5,16 +5,17 @@ import {
   conjugateAdjoint,
   directSum,
   frobeniusNorm,
+  hermiticityDefect,
   traceProductReal,
 } from '../linear-algebra/complex-matrix.js';
-import { eigh } from '../linear-algebra/eigen.js';
-import type { Objective, ReferenceBlocks, BranchSupport } from '../objectives/index.js';
+import { eigvalsh } from '../linear-algebra/eigen.js';
+import type { Objective, ObjectiveEvaluation, ReferenceBlocks, BranchSupport } from '../objectives/index.js';
 import type { Problem } from '../problem/model.js';
 import { compressToFace, type FeasibleFace } from '../problem/feasible-face.js';
 import { matrixFromJson } from '../problem/json.js';
 import type { Certificate } from '../frank-wolfe/types.js';
 import { pinchedBlocks } from '../objectives/spectral-blocks.js';
-import { isKeyless } from '../objectives/sandwiched-up.js';
+import { isKeyless } from '../objectives/branch-supports.js';
 
 /** Generous constant c in the eigensolver backward-error scale c·n·u·‖A‖_F used for the margin. */
 export const MARGIN_CONSTANT = 64;
@@ -46,6 +47,8 @@ export function linearizationBound(
   multipliersLower: ArrayLike<number>,
   multipliersUpper: ArrayLike<number>,
   reference?: ReferenceBlocks,
+  /** F and ∇F at ρ' when the caller already has them (not for sandwiched-up, whose bound needs ∇_τ too). */
+  precomputed?: ObjectiveEvaluation,
 ): BoundBreakdown {
   const n = rho.rows;
   let objectiveValue: number;
@@ -64,13 +67,13 @@ export function linearizationBound(
     joint.gradientReference.forEach((blocks, c) =>
       blocks.forEach((g, k) => {
         innerProduct += traceProductReal(g, reference[c][k]);
-        smallest = Math.min(smallest, eigh(g).values[0]);
+        smallest = Math.min(smallest, eigvalsh(g)[0]);
         referenceError += MARGIN_CONSTANT * g.rows * UNIT_ROUNDOFF * frobeniusNorm(g) * 2;
       }),
     );
     referenceTerm = smallest - innerProduct;
   } else {
-    const evaluation = objective.evaluate(rho, { withGradient: true, assumeFullRank: true });
+    const evaluation = precomputed?.gradient ? precomputed : objective.evaluate(rho, { withGradient: true, assumeFullRank: true });
     objectiveValue = evaluation.value;
     gradient = evaluation.gradient as ComplexMatrix;
     evaluationConditioning = evaluation.conditioning ?? 1;
@@ -91,12 +94,12 @@ export function linearizationBound(
     multiplierWeight +=
       (yLower + yUpper) * (frobeniusNorm(constraint.operator) + Math.abs(constraint.lower) + Math.abs(constraint.upper));
   });
-  const smallestEigenvalue = eigh(shifted).values[0];
+  const smallestEigenvalue = eigvalsh(shifted)[0];
   const gradientInnerProduct = traceProductReal(gradient, rho);
 
   // Backward-error scale of each eigendecomposition; the gradient term grows like ‖ρ'‖/λ_min(ρ') because the
   // derivative of log or of a negative power amplifies a backward error by the inverse smallest eigenvalue.
-  const rhoEigenvalues = eigh(rho).values;
+  const rhoEigenvalues = eigvalsh(rho);
   // The worst of ρ' itself and every positive matrix the objective took a function of (branch outputs, pinched
   // blocks, sandwiched products): Kraus maps can make an output worse conditioned than ρ'.
   const conditioning = Math.max(frobeniusNorm(rho) / Math.max(rhoEigenvalues[0], Number.MIN_VALUE), evaluationConditioning);
@@ -141,6 +144,36 @@ export function referenceFromSupport(support: BranchSupport, blocks: ComplexMatr
   return conjugate(support.basis, directSum(blocks));
 }
 
+/** The stored linearization point on the face and, for sandwiched-up, the stored τ on the supports. */
+export interface StoredLinearization {
+  state: ComplexMatrix;
+  reference?: ReferenceBlocks;
+}
+
+/** Hermiticity accepted for a stored linearization point (it went through JSON with full precision). */
+const STATE_HERMITICITY_TOLERANCE = 1e-12;
+
+/** Reads a certificate's stored matrices; throws RangeError with the reason when one is malformed. */
+export function readStoredLinearization(
+  face: FeasibleFace,
+  objective: Objective,
+  certificate: Pick<Certificate, 'linearizationState' | 'referenceStates'>,
+): StoredLinearization {
+  const stored = matrixFromJson(certificate.linearizationState, 'certificate.linearizationState');
+  const d = face.isometry ? face.isometry.rows : face.dimension;
+  if (stored.rows !== d || stored.cols !== d) throw new RangeError(`linearization state must be ${d}x${d}`);
+  if (hermiticityDefect(stored) > STATE_HERMITICITY_TOLERANCE) throw new RangeError('linearization state is not Hermitian');
+  const state = compressToFace(face, stored);
+  const references = certificate.referenceStates;
+  const reference =
+    objective.request.kind === 'sandwiched-up' && references
+      ? objective.supports.map((support, c) =>
+          referenceToSupport(support, matrixFromJson(references[c], `certificate.referenceStates[${c}]`)),
+        )
+      : undefined;
+  return { state, reference };
+}
+
 /**
  * The bound exactly as a verifier recomputes it from a certificate's stored numbers (compressing the stored state
  * onto the face, converting stored τ to the supports); the solver claims this very number, so a re-check on the
@@ -151,21 +184,14 @@ export function certificateBreakdown(
   restricted: Problem,
   objective: Objective,
   certificate: Pick<Certificate, 'linearizationState' | 'referenceStates' | 'multipliersLower' | 'multipliersUpper'>,
+  read: StoredLinearization = readStoredLinearization(face, objective, certificate),
 ): BoundBreakdown {
-  const reduced = compressToFace(face, matrixFromJson(certificate.linearizationState, 'certificate.linearizationState'));
-  const stored = certificate.referenceStates;
-  const reference =
-    objective.request.kind === 'sandwiched-up' && stored
-      ? objective.supports.map((support, c) =>
-          referenceToSupport(support, matrixFromJson(stored[c], `certificate.referenceStates[${c}]`)),
-        )
-      : undefined;
   return linearizationBound(
     restricted,
     objective,
-    reduced,
+    read.state,
     certificate.multipliersLower,
     certificate.multipliersUpper,
-    reference,
+    read.reference,
   );
 }

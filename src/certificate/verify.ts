@@ -1,13 +1,12 @@
 // Independent re-check of a certificate: no optimiser code is imported here (a test enforces it).
-import { addScaledInPlace, ComplexMatrix, frobeniusNorm, hermiticityDefect } from '../linear-algebra/complex-matrix.js';
-import { eigh } from '../linear-algebra/eigen.js';
+import { addScaledInPlace, ComplexMatrix, frobeniusNorm } from '../linear-algebra/complex-matrix.js';
+import { eigvalsh } from '../linear-algebra/eigen.js';
 import { createObjective } from '../objectives/index.js';
-import { compressToFace, feasibleFace, restrictToFace } from '../problem/feasible-face.js';
+import { feasibleFace, restrictToFace } from '../problem/feasible-face.js';
 import { inputHash } from '../problem/hash.js';
-import { matrixFromJson } from '../problem/json.js';
 import type { EntropyRequest, Problem } from '../problem/model.js';
 import type { Certificate, InfeasibilityCertificate, SolveResult } from '../frank-wolfe/types.js';
-import { certificateBreakdown, referenceToSupport } from './bound.js';
+import { certificateBreakdown, readStoredLinearization, type StoredLinearization } from './bound.js';
 import { SOLVER_VERSION } from './version.js';
 
 export interface VerificationReport {
@@ -16,9 +15,6 @@ export interface VerificationReport {
   certifiedLowerBound: number | null;
   reason: string;
 }
-
-/** Hermiticity accepted for a stored linearization point (it went through JSON with full precision). */
-const STATE_HERMITICITY_TOLERANCE = 1e-12;
 
 function reject(reason: string, certifiedLowerBound: number | null = null): VerificationReport {
   return { valid: false, certifiedLowerBound, reason };
@@ -67,36 +63,24 @@ export function verifyCertificate(
 
   const face = feasibleFace(problem);
   const restricted = restrictToFace(problem, face);
-  let state: ComplexMatrix;
+  const objective = createObjective(restricted, request);
+  const references = certificate.referenceStates;
+  if (objective.request.kind === 'sandwiched-up' && (!references || references.length !== objective.supports.length)) {
+    return reject(`sandwiched-up needs ${objective.supports.length} reference states`);
+  }
+  let read: StoredLinearization;
   try {
-    state = matrixFromJson(certificate.linearizationState, 'certificate.linearizationState');
+    read = readStoredLinearization(face, objective, certificate);
   } catch (error) {
     return reject((error as Error).message);
   }
-  const d = problem.dimensionA * problem.dimensionB;
-  if (state.rows !== d || state.cols !== d) return reject(`linearization state must be ${d}x${d}`);
-  if (hermiticityDefect(state) > STATE_HERMITICITY_TOLERANCE) return reject('linearization state is not Hermitian');
-  const reduced = compressToFace(face, state);
-  if (!(eigh(reduced).values[0] > 0)) return reject('linearization state is not full rank on the feasible face');
-
-  const objective = createObjective(restricted, request);
-  if (objective.request.kind === 'sandwiched-up') {
-    const stored = certificate.referenceStates;
-    if (!stored || stored.length !== objective.supports.length) {
-      return reject(`sandwiched-up needs ${objective.supports.length} reference states`);
-    }
-    try {
-      for (const [c, support] of objective.supports.entries()) {
-        const blocks = referenceToSupport(support, matrixFromJson(stored[c], `certificate.referenceStates[${c}]`));
-        for (const block of blocks) {
-          if (!(eigh(block).values[0] > 0)) return reject('reference state τ is not full rank on every key block');
-        }
-      }
-    } catch (error) {
-      return reject((error as Error).message);
+  if (!(eigvalsh(read.state)[0] > 0)) return reject('linearization state is not full rank on the feasible face');
+  for (const blocks of read.reference ?? []) {
+    for (const block of blocks) {
+      if (!(eigvalsh(block)[0] > 0)) return reject('reference state τ is not full rank on every key block');
     }
   }
-  const breakdown = certificateBreakdown(face, restricted, objective, certificate);
+  const breakdown = certificateBreakdown(face, restricted, objective, certificate, read);
   if (!Number.isFinite(breakdown.lowerBound)) return reject('recomputed bound is not finite');
   if (breakdown.lowerBound < claimed) {
     return reject(`recomputed bound ${breakdown.lowerBound} is below the claimed ${claimed}`, breakdown.lowerBound);
@@ -133,7 +117,7 @@ export function verifyInfeasibility(
     if (yUpper !== 0) bound -= yUpper * c.upper;
     scale += (yLower + yUpper) * (frobeniusNorm(c.operator) + Math.abs(c.lower) + Math.abs(c.upper));
   });
-  const largest = eigh(combination).values[face.dimension - 1];
+  const largest = eigvalsh(combination)[face.dimension - 1];
   const violation = bound - largest;
   const rounding = FARKAS_ROUNDING_FACTOR * face.dimension * 2 ** -53 * scale;
   if (!(violation > rounding)) {

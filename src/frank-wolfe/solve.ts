@@ -1,3 +1,4 @@
+import { Matrix, solve as solveLinear } from 'ml-matrix';
 import {
   add,
   addScaledInPlace,
@@ -11,7 +12,7 @@ import {
   trace,
   traceProductReal,
 } from '../linear-algebra/complex-matrix.js';
-import { eigh, eigvalsh } from '../linear-algebra/eigen.js';
+import { eigh, eigvalsh, type HermitianEigen } from '../linear-algebra/eigen.js';
 import { numericalRank } from '../linear-algebra/support.js';
 import {
   createObjective,
@@ -24,7 +25,7 @@ import { LinearOracle, type OracleResult } from '../oracle/index.js';
 import { compressToFace, feasibleFace, liftFromFace, restrictToFace, type FeasibleFace } from '../problem/feasible-face.js';
 import { inputHash } from '../problem/hash.js';
 import { matrixToJson } from '../problem/json.js';
-import type { EntropyRequest, Problem } from '../problem/model.js';
+import type { EntropyRequest, LinearConstraint, Problem } from '../problem/model.js';
 import {
   certificateBreakdown,
   linearizationBound,
@@ -33,7 +34,6 @@ import {
 } from '../certificate/bound.js';
 import { SOLVER_VERSION } from '../certificate/version.js';
 import { ActiveSet } from './active-set.js';
-import { Matrix, solve as solveLinear } from 'ml-matrix';
 import { derivativeLineSearch } from './line-search.js';
 import { TangentQuasiNewton } from './quasi-newton.js';
 import { resolveSettings, TUNING } from './settings.js';
@@ -67,7 +67,7 @@ function restoreMultipliers(
 /** Largest violation of Tr ρ = 1, ρ ⪰ 0 and every constraint, on the original problem. */
 export function maxConstraintViolation(problem: Problem, rho: ComplexMatrix): number {
   let worst = Math.abs(trace(rho).re - 1);
-  worst = Math.max(worst, -eigh(rho).values[0]);
+  worst = Math.max(worst, -eigvalsh(rho)[0]);
   for (const c of problem.constraints) {
     const v = traceProductReal(c.operator, rho);
     worst = Math.max(worst, c.lower - v, v - c.upper);
@@ -168,12 +168,26 @@ export function solve(
   let progressLower = -Infinity;
   let progressIteration = 0;
 
+  // The iterate's eigendecomposition serves the step limits and the certification; computed once per iterate.
+  let eigenOf: { state: ComplexMatrix; eigen: HermitianEigen } | null = null;
+  const iterateEigen = (): HermitianEigen => {
+    if (eigenOf?.state !== x) eigenOf = { state: x, eigen: eigh(x) };
+    return eigenOf.eigen;
+  };
   const consider = (
     state: ComplexMatrix,
     stateEvaluation: ObjectiveEvaluation,
     y: { lower: Float64Array; upper: Float64Array },
   ) => {
-    const breakdown = linearizationBound(restricted, objective, state, y.lower, y.upper, stateEvaluation.reference);
+    const breakdown = linearizationBound(
+      restricted,
+      objective,
+      state,
+      y.lower,
+      y.upper,
+      stateEvaluation.reference,
+      stateEvaluation,
+    );
     if (Number.isFinite(breakdown.lowerBound) && (best === null || breakdown.lowerBound > best.breakdown.lowerBound)) {
       best = {
         breakdown,
@@ -184,8 +198,6 @@ export function solve(
       };
     }
   };
-  // Near the boundary of the cone the margin grows like 1/λ_min(ρ'); linearizing at (1−ε)x + ε·x₀ trades a
-  // linearization loss of order ε against it, so a few ε are tried and the best bound is kept.
   const certifyAt = (state: ComplexMatrix) => {
     const e = evaluateSafely(objective, state);
     if (!e) return;
@@ -200,7 +212,7 @@ export function solve(
   // the interior point, and x with its small eigenvalues lifted to a level μ (trace and feasibility not needed).
   const certify = (y: { lower: Float64Array; upper: Float64Array }) => {
     consider(x, evaluation, y);
-    const { values, vectors } = eigh(x);
+    const { values, vectors } = iterateEigen();
     if (values[0] >= TUNING.wellConditionedEigenvalue) return;
     for (const share of TUNING.certificateMixtures) {
       if (share <= values[0]) continue;
@@ -217,7 +229,6 @@ export function solve(
 
   const qn = new TangentQuasiNewton(TUNING.quasiNewtonMemory);
   let previous: { state: ComplexMatrix; tangentGradient: ComplexMatrix } | null = null;
-  let quasiNewtonSteps = 0;
   /** Exact line search along x + t·d on [0, maxStep]; null when F does not decrease. */
   const lineStep = (direction: ComplexMatrix, slope: number, maxStep: number) => {
     const trials = new Map<number, ObjectiveEvaluation>();
@@ -341,7 +352,7 @@ export function solve(
       if (slope < 0) {
         const maxStep = Math.min(
           1,
-          stepToEigenvalueFloor(x, direction, TUNING.eigenvalueFloor),
+          stepToEigenvalueFloor(iterateEigen(), direction, TUNING.eigenvalueFloor),
           stepToIntervalBounds(restricted, x, direction),
         );
         // A step cut short by the cone or an interval says the optimum sits on a face: Frank–Wolfe handles that.
@@ -351,7 +362,6 @@ export function solve(
           x = moved.point;
           evaluation = moved.evaluation;
           atoms.reset(x);
-          quasiNewtonSteps++;
           quasiNewtonRun++;
           continue;
         }
@@ -373,7 +383,7 @@ export function solve(
     const direction = subtract(toward, away.point);
     const slope = traceProductReal(gradient, direction);
     if (!(slope < 0)) continue;
-    const maxStep = Math.min(away.weight, stepToEigenvalueFloor(x, direction, TUNING.eigenvalueFloor));
+    const maxStep = Math.min(away.weight, stepToEigenvalueFloor(iterateEigen(), direction, TUNING.eigenvalueFloor));
     const moved = lineStep(direction, slope, maxStep);
     if (!moved) continue;
     atoms.pairwiseStep(away.index, toward, moved.step);
@@ -441,8 +451,8 @@ export function solve(
  * The largest t with λ_min(x + t·d) ≥ floor. Iterates kept this far inside the cone have gradients that
  * rounding cannot corrupt (an eigenvalue near u·‖x‖ has no correct digits, and neither would log of it).
  */
-export function stepToEigenvalueFloor(x: ComplexMatrix, direction: ComplexMatrix, floor: number): number {
-  const { values, vectors } = eigh(x);
+export function stepToEigenvalueFloor(iterate: HermitianEigen, direction: ComplexMatrix, floor: number): number {
+  const { values, vectors } = iterate;
   const n = values.length;
   if (!(values[0] > 0)) return 0;
   const inverseRoot = new Float64Array(n);
@@ -483,15 +493,16 @@ function evaluateSafely(objective: Objective, state: ComplexMatrix): (ObjectiveE
 
 /** The largest t keeping every interval constraint lower ≤ Tr(Γ(x + t·d)) ≤ upper (equalities are kept by d). */
 export function stepToIntervalBounds(problem: Problem, x: ComplexMatrix, direction: ComplexMatrix): number {
-  let step = Infinity;
-  for (const c of problem.constraints) {
-    if (c.lower === c.upper) continue;
-    const rate = traceProductReal(c.operator, direction);
-    const value = traceProductReal(c.operator, x);
-    if (rate > 0 && Number.isFinite(c.upper)) step = Math.min(step, Math.max(0, (c.upper - value) / rate));
-    if (rate < 0 && Number.isFinite(c.lower)) step = Math.min(step, Math.max(0, (c.lower - value) / rate));
-  }
-  return step;
+  return problem.constraints.reduce((step, c) => Math.min(step, intervalRoom(c, x, direction)), Infinity);
+}
+
+/** The largest t with lower ≤ Tr(Γ(x + t·d)) ≤ upper for one interval constraint (Infinity for an equality). */
+function intervalRoom(c: LinearConstraint, x: ComplexMatrix, direction: ComplexMatrix): number {
+  if (c.lower === c.upper) return Infinity;
+  const rate = traceProductReal(c.operator, direction);
+  if (rate > 0 && Number.isFinite(c.upper)) return Math.max(0, (c.upper - traceProductReal(c.operator, x)) / rate);
+  if (rate < 0 && Number.isFinite(c.lower)) return Math.max(0, (c.lower - traceProductReal(c.operator, x)) / rate);
+  return Infinity;
 }
 
 /**
@@ -512,8 +523,7 @@ export function alongActiveIntervals(
     problem.constraints.forEach((c, i) => {
       const tangent = tangents[i];
       if (tangent === null || active.includes(tangent)) return;
-      const single: Problem = { ...problem, constraints: [c] };
-      if (stepToIntervalBounds(single, x, d) < shortestStep) {
+      if (intervalRoom(c, x, d) < shortestStep) {
         active.push(tangent);
         added = true;
       }
@@ -547,7 +557,7 @@ function startingPoint(
   for (const share of [1e-3, 1e-2, 0.1, 0.5]) {
     const candidate = scale(projected, 1 - share);
     addScaledInPlace(candidate, interior, share);
-    if (eigh(candidate).values[0] > 0 && maxConstraintViolation(restricted, candidate) === 0) return candidate;
+    if (eigvalsh(candidate)[0] > 0 && maxConstraintViolation(restricted, candidate) === 0) return candidate;
   }
   return interior;
 }

@@ -33,6 +33,11 @@ export interface BranchSupport {
   outputRange: ComplexMatrix | null;
 }
 
+/** A branch whose key map has a single block: no key is produced there (every kind has an exact term for it). */
+export function isKeyless(support: BranchSupport): boolean {
+  return support.blockSizes.length === 1;
+}
+
 /** Σ_j K_j·K_j†: the output of the identity operator, whose range is the support at every full-rank input. */
 export function outputOfIdentity(kraus: readonly ComplexMatrix[]): ComplexMatrix {
   const out = ComplexMatrix.zeros(kraus[0].rows);

@@ -1,6 +1,6 @@
 import { add, ComplexMatrix, traceProductReal } from '../linear-algebra/complex-matrix.js';
 import { spectralFunction } from '../linear-algebra/matrix-functions.js';
-import type { BranchSupport } from './branch-supports.js';
+import { isKeyless, type BranchSupport } from './branch-supports.js';
 import {
   blockFrechet,
   blockSpectralFunction,
@@ -25,7 +25,7 @@ export function petzDownQuasiEntropy(
   withGradient: boolean,
 ): { value: number; gradient: ComplexMatrix | null } {
   // No key in this branch: Q̄(X‖X) = Tr X exactly, gradient 1.
-  if (support.blockSizes.length === 1) return traceTerm(x, withGradient);
+  if (isKeyless(support)) return traceTerm(x, withGradient);
   const beta = 2 - alpha;
   const { blockSizes: sizes, blockOffsets: offsets, outputRange: range } = support;
   const blockEigs = eigenBlocks(pinchedBlocks(x, sizes, offsets));

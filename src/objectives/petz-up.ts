@@ -1,5 +1,5 @@
 import { add, adjoint, ComplexMatrix, multiply } from '../linear-algebra/complex-matrix.js';
-import type { BranchSupport } from './branch-supports.js';
+import { isKeyless, type BranchSupport } from './branch-supports.js';
 import {
   blockFrechet,
   blockSpectralFunction,
@@ -22,7 +22,7 @@ export function petzUpQuasiEntropy(
 ): { value: number; gradient: ComplexMatrix | null } {
   // No key in this branch (one key block): Z(X) = X and Q̃_γ(X‖X) = Tr X exactly, with gradient 1; the general
   // formula would square X's conditioning (M = X²) for nothing.
-  if (support.blockSizes.length === 1) return traceTerm(x, withGradient);
+  if (isKeyless(support)) return traceTerm(x, withGradient);
   const gamma = 1 / alpha;
   const s = (1 - gamma) / (2 * gamma);
   const { blockSizes: sizes, blockOffsets: offsets } = support;

@@ -1,6 +1,6 @@
 import { add, adjoint, ComplexMatrix, multiply, scale, traceProductReal } from '../linear-algebra/complex-matrix.js';
-import { eigh } from '../linear-algebra/eigen.js';
-import type { BranchSupport } from './branch-supports.js';
+import { eigvalsh } from '../linear-algebra/eigen.js';
+import { isKeyless, type BranchSupport } from './branch-supports.js';
 import {
   blockFrechet,
   blockSpectralFunction,
@@ -51,11 +51,6 @@ export function sandwichedBranchTerm(
     gradientReference: pinchedBlocks(gradientFull, sizes, offsets),
     pinchedPower: pinchedBlocks(powerOfM, sizes, offsets),
   };
-}
-
-/** A branch whose key map has a single block: no key is produced there. */
-export function isKeyless(support: BranchSupport): boolean {
-  return support.blockSizes.length === 1;
 }
 
 /** Q = t^{1−β}·(Tr X)^β with ∂_X Q = β·t^{1−β}(Tr X)^{β−1}·1 and ∂_t Q = (1−β)·t^{−β}(Tr X)^β. */
@@ -118,7 +113,7 @@ export function referenceGradientSummary(
   terms.forEach((term, c) => {
     term.gradientReference.forEach((g, k) => {
       innerProduct += traceProductReal(g, reference[c][k]);
-      const values = eigh(g).values;
+      const values = eigvalsh(g);
       largestEigenvalue = Math.max(largestEigenvalue, values[values.length - 1]);
       smallestEigenvalue = Math.min(smallestEigenvalue, values[0]);
     });

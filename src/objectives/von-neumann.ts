@@ -1,6 +1,6 @@
 import { ComplexMatrix, subtract } from '../linear-algebra/complex-matrix.js';
 import { spectralFunction } from '../linear-algebra/matrix-functions.js';
-import type { BranchSupport } from './branch-supports.js';
+import { isKeyless, type BranchSupport } from './branch-supports.js';
 import {
   blockSpectralFunction,
   compress,
@@ -22,7 +22,7 @@ export function relativeEntropyToPinched(
   withGradient: boolean,
 ): { value: number; gradient: ComplexMatrix | null } {
   // No key in this branch: D(X‖X) = 0 exactly, and so is its gradient.
-  if (support.blockSizes.length === 1) {
+  if (isKeyless(support)) {
     return { value: 0, gradient: withGradient ? ComplexMatrix.zeros(support.dimension) : null };
   }
   const blockEigs = eigenBlocks(pinchedBlocks(x, support.blockSizes, support.blockOffsets));
