@@ -3,7 +3,7 @@
 import { availableParallelism, loadavg } from 'node:os';
 import { pino } from 'pino';
 import { buildExample } from '../protocols/index.js';
-import { closeClients, renyiBoundClient, solveBatchRemote, type RemoteBatchItem } from '../service/client.js';
+import { closeClients, connect, solveBatchRemote, type RemoteBatchItem } from '../client/client.js';
 import type { ParameterGrid } from '../service/generated/renyibound/v1/ParameterGrid.js';
 import type { SolveRequest } from '../service/generated/renyibound/v1/SolveRequest.js';
 import { RenyiBoundServer } from '../service/server.js';
@@ -35,9 +35,10 @@ async function quietServer(workers: number): Promise<RenyiBoundServer> {
   return RenyiBoundServer.start({ port: 0, workers, cacheDirectory: false, logger: pino({ level: 'silent' }) });
 }
 
-function unary(address: string, request: SolveRequest): Promise<void> {
+async function unary(address: string, request: SolveRequest): Promise<void> {
+  const { client } = await connect(address);
   return new Promise((resolve, reject) => {
-    renyiBoundClient(address).Solve(request, (error) => (error ? reject(error) : resolve()));
+    client.Solve(request, (error) => (error ? reject(error) : resolve()));
   });
 }
 

@@ -10,6 +10,8 @@ import { register as registerServe } from './serve.js';
 import { register as registerSweep } from './sweep.js';
 import { register as registerHealth } from './health.js';
 import { register as registerDemo } from './demo.js';
+import { register as registerAssemble } from './assemble.js';
+import { register as registerCache } from './cache.js';
 
 const program = new Command('renyi-bound')
   .description('certified lower bounds on single-round conditional Rényi entropies for QKD security proofs')
@@ -23,5 +25,7 @@ registerServe(program);
 registerSweep(program);
 registerHealth(program);
 registerDemo(program);
+registerAssemble(program);
+registerCache(program);
 
 await program.parseAsync(process.argv);

@@ -4,7 +4,8 @@ import { DEFAULT_HOST, DEFAULT_PORT, RenyiBoundServer } from '../service/server.
 import { defaultCacheDirectory } from '../cache/sqlite.js';
 import { ValidationError } from '../problem/errors.js';
 import { withInputErrors } from './io.js';
-import { integerOption, MAX_WORKERS } from './service-options.js';
+import { integerOption, MAX_WORKERS, messageBytesOption } from './service-options.js';
+import { DEFAULT_MAX_MESSAGE_BYTES, mebibytes } from '../service/message-size.js';
 
 /** Largest queue accepted on the command line. */
 const MAX_QUEUE_LIMIT = 1_000_000;
@@ -16,7 +17,9 @@ interface ServeOptions {
   cacheDir?: string;
   diskCache: boolean;
   redisUrl?: string;
+  redisRequired?: boolean;
   queueLimit?: string;
+  maxMessageMib?: string;
 }
 
 export function register(program: Command): void {
@@ -29,6 +32,8 @@ export function register(program: Command): void {
     .option('--cache-dir <dir>', `directory of the SQLite result cache (default: ${defaultCacheDirectory()})`)
     .option('--no-disk-cache', 'keep results in memory only (no SQLite file)')
     .option('--redis-url <url>', 'Redis shared between replicas, e.g. redis://127.0.0.1:6379')
+    .option('--redis-required', 'refuse to start while Redis cannot be reached (default: start with the local cache, join Redis when it answers)')
+    .option('--max-message-mib <n>', `largest request accepted, in MiB (default ${mebibytes(DEFAULT_MAX_MESSAGE_BYTES)}: 64 dense complex matrices of the maximum dimension)`)
     .option('--queue-limit <n>', 'solves allowed to wait for a thread before RESOURCE_EXHAUSTED (default: 16 per thread)')
     .action(
       withInputErrors(async (options: ServeOptions) => {
@@ -39,6 +44,8 @@ export function register(program: Command): void {
           queueLimit: integerOption(options.queueLimit, '--queue-limit', 0, MAX_QUEUE_LIMIT),
           cacheDirectory: options.diskCache ? options.cacheDir : (false as const),
           redisUrl: options.redisUrl,
+          redisRequired: options.redisRequired === true,
+          maxMessageBytes: messageBytesOption(options.maxMessageMib),
         };
         let server: RenyiBoundServer;
         try {

@@ -9,11 +9,13 @@ import { MemoryCacheLayer, DEFAULT_MEMORY_ENTRIES } from '../cache/memory.js';
 import type { CacheLayer } from '../cache/layer.js';
 import { RedisCacheLayer } from '../cache/redis.js';
 import { ResultCache } from '../cache/result-cache.js';
-import { defaultCacheDirectory, SqliteCacheLayer } from '../cache/sqlite.js';
+import { defaultCacheDirectory, SqliteCacheLayer, type SqliteOpenEvent } from '../cache/sqlite.js';
 import { verifyInfeasibility, verifyResult } from '../certificate/verify.js';
 import { ValidationError } from '../problem/errors.js';
 import { expandGrid, expandRequestList, runBatch, solveInputFromWire, type BatchPoint } from './batch.js';
 import { toServiceError } from './errors.js';
+import { guardRequests, malformedReason } from './guarded-service.js';
+import { DEFAULT_MAX_MESSAGE_BYTES, TRANSPORT_CAP_FACTOR } from './message-size.js';
 import type { BatchItem } from './generated/renyibound/v1/BatchItem.js';
 import type { BatchRequest__Output } from './generated/renyibound/v1/BatchRequest.js';
 import type { RenyiBoundHandlers } from './generated/renyibound/v1/RenyiBound.js';
@@ -41,6 +43,10 @@ export interface ServerOptions {
   cacheDirectory?: string | false;
   /** Redis shared between replicas. */
   redisUrl?: string;
+  /** Refuse to start while Redis cannot be reached (default: start with the local tiers and join Redis later). */
+  redisRequired?: boolean;
+  /** Largest request accepted; larger ones get INVALID_ARGUMENT naming the limit (default: DEFAULT_MAX_MESSAGE_BYTES). */
+  maxMessageBytes?: number;
   /** Results kept in the in-memory tier. */
   memoryEntries?: number;
   logger?: Logger;
@@ -62,6 +68,24 @@ const FORCE_SHUTDOWN_AFTER_CANCEL_MS = 15_000;
 
 function bindAddress(host: string, port: number): string {
   return host.includes(':') && !host.startsWith('[') ? `[${host}]:${port}` : `${host}:${port}`;
+}
+
+/**
+ * Every handler first refuses a request the guard could not decode (garbage bytes, over the size limit) with
+ * INVALID_ARGUMENT, so that no handler ever sees it.
+ */
+function refuseMalformed<H extends object>(handlers: H): H {
+  const guarded: Record<string, unknown> = {};
+  for (const [name, handler] of Object.entries(handlers) as [string, (call: grpc.ServerUnaryCall<unknown, unknown>, callback?: grpc.sendUnaryData<unknown>) => void][]) {
+    guarded[name] = (call: grpc.ServerUnaryCall<unknown, unknown>, callback?: grpc.sendUnaryData<unknown>) => {
+      const reason = malformedReason(call.request);
+      if (reason === undefined) return handler(call, callback);
+      const status = toServiceError(new ValidationError('request', reason));
+      if (callback) callback(status);
+      else call.emit('error', status);
+    };
+  }
+  return guarded as H;
 }
 
 export class RenyiBoundServer {
@@ -99,12 +123,19 @@ export class RenyiBoundServer {
     const logger = options.logger ?? pino({ name: 'renyi-bound' });
     const layers: CacheLayer[] = [new MemoryCacheLayer(options.memoryEntries ?? DEFAULT_MEMORY_ENTRIES)];
     if (options.cacheDirectory !== false) {
-      layers.push(SqliteCacheLayer.inDirectory(options.cacheDirectory ?? defaultCacheDirectory()));
+      layers.push(SqliteCacheLayer.inDirectory(options.cacheDirectory ?? defaultCacheDirectory(), (event: SqliteOpenEvent) => {
+        if (event.kind === 'created') logger.info({ event: 'cache-file', path: event.path }, 'created the result cache file');
+        else logger.warn({ event: 'cache-file', ...event }, 'the result cache file was damaged: moved aside and rebuilt empty');
+      }));
     }
     if (options.redisUrl) {
       layers.push(
         await RedisCacheLayer.connect(options.redisUrl, {
-          onConnectionError: (error) => logger.warn({ event: 'redis', reason: error.message }, 'redis connection error'),
+          required: options.redisRequired,
+          onEvent: (event) => {
+            if (event.kind === 'available') logger.info({ event: 'redis', ...event }, 'redis reachable: the shared cache is in use');
+            else logger.warn({ event: 'redis', ...event }, 'redis unreachable: going on with the local cache tiers');
+          },
         }),
       );
     }
@@ -115,7 +146,12 @@ export class RenyiBoundServer {
       maxAttempts: options.workerAttempts,
     });
     const coordinator = new SolveCoordinator(pool, cache, logger);
-    const grpcServer = new grpc.Server();
+    const maxMessageBytes = options.maxMessageBytes ?? DEFAULT_MAX_MESSAGE_BYTES;
+    // Up to the cap the transport reads a message, and guardRequests refuses one above the limit by name.
+    const grpcServer = new grpc.Server({
+      'grpc.max_receive_message_length': maxMessageBytes * TRANSPORT_CAP_FACTOR,
+      'grpc.max_send_message_length': maxMessageBytes * TRANSPORT_CAP_FACTOR,
+    });
     const host = options.host ?? DEFAULT_HOST;
     let port: number;
     try {
@@ -130,7 +166,7 @@ export class RenyiBoundServer {
       throw error;
     }
     const server = new RenyiBoundServer(grpcServer, pool, cache, coordinator, logger, host, port, options.drainTimeoutMs ?? DEFAULT_DRAIN_TIMEOUT_MS);
-    grpcServer.addService(loadServicePackage().renyibound.v1.RenyiBound.service, server.handlers());
+    grpcServer.addService(guardRequests(loadServicePackage().renyibound.v1.RenyiBound.service, maxMessageBytes), server.handlers());
     server.health.addToServer(grpcServer);
     // Reflection lists the health service too, so tools like grpcurl can discover both.
     new ReflectionService({ ...loadServiceDefinition(), ...protoLoader.loadSync(healthProtoPath, PROTO_LOADER_OPTIONS) }).addToServer(grpcServer);
@@ -167,11 +203,12 @@ export class RenyiBoundServer {
   }
 
   private handlers(): RenyiBoundHandlers {
-    return {
+    const handlers: RenyiBoundHandlers = {
       Solve: (call, callback) => void this.solve(call, callback),
       SolveBatch: (call) => void this.solveBatch(call),
       Verify: (call, callback) => this.verify(call, callback),
     };
+    return refuseMalformed(handlers);
   }
 
   private async solve(

@@ -10,7 +10,7 @@ import { register as registerHealth } from '../../src/cli/health.js';
 import { register as registerSweep } from '../../src/cli/sweep.js';
 import { RenyiBoundServer } from '../../src/service/server.js';
 import { packageRoot } from '../../src/problem/proto-options.js';
-import { solveRemote } from '../../src/service/client.js';
+import { solveRemote } from '../../src/client/client.js';
 import { slowProblem, startTestServer, type TestServer } from './harness.js';
 
 const root = packageRoot();
@@ -104,10 +104,10 @@ describe('renyi-bound serve', () => {
     expect(output).toMatch(/"event":"shutdown"/);
   }, 60_000);
 
-  it('fails to start with the Redis URL in the message when Redis cannot be reached', async () => {
-    await expect(RenyiBoundServer.start({ port: 0, workers: 1, cacheDirectory: false, redisUrl: 'redis://127.0.0.1:1' })).rejects.toThrow(
-      /cannot reach Redis at redis:\/\/127\.0\.0\.1:1/,
-    );
+  it('with --redis-required refuses to start, naming the Redis URL, when Redis cannot be reached', async () => {
+    await expect(
+      RenyiBoundServer.start({ port: 0, workers: 1, cacheDirectory: false, redisUrl: 'redis://127.0.0.1:1', redisRequired: true }),
+    ).rejects.toThrow(/cannot reach Redis at redis:\/\/127\.0\.0\.1:1/);
   });
 });
 
