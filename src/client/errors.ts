@@ -56,7 +56,7 @@ export function isReplicaFailure(error: unknown): boolean {
 }
 
 /** A short, human reason for a transport failure: "unreachable (connect ECONNREFUSED 127.0.0.1:1)". */
-function transportReason(error: RemoteCallError): string {
+export function transportReason(error: RemoteCallError): string {
   const details = error.details.replace(/^No connection established\. Last error: /, '').replace(/\. Resolution note: ?$/, '');
   switch (error.code) {
     case grpc.status.UNAVAILABLE:

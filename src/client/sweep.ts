@@ -1,7 +1,8 @@
 // A parameter sweep on the client: read a grid file, expand it into points, spread the points over the replicas
 // behind --server (or an embedded server) a bounded number at a time, retry a point whose replica fails on
 // another one, and keep exactly one result per point.
-import { pino, type Logger } from 'pino';
+import * as grpc from '@grpc/grpc-js';
+import { pino } from 'pino';
 import { DEFAULT_SETTINGS } from '../frank-wolfe/settings.js';
 import { ValidationError } from '../problem/errors.js';
 import { JsonMessage } from '../problem/json.js';
@@ -12,8 +13,17 @@ import type { ParameterGrid__Output } from '../service/generated/renyibound/v1/P
 import { prepareSolve, withoutProblem } from '../service/prepare.js';
 import { RenyiBoundServer, type ServerOptions } from '../service/server.js';
 import { entropyKindToWire } from '../service/wire.js';
-import { closeClients, connect, solveRequestToWire, solveWire, type RemoteBatchItem } from './client.js';
-import { isReplicaFailure } from './errors.js';
+import { checkHealthOf, closeClients, connect, solveRequestToWire, solveWire, type RemoteBatchItem } from './client.js';
+import { isReplicaFailure, RemoteCallError, transportReason } from './errors.js';
+
+/** How long the sweep waits for a first answer from any replica before saying none is reachable. */
+const REACHABLE_CHECK_MS = 5000;
+
+/** Throws UNAVAILABLE (naming the reason) when no replica behind `address` answers at all. */
+async function ensureReachable(address: string): Promise<void> {
+  const answer = await checkHealthOf(address, '', { deadlineMs: REACHABLE_CHECK_MS });
+  if (answer.status === 'UNREACHABLE') throw new RemoteCallError(grpc.status.UNAVAILABLE, answer.reason ?? 'no answer', undefined);
+}
 
 const GRID_FIELDS = ['example', 'baseParameters', 'axes', 'entropies', 'settings'] as const;
 const AXIS_FIELDS = ['name', 'values'] as const;
@@ -189,6 +199,7 @@ export async function runSweep(grid: ParameterGrid, options: SweepOptions = {}):
   const deadlineMs = options.pointDeadlineMs ?? timeLimitMs + DEADLINE_SLACK_MS;
   try {
     replicas = (await connect(address)).replicas;
+    await ensureReachable(address);
     await runBatch(points, {
       // Validation and hashing run here, once per point; the server checks again (it trusts no client).
       prepare: async (input) => withoutProblem(prepareSolve(input)),
@@ -207,7 +218,7 @@ export async function runSweep(grid: ParameterGrid, options: SweepOptions = {}):
         return solveWire(address, message, { deadlineMs, attempts: options.attempts ?? DEFAULT_POINT_ATTEMPTS, signal: stop.signal }, () => retries++).catch(
           (error: unknown) => {
             if (isReplicaFailure(error) && !stop.signal.aborted) {
-              lost = { reason: (error as Error).message, unfinished: 0 };
+              lost = { reason: transportReason(error as RemoteCallError), unfinished: 0 };
               stop.abort();
             }
             throw error;

@@ -58,11 +58,8 @@ describe('a sweep over three replicas', () => {
     expectEveryPointVerified(grid, outcome.items, GAP);
   }, 60_000);
 
-  it('stops with the reason when no replica answers, keeping nothing it did not finish', async () => {
-    const outcome = await runSweep(bb84Grid(4, 0.04), { server: '127.0.0.1:1', attempts: 2 });
-    expect(outcome.items).toEqual([]);
-    expect(outcome.lost?.reason).toMatch(/UNAVAILABLE/);
-    expect(outcome.lost?.unfinished).toBe(4);
+  it('refuses to start when no replica answers, saying why', async () => {
+    await expect(runSweep(bb84Grid(4, 0.04), { server: '127.0.0.1:1' })).rejects.toThrow(/UNAVAILABLE: .*ECONNREFUSED/);
   }, 30_000);
 });
 
