@@ -11,6 +11,7 @@ import { register as registerSweep } from '../../src/cli/sweep.js';
 import { RenyiBoundServer } from '../../src/service/server.js';
 import { packageRoot } from '../../src/problem/proto-options.js';
 import { solveRemote } from '../../src/client/client.js';
+import { buildExample } from '../../src/protocols/index.js';
 import { slowProblem, startTestServer, type TestServer } from './harness.js';
 
 const root = packageRoot();
@@ -90,6 +91,8 @@ describe('renyi-bound serve', () => {
       child.once('exit', () => reject(new Error(`serve exited early: ${output}`)));
     });
     expect(address).toMatch(/^127\.0\.0\.1:\d+$/);
+    // A first call opens the connection, so that the slow solve reaches the server before the signal does.
+    await solveRemote(address, { problem: buildExample('six-state'), entropy: 'von-neumann' });
     const solving = solveRemote(address, {
       problem: slowProblem(0.99),
       entropy: 'von-neumann',
