@@ -4,6 +4,7 @@
 // its own. Both stop by themselves.
 import { spawn, type ChildProcess } from 'node:child_process';
 import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { createServer } from 'node:net';
 import { availableParallelism, loadavg, tmpdir } from 'node:os';
 import { join } from 'node:path';
 import * as grpc from '@grpc/grpc-js';
@@ -232,6 +233,58 @@ async function replicaThroughput(): Promise<BenchTable> {
   };
 }
 
+/** Fresh solves timed with Redis up, then after it stops. */
+const REDIS_LOSS_SOLVES = 30;
+
+/** A private redis-server on a free port (the benchmark stops it), or undefined when none is installed. */
+async function privateRedis(): Promise<{ url: string; stop(): Promise<void> } | undefined> {
+  const port = await new Promise<number>((resolve) => {
+    const probe = createServer().listen(0, '127.0.0.1', () => {
+      const { port: free } = probe.address() as { port: number };
+      probe.close(() => resolve(free));
+    });
+  });
+  const child = spawn('redis-server', ['--port', String(port), '--bind', '127.0.0.1', '--save', '', '--appendonly', 'no'], { stdio: 'ignore' });
+  const started = await new Promise<boolean>((resolve) => {
+    child.once('error', () => resolve(false));
+    setTimeout(() => resolve(child.exitCode === null), 500);
+  });
+  if (!started) return undefined;
+  return {
+    url: `redis://127.0.0.1:${port}`,
+    stop: () => new Promise<void>((done) => (child.exitCode !== null ? done() : (child.once('exit', () => done()), child.kill('SIGTERM')))),
+  };
+}
+
+/** Wall time of fresh (uncached) unary solves on a server whose Redis is up, then stopped: the loss must not slow them. */
+async function redisLossLatency(): Promise<BenchTable> {
+  const title = 'Fresh bb84-entangled solves (von Neumann, gap 1e-6) on one server with Redis up, then with Redis stopped (client-side wall ms)';
+  const columns = ['Redis', 'solves', 'median ms', 'max ms'];
+  const redis = await privateRedis();
+  if (redis === undefined) return { title, columns, rows: [['redis-server not installed', 0, '', '']] };
+  const server = await serve(['--workers', '1', '--redis-url', redis.url]);
+  const client = ownClient(server.address);
+  const rows: (string | number)[][] = [];
+  try {
+    for (const state of ['up', 'stopped']) {
+      if (state === 'stopped') await redis.stop();
+      const times: number[] = [];
+      for (let i = 0; i < REDIS_LOSS_SOLVES; i++) {
+        const started = performance.now();
+        await call(client, bb84Request(0.02 + 1e-6 * i + (state === 'up' ? 0 : 0.01), 0.03));
+        times.push(performance.now() - started);
+      }
+      times.sort((a, b) => a - b);
+      rows.push([state, REDIS_LOSS_SOLVES, round(quantile(times, 0.5), 2), round(times[times.length - 1], 1)]);
+    }
+  } finally {
+    client.close();
+    await server.stop();
+    await redis.stop();
+  }
+  return { title, columns, rows };
+}
+
 export async function benchCluster(): Promise<BenchTable[]> {
-  return [await replicaThroughput(), await loadTest()];
+  return [await redisLossLatency(), await replicaThroughput(), await loadTest()];
 }
