@@ -16,6 +16,7 @@ import type { RenyiBoundClient } from '../service/generated/renyibound/v1/RenyiB
 import type { SolveRequest } from '../service/generated/renyibound/v1/SolveRequest.js';
 import { loadServicePackage } from '../service/proto.js';
 import type { BenchTable } from './inputs.js';
+import { quantile, round } from './service.js';
 
 /** The load test's shape, as the issue asks. */
 const LOAD_CLIENTS = 50;
@@ -34,18 +35,6 @@ const SWEEP_POINTS_X = 20;
 const SWEEP_POINTS_Z = 10;
 
 const cli = join(packageRoot(), 'dist', 'cli', 'main.js');
-
-function quantile(sorted: number[], q: number): number {
-  if (sorted.length === 0) return NaN;
-  const position = (sorted.length - 1) * q;
-  const low = Math.floor(position);
-  const high = Math.ceil(position);
-  return sorted[low] + (sorted[high] - sorted[low]) * (position - low);
-}
-
-function round(value: number, digits = 3): number {
-  return Number(value.toFixed(digits));
-}
 
 interface ServeProcess {
   child: ChildProcess;

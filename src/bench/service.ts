@@ -20,14 +20,15 @@ const CACHE_HIT_TARGET_MS = 2;
 const SPEEDUP_TARGET = 1.8;
 const WARM_START_TARGET = 3;
 
-function quantile(sorted: number[], q: number): number {
+/** Quantile of sorted values by linear interpolation. */
+export function quantile(sorted: number[], q: number): number {
   const position = (sorted.length - 1) * q;
   const low = Math.floor(position);
   const high = Math.ceil(position);
   return sorted[low] + (sorted[high] - sorted[low]) * (position - low);
 }
 
-function round(value: number, digits = 3): number {
+export function round(value: number, digits = 3): number {
   return Number(value.toFixed(digits));
 }
 

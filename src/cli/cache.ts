@@ -3,7 +3,24 @@ import { existsSync } from 'node:fs';
 import { join } from 'node:path';
 import { Command } from 'commander';
 import { defaultCacheDirectory, SQLITE_FILE_NAME } from '../cache/directory.js';
+import type { SqliteCacheLayer } from '../cache/sqlite.js';
 import { printJson, withInputErrors } from './io.js';
+
+/** The cache directory of the options, and its database file opened when it exists (closed after `use`). */
+async function withDatabase<T>(
+  options: { cacheDir?: string },
+  use: (directory: string, database: SqliteCacheLayer | undefined) => T,
+): Promise<T> {
+  const directory = options.cacheDir ?? defaultCacheDirectory();
+  const path = join(directory, SQLITE_FILE_NAME);
+  const { SqliteCacheLayer } = await import('../cache/sqlite.js');
+  const database = existsSync(path) ? new SqliteCacheLayer(path) : undefined;
+  try {
+    return use(directory, database);
+  } finally {
+    await database?.close();
+  }
+}
 
 export function register(program: Command): void {
   const cache = program.command('cache').description('the disk cache of results: where it is, its size, emptying it');
@@ -13,17 +30,15 @@ export function register(program: Command): void {
     .option('--cache-dir <dir>', `cache directory (default: ${defaultCacheDirectory()})`)
     .action(
       withInputErrors(async (options: { cacheDir?: string }) => {
-        const directory = options.cacheDir ?? defaultCacheDirectory();
-        const database = join(directory, SQLITE_FILE_NAME);
-        const { cacheFiles, SqliteCacheLayer } = await import('../cache/sqlite.js');
-        const files = cacheFiles(directory);
-        let results = 0;
-        if (existsSync(database)) {
-          const layer = new SqliteCacheLayer(database);
-          results = layer.count();
-          await layer.close();
-        }
-        printJson({ directory, database, exists: existsSync(database), results, bytes: files.reduce((n, f) => n + f.bytes, 0), files });
+        const { cacheFiles } = await import('../cache/sqlite.js');
+        const report = await withDatabase(options, (directory, database) => ({
+          directory,
+          database: join(directory, SQLITE_FILE_NAME),
+          exists: database !== undefined,
+          results: database?.count() ?? 0,
+        }));
+        const files = cacheFiles(report.directory);
+        printJson({ ...report, bytes: files.reduce((n, f) => n + f.bytes, 0), files });
       }),
     );
   cache
@@ -32,15 +47,8 @@ export function register(program: Command): void {
     .option('--cache-dir <dir>', `cache directory (default: ${defaultCacheDirectory()})`)
     .action(
       withInputErrors(async (options: { cacheDir?: string }) => {
-        const directory = options.cacheDir ?? defaultCacheDirectory();
-        const database = join(directory, SQLITE_FILE_NAME);
-        const { cacheFiles, removeSetAside, SqliteCacheLayer } = await import('../cache/sqlite.js');
-        let cleared = 0;
-        if (existsSync(database)) {
-          const layer = new SqliteCacheLayer(database);
-          cleared = layer.clear();
-          await layer.close();
-        }
+        const { cacheFiles, removeSetAside } = await import('../cache/sqlite.js');
+        const { directory, cleared } = await withDatabase(options, (directory, database) => ({ directory, cleared: database?.clear() ?? 0 }));
         const removed = removeSetAside(directory);
         printJson({ directory, cleared, removed, bytes: cacheFiles(directory).reduce((n, f) => n + f.bytes, 0) });
       }),

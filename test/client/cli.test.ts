@@ -4,8 +4,7 @@
 import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { Command } from 'commander';
-import { afterAll, afterEach, beforeAll, describe, expect, it, vi } from 'vitest';
+import { afterAll, afterEach, beforeAll, describe, expect, it } from 'vitest';
 import { register as registerAssemble } from '../../src/cli/assemble.js';
 import { register as registerCache } from '../../src/cli/cache.js';
 import { register as registerHealth } from '../../src/cli/health.js';
@@ -13,28 +12,15 @@ import { register as registerSolve } from '../../src/cli/solve.js';
 import { register as registerSweep } from '../../src/cli/sweep.js';
 import { closeClients } from '../../src/client/client.js';
 import { buildExample } from '../../src/protocols/index.js';
-import { startTestServer, type TestServer } from '../service/harness.js';
+import { runRegistered, startTestServer, type TestServer } from '../service/harness.js';
 import { startReplica } from '../service/replica-process.js';
 
-/** Runs commands through their register() in this process, capturing output and exit code. */
 async function run(args: string[]): Promise<{ status: number; stdout: string; stderr: string }> {
-  const program = new Command('renyi-bound').exitOverride();
-  for (const register of [registerAssemble, registerCache, registerHealth, registerSolve, registerSweep]) register(program);
-  let stdout = '';
-  let stderr = '';
-  const out = vi.spyOn(process.stdout, 'write').mockImplementation((chunk) => ((stdout += String(chunk)), true));
-  const err = vi.spyOn(process.stderr, 'write').mockImplementation((chunk) => ((stderr += String(chunk)), true));
-  process.exitCode = undefined;
   try {
-    await program.parseAsync(args, { from: 'user' });
+    return await runRegistered([registerAssemble, registerCache, registerHealth, registerSolve, registerSweep], args);
   } finally {
-    out.mockRestore();
-    err.mockRestore();
     closeClients();
   }
-  const status = Number(process.exitCode ?? 0);
-  process.exitCode = undefined;
-  return { status, stdout, stderr };
 }
 
 afterEach(() => {
