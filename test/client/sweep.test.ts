@@ -2,11 +2,14 @@
 import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
+import * as grpc from '@grpc/grpc-js';
+import { HealthImplementation } from 'grpc-health-check';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { assembleFromCache } from '../../src/client/assemble.js';
 import { sweepCsv } from '../../src/client/report.js';
 import { gridPoints, runSweep } from '../../src/client/sweep.js';
 import type { ParameterGrid } from '../../src/service/generated/renyibound/v1/ParameterGrid.js';
+import { loadServicePackage } from '../../src/service/proto.js';
 import { startTestServer, type TestServer } from '../service/harness.js';
 import { expectCsvInGridOrder, expectEveryPointVerified } from './helpers.js';
 
@@ -48,6 +51,34 @@ describe('a sweep over three replicas', () => {
     expect(handled.reduce((a, b) => a + b, 0)).toBe(30);
     for (const count of handled) expect(count).toBeGreaterThan(0);
     expectCsvInGridOrder(sweepCsv(outcome.items, ['qber-x']), 30);
+  }, 60_000);
+
+  it('sends a point whose replica answers UNAVAILABLE to another replica: every point still answered once', async () => {
+    // A replica that is up (its health says SERVING) but fails every solve, as one going away would.
+    const failing = new grpc.Server();
+    let refused = 0;
+    failing.addService(loadServicePackage().renyibound.v1.RenyiBound.service, {
+      Solve: (_call: unknown, callback: grpc.sendUnaryData<unknown>) => {
+        refused++;
+        callback({ code: grpc.status.UNAVAILABLE, details: 'injected: replica going away' });
+      },
+      SolveBatch: () => {},
+      Verify: () => {},
+    });
+    new HealthImplementation({ '': 'SERVING' }).addToServer(failing);
+    const port = await new Promise<number>((resolve, reject) =>
+      failing.bindAsync('127.0.0.1:0', grpc.ServerCredentials.createInsecure(), (error, bound) => (error ? reject(error) : resolve(bound))),
+    );
+    try {
+      const grid = bb84Grid(16, 0.035);
+      const outcome = await runSweep(grid, { server: [`127.0.0.1:${port}`, replicas[0].server.address].join(','), inFlightPerReplica: 2 });
+      expect(refused).toBeGreaterThan(0);
+      expect(outcome.retries).toBe(refused);
+      expect(outcome.lost).toBeUndefined();
+      expectEveryPointVerified(grid, outcome.items, GAP);
+    } finally {
+      failing.forceShutdown();
+    }
   }, 60_000);
 
   it('finishes on the live replicas when one address of the list is down from the start', async () => {
