@@ -48,6 +48,29 @@ function callOptions(options: CallOptions): grpc.CallOptions {
 }
 
 const clients = new Map<string, Promise<{ client: RenyiBoundClient; replicas: number }>>();
+const plainClients = new Map<string, RenyiBoundClient>();
+
+function newClient(target: string): RenyiBoundClient {
+  const Client = loadServicePackage().renyibound.v1.RenyiBound;
+  const { credentials, options } = channelSettings();
+  return new Client(target, credentials, options);
+}
+
+/**
+ * The generated client for `servers` when no name lookup is needed first (one address, a list of IP addresses, or
+ * one DNS name, which gRPC resolves itself), kept for reuse; new RPCs of other modules call it directly.
+ * A list of names needs `connect`.
+ */
+export function renyiBoundClient(servers: string): RenyiBoundClient {
+  let client = plainClients.get(servers);
+  if (client === undefined) {
+    const { target } = parseServers(servers);
+    if (target === '') throw new ValidationError('--server', 'a list of host names must be resolved first (use connect)');
+    client = newClient(target);
+    plainClients.set(servers, client);
+  }
+  return client;
+}
 
 /**
  * The client for `servers` (see parseServers: host:port, a comma-separated list, or a DNS name), kept for reuse.
@@ -58,9 +81,7 @@ export function connect(servers: string): Promise<{ client: RenyiBoundClient; re
   if (entry === undefined) {
     entry = (async () => {
       const resolved = await resolveServers(parseServers(servers));
-      const Client = loadServicePackage().renyibound.v1.RenyiBound;
-      const { credentials, options } = channelSettings();
-      return { client: new Client(resolved.servers.target, credentials, options), replicas: resolved.replicas };
+      return { client: newClient(resolved.servers.target), replicas: resolved.replicas };
     })();
     entry.catch(() => clients.delete(servers));
     clients.set(servers, entry);
@@ -71,7 +92,9 @@ export function connect(servers: string): Promise<{ client: RenyiBoundClient; re
 /** Closes the clients this module opened (lets a command-line process exit promptly). */
 export function closeClients(): void {
   for (const entry of clients.values()) void entry.then(({ client }) => client.close(), () => {});
+  for (const client of plainClients.values()) client.close();
   clients.clear();
+  plainClients.clear();
 }
 
 function snakeToCamel(value: unknown): unknown {
