@@ -1,98 +1,57 @@
-// The DecoyRate RPC: the wire request mapped onto the same request `renyi-bound decoy-rate` builds, the same
-// answer returned as typed summary fields plus the full JSON (docs/decoy.md).
-import type * as grpc from '@grpc/grpc-js';
-import { formatJson } from '../cli/io.js';
-import { entropyRequestFrom } from '../problem/validate.js';
+// The DecoyRate RPC handler: each request runs in a worker thread (decoy-rate-worker.ts computes the reply).
+import { availableParallelism } from 'node:os';
+import { status, type handleUnaryCall } from '@grpc/grpc-js';
+import { Piscina } from 'piscina';
 import { ValidationError } from '../problem/errors.js';
 import type { DecoyRateReply } from './generated/renyibound/v1/DecoyRateReply.js';
 import type { DecoyRateRequest__Output } from './generated/renyibound/v1/DecoyRateRequest.js';
-import type { DecoyMeasuredCounts__Output } from './generated/renyibound/v1/DecoyMeasuredCounts.js';
 import { toServiceError } from './errors.js';
 
-/** The counts message in the JSON shape of the measured-counts file (presence markers and unset fields dropped). */
-function countsJson(counts: DecoyMeasuredCounts__Output): unknown {
-  const known: Record<string, number> = {};
-  for (const [key, value] of Object.entries(counts.known ?? {})) if (!key.startsWith('_') && typeof value === 'number') known[key] = value;
-  return {
-    description: counts.description,
-    signal: counts.signal,
-    decoys: counts.decoys,
-    ...(counts.zBasisProbability !== 0 ? { zBasisProbability: counts.zBasisProbability } : {}),
-    known,
-    sessions: counts.sessions.map((s) => ({ label: s.label, distanceKm: s.distanceKm, counts: s.counts })),
-  };
+/** Most DecoyRate requests computing at once, and waiting beyond those (more are refused with RESOURCE_EXHAUSTED). */
+export const MAX_CONCURRENT_DECOY_RATES = Math.max(1, availableParallelism());
+export const MAX_WAITING_DECOY_RATES = 4 * MAX_CONCURRENT_DECOY_RATES;
+
+/** The worker module: compiled JavaScript, or the TypeScript source through tsx under vitest/tsx (as the solver pool does). */
+function workerLocation(): { filename: string; execArgv: string[] } {
+  const here = import.meta.url;
+  if (here.endsWith('.ts')) return { filename: new URL('./decoy-rate-worker.ts', here).href, execArgv: ['--import', 'tsx'] };
+  return { filename: new URL('./decoy-rate-worker.js', here).href, execArgv: [] };
 }
 
-export async function decoyRateReply(request: DecoyRateRequest__Output): Promise<DecoyRateReply> {
-  const { readMeasuredCounts } = await import('../decoy/counts.js');
-  const { decoyRate } = await import('../decoy/request.js');
-  const { lpSolver } = await import('../decoy/bounds.js');
-  const channel = request.channel;
-  const protocol = request.protocol;
-  if (request.counts === null && (channel === null || protocol === null)) {
-    throw new ValidationError(channel === null ? 'channel' : 'protocol', 'is required unless counts are given');
-  }
-  const cutoff = request.cutoff === 0 ? 12 : request.cutoff;
-  if (cutoff < 2 || cutoff > 60) throw new ValidationError('cutoff', `must lie in [2, 60] (got ${cutoff})`);
-  const kind = request.entropy === 'ENTROPY_KIND_UNSPECIFIED' ? 'VON_NEUMANN' : request.entropy;
-  const answer = decoyRate(await lpSolver(), {
-    channel: {
-      distanceKm: channel?.distanceKm ?? 0,
-      fiberLossDbPerKm: channel?.fiberLossDbPerKm ?? 0,
-      detectorEfficiency: channel?.detectorEfficiency ?? 0,
-      darkCountYield: channel?.darkCountYield ?? 0,
-      misalignment: channel?.misalignment ?? 0,
-    },
-    protocol: {
-      signal: protocol?.signal ?? 0,
-      decoys: protocol?.decoys ?? [],
-      zBasisProbability: protocol === null || protocol.zBasisProbability === 0 ? 0.5 : protocol.zBasisProbability,
-      ecEfficiency: protocol?.ecEfficiency || 1.22,
-    },
-    counts: request.counts === null ? undefined : readMeasuredCounts(countsJson(request.counts), 'counts'),
-    session: request.session ?? undefined,
-    fit: request.fit,
-    sweepDistancesKm: request.sweepDistancesKm.length === 0 ? undefined : request.sweepDistancesKm,
-    entropy: entropyRequestFrom(kind, request.alpha ?? undefined),
-    cutoff,
-    settings: { timeLimitMs: request.timeLimitMs === 0 ? 20000 : request.timeLimitMs },
-  });
-  return {
-    ratePerPulse: answer.ratePerPulse ?? undefined,
-    singlePhotonYieldLower: answer.singlePhotonYieldLower ?? 0,
-    singlePhotonErrorUpper: answer.singlePhotonErrorUpper ?? 0,
-    singlePhotonFraction: answer.singlePhotonFraction ?? 0,
-    singlePhotonBound: answer.singlePhotonBound ?? undefined,
-    singlePhotonStatus: answer.singlePhoton?.status ?? '',
-    sweep: (answer.sweep ?? []).map((p) => ({
-      distanceKm: p.distanceKm,
-      ratePerPulse: p.ratePerPulse ?? undefined,
-      status: p.status,
-      singlePhotonYieldLower: p.singlePhotonYieldLower,
-      singlePhotonErrorUpper: p.singlePhotonErrorUpper,
-      rateLower95: p.rateLower95,
-      rateUpper95: p.rateUpper95,
-    })),
-    fittedParameters: Object.entries(answer.fit?.parameters ?? {}).map(([name, v]) => ({
-      name,
-      value: v.value,
-      standardError: v.standardError,
-      lower95: v.interval95[0],
-      upper95: v.interval95[1],
-      fixed: v.fixed,
-    })),
-    chiSquare: answer.fit?.chiSquare ?? 0,
-    degreesOfFreedom: answer.fit?.degreesOfFreedom ?? 0,
-    answerJson: formatJson(answer),
-  };
-}
+let pool: Piscina<DecoyRateRequest__Output, DecoyWorkerMessage> | undefined;
 
-/** The unary handler (runs on the server's event loop: one point is a few seconds of CPU). */
-export function decoyRateHandler(): grpc.handleUnaryCall<DecoyRateRequest__Output, DecoyRateReply> {
+/**
+ * The unary handler. Requests run in worker threads (a point is seconds of CPU; the event loop stays free for
+ * health checks and other calls); threads end after a second idle, and a cancelled call aborts its task.
+ */
+export function decoyRateHandler(): handleUnaryCall<DecoyRateRequest__Output, DecoyRateReply> {
   return (call, callback) => {
-    decoyRateReply(call.request).then(
-      (reply) => callback(null, reply),
-      (error: unknown) => callback(toServiceError(error)),
+    pool ??= new Piscina({
+      ...workerLocation(),
+      minThreads: 0,
+      maxThreads: MAX_CONCURRENT_DECOY_RATES,
+      maxQueue: MAX_WAITING_DECOY_RATES,
+      idleTimeout: 1000,
+    });
+    const controller = new AbortController();
+    const cancel = () => controller.abort();
+    call.on('cancelled', cancel);
+    pool.run(call.request, { signal: controller.signal }).then(
+      (message) => {
+        call.removeListener('cancelled', cancel);
+        if ('reply' in message) callback(null, message.reply);
+        else callback(toServiceError(message.field === undefined ? new Error(message.reason) : new ValidationError(message.field, message.reason)));
+      },
+      (error: unknown) => {
+        call.removeListener('cancelled', cancel);
+        if (controller.signal.aborted) callback({ code: status.CANCELLED, details: 'DecoyRate cancelled by the client' });
+        else if (error instanceof Error && /queue is at limit/i.test(error.message)) {
+          callback({ code: status.RESOURCE_EXHAUSTED, details: `DecoyRate: ${MAX_CONCURRENT_DECOY_RATES} running and ${MAX_WAITING_DECOY_RATES} waiting already` });
+        } else callback(toServiceError(error));
+      },
     );
   };
 }
+
+/** What the worker returns: the reply, or an error (a field for bad input). */
+export type DecoyWorkerMessage = { reply: DecoyRateReply } | { field?: string; reason: string };
