@@ -49,7 +49,15 @@ export function register(program: Command): void {
     .option('--cutoff <n>', 'photon-number cut-off of the LP (the tail above is bounded exactly)', '12')
     .option('--time-limit-ms <t>', 'time limit of each single-photon solve', '20000')
     .action(
-      withInputErrors(async (options: DecoyRateOptions) => {
+      withInputErrors(async (options: DecoyRateOptions, command: Command) => {
+        if (options.counts !== undefined) {
+          // The counts file states the intensities and basis choice it was measured with.
+          for (const name of ['signal', 'decoys', 'zBasisProbability'] as const) {
+            if (command.getOptionValueSource(name) === 'cli') {
+              throw new ValidationError(name === 'zBasisProbability' ? 'z-basis-probability' : name, 'is taken from the --counts file; do not give both');
+            }
+          }
+        }
         const number = (text: string, field: string) => parseNumberOption(text, field);
         const { entropyRequestFrom } = await import('../problem/validate.js');
         const { readMeasuredCounts } = await import('../decoy/counts.js');

@@ -3,22 +3,15 @@
 // "Single-photon problem").
 import { ComplexMatrix, add, kron } from '../linear-algebra/complex-matrix.js';
 import { matrixToJson, type LinearConstraintJson, type ProblemJson } from '../problem/json.js';
-import {
-  SENT_STATES,
-  keyBranchKrausOperator,
-  noKeyBranchKrausOperator,
-  sendingProbabilities,
-  sourceMarginal,
-} from '../protocols/bb84-prepare-measure.js';
+import { SENT_STATES, sendingProbabilities } from '../protocols/bb84-prepare-measure.js';
+import { buildExample } from '../protocols/index.js';
 import { projectorOnto } from '../protocols/operators.js';
 import type { Basis, BasisBounds } from './bounds.js';
-
-/** Bob's single-photon system: a qubit plus a vacuum level (index 2) for "no click". */
-const DIMENSION_B = 3;
 
 /** Alice's register entries of a basis: |0⟩,|1⟩ for Z and |+⟩,|−⟩ for X. */
 const REGISTER: Record<Basis, readonly [number, number]> = { Z: [0, 1], X: [2, 3] };
 
+/** A qubit vector in Bob's single-photon system: the qubit plus a vacuum level (index 2) for "no click". */
 function padded(vector: readonly number[]): number[] {
   return [vector[0], vector[1], 0];
 }
@@ -70,25 +63,18 @@ export function singlePhotonProblem(bounds: Record<Basis, BasisBounds>, zBasisPr
       upper: p * b.errorYieldUpper,
     });
   }
-  const keyRegisterProjector = (k: number) =>
-    matrixToJson(kron(projectorOnto(k === 0 ? [1, 0] : [0, 1]), ComplexMatrix.identity(DIMENSION_B)));
+  // Source marginal, Bob's qubit + vacuum and the key/no-key branches are those of the lossy single-photon
+  // builder; its joint table (a channel model) is replaced by the decoy intervals alone.
+  const { sourceMarginal, branches, dimensionA, dimensionB } = buildExample('bb84-prepare-measure', {
+    transmittance: 0.5,
+    'z-basis-probability': zBasisProbability,
+  });
   return {
-    dimensionA: 4,
-    dimensionB: DIMENSION_B,
-    sourceMarginal: matrixToJson(sourceMarginal(zBasisProbability)),
+    dimensionA,
+    dimensionB,
+    sourceMarginal,
     constraints,
-    branches: [
-      {
-        label: 'key',
-        krausOperators: [matrixToJson(keyBranchKrausOperator(zBasisProbability, DIMENSION_B))],
-        keyProjectors: [keyRegisterProjector(0), keyRegisterProjector(1)],
-      },
-      {
-        label: 'no-key',
-        krausOperators: [matrixToJson(noKeyBranchKrausOperator(zBasisProbability, DIMENSION_B))],
-        keyProjectors: [matrixToJson(ComplexMatrix.identity(4 * DIMENSION_B))],
-      },
-    ],
+    branches,
     description: `decoy-state BB84 single-photon rounds, Z-basis probability ${zBasisProbability}; value per single-photon pulse`,
   };
 }
