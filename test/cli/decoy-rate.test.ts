@@ -49,4 +49,12 @@ describe('decoy-rate', () => {
     expect(status).toBe(1);
     expect(stderr).toBe('renyi-bound: decoys[1]: must be a finite number (got "abc")\n');
   }, 60_000);
+
+  it('intensities given both as options and in the counts file are refused', () => {
+    const file = join(dir, 'bench.json');
+    writeFileSync(file, JSON.stringify({ ...HARBOUR_COUNTS, sessions: HARBOUR_COUNTS.sessions.map(({ records, ...s }) => ({ ...s, counts: records })) }));
+    const { status, stderr } = run(['--counts', file, '--signal', '0.5']);
+    expect(status).toBe(1);
+    expect(stderr).toBe('renyi-bound: signal: is taken from the --counts file; do not give both\n');
+  }, 60_000);
 });
