@@ -13,6 +13,7 @@ import { defaultCacheDirectory, SqliteCacheLayer, type SqliteOpenEvent } from '.
 import { verifyInfeasibility, verifyResult } from '../certificate/verify.js';
 import { ValidationError } from '../problem/errors.js';
 import { expandGrid, expandRequestList, runBatch, solveInputFromWire, type BatchPoint } from './batch.js';
+import { decoyRateHandler } from './decoy-rate.js';
 import { toServiceError } from './errors.js';
 import { guardRequests, malformedReason } from './guarded-service.js';
 import { DEFAULT_MAX_MESSAGE_BYTES, TRANSPORT_CAP_FACTOR } from './message-size.js';
@@ -207,6 +208,7 @@ export class RenyiBoundServer {
       Solve: (call, callback) => void this.solve(call, callback),
       SolveBatch: (call) => void this.solveBatch(call),
       Verify: (call, callback) => this.verify(call, callback),
+      DecoyRate: decoyRateHandler(),
     };
     return refuseMalformed(handlers);
   }
