@@ -6,6 +6,7 @@ import type { AnnouncementBranch as _renyibound_v1_AnnouncementBranch, Announcem
 import type { BatchItem as _renyibound_v1_BatchItem, BatchItem__Output as _renyibound_v1_BatchItem__Output } from './renyibound/v1/BatchItem.js';
 import type { BatchRequest as _renyibound_v1_BatchRequest, BatchRequest__Output as _renyibound_v1_BatchRequest__Output } from './renyibound/v1/BatchRequest.js';
 import type { Certificate as _renyibound_v1_Certificate, Certificate__Output as _renyibound_v1_Certificate__Output } from './renyibound/v1/Certificate.js';
+import type { HonestStatistics as _renyibound_v1_HonestStatistics, HonestStatistics__Output as _renyibound_v1_HonestStatistics__Output } from './renyibound/v1/HonestStatistics.js';
 import type { InfeasibilityCertificate as _renyibound_v1_InfeasibilityCertificate, InfeasibilityCertificate__Output as _renyibound_v1_InfeasibilityCertificate__Output } from './renyibound/v1/InfeasibilityCertificate.js';
 import type { LinearConstraint as _renyibound_v1_LinearConstraint, LinearConstraint__Output as _renyibound_v1_LinearConstraint__Output } from './renyibound/v1/LinearConstraint.js';
 import type { Matrix as _renyibound_v1_Matrix, Matrix__Output as _renyibound_v1_Matrix__Output } from './renyibound/v1/Matrix.js';
@@ -35,6 +36,7 @@ export interface ProtoGrpcType {
       BatchRequest: MessageTypeDefinition<_renyibound_v1_BatchRequest, _renyibound_v1_BatchRequest__Output>
       Certificate: MessageTypeDefinition<_renyibound_v1_Certificate, _renyibound_v1_Certificate__Output>
       EntropyKind: EnumTypeDefinition
+      HonestStatistics: MessageTypeDefinition<_renyibound_v1_HonestStatistics, _renyibound_v1_HonestStatistics__Output>
       InfeasibilityCertificate: MessageTypeDefinition<_renyibound_v1_InfeasibilityCertificate, _renyibound_v1_InfeasibilityCertificate__Output>
       LinearConstraint: MessageTypeDefinition<_renyibound_v1_LinearConstraint, _renyibound_v1_LinearConstraint__Output>
       Matrix: MessageTypeDefinition<_renyibound_v1_Matrix, _renyibound_v1_Matrix__Output>
