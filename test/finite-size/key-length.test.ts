@@ -1,6 +1,6 @@
 // Key-length checks against outside references: Shor–Preskill's asymptotic rate, the score-shift identity, the
 // i.i.d. upper reference, and the Dupuis–Fawzi–Renner continuity bound (docs/finite-size.md, "Checks").
-import { describe, expect, it } from 'vitest';
+import { describe, expect, it, vi } from 'vitest';
 import { ComplexMatrix, addScaledInPlace } from '../../src/linear-algebra/complex-matrix.js';
 import { createObjective } from '../../src/objectives/index.js';
 import { buildExample } from '../../src/protocols/index.js';
@@ -11,6 +11,9 @@ import { keyLength, splitEpsilons } from '../../src/finite-size/key-length.js';
 import { acceptanceWindow } from '../../src/finite-size/acceptance-window.js';
 import { keyLengthLedger } from '../../src/finite-size/ledger.js';
 import { localSolver, scoredProblem, singleRoundValue } from '../../src/finite-size/single-round.js';
+
+// Key-length searches run dozens of single-round solves; on a shared machine that can take a while.
+vi.setConfig({ testTimeout: 180_000, hookTimeout: 60_000 });
 
 const Q = 0.02;
 const GAMMA = 0.02;
