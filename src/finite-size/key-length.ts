@@ -5,7 +5,10 @@ import { ValidationError } from '../problem/errors.js';
 import type { Problem } from '../problem/model.js';
 import { keyLengthLedger, privacyAmplificationBits, errorVerificationBits, variableLengthIntercept, type EpsilonSplit, type LedgerTerm } from './ledger.js';
 import { MIN_ALPHA_EXCESS, ascendScores, searchAlpha, type SearchContext, type SearchProgress, type SearchState } from './optimise.js';
-import { localSolver, type FiniteSizeEntropy, type SingleRoundSolver } from './single-round.js';
+import { localSolver, problemToJson, scoredProblem, type FiniteSizeEntropy, type SingleRoundSolver } from './single-round.js';
+import type { ProblemJson } from '../problem/json.js';
+import { ComplexMatrix, addScaledInPlace, hermitianPart, multiplyAdjointLeft } from '../linear-algebra/complex-matrix.js';
+import { sourceMarginalConstraints } from '../problem/validate.js';
 import { minTradeoffFunction, type MinTradeoffFunction } from './min-tradeoff.js';
 
 /** Defaults: common practice values (ε_sec 1e−10, ε_com 1e−2, f_EC 1.16). */
@@ -35,6 +38,8 @@ export interface KeyLengthOptions {
   /** sandwiched-up (default) or petz-up (the documented fast mode, a lower value). */
   entropy?: FiniteSizeEntropy;
   gapTolerance?: number;
+  /** Scores the ascent starts from (default: the problem's branch scores); a sweep passes its neighbour's. */
+  initialScores?: number[];
   /** Skip the von Neumann reference solve (the sweep does it once per channel point). */
   withoutAsymptotic?: boolean;
   onProgress?: (progress: SearchProgress) => void;
@@ -57,6 +62,8 @@ export interface KeyLengthReport {
   entropy: FiniteSizeEntropy;
   scores: Record<string, number>;
   singleRoundBound: SolveResult;
+  /** The problem singleRoundBound answers (scores set, statistics dropped): `verify` re-checks it against this. */
+  singleRoundProblem: ProblemJson;
   terms: LedgerTerm[];
   epsilons: EpsilonSplit;
   acceptanceWindow: {
@@ -156,7 +163,11 @@ export async function keyLength(
     onProgress: options.onProgress,
   };
   const state: SearchState = { solves: 0, step: 1 };
-  const initialScores = problem.branches.map((b) => b.score);
+  const initialScores =
+    options.initialScores ??
+    (problem.branches.some((b) => b.score !== 0)
+      ? problem.branches.map((b) => b.score)
+      : await minTradeoffScores(problem, honest.branchProbabilities, solver, settings));
   const best =
     options.alpha === undefined
       ? await searchAlpha(context, state, initialScores)
@@ -180,6 +191,7 @@ export async function keyLength(
     entropy,
     scores: Object.fromEntries(problem.branches.map((b, c) => [b.label, best.scores[c]])),
     singleRoundBound: best.single.result,
+    singleRoundProblem: problemToJson(scoredProblem(problem, best.scores)),
     terms: ledger.terms,
     epsilons,
     acceptanceWindow: {
@@ -204,6 +216,32 @@ export async function keyLength(
   if (!options.withoutAsymptotic) report.asymptotic = await asymptoticReference(problem, errorCorrectionBits / options.rounds, solver, settings);
   report.search.seconds = (performance.now() - started) / 1000;
   return report;
+}
+
+/**
+ * Starting scores from the von Neumann min-tradeoff function in the branch probabilities: solve H(S|CE) with
+ * Tr(M_c ρ) = p_c for every branch (M_c = Σ_j K†K, the honest distribution) and the source marginal; the
+ * certificate's g(q) = constant + Σ_c y_c q_c ≤ H(S|CE) makes f = y give h^f → constant as α → 1, with rate g(p)
+ * at the honest point (docs/finite-size.md, "Optimisation"). Zero scores when that solve gives no certificate.
+ */
+export async function minTradeoffScores(
+  problem: Problem,
+  honest: readonly number[],
+  solver: SingleRoundSolver,
+  settings: Partial<SolverSettings>,
+): Promise<number[]> {
+  const d = problem.dimensionA * problem.dimensionB;
+  const marginal = problem.sourceMarginal ? sourceMarginalConstraints(problem.sourceMarginal, problem.dimensionB) : [];
+  const branchConstraints = problem.branches.map((b, c) => {
+    const operator = new ComplexMatrix(d, d);
+    for (const k of b.krausOperators) addScaledInPlace(operator, multiplyAdjointLeft(k, k), 1);
+    return { label: `branch ${b.label}`, operator: hermitianPart(operator), lower: honest[c], upper: honest[c] };
+  });
+  const tested: Problem = { ...problem, constraints: [...marginal, ...branchConstraints], branches: problem.branches.map((b) => ({ ...b, score: 0 })) };
+  const result = await solver(tested, { kind: 'von-neumann' }, settings);
+  if (!result.certificate) return problem.branches.map(() => 0);
+  const coefficients = minTradeoffFunction(tested, result).coefficients.slice(marginal.length);
+  return coefficients.map((c) => c.coefficient);
 }
 
 /** Devetak–Winter reference: the certified von Neumann bound under the problem's statistics minus λ_EC per round. */

@@ -5,7 +5,7 @@ import { solve } from '../frank-wolfe/solve.js';
 import type { SolveResult, SolverSettings } from '../frank-wolfe/types.js';
 import type { ComplexMatrix } from '../linear-algebra/complex-matrix.js';
 import { createObjective } from '../objectives/index.js';
-import { matrixFromJson } from '../problem/json.js';
+import { matrixFromJson, matrixToJson, type ProblemJson } from '../problem/json.js';
 import type { EntropyKind, EntropyRequest, Problem } from '../problem/model.js';
 import { sourceMarginalConstraints } from '../problem/validate.js';
 
@@ -85,4 +85,25 @@ export async function singleRoundValue(
     ? tiltedBranchWeights(problem, request, finalState)
     : base.branches.map(() => 1 / base.branches.length);
   return { alpha, scores: [...scores], bound, result, tiltedWeights, finalState };
+}
+
+const SOURCE_MARGINAL_LABEL = /^sourceMarginal/;
+
+/** A validated problem back in protobuf JSON (the source-marginal equalities are regenerated from the marginal). */
+export function problemToJson(problem: Problem): ProblemJson {
+  const json: ProblemJson = {
+    dimensionA: problem.dimensionA,
+    dimensionB: problem.dimensionB,
+    constraints: problem.constraints
+      .filter((c) => !(problem.sourceMarginal && SOURCE_MARGINAL_LABEL.test(c.label)))
+      .map((c) => ({ label: c.label, operator: matrixToJson(c.operator), lower: c.lower, upper: c.upper })),
+    branches: problem.branches.map((b) => ({
+      label: b.label,
+      krausOperators: b.krausOperators.map(matrixToJson),
+      keyProjectors: b.keyProjectors.map(matrixToJson),
+      score: b.score,
+    })),
+  };
+  if (problem.sourceMarginal) json.sourceMarginal = matrixToJson(problem.sourceMarginal);
+  return json;
 }

@@ -2,8 +2,8 @@
 // through the server's coordinator (cache by input hash → pool), and answers the ledger (docs/finite-size.md).
 import type * as grpc from '@grpc/grpc-js';
 import { keyLength, type KeyLengthReport } from '../finite-size/key-length.js';
-import type { SingleRoundSolver } from '../finite-size/single-round.js';
-import { matrixToJson, type ProblemJson } from '../problem/json.js';
+import { problemToJson, type SingleRoundSolver } from '../finite-size/single-round.js';
+import { matrixToJson } from '../problem/json.js';
 import type { Problem } from '../problem/model.js';
 import { ValidationError } from '../problem/errors.js';
 import { parseProblemJson } from '../problem/validate.js';
@@ -13,27 +13,6 @@ import type { KeyLengthRequest__Output } from './generated/renyibound/v1/KeyLeng
 import { prepareSolve } from './prepare.js';
 import type { SolveCoordinator } from './solve-coordinator.js';
 import { wireToJson } from './wire.js';
-
-const SOURCE_MARGINAL_LABEL = /^sourceMarginal/;
-
-/** A validated problem back in protobuf JSON (the source-marginal equalities are regenerated from the marginal). */
-export function problemToJson(problem: Problem): ProblemJson {
-  const json: ProblemJson = {
-    dimensionA: problem.dimensionA,
-    dimensionB: problem.dimensionB,
-    constraints: problem.constraints
-      .filter((c) => !(problem.sourceMarginal && SOURCE_MARGINAL_LABEL.test(c.label)))
-      .map((c) => ({ label: c.label, operator: matrixToJson(c.operator), lower: c.lower, upper: c.upper })),
-    branches: problem.branches.map((b) => ({
-      label: b.label,
-      krausOperators: b.krausOperators.map(matrixToJson),
-      keyProjectors: b.keyProjectors.map(matrixToJson),
-      score: b.score,
-    })),
-  };
-  if (problem.sourceMarginal) json.sourceMarginal = matrixToJson(problem.sourceMarginal);
-  return json;
-}
 
 /** Single-round solves through the coordinator, so repeated searches are answered from the cache. */
 function coordinatedSolver(coordinator: SolveCoordinator, signal: AbortSignal | undefined, requestId: string): SingleRoundSolver {
@@ -61,6 +40,7 @@ export function reportToWire(report: KeyLengthReport, requestId: string): KeyLen
     alpha: report.alpha,
     scores: report.scores,
     singleRoundBoundJson: JSON.stringify(report.singleRoundBound),
+    singleRoundProblem: report.singleRoundProblem as never,
     terms: report.terms,
     epsilons: report.epsilons,
     acceptanceWindow: {

@@ -8,6 +8,8 @@ import { closeClients, renyiBoundClient } from '../../src/service/client.js';
 import { FIELD_METADATA_KEY } from '../../src/service/errors.js';
 import type { KeyLengthReply__Output } from '../../src/service/generated/renyibound/v1/KeyLengthReply.js';
 import type { KeyLengthRequest } from '../../src/service/generated/renyibound/v1/KeyLengthRequest.js';
+import { verifyResult } from '../../src/certificate/verify.js';
+import { wireToJson } from '../../src/service/wire.js';
 import { startTestServer, type TestServer } from './harness.js';
 
 // Key-length searches run dozens of single-round solves; on a shared machine that can take a while.
@@ -45,7 +47,11 @@ describe('KeyLength RPC', () => {
     // Shor & Preskill (2000): (1 − γ)(1 − 2h(Q)) with f_EC = 1.
     const h = -(0.02 * Math.log2(0.02) + 0.98 * Math.log2(0.98));
     expect(reply!.asymptoticRatePerRound).toBeCloseTo(0.98 * (1 - 2 * h), 5);
-    expect(JSON.parse(reply!.singleRoundBoundJson).certificate.entropy).toBe('sandwiched-up');
+    const single = JSON.parse(reply!.singleRoundBoundJson);
+    expect(single.certificate.entropy).toBe('sandwiched-up');
+    // The independent verifier re-derives the certified single-round bound from the returned problem.
+    const verified = verifyResult(problemFromJson(wireToJson(reply!.singleRoundProblem)), { kind: 'sandwiched-up', alpha: 1.0002 }, single);
+    expect(verified.valid).toBe(true);
     // A repeat is served from the cache: every single-round solve hits.
     const hitsBefore = test.logs.filter((l) => (l as { fromCache?: boolean }).fromCache === true).length;
     const again = await call(address, request);

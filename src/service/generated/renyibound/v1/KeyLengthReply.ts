@@ -5,6 +5,7 @@ import type { EpsilonSplit as _renyibound_v1_EpsilonSplit, EpsilonSplit__Output 
 import type { AcceptanceWindow as _renyibound_v1_AcceptanceWindow, AcceptanceWindow__Output as _renyibound_v1_AcceptanceWindow__Output } from '../../renyibound/v1/AcceptanceWindow.js';
 import type { VariableLengthRule as _renyibound_v1_VariableLengthRule, VariableLengthRule__Output as _renyibound_v1_VariableLengthRule__Output } from '../../renyibound/v1/VariableLengthRule.js';
 import type { MinTradeoffFunction as _renyibound_v1_MinTradeoffFunction, MinTradeoffFunction__Output as _renyibound_v1_MinTradeoffFunction__Output } from '../../renyibound/v1/MinTradeoffFunction.js';
+import type { Problem as _renyibound_v1_Problem, Problem__Output as _renyibound_v1_Problem__Output } from '../../renyibound/v1/Problem.js';
 
 export interface KeyLengthReply {
   'keyLength'?: (number | string);
@@ -23,6 +24,7 @@ export interface KeyLengthReply {
   'singleRoundSolves'?: (number);
   'requestId'?: (string);
   'entropy'?: (string);
+  'singleRoundProblem'?: (_renyibound_v1_Problem | null);
   '_asymptoticRatePerRound'?: "asymptoticRatePerRound";
 }
 
@@ -43,5 +45,6 @@ export interface KeyLengthReply__Output {
   'singleRoundSolves': (number);
   'requestId': (string);
   'entropy': (string);
+  'singleRoundProblem': (_renyibound_v1_Problem__Output | null);
   '_asymptoticRatePerRound'?: "asymptoticRatePerRound";
 }
