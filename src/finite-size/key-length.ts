@@ -162,7 +162,7 @@ export async function keyLength(
     solver,
     onProgress: options.onProgress,
   };
-  const state: SearchState = { solves: 0, step: 1 };
+  const state: SearchState = { solves: 0 };
   const initialScores =
     options.initialScores ??
     (problem.branches.some((b) => b.score !== 0)

@@ -10,7 +10,7 @@ import { singleRoundValue, tiltedBranchWeights, scoredProblem, type FiniteSizeEn
 /** Smallest α − 1 searched: below it the sandwiched objective's 1/(α−1) amplifies rounding beyond the gap. */
 export const MIN_ALPHA_EXCESS = 1e-4;
 const MAX_ASCENT_STEPS = 30;
-const MAX_STEP_TRIALS = 8;
+const MAX_STEP_TRIALS = 5;
 
 export interface SearchContext {
   problem: Problem;
@@ -43,9 +43,8 @@ export interface ScorePoint {
 }
 
 export interface SearchState {
+  /** Single-round solves so far. */
   solves: number;
-  /** Preconditioned step length that last succeeded (reused by the next ascent). */
-  step: number;
 }
 
 async function evaluate(
@@ -71,8 +70,10 @@ function supergradient(context: SearchContext, point: ScorePoint): number[] {
 }
 
 /**
- * Maximises h^f_α + min_Ω(Σf)/n over f for a fixed α: supergradient steps preconditioned by 1/p_c (a branch's
- * curvature scales with its honest probability), step doubled after a success and quartered after a failure.
+ * Maximises h^f_α + min_Ω(Σf)/n over f for a fixed α with BFGS on the supergradient (a few branches, a smooth
+ * concave objective away from degenerate optima): the inverse curvature starts at the diagonal 1/(p_c·κ·ln 2)
+ * (h^f_α curves like κ·ln2·p_c in f(c)), steps are backtracked (Armijo, quartering), and the search stops when a
+ * step gains less than 1e-4 of the value.
  */
 export async function ascendScores(
   context: SearchContext,
@@ -81,25 +82,51 @@ export async function ascendScores(
   initialScores: number[],
   warmStart?: ComplexMatrix,
 ): Promise<ScorePoint> {
+  const m = initialScores.length;
+  const kappa = (alpha - 1) / alpha;
+  // Inverse curvature of −G (row-major m×m).
+  let inverse = new Float64Array(m * m);
+  for (let c = 0; c < m; c++) inverse[c * m + c] = 1 / (Math.max(context.honest[c], 1e-6) * kappa * Math.LN2);
   let current = await evaluate(context, state, alpha, initialScores, warmStart);
+  let gradient = supergradient(context, current);
   for (let iteration = 0; iteration < MAX_ASCENT_STEPS; iteration++) {
-    const gradient = supergradient(context, current);
-    const direction = gradient.map((g, c) => g / Math.max(context.honest[c], 1e-6));
     if (Math.max(...gradient.map(Math.abs)) < 1e-10) break;
+    // Ascent direction d = H·∇G.
+    const direction = Array.from({ length: m }, (_, i) => gradient.reduce((acc, g, j) => acc + inverse[i * m + j] * g, 0));
+    const slope = direction.reduce((acc, d, c) => acc + d * gradient[c], 0);
+    if (!(slope > 0)) break;
     let accepted: ScorePoint | null = null;
-    for (let trial = 0; trial < MAX_STEP_TRIALS; trial++) {
-      const scores = current.scores.map((f, c) => f + state.step * direction[c]);
+    let step = 1;
+    for (let trial = 0; trial < MAX_STEP_TRIALS; trial++, step /= 4) {
+      const scores = current.scores.map((f, c) => f + step * direction[c]);
       const candidate = await evaluate(context, state, alpha, scores, current.single.finalState);
-      if (candidate.value > current.value) {
+      if (candidate.value > current.value + 1e-4 * step * slope) {
         accepted = candidate;
-        state.step *= 2;
         break;
       }
-      state.step /= 4;
     }
     if (accepted === null) break;
     const improvement = accepted.value - current.value;
+    const nextGradient = supergradient(context, accepted);
+    // BFGS update of the inverse curvature of −G: s = step·d, y = −(∇G_new − ∇G_old).
+    const sVector = direction.map((d) => step * d);
+    const yVector = nextGradient.map((g, c) => gradient[c] - g);
+    const sy = sVector.reduce((acc, x, c) => acc + x * yVector[c], 0);
+    if (sy > 1e-12) {
+      const rho = 1 / sy;
+      const hy = Array.from({ length: m }, (_, i) => yVector.reduce((acc, y, j) => acc + inverse[i * m + j] * y, 0));
+      const yhy = yVector.reduce((acc, y, c) => acc + y * hy[c], 0);
+      const updated = new Float64Array(m * m);
+      for (let i = 0; i < m; i++) {
+        for (let j = 0; j < m; j++) {
+          updated[i * m + j] =
+            inverse[i * m + j] - rho * (hy[i] * sVector[j] + sVector[i] * hy[j]) + (rho * rho * yhy + rho) * sVector[i] * sVector[j];
+        }
+      }
+      inverse = updated;
+    }
     current = accepted;
+    gradient = nextGradient;
     if (improvement < 1e-4 * Math.abs(current.value) + 1e-9) break;
   }
   context.onProgress?.({ alpha, ratePerRound: rate(context, current), singleRoundSolves: state.solves });
