@@ -112,6 +112,15 @@ describe('finite-size key length, entangled BB84 with testing', () => {
     }
   });
 
+  it('Petz-up (--fast) lies below sandwiched-up at the same α and scores (Araki–Lieb–Thirring; Tomamichel 2016, ch. 5)', async () => {
+    const scores = [0, 5.5, -270];
+    for (const alpha of [1.001, 1.1]) {
+      const petz = await singleRoundValue(bb84, 'petz-up', alpha, scores, SETTINGS, localSolver);
+      const sandwiched = await singleRoundValue(bb84, 'sandwiched-up', alpha, scores, SETTINGS, localSolver);
+      expect(petz.bound!).toBeLessThanOrEqual(sandwiched.result.upperBound! + 1e-9);
+    }
+  });
+
   it('returns the variable-length rule ℓ(F) = ⌊F + intercept⌋ that reproduces the fixed length at the window edge', async () => {
     const report = await keyLength(bb84, { rounds: 1e8, alpha: 1.0002, variableLength: true, withoutAsymptotic: true });
     const rule = report.variableLength!;
