@@ -35,6 +35,26 @@ describe('min-tradeoff function from a von Neumann certificate', () => {
     expect(at(qz, qx)).toBeLessThanOrEqual(1 - binaryEntropy(qx) + 1e-12);
   });
 
+  it('prepare-and-measure with loss (a face from the rank-2 source marginal): valid at other error rates and losses', () => {
+    const pm = (q: number, eta: number) => problemFromJson(buildExample('bb84-prepare-measure', { qber: q, transmittance: eta }));
+    const solved = pm(0.03, 0.4);
+    const tradeoff = minTradeoffFunction(solved, solve(solved, { kind: 'von-neumann' }, { gapTolerance: 1e-8 }));
+    expect(tradeoff.validity).toMatch(/source marginal has rank 2/);
+    for (const [q, eta] of [
+      [0.01, 0.4],
+      [0.06, 0.3],
+      [0.03, 0.6],
+    ]) {
+      const other = pm(q, eta);
+      // The same constraints in the same order, at the other statistics.
+      const value = other.constraints.reduce((acc, c, i) => acc + tradeoff.coefficients[i].coefficient * c.lower, tradeoff.constant);
+      const independent = solve(other, { kind: 'von-neumann' }, { gapTolerance: 1e-7 });
+      expect(value).toBeLessThanOrEqual(independent.upperBound! + 1e-9);
+      // Common practice (erasure): p_Z²·η·(1 − h(q)) per round for a single-photon source.
+      expect(value).toBeLessThanOrEqual(0.25 * eta * (1 - binaryEntropy(q)) + 1e-9);
+    }
+  });
+
   it('refuses results that are not von Neumann certificates', () => {
     const renyi = solve(base, { kind: 'petz-up', alpha: 1.5 });
     expect(() => minTradeoffFunction(base, renyi)).toThrow(/von Neumann/);
