@@ -17,6 +17,8 @@ import { wireToJson } from './wire.js';
 /** Single-round solves through the coordinator, so repeated searches are answered from the cache. */
 function coordinatedSolver(coordinator: SolveCoordinator, signal: AbortSignal | undefined, requestId: string): SingleRoundSolver {
   return async (problem, request, settings, warmStart) => {
+    // A cancelled call stops the search instead of finishing it on cancelled (loose) solves.
+    if (signal?.aborted) throw new Error('key-length search cancelled by the client');
     const prepared = prepareSolve({
       problemJson: problemToJson(problem),
       entropy: request.kind,
