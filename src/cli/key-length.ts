@@ -24,6 +24,7 @@ interface KeyLengthCliOptions {
   plot?: string;
   diskCache: boolean;
   cacheDir?: string;
+  optimiseTestProbability?: boolean;
 }
 
 /** `1e6`, `1e4,1e6,1e8` or `1e4..1e12:9` (log-spaced). */
@@ -63,6 +64,7 @@ export function register(program: Command): void {
     .option('--set <name=value>', 'an example parameter (repeatable)', (v: string, all: string[]) => [...all, v], [])
     .option('--sweep <name=v1,v2,…>', 'sweep one example parameter')
     .option('--plot <file.svg>', 'sweep chart: key rate per round against n, asymptotic rate dashed')
+    .option('--optimise-test-probability', 'with --example and one n: search the test probability γ too')
     .option('--no-disk-cache', 'keep single-round results in memory only')
     .option('--cache-dir <dir>', 'directory of the SQLite result cache (default as for serve)')
     .action(
@@ -112,6 +114,16 @@ export function register(program: Command): void {
         const cache = localResultCache(options.diskCache ? options.cacheDir : false);
         try {
           const solver = cachedSolver(cache);
+          if (options.optimiseTestProbability) {
+            if (options.example === undefined || rounds.length !== 1 || swept !== undefined) {
+              throw new ValidationError('optimise-test-probability', 'needs --example, one --rounds value and no --sweep');
+            }
+            const build = (gamma: number) =>
+              parseProblemJson(buildExample(options.example as string, { ...exampleParameters, 'test-probability': gamma })).problem;
+            const { testProbability, report } = await sweepModule.optimiseTestProbability(build, { ...settings, rounds: rounds[0] }, solver);
+            printJson({ testProbability, ...report });
+            return;
+          }
           if (rounds.length === 1 && cases.length === 1 && options.plot === undefined) {
             printJson(await keyLength(cases[0].problem, { ...settings, rounds: rounds[0] }, solver));
             return;

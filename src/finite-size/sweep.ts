@@ -92,3 +92,49 @@ export function sweepPlotSpec(points: SweepPoint[], title: string): TopLevelSpec
     },
   };
 }
+
+/**
+ * The test probability γ that maximises the key length for n rounds (the issue's optional γ optimisation): golden-
+ * section search on log10 γ over [1e−4, 0.5] (the rate is small at both ends: too few tests cost window width,
+ * too many cost key rounds), each point a full key-length search on the problem built for that γ.
+ */
+export async function optimiseTestProbability(
+  build: (gamma: number) => Problem,
+  options: KeyLengthOptions,
+  solver: SingleRoundSolver = localSolver,
+): Promise<{ testProbability: number; report: Awaited<ReturnType<typeof keyLength>> }> {
+  const solved = new Map<number, Awaited<ReturnType<typeof keyLength>>>();
+  const at = async (x: number) => {
+    const known = solved.get(x);
+    if (known) return known;
+    const report = await keyLength(build(10 ** x), { ...options, withoutAsymptotic: true }, solver);
+    solved.set(x, report);
+    return report;
+  };
+  let a = -4;
+  let b = Math.log10(0.5);
+  const ratio = (Math.sqrt(5) - 1) / 2;
+  let c = b - ratio * (b - a);
+  let d = a + ratio * (b - a);
+  let rc = (await at(c)).ratePerRound;
+  let rd = (await at(d)).ratePerRound;
+  while (b - a > 0.1) {
+    if (rc >= rd) {
+      b = d;
+      d = c;
+      rd = rc;
+      c = b - ratio * (b - a);
+      rc = (await at(c)).ratePerRound;
+    } else {
+      a = c;
+      c = d;
+      rc = rd;
+      d = a + ratio * (b - a);
+      rd = (await at(d)).ratePerRound;
+    }
+  }
+  let best = -4;
+  for (const [x, report] of solved) if (report.ratePerRound > (solved.get(best)?.ratePerRound ?? -Infinity)) best = x;
+  const gamma = 10 ** best;
+  return { testProbability: gamma, report: await keyLength(build(gamma), options, solver) };
+}

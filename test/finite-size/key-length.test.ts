@@ -8,6 +8,7 @@ import { binaryEntropy } from '../../src/protocols/test-rounds.js';
 import { problemFromJson } from '../../src/problem/validate.js';
 import { solve } from '../../src/frank-wolfe/solve.js';
 import { keyLength, splitEpsilons } from '../../src/finite-size/key-length.js';
+import { optimiseTestProbability } from '../../src/finite-size/sweep.js';
 import { acceptanceWindow } from '../../src/finite-size/acceptance-window.js';
 import { keyLengthLedger } from '../../src/finite-size/ledger.js';
 import { localSolver, scoredProblem, singleRoundValue } from '../../src/finite-size/single-round.js';
@@ -126,6 +127,20 @@ describe('finite-size key length, entangled BB84 with testing', () => {
     const rule = report.variableLength!;
     expect(Math.floor(report.acceptanceWindow.minimumScoreSum + rule.intercept)).toBe(report.keyLength);
     expect(rule.keyLengthAtHonestMean).toBeGreaterThan(report.keyLength);
+  });
+
+  it('optimising γ beats the fixed test probabilities it brackets (optional γ search)', async () => {
+    const build = (gamma: number) =>
+      problemFromJson(buildExample('bb84-entangled', { 'qber-z': Q, 'qber-x': Q, 'test-probability': gamma }));
+    const { testProbability, report } = await optimiseTestProbability(build, { rounds: 1e8, ecEfficiency: 1 });
+    expect(testProbability).toBeGreaterThan(1e-4);
+    expect(testProbability).toBeLessThan(0.5);
+    for (const gamma of [0.001, 0.1]) {
+      const fixed = await keyLength(build(gamma), { rounds: 1e8, ecEfficiency: 1, withoutAsymptotic: true });
+      expect(report.ratePerRound).toBeGreaterThanOrEqual(fixed.ratePerRound);
+    }
+    // Still below Shor–Preskill's rate at the chosen γ.
+    expect(report.ratePerRound).toBeLessThan((1 - testProbability) * (1 - 2 * binaryEntropy(Q)));
   });
 
   it('rejects inputs with the field and the reason', async () => {
