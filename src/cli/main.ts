@@ -11,6 +11,7 @@ import { register as registerSweep } from './sweep.js';
 import { register as registerHealth } from './health.js';
 import { register as registerDemo } from './demo.js';
 import { register as registerKeyLength } from './key-length.js';
+import { register as registerDecoyRate } from './decoy-rate.js';
 
 const program = new Command('renyi-bound')
   .description('certified lower bounds on single-round conditional Rényi entropies for QKD security proofs')
@@ -25,5 +26,6 @@ registerSweep(program);
 registerHealth(program);
 registerDemo(program);
 registerKeyLength(program);
+registerDecoyRate(program);
 
 await program.parseAsync(process.argv);
