@@ -1,7 +1,7 @@
 // Key-length checks against outside references: Shor–Preskill's asymptotic rate, the score-shift identity, the
 // i.i.d. upper reference, and the Dupuis–Fawzi–Renner continuity bound (docs/finite-size.md, "Checks").
 import { describe, expect, it, vi } from 'vitest';
-import { ComplexMatrix, addScaledInPlace } from '../../src/linear-algebra/complex-matrix.js';
+import { bellDiagonal } from '../objectives/fixtures.js';
 import { createObjective } from '../../src/objectives/index.js';
 import { buildExample } from '../../src/protocols/index.js';
 import { binaryEntropy } from '../../src/protocols/test-rounds.js';
@@ -24,23 +24,7 @@ const SHOR_PRESKILL = (1 - GAMMA) * (1 - 2 * binaryEntropy(Q));
 const SETTINGS = { gapTolerance: 1e-6, maxIterations: 40 };
 
 /** Bell-diagonal honest state with Z and X error rates Q: weights (1−Q)², Q(1−Q), Q(1−Q), Q² on Φ+, Φ−, Ψ+, Ψ−. */
-function honestState(q: number): ComplexMatrix {
-  const s = Math.SQRT1_2;
-  const bell = [
-    [s, 0, 0, s],
-    [s, 0, 0, -s],
-    [0, s, s, 0],
-    [0, s, -s, 0],
-  ];
-  const weights = [(1 - q) ** 2, q * (1 - q), q * (1 - q), q * q];
-  const rho = new ComplexMatrix(4, 4);
-  bell.forEach((v, k) => {
-    const projector = new ComplexMatrix(4, 4);
-    for (let i = 0; i < 4; i++) for (let j = 0; j < 4; j++) projector.re[i * 4 + j] = v[i] * v[j];
-    addScaledInPlace(rho, projector, weights[k]);
-  });
-  return rho;
-}
+const honestState = (q: number) => bellDiagonal([(1 - q) ** 2, q * (1 - q), q * (1 - q), q * q]);
 
 /** The fixed-length ledger at given (α, f) without any optimisation. */
 async function ledgerAt(alpha: number, scores: number[], rounds: number) {
