@@ -12,6 +12,7 @@ import { register as registerHealth } from './health.js';
 import { register as registerDemo } from './demo.js';
 import { register as registerAssemble } from './assemble.js';
 import { register as registerCache } from './cache.js';
+import { register as registerKeyLength } from './key-length.js';
 import { register as registerDecoyRate } from './decoy-rate.js';
 
 const program = new Command('renyi-bound')
@@ -28,6 +29,7 @@ registerHealth(program);
 registerDemo(program);
 registerAssemble(program);
 registerCache(program);
+registerKeyLength(program);
 registerDecoyRate(program);
 
 await program.parseAsync(process.argv);
