@@ -11,7 +11,7 @@ import { register as registerHealth } from '../../src/cli/health.js';
 import { register as registerSolve } from '../../src/cli/solve.js';
 import { register as registerSweep } from '../../src/cli/sweep.js';
 import { closeClients } from '../../src/client/client.js';
-import { buildExample } from '../../src/protocols/index.js';
+import { buildExample, EXAMPLES } from '../../src/protocols/index.js';
 import { runRegistered, startTestServer, type TestServer } from '../service/harness.js';
 import { startReplica } from '../service/replica-process.js';
 
@@ -60,7 +60,8 @@ describe('client commands against a server that is down', () => {
     writeFileSync(grid, JSON.stringify({ example: 'six-state', axes: [{ name: 'qbr', values: [0.01, 0.02, 0.03, 0.04] }], entropies: ['von-neumann'] }));
     const sweep = await run(['sweep', grid, '--server', DOWN]);
     expect(sweep.status).toBe(1);
-    expect(sweep.stderr).toBe('renyi-bound: grid.axes[0].name: "qbr" is not a parameter of six-state (expected qber, alpha)\n');
+    const expected = [...EXAMPLES['six-state'].parameters.map((p) => p.name), 'alpha'].join(', ');
+    expect(sweep.stderr).toBe(`renyi-bound: grid.axes[0].name: "qbr" is not a parameter of six-state (expected ${expected})\n`);
   });
 });
 
