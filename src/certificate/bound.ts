@@ -13,7 +13,7 @@ import type { Objective, ObjectiveEvaluation, ReferenceBlocks, BranchSupport } f
 import type { Problem } from '../problem/model.js';
 import { compressToFace, type FeasibleFace } from '../problem/feasible-face.js';
 import { matrixFromJson } from '../problem/json.js';
-import type { Certificate } from '../frank-wolfe/types.js';
+import type { Certificate } from '../result/types.js';
 import { pinchedBlocks } from '../objectives/spectral-blocks.js';
 import { isKeyless } from '../objectives/branch-supports.js';
 import { logCoefficient } from '../objectives/objective.js';

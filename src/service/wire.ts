@@ -1,5 +1,6 @@
 // Translation between the protobuf messages (as proto-loader decodes them) and the solver's own types.
-import type { Certificate, InfeasibilityCertificate, MatrixJson, SolveResult, SolverSettings, StopLimit } from '../frank-wolfe/types.js';
+import type { Certificate, FarkasCertificate, MatrixJson, SolveResult, StopLimit } from '../result/types.js';
+import type { SolverSettings } from '../frank-wolfe/settings.js';
 import type { EntropyKind } from '../problem/model.js';
 import { ENTROPY_ENUM_NAMES } from '../problem/validate.js';
 import type { Certificate as WireCertificate, Certificate__Output } from './generated/renyibound/v1/Certificate.js';
@@ -123,7 +124,7 @@ function certificateFromWire(wire: Certificate__Output): Certificate {
   return certificate;
 }
 
-function infeasibilityFromWire(wire: InfeasibilityCertificate__Output): InfeasibilityCertificate {
+function infeasibilityFromWire(wire: InfeasibilityCertificate__Output): FarkasCertificate {
   return {
     multipliersLower: [...wire.multipliersLower],
     multipliersUpper: [...wire.multipliersUpper],
