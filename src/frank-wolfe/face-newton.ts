@@ -64,7 +64,9 @@ export function faceNewtonStep<E extends FaceEvaluation>(
   let first = 0;
   while (first < n && values[first] < options.faceShare * largest) first++;
   const r = n - first;
-  if (r === 0) return null;
+  // The face has r² real coordinates less one per held row: too many for a formed Hessian, give up at once.
+  const heldRows = 1 + constraints.filter((c, i) => c.lower === c.upper || held[i] !== null).length;
+  if (r === 0 || r * r - heldRows > options.maxTangentDimension) return null;
   // Face coordinates: Hermitian K on the span of the large eigenvectors, as r² real numbers.
   const face = new ComplexMatrix(n, r);
   for (let i = 0; i < n; i++) {
@@ -240,5 +242,45 @@ function meetsIntervals(constraints: readonly LinearConstraint[], state: Complex
     const v = traceProductReal(c.operator, state);
     const slack = 1e-12 * (1 + Math.abs(v));
     return v >= c.lower - slack && v <= c.upper + slack;
+  });
+}
+
+/** When the solver tries face-Newton steps. */
+export const FACE_NEWTON_SCHEDULE = Object.freeze({
+  /** Not before this many oracle calls: the examples certify in one to four iterations without it. */
+  firstOracleCall: 6,
+  /** Face-Newton steps may take at most this share of the run's time so far. */
+  timeShare: 0.5,
+  /** A step lowering F by less than this share of the estimated gap does not pay; the next waits… */
+  payoff: 0.01,
+  /** …this many oracle calls, as after a step that found no decrease (the held sides may be changing). */
+  retryAfterOracleCalls: 5,
+  /** A side is held only when the iterate is within this share of the interval's width from it… */
+  nearShare: 0.1,
+  /** …and its multiplier is above this share of the largest one. */
+  multiplierShare: 1e-9,
+});
+
+/**
+ * The interval sides to hold on the face: those the iterate is already close to (within a tenth of the
+ * interval's width) whose multiplier from the oracle is positive — complementary slackness: at the optimum only
+ * active sides carry weight. Closeness matters because the multipliers of a table whose operators sum to the
+ * identity are not unique, so a side far from the iterate may carry weight without being active.
+ */
+export function heldIntervalSides(
+  constraints: readonly LinearConstraint[],
+  x: ComplexMatrix,
+  multipliers: { lower: ArrayLike<number>; upper: ArrayLike<number> },
+): HeldSide[] {
+  let largest = 0;
+  constraints.forEach((_, i) => (largest = Math.max(largest, multipliers.lower[i], multipliers.upper[i])));
+  const threshold = FACE_NEWTON_SCHEDULE.multiplierShare * largest;
+  return constraints.map((c, i) => {
+    if (c.lower === c.upper) return null;
+    const v = traceProductReal(c.operator, x);
+    const near = FACE_NEWTON_SCHEDULE.nearShare * (c.upper - c.lower);
+    if (multipliers.lower[i] > threshold && v - c.lower <= near) return 'lower';
+    if (multipliers.upper[i] > threshold && c.upper - v <= near) return 'upper';
+    return null;
   });
 }

@@ -97,6 +97,7 @@ export function assembleResult(setup: SolverSetup, state: SolverState): SolveRes
     ...base,
     status,
     limit: status === 'LIMIT_REACHED' ? (limit ?? 'iterations') : undefined,
+    noProgressCause: status === 'LIMIT_REACHED' && limit === 'no-progress' ? state.noProgressCause : undefined,
     message:
       status === 'LIMIT_REACHED'
         ? `stopped by the ${limit ?? 'iteration'} limit with gap ${gap.toExponential(3)} above the requested ${settings.gapTolerance}`

@@ -9,12 +9,13 @@ import {
 } from '../linear-algebra/complex-matrix.js';
 import type { ObjectiveEvaluation } from '../objectives/index.js';
 import type { LinearOracle, OracleResult } from '../oracle/index.js';
-import type { StopLimit } from '../result/types.js';
+import type { NoProgressCause, StopLimit } from '../result/types.js';
 import { certify, restoreMultipliers } from './certify.js';
+import { faceNewtonStep, FACE_NEWTON_SCHEDULE, heldIntervalSides } from './face-newton.js';
 import { derivativeLineSearch } from './line-search.js';
 import { TUNING } from './settings.js';
 import { alongActiveIntervals, stepToEigenvalueFloor, stepToIntervalBounds } from './step-limits.js';
-import { bestLowerBound, evaluateSafely, iterateEigen, type SolverSetup, type SolverState } from './state.js';
+import { bestLowerBound, evaluateSafely, iterateEigen, type Multipliers, type SolverSetup, type SolverState } from './state.js';
 
 /** What an iteration asks of the loop: go on, stop (certified), or end without a bound (the reason). */
 export type IterationOutcome = 'continue' | 'stop' | { failure: string };
@@ -35,9 +36,30 @@ export function reachedLimit(setup: SolverSetup, state: SolverState): StopLimit 
     state.oracleAccuracy <= TUNING.finestOracleAccuracy &&
     state.iterations - state.progressIteration >= TUNING.progressWindow
   ) {
-    return 'no-progress';
+    state.noProgressCause = noProgressCause(settings.gapTolerance, state);
+    if (state.noProgressCause !== undefined) return 'no-progress';
+    // Neither allowance explains the gap: keep optimising (the time and iteration limits still apply).
+    state.progressIteration = state.iterations;
   }
   return undefined;
+}
+
+/** How many times the dominant floating-point allowance the gap may be for a no-progress stop. */
+const NO_PROGRESS_DOMINANCE = 4;
+
+/**
+ * The allowance that explains a stalled gap — the best certificate's margin or the oracle's own duality gap — when
+ * the gap is at most NO_PROGRESS_DOMINANCE times it; undefined when the gap is larger (the stall is the
+ * optimiser's, not rounding's, so stopping would be premature).
+ */
+export function noProgressCause(gapTolerance: number, state: SolverState): NoProgressCause | undefined {
+  if (state.best === null) return undefined;
+  const gap = state.evaluation.value - state.best.breakdown.lowerBound;
+  if (!(gap > gapTolerance)) return undefined;
+  const margin = state.best.breakdown.margin;
+  const oracle = Math.max(0, state.lastOracleGap);
+  if (gap > NO_PROGRESS_DOMINANCE * Math.max(margin, oracle)) return undefined;
+  return margin >= oracle ? 'margin' : 'oracle-accuracy';
 }
 
 export function iterate(setup: SolverSetup, state: SolverState): IterationOutcome {
@@ -60,6 +82,7 @@ export function iterate(setup: SolverSetup, state: SolverState): IterationOutcom
     const consulted = consultOracle(setup, state, split);
     if (consulted === 'stop' || 'failure' in consulted) return consulted;
     answer = consulted.answer;
+    if (faceNewtonMove(setup, state, consulted.multipliers)) return 'continue';
   }
 
   if (tryQuasiNewton && quasiNewtonStep(setup, state, split)) return 'continue';
@@ -70,9 +93,38 @@ export function iterate(setup: SolverSetup, state: SolverState): IterationOutcom
     const consulted = consultOracle(setup, state, split);
     if (consulted === 'stop' || 'failure' in consulted) return consulted;
     answer = consulted.answer;
+    if (faceNewtonMove(setup, state, consulted.multipliers)) return 'continue';
   }
   pairwiseStep(setup, state, answer.point as ComplexMatrix);
   return 'continue';
+}
+
+/**
+ * Once Frank–Wolfe has run a few oracle calls without certifying, a Newton step on the face of the interval sides
+ * the oracle's multipliers hold active (and the iterate's large eigen-directions); after a failed attempt the
+ * next waits a few oracle calls. The oracle is consulted right after a move, so the new point is certified next.
+ */
+function faceNewtonMove(setup: SolverSetup, state: SolverState, multipliers: Multipliers): boolean {
+  if (state.oracleCalls < Math.max(FACE_NEWTON_SCHEDULE.firstOracleCall, state.faceNewtonRetryAt)) return false;
+  // Its Hessian costs two evaluations per tangent direction: never more than a share of the run's time.
+  if (state.faceNewtonMs > FACE_NEWTON_SCHEDULE.timeShare * setup.clock.elapsedMs()) return false;
+  const started = performance.now();
+  const held = heldIntervalSides(setup.restricted.constraints, state.x, multipliers);
+  const moved = faceNewtonStep(state.x, state.evaluation, setup.restricted.constraints, held, (point) =>
+    evaluateSafely(setup.objective, point),
+  );
+  state.faceNewtonMs += performance.now() - started;
+  const decrease = moved ? state.evaluation.value - moved.evaluation.value : 0;
+  if (!moved || decrease < FACE_NEWTON_SCHEDULE.payoff * state.lastEstimatedGap) {
+    state.faceNewtonRetryAt = state.oracleCalls + FACE_NEWTON_SCHEDULE.retryAfterOracleCalls;
+  }
+  if (!moved) return false;
+  state.lastDecrease = 0;
+  state.x = moved.point;
+  state.evaluation = moved.evaluation;
+  state.atoms.reset(state.x);
+  state.afterFrankWolfe = true;
+  return true;
 }
 
 /** A quasi-Newton step sliding along active intervals; false when it cannot lower F (Frank–Wolfe takes over). */
@@ -147,7 +199,7 @@ function consultOracle(
   setup: SolverSetup,
   state: SolverState,
   split: EqualitySplit,
-): { answer: OracleResult } | Exclude<IterationOutcome, 'continue'> {
+): { answer: OracleResult; multipliers: Multipliers } | Exclude<IterationOutcome, 'continue'> {
   const { oracle, settings, clock } = setup;
   state.quasiNewtonRun = 0;
   // Far from the optimum a rough answer steps as well as an exact one and costs fewer interior-point iterations.
@@ -158,6 +210,7 @@ function consultOracle(
   const answer = clock.timeOracle(() => oracle.minimize(split.stripped, { relativeAccuracy: accuracy }));
   if (!answer.point) return { failure: `linear oracle failed: ${answer.message ?? answer.status}` };
   const multipliers = restoreMultipliers(answer, split.equalityCoefficients);
+  state.lastOracleGap = answer.primalValue - answer.dualBound;
   const estimatedGap = traceProductReal(split.stripped, state.x) - answer.dualBound;
   state.lastEstimatedGap = estimatedGap;
   const upper = state.evaluation.value;
@@ -179,5 +232,5 @@ function consultOracle(
     state.windowStart = state.iterations;
     state.gapAtWindowStart = estimatedGap;
   }
-  return { answer };
+  return { answer, multipliers };
 }

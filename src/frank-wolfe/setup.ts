@@ -97,6 +97,10 @@ export function setUp(
     lastDecrease: 0,
     afterFrankWolfe: false,
     lastEstimatedGap: Infinity,
+    faceNewtonRetryAt: 0,
+    lastOracleGap: Infinity,
+    noProgressCause: undefined,
+    faceNewtonMs: 0,
     eigenOf: null,
   };
   return { ready: true, setup, state };

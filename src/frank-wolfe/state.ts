@@ -5,7 +5,7 @@ import type { Objective, ObjectiveEvaluation, ReferenceBlocks } from '../objecti
 import type { LinearOracle } from '../oracle/index.js';
 import type { FeasibleFace } from '../problem/feasible-face.js';
 import type { EntropyRequest, Problem } from '../problem/model.js';
-import type { SolveResult, StopLimit } from '../result/types.js';
+import type { NoProgressCause, SolveResult, StopLimit } from '../result/types.js';
 import type { BoundBreakdown } from '../certificate/bound.js';
 import type { ActiveSet } from './active-set.js';
 import type { TangentQuasiNewton } from './quasi-newton.js';
@@ -91,6 +91,14 @@ export interface SolverState {
   lastDecrease: number;
   afterFrankWolfe: boolean;
   lastEstimatedGap: number;
+  /** Oracle calls before which no face-Newton step is tried again (after a failed one). */
+  faceNewtonRetryAt: number;
+  /** The last oracle answer's own duality gap (primal − dual): how finely it resolves the linear minimum. */
+  lastOracleGap: number;
+  /** Set when the run stops on no-progress. */
+  noProgressCause: NoProgressCause | undefined;
+  /** Milliseconds spent in face-Newton steps so far. */
+  faceNewtonMs: number;
   /** The iterate's eigendecomposition, computed at most once per iterate. */
   eigenOf: { state: ComplexMatrix; eigen: HermitianEigen } | null;
 }

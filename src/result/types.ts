@@ -8,6 +8,11 @@ export type { MatrixJson };
 export type SolveStatus = 'CERTIFIED' | 'LIMIT_REACHED' | 'INFEASIBLE' | 'NUMERICAL_ERROR';
 /** no-progress: the certified gap stopped shrinking (floating-point margin or oracle accuracy dominates it). */
 export type StopLimit = 'iterations' | 'time' | 'cancelled' | 'no-progress';
+/**
+ * What dominated the gap when a run stopped on no-progress: the floating-point margin of the best certificate, or
+ * the linear oracle's own duality gap at its finest accuracy (each at least a quarter of the gap at the stop).
+ */
+export type NoProgressCause = 'margin' | 'oracle-accuracy';
 
 /** Everything a third party needs, besides the problem, to recompute the bound. */
 export interface Certificate {
@@ -42,6 +47,8 @@ export interface FarkasCertificate {
 export interface SolveResult {
   status: SolveStatus;
   limit?: StopLimit;
+  /** For limit no-progress: which floating-point allowance dominated the gap. */
+  noProgressCause?: NoProgressCause;
   message?: string;
   entropy: string;
   alpha: number | null;
