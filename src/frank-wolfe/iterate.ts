@@ -116,7 +116,11 @@ function faceNewtonMove(setup: SolverSetup, state: SolverState, multipliers: Mul
   state.faceNewtonMs += performance.now() - started;
   const decrease = moved ? state.evaluation.value - moved.evaluation.value : 0;
   if (!moved || decrease < FACE_NEWTON_SCHEDULE.payoff * state.lastEstimatedGap) {
-    state.faceNewtonRetryAt = state.oracleCalls + FACE_NEWTON_SCHEDULE.retryAfterOracleCalls;
+    // Each unpaid attempt doubles the wait (an optimum on the cone's boundary gains little from the face).
+    state.faceNewtonRetryAt = state.oracleCalls + FACE_NEWTON_SCHEDULE.retryAfterOracleCalls * 2 ** state.faceNewtonMisses;
+    state.faceNewtonMisses++;
+  } else {
+    state.faceNewtonMisses = 0;
   }
   if (!moved) return false;
   state.lastDecrease = 0;

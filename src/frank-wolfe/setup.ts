@@ -98,6 +98,7 @@ export function setUp(
     afterFrankWolfe: false,
     lastEstimatedGap: Infinity,
     faceNewtonRetryAt: 0,
+    faceNewtonMisses: 0,
     lastOracleGap: Infinity,
     noProgressCause: undefined,
     faceNewtonMs: 0,

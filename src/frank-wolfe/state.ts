@@ -93,6 +93,8 @@ export interface SolverState {
   lastEstimatedGap: number;
   /** Oracle calls before which no face-Newton step is tried again (after a failed one). */
   faceNewtonRetryAt: number;
+  /** Face-Newton attempts in a row that did not pay. */
+  faceNewtonMisses: number;
   /** The last oracle answer's own duality gap (primal − dual): how finely it resolves the linear minimum. */
   lastOracleGap: number;
   /** Set when the run stops on no-progress. */
