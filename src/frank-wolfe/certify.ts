@@ -81,7 +81,10 @@ export function certify(setup: SolverSetup, state: SolverState, y: Multipliers):
     addScaledInPlace(mixture, setup.interiorPoint, share);
     certifyNeighbour(setup, state, mixture);
   }
-  for (const level of TUNING.certificateLiftLevels) {
+  // Half-decade steps between the tuned levels: near a boundary optimum the margin (∝ 1/μ) and the linearization
+  // loss (∝ μ) cross steeply, and the best μ decides whether a gap of 1e-6 is reachable at all.
+  const levels = TUNING.certificateLiftLevels.flatMap((level) => [level, level * Math.sqrt(10)]);
+  for (const level of levels) {
     if (level <= values[0]) continue;
     const lifted = Float64Array.from(values, (v) => Math.max(v, level) - v);
     certifyNeighbour(setup, state, add(x, hermitianPart(multiply(multiply(vectors, ComplexMatrix.diagonal(lifted)), adjoint(vectors)))));

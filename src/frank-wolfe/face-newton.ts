@@ -249,8 +249,8 @@ function meetsIntervals(constraints: readonly LinearConstraint[], state: Complex
 export const FACE_NEWTON_SCHEDULE = Object.freeze({
   /** Not before this many oracle calls: the examples certify in one to four iterations without it. */
   firstOracleCall: 6,
-  /** Face-Newton steps may take at most this share of the run's time so far. */
-  timeShare: 0.5,
+  /** Face-Newton steps may use at most this many objective evaluations per solver iteration so far. */
+  evaluationsPerIteration: 20,
   /** A step lowering F by less than this share of the estimated gap does not pay; the next waits… */
   payoff: 0.01,
   /** …this many oracle calls, as after a step that found no decrease (the held sides may be changing). */

@@ -106,14 +106,14 @@ export function iterate(setup: SolverSetup, state: SolverState): IterationOutcom
  */
 function faceNewtonMove(setup: SolverSetup, state: SolverState, multipliers: Multipliers): boolean {
   if (state.oracleCalls < Math.max(FACE_NEWTON_SCHEDULE.firstOracleCall, state.faceNewtonRetryAt)) return false;
-  // Its Hessian costs two evaluations per tangent direction: never more than a share of the run's time.
-  if (state.faceNewtonMs > FACE_NEWTON_SCHEDULE.timeShare * setup.clock.elapsedMs()) return false;
-  const started = performance.now();
+  // Its Hessian costs two evaluations per tangent direction: a budget per iteration keeps it from dominating
+  // (counted, not timed, so that a run is reproducible from its input).
+  if (state.faceNewtonEvaluations > FACE_NEWTON_SCHEDULE.evaluationsPerIteration * state.iterations) return false;
   const held = heldIntervalSides(setup.restricted.constraints, state.x, multipliers);
-  const moved = faceNewtonStep(state.x, state.evaluation, setup.restricted.constraints, held, (point) =>
-    evaluateSafely(setup.objective, point),
-  );
-  state.faceNewtonMs += performance.now() - started;
+  const moved = faceNewtonStep(state.x, state.evaluation, setup.restricted.constraints, held, (point) => {
+    state.faceNewtonEvaluations++;
+    return evaluateSafely(setup.objective, point);
+  });
   const decrease = moved ? state.evaluation.value - moved.evaluation.value : 0;
   if (!moved || decrease < FACE_NEWTON_SCHEDULE.payoff * state.lastEstimatedGap) {
     // Each unpaid attempt doubles the wait (an optimum on the cone's boundary gains little from the face).

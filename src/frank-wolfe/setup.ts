@@ -101,7 +101,7 @@ export function setUp(
     faceNewtonMisses: 0,
     lastOracleGap: Infinity,
     noProgressCause: undefined,
-    faceNewtonMs: 0,
+    faceNewtonEvaluations: 0,
     eigenOf: null,
   };
   return { ready: true, setup, state };

@@ -99,8 +99,8 @@ export interface SolverState {
   lastOracleGap: number;
   /** Set when the run stops on no-progress. */
   noProgressCause: NoProgressCause | undefined;
-  /** Milliseconds spent in face-Newton steps so far. */
-  faceNewtonMs: number;
+  /** Objective evaluations spent in face-Newton steps so far. */
+  faceNewtonEvaluations: number;
   /** The iterate's eigendecomposition, computed at most once per iterate. */
   eigenOf: { state: ComplexMatrix; eigen: HermitianEigen } | null;
 }
