@@ -7,7 +7,10 @@ const SECTIONS: Record<string, () => Promise<BenchTable[]>> = {
   'linear-algebra': async () => (await import('./linear-algebra.js')).benchLinearAlgebra(),
   oracle: async () => (await import('./oracle.js')).benchOracle(),
   objectives: async () => [(await import('./solver.js')).benchObjectives()],
-  solver: async () => [(await import('./solver.js')).benchSolves()],
+  solver: async () => {
+    const solver = await import('./solver.js');
+    return [solver.benchSolves(), solver.benchBoundaryOptima()];
+  },
   // Loaded by name: the service benchmark starts servers and worker threads only when asked for.
   service: async () => ((await import(SERVICE_MODULE)) as { benchService: () => Promise<BenchTable[]> }).benchService(),
 };
