@@ -2,7 +2,7 @@
 import { describe, expect, it } from 'vitest';
 import { certificateBreakdown, eulerInnerProduct } from '../../src/certificate/bound.js';
 import { solve } from '../../src/frank-wolfe/solve.js';
-import { adjoint, conjugate, multiply, traceProductReal, type ComplexMatrix } from '../../src/linear-algebra/complex-matrix.js';
+import { conjugate, traceProductReal, type ComplexMatrix } from '../../src/linear-algebra/complex-matrix.js';
 import { createObjective } from '../../src/objectives/index.js';
 import { feasibleFace } from '../../src/problem/feasible-face.js';
 import { matrixFromJson, matrixToJson } from '../../src/problem/json.js';
@@ -10,6 +10,7 @@ import type { EntropyRequest, Problem } from '../../src/problem/model.js';
 import { randomDensity, randomUnitary, seededRandom } from '../helpers/random.js';
 import { randomInstrumentProblem } from '../objectives/fixtures.js';
 import { example } from '../frank-wolfe/helpers.js';
+import { rotated } from './rotation.js';
 
 const KINDS: EntropyRequest[] = [
   { kind: 'von-neumann' },
@@ -40,15 +41,6 @@ describe("Euler's identity for positively homogeneous functions: ⟨∇f(x), x�
     });
   }
 });
-
-/** The same problem in the basis U (Kraus K·U†, constraints UΓU†): mathematically identical bounds. */
-function rotated(problem: Problem, u: ComplexMatrix): Problem {
-  return {
-    ...problem,
-    constraints: problem.constraints.map((c) => ({ ...c, operator: conjugate(u, c.operator) })),
-    branches: problem.branches.map((b) => ({ ...b, krausOperators: b.krausOperators.map((k) => multiply(k, adjoint(u))) })),
-  };
-}
 
 describe('near-singular linearization points: bounds recomputed in random bases stay within the margin', () => {
   const cases: [string, Record<string, number>, EntropyRequest][] = [
