@@ -110,7 +110,7 @@ describe('no-progress is reported only when a floating-point allowance explains 
       expect(result.gap!).toBeLessThanOrEqual(4 * result.toleranceMargin!);
     }
     expect(verifyResult(problem, { kind: 'petz-up', alpha: 2 }, result).valid).toBe(true);
-  });
+  }, 60000); // a margin-dominated run iterates until its no-progress window closes (seconds on a loaded machine)
 
   it('on the POVM-table family, no run stops on no-progress at a gap 100 × its margin', () => {
     for (const seed of [5, 16, 21, 29, 40]) {
@@ -124,5 +124,5 @@ describe('no-progress is reported only when a floating-point allowance explains 
       }
       expect(verifyResult(problem, { kind: 'petz-up', alpha: 1.5 }, result).valid).toBe(true);
     }
-  });
+  }, 60000); // five solves of up to 4 s each
 });
