@@ -11,6 +11,7 @@ const SECTIONS: Record<string, () => Promise<BenchTable[]>> = {
     const solver = await import('./solver.js');
     return [solver.benchSolves(), solver.benchBoundaryOptima()];
   },
+  decoy: async () => (await import('./decoy.js')).benchDecoy(),
   // Loaded by name: the service benchmark starts servers and worker threads only when asked for.
   service: async () => ((await import(SERVICE_MODULE)) as { benchService: () => Promise<BenchTable[]> }).benchService(),
 };
