@@ -45,6 +45,7 @@ export class EqualitySpan {
     values: number[],
     indices: number[],
     checkpoint?: () => void,
+    consistencyTolerance: number = CONSISTENCY_TOLERANCE,
   ) {
     this.dimension = dimension;
     const n = dimension;
@@ -88,7 +89,7 @@ export class EqualitySpan {
           constraintIndex: indices[c],
           coefficients: projection,
           mismatch,
-          consistent: Math.abs(mismatch) <= CONSISTENCY_TOLERANCE * (1 + Math.abs(values[c]) + Math.abs(implied)),
+          consistent: Math.abs(mismatch) <= consistencyTolerance * (1 + Math.abs(values[c]) + Math.abs(implied)),
         });
         continue;
       }

@@ -103,6 +103,10 @@ export class LinearOracle {
     this.settings = resolveSettings(DEFAULT_ORACLE_SETTINGS, options, 'settings');
     const checkpoint = options?.checkpoint;
     if (checkpoint !== undefined && typeof checkpoint !== 'function') throw new OracleInputError('checkpoint', 'must be a function');
+    const implied = options?.impliedEqualityTolerance;
+    if (implied !== undefined && !(typeof implied === 'number' && implied > 0 && implied <= 1e-3)) {
+      throw new OracleInputError('impliedEqualityTolerance', `must be a number in (0, 1e-3], got ${String(implied)}`);
+    }
     this.checkpoint = checkpoint;
     const n = dimension;
     const size = n * n;
@@ -153,6 +157,7 @@ export class LinearOracle {
       equalityIndices.map((i) => constraints[i].lower),
       equalityIndices,
       checkpoint,
+      options?.impliedEqualityTolerance,
     );
     checkpoint?.();
 

@@ -25,6 +25,12 @@ export type Checkpoint = () => void;
 /** Constructor options: settings plus an optional checkpoint kept for every later call. */
 export interface OracleOptions extends Partial<OracleSettings> {
   checkpoint?: Checkpoint;
+  /**
+   * Relative right-hand-side mismatch up to which an equality that depends on the others counts as implied by them
+   * (default 1e-9). Only faces found numerically by exposing directions need more: their constraints agree to
+   * about √u only (the square-root sensitivity of facial reduction).
+   */
+  impliedEqualityTolerance?: number;
 }
 
 /** Per-call options of `minimize`: settings for this call and a checkpoint (overrides the constructor's). */
