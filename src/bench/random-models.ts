@@ -38,6 +38,11 @@ export interface RandomModelTraits {
   sourceMarginal: boolean;
   /** Extra generic equalities whose combination exposes the kernel of the state: no feasible state has full rank. */
   face: boolean;
+  /**
+   * Instead of tables: d² − 1 random operators with ±1e-3 intervals around a full-rank state, a small box inside the
+   * cone whose optimum has many intervals active and lies in the interior (d ≤ 8 only).
+   */
+  box: boolean;
 }
 
 export interface RandomModel {
@@ -182,6 +187,8 @@ export function randomModelTraits(dimension: number, seed: number, overrides: Pa
   const branches = 1 + Math.floor(rng() * 3);
   const lowRank = rng() < 0.4;
   const face = rng() < 0.2;
+  // Every fourth seed at d ≤ 8 is a box: the interval stalls reported for small models come from this shape.
+  const box = dimension <= 8 && seed % 4 === 0;
   const traits: RandomModelTraits = {
     branches,
     keylessBranch: branches > 1 && rng() < 0.5,
@@ -191,7 +198,9 @@ export function randomModelTraits(dimension: number, seed: number, overrides: Pa
     intervals: rng() < 0.5,
     sourceMarginal: rng() < 0.35,
     face,
+    box,
   };
+  if (box) Object.assign(traits, { truthRank: dimension, table: 'partial', intervals: true, face: false, sourceMarginal: false });
   return { ...traits, ...overrides };
 }
 
@@ -213,7 +222,7 @@ export function randomModel(dimension: number, seed: number, overrides: Partial<
   const tables = Math.max(1, Math.floor(budget / (outcomesA * outcomesB)));
   const observations: ObservedStatisticsJson[] = [];
   const constraints: LinearConstraintJson[] = [];
-  for (let t = 0; t < tables; t++) {
+  for (let t = 0; t < (traits.box ? 0 : tables); t++) {
     const povmA = randomPovm(dA, outcomesA, rng() < 0.5, rng);
     const povmB = randomPovm(dB, outcomesB, rng() < 0.5, rng);
     const entries: { x: number; y: number; operator: ComplexMatrix; p: number }[] = [];
@@ -236,6 +245,13 @@ export function randomModel(dimension: number, seed: number, overrides: Partial<
         if (rng() < 0.5) continue;
         constraints.push({ label: `table-${t}[${e.x},${e.y}]`, operator: matrixToJson(e.operator), lower: e.p - tolerance, upper: e.p + tolerance });
       }
+    }
+  }
+  if (traits.box) {
+    for (let k = 0; k < d * d - 1; k++) {
+      const operator = randomHermitianFrom(d, rng);
+      const value = traceProductReal(operator, truth);
+      constraints.push({ label: `box-${k}`, operator: matrixToJson(operator), lower: value - INTERVAL_TOLERANCE, upper: value + INTERVAL_TOLERANCE });
     }
   }
   if (traits.face && traits.truthRank < d) {
@@ -287,5 +303,6 @@ export function modelName(d: number, seed: number, t: RandomModelTraits): string
   parts.push(t.truthRank < d ? `rank${t.truthRank}` : 'full-rank', t.table, t.intervals ? '±1e-3' : 'equalities');
   if (t.sourceMarginal) parts.push('marginal');
   if (t.face) parts.push('face');
+  if (t.box) parts.push('box');
   return parts.join(' ');
 }

@@ -50,6 +50,15 @@ describe('random device models', () => {
     expect(Math.abs(face[1].lower - face[0].lower)).toBeLessThan(1e-12);
   });
 
+  it('box models surround a state well inside the cone with d² − 1 intervals (optimum interior, intervals active)', () => {
+    const model = randomModel(4, 4);
+    expect(model.traits.box).toBe(true);
+    expect(model.problem.constraints.length).toBe(15);
+    expect(model.problem.constraints.every((c) => Math.abs(c.upper - c.lower - 2e-3) < 1e-12)).toBe(true);
+    // mathjs: the generating state is far from the boundary of the cone.
+    expect(referenceEigenvalues(model.truth)[0]).toBeGreaterThan(1e-3);
+  });
+
   it('larger dimensions build within the constraint budget', () => {
     const model = randomModel(32, 1);
     expect(model.problem.constraints.length).toBeGreaterThan(10);
