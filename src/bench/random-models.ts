@@ -1,7 +1,7 @@
 // Seeded random device models for the benchmark suite and the tests: random instruments and key maps, scores,
 // joint POVM tables (full and partial) from a known state, equalities and ±1e-3 intervals, fixed source marginals,
 // and feasible sets with no full-rank state. Same (dimension, seed) ⇒ same model on every platform.
-import { ComplexMatrix, kron, multiply, adjoint, partialTraceB, traceProductReal } from '../linear-algebra/complex-matrix.js';
+import { adjoint, ComplexMatrix, hermitianPart, kron, multiply, partialTraceB, traceProductReal } from '../linear-algebra/complex-matrix.js';
 import { eigh } from '../linear-algebra/eigen.js';
 import { matrixPower } from '../linear-algebra/matrix-functions.js';
 import { matrixToJson, type LinearConstraintJson, type ObservedStatisticsJson, type ProblemJson } from '../problem/json.js';
@@ -76,15 +76,7 @@ function gaussianMatrix(rows: number, cols: number, rng: Rng): ComplexMatrix {
 
 /** Random unitary: the eigenvectors of a random Hermitian matrix (not Haar, but generic, which is all we need). */
 function randomUnitary(n: number, rng: Rng): ComplexMatrix {
-  const g = gaussianMatrix(n, n, rng);
-  const h = new ComplexMatrix(n, n);
-  for (let i = 0; i < n; i++) {
-    for (let j = 0; j < n; j++) {
-      h.re[i * n + j] = 0.5 * (g.re[i * n + j] + g.re[j * n + i]);
-      h.im[i * n + j] = 0.5 * (g.im[i * n + j] - g.im[j * n + i]);
-    }
-  }
-  return eigh(h).vectors;
+  return eigh(hermitianPart(gaussianMatrix(n, n, rng))).vectors;
 }
 
 /** Columns `start..end` of a matrix as a new matrix. */
@@ -99,6 +91,11 @@ function columnBlock(m: ComplexMatrix, start: number, end: number): ComplexMatri
   return out;
 }
 
+/** Rows `start..end` of a matrix as a new matrix (one branch's Kraus operator from the instrument's isometry). */
+function rowBlock(m: ComplexMatrix, start: number, end: number): ComplexMatrix {
+  return new ComplexMatrix(end - start, m.cols, m.re.slice(start * m.cols, end * m.cols), m.im.slice(start * m.cols, end * m.cols));
+}
+
 /** U·diag(w)·U† for the first w.length columns of U. */
 function weightedProjection(u: ComplexMatrix, weights: readonly number[], first = 0): ComplexMatrix {
   const block = columnBlock(u, first, first + weights.length);
@@ -109,19 +106,7 @@ function weightedProjection(u: ComplexMatrix, weights: readonly number[], first 
       scaled.im[i * weights.length + j] *= weights[j];
     }
   }
-  return hermitian(multiply(scaled, adjoint(block)));
-}
-
-function hermitian(a: ComplexMatrix): ComplexMatrix {
-  const n = a.rows;
-  const out = new ComplexMatrix(n, n);
-  for (let i = 0; i < n; i++) {
-    for (let j = 0; j < n; j++) {
-      out.re[i * n + j] = 0.5 * (a.re[i * n + j] + a.re[j * n + i]);
-      out.im[i * n + j] = 0.5 * (a.im[i * n + j] - a.im[j * n + i]);
-    }
-  }
-  return out;
+  return hermitianPart(multiply(scaled, adjoint(block)));
 }
 
 /** A density operator of the given rank with eigenvalues drawn from a flat Dirichlet, in a random eigenbasis. */
@@ -146,12 +131,12 @@ function randomPovm(n: number, outcomes: number, projective: boolean, rng: Rng):
   }
   const parts = Array.from({ length: outcomes }, () => {
     const g = gaussianMatrix(n, Math.max(1, Math.ceil(n / outcomes)), rng);
-    return hermitian(multiply(g, adjoint(g)));
+    return hermitianPart(multiply(g, adjoint(g)));
   });
   const sum = new ComplexMatrix(n, n);
   for (const p of parts) for (let t = 0; t < n * n; t++) (sum.re[t] += p.re[t]), (sum.im[t] += p.im[t]);
   const inverseRoot = matrixPower(sum, -0.5);
-  return parts.map((p) => hermitian(multiply(multiply(inverseRoot, p), inverseRoot)));
+  return parts.map((p) => hermitianPart(multiply(multiply(inverseRoot, p), inverseRoot)));
 }
 
 /** Random instrument: rows of a random isometry C^d → C^{Σ outputs} split into branches, diagonal key blocks. */
@@ -162,13 +147,7 @@ function randomBranches(d: number, count: number, keyless: boolean, scored: bool
   const isometry = columnBlock(randomUnitary(total, rng), 0, d);
   let offset = 0;
   return outputs.map((n, c) => {
-    const kraus = new ComplexMatrix(n, d);
-    for (let i = 0; i < n; i++) {
-      for (let j = 0; j < d; j++) {
-        kraus.re[i * d + j] = isometry.re[(offset + i) * d + j];
-        kraus.im[i * d + j] = isometry.im[(offset + i) * d + j];
-      }
-    }
+    const kraus = rowBlock(isometry, offset, offset + n);
     offset += n;
     const blocks = keyless && c === count - 1 ? 1 : 2 + Math.floor(rng() * Math.min(3, n - 1));
     const keyProjectors = Array.from({ length: blocks }, (_, k) => {
@@ -284,7 +263,7 @@ export function randomModel(dimension: number, seed: number, overrides: Partial<
 }
 
 function randomHermitianFrom(n: number, rng: Rng): ComplexMatrix {
-  return hermitian(gaussianMatrix(n, n, rng));
+  return hermitianPart(gaussianMatrix(n, n, rng));
 }
 
 function sum(a: ComplexMatrix, b: ComplexMatrix, weight: number): ComplexMatrix {
