@@ -96,8 +96,10 @@ export async function benchRandomSuite(argv: readonly string[] = process.argv): 
   const { filename, execArgv } = workerLocation();
   const pool = new Piscina({ filename, execArgv, minThreads: options.jobs, maxThreads: options.jobs, idleTimeout: 1000 });
   const started = performance.now();
+  // Largest first: the long d = 128 solve then runs beside the many small ones instead of after them.
+  const order = [...tasks].sort((a, b) => b.dimension - a.dimension);
   const outcomes = await Promise.all(
-    tasks.map(async (task) => {
+    order.map(async (task) => {
       const outcome = (await pool.run(task)) as SuiteOutcome;
       process.stderr.write(`random-suite: ${outcome.name} ${task.kindName}: ${outcome.status}${outcome.limit ? `/${outcome.limit}` : ''} gap ${outcome.gap?.toExponential(1) ?? '-'} in ${seconds(outcome.seconds)} s\n`);
       return { task, outcome };
@@ -142,7 +144,7 @@ export async function benchRandomSuite(argv: readonly string[] = process.argv): 
     tables.push({
       title: 'Random device models, every solve',
       columns: ['model', 'kind', 'status', 'gap', 's', 'oracle share', 'iterations', 'verified', 'bound ≤ F(truth)'],
-      rows: outcomes.map(({ task, outcome: o }) => [
+      rows: [...outcomes].sort((a, b) => a.task.dimension - b.task.dimension).map(({ task, outcome: o }) => [
         o.name,
         task.kindName,
         o.limit ? `${o.status}/${o.limit}` : o.status,
