@@ -9,6 +9,7 @@ import {
 } from '../linear-algebra/complex-matrix.js';
 import { eigh } from '../linear-algebra/eigen.js';
 import { rangeIsometry } from '../linear-algebra/support.js';
+import { ValidationError } from './errors.js';
 import type { AnnouncementBranch, LinearConstraint, Problem } from './model.js';
 
 /**
@@ -29,12 +30,10 @@ export interface FaceExposure {
 }
 
 /** An exposure that fails its check: the field names it, the reason says why. */
-export class FaceExposureError extends Error {
-  readonly field: string;
+export class FaceExposureError extends ValidationError {
   constructor(field: string, reason: string) {
-    super(`${field}: ${reason}`);
+    super(field, reason);
     this.name = 'FaceExposureError';
-    this.field = field;
   }
 }
 
