@@ -9,6 +9,7 @@ const SECTIONS: Record<string, () => Promise<BenchTable[]>> = {
   objectives: async () => [(await import('./solver.js')).benchObjectives()],
   solver: async () => [(await import('./solver.js')).benchSolves()],
   'random-suite': async () => (await import('./random-suite.js')).benchRandomSuite(),
+  'finite-size': async () => (await import('./finite-size.js')).benchFiniteSize(),
   decoy: async () => (await import('./decoy.js')).benchDecoy(),
   // Loaded by name: the service benchmark starts servers and worker threads only when asked for.
   service: async () => ((await import(SERVICE_MODULE)) as { benchService: () => Promise<BenchTable[]> }).benchService(),
