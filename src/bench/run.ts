@@ -11,6 +11,7 @@ const SECTIONS: Record<string, () => Promise<BenchTable[]>> = {
     const solver = await import('./solver.js');
     return [solver.benchSolves(), solver.benchBoundaryOptima()];
   },
+  'random-suite': async () => (await import('./random-suite.js')).benchRandomSuite(),
   'finite-size': async () => (await import('./finite-size.js')).benchFiniteSize(),
   decoy: async () => (await import('./decoy.js')).benchDecoy(),
   // Loaded by name: the service benchmark starts servers and worker threads only when asked for.
