@@ -38,7 +38,14 @@ export class EqualitySpan {
   readonly dependent: DependentEquality[] = [];
 
   /** `operators[i]` with `values[i]` are the equalities, `indices[i]` their constraint positions. */
-  constructor(dimension: number, operators: { re: Float64Array; im: Float64Array }[], values: number[], indices: number[]) {
+  /** `checkpoint` is called between operators (Gram–Schmidt costs O(m²d²) at large d) and may throw to abort. */
+  constructor(
+    dimension: number,
+    operators: { re: Float64Array; im: Float64Array }[],
+    values: number[],
+    indices: number[],
+    checkpoint?: () => void,
+  ) {
     this.dimension = dimension;
     const n = dimension;
     const identityRe = new Float64Array(n * n);
@@ -52,6 +59,7 @@ export class EqualitySpan {
     const workRe = new Float64Array(n * n);
     const workIm = new Float64Array(n * n);
     for (let c = 0; c < operators.length; c++) {
+      checkpoint?.();
       const { re, im } = operators[c];
       workRe.set(re);
       workIm.set(im);

@@ -3,6 +3,9 @@ export { LinearOracle, PRIMAL_FEASIBILITY_TOLERANCE, INFEASIBILITY_MARGIN } from
 export {
   DEFAULT_ORACLE_SETTINGS,
   OracleInputError,
+  type Checkpoint,
+  type MinimizeOptions,
+  type OracleOptions,
   type InfeasibilityCertificate,
   type OracleConstraint,
   type OracleResult,

@@ -36,7 +36,8 @@ function edgeTolerance(n: number, operator: ComplexMatrix): number {
  * supp(ρ_A) ⊗ H_B; a constraint whose bound sits at an edge of its operator's spectrum (upper ≤ λ_min,
  * or lower ≥ λ_max) confines ρ to that eigenspace. Repeated until nothing changes.
  */
-export function feasibleFace(problem: Problem): FeasibleFace {
+export function feasibleFace(problem: Problem, options: { checkpoint?: () => void } = {}): FeasibleFace {
+  const { checkpoint } = options;
   const d = problem.dimensionA * problem.dimensionB;
   const reasons: string[] = [];
   let isometry: ComplexMatrix | null = null;
@@ -54,6 +55,7 @@ export function feasibleFace(problem: Problem): FeasibleFace {
       const operator = isometry ? conjugateAdjoint(isometry, constraint.operator) : constraint.operator;
       const n = operator.rows;
       if (n <= 1) break;
+      checkpoint?.();
       const { values, vectors } = eigh(operator);
       // Relative to the operator as given: its restriction inherits absolute rounding errors of that size, and a
       // restriction that vanishes (a direction already excluded) must not have its noise read as a spectrum.
