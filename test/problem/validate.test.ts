@@ -193,7 +193,7 @@ const rejections: [string, (p: Json) => void, string][] = [
   ['matrix entry not a number', (p) => (p.constraints[0].operator.re[3] = 'abc'), 'constraints[0].operator.re[3]: must be a number (got "abc")'],
   ['operator of the wrong shape', (p) => (p.constraints[0].operator = P0), 'constraints[0].operator: must be 4×4 (dimensionA·dimensionB square), got 2×2'],
   ['operator not Hermitian', (p) => (p.constraints[0].operator.re[1] = 1), 'constraints[0].operator: must be Hermitian (relative non-Hermitian part 5.77e-1 exceeds 1e-9)'],
-  ['bound missing', (p) => delete p.constraints[0].upper, 'constraints[0].upper: is required'],
+  ['bound of the wrong type', (p) => (p.constraints[0].upper = [1]), 'constraints[0].upper: must be a number (got an array)'],
   ['bound not finite', (p) => (p.constraints[0].lower = '-Infinity'), 'constraints[0].lower: must be a finite number (got -Infinity)'],
   ['lower above upper', (p) => (p.constraints[0].lower = 0.2), 'constraints[0].lower: must not exceed upper (0.2 > 0.1)'],
   ['marginal of the wrong shape', (p) => (p.sourceMarginal = I4), 'sourceMarginal: must be 2×2, got 4×4'],

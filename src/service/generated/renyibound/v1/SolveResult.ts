@@ -27,6 +27,11 @@ export interface SolveResult {
   'infeasibility'?: (_renyibound_v1_InfeasibilityCertificate | null);
   'finalState'?: (_renyibound_v1_Matrix | null);
   'fromCache'?: (boolean);
+  'relativeConstraintViolation'?: (number | string);
+  'feasibilityTolerance'?: (number | string);
+  'trivialBound'?: (number | string);
+  'trivialBoundUsed'?: (boolean);
+  'notes'?: (string)[];
   '_alpha'?: "alpha";
   '_certifiedLowerBound'?: "certifiedLowerBound";
   '_upperBound'?: "upperBound";
@@ -34,6 +39,7 @@ export interface SolveResult {
   '_toleranceMargin'?: "toleranceMargin";
   '_statisticalSlack'?: "statisticalSlack";
   '_maxConstraintViolation'?: "maxConstraintViolation";
+  '_relativeConstraintViolation'?: "relativeConstraintViolation";
 }
 
 export interface SolveResult__Output {
@@ -56,6 +62,11 @@ export interface SolveResult__Output {
   'infeasibility': (_renyibound_v1_InfeasibilityCertificate__Output | null);
   'finalState': (_renyibound_v1_Matrix__Output | null);
   'fromCache': (boolean);
+  'relativeConstraintViolation'?: (number);
+  'feasibilityTolerance': (number);
+  'trivialBound': (number);
+  'trivialBoundUsed': (boolean);
+  'notes': (string)[];
   '_alpha'?: "alpha";
   '_certifiedLowerBound'?: "certifiedLowerBound";
   '_upperBound'?: "upperBound";
@@ -63,4 +74,5 @@ export interface SolveResult__Output {
   '_toleranceMargin'?: "toleranceMargin";
   '_statisticalSlack'?: "statisticalSlack";
   '_maxConstraintViolation'?: "maxConstraintViolation";
+  '_relativeConstraintViolation'?: "relativeConstraintViolation";
 }
