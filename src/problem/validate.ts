@@ -25,6 +25,8 @@ export { ValidationError } from './errors.js';
 export interface ValidationLimits {
   /** Largest joint dimension dimensionA·dimensionB and branch output dimension accepted (default 256). */
   maxDimension?: number;
+  /** Called between constraints, observations and branches (large problems take a while); throws to abort. */
+  checkpoint?: () => void;
 }
 
 /** A validated problem and, when the JSON named one, the entropy request it carries. */
@@ -84,9 +86,11 @@ export function parseProblemJson(json: unknown, limits: ValidationLimits = {}): 
     );
   }
 
-  const constraints: LinearConstraint[] = message
-    .list('constraints')
-    .map((c, i) => constraintFromJson(c, `constraints[${i}]`, d));
+  const checkpoint = limits.checkpoint ?? (() => {});
+  const constraints: LinearConstraint[] = message.list('constraints').map((c, i) => {
+    checkpoint();
+    return constraintFromJson(c, `constraints[${i}]`, d);
+  });
 
   let sourceMarginal: ComplexMatrix | undefined;
   const marginalJson = message.get('sourceMarginal');
@@ -96,6 +100,7 @@ export function parseProblemJson(json: unknown, limits: ValidationLimits = {}): 
   }
 
   message.list('observations').forEach((o, k) => {
+    checkpoint();
     constraints.push(...observationConstraints(o, `observations[${k}]`, dimensionA, dimensionB));
   });
 
@@ -103,7 +108,11 @@ export function parseProblemJson(json: unknown, limits: ValidationLimits = {}): 
   if (branchList.length === 0) {
     throw new ValidationError('branches', 'must hold at least one announcement branch');
   }
-  const branches = branchList.map((b, c) => branchFromJson(b, `branches[${c}]`, d, maxDimension));
+  const branches = branchList.map((b, c) => {
+    checkpoint();
+    return branchFromJson(b, `branches[${c}]`, d, maxDimension);
+  });
+  checkpoint();
   requireCompleteness(branches, d);
 
   const description = message.string('description');

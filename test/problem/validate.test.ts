@@ -15,6 +15,7 @@ import { PROBLEM_PROTO_FILE, PROTO_LOADER_OPTIONS, protoDirectory } from '../../
 import { randomDensity, seededRandom } from '../helpers/random.js';
 
 import { ERROR_Z, I4, KEY0, KEY1, P0, P1, baseProblem, real, type Json } from './fixtures.js';
+import { buildExample } from '../../src/protocols/index.js';
 
 function validationError(run: () => unknown): ValidationError {
   try {
@@ -297,5 +298,15 @@ describe('densityOperatorFromJson', () => {
     expect(validationError(() => densityOperatorFromJson(real(2, 2, [0.5, 0.6, 0.6, 0.5]), 'state', 2)).message).toBe(
       'state: must be positive semidefinite (smallest eigenvalue -1.000e-1)',
     );
+  });
+});
+
+describe('validation polls a checkpoint', () => {
+  it('calls it between parts and lets its throw abort the validation', () => {
+    let calls = 0;
+    problemFromJson(buildExample('bb84-prepare-measure', {}), { checkpoint: () => void calls++ });
+    expect(calls).toBeGreaterThan(2);
+    const abort = new Error('deadline');
+    expect(() => problemFromJson(buildExample('bb84-prepare-measure', {}), { checkpoint: () => { throw abort; } })).toThrow(abort);
   });
 });
