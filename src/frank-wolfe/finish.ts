@@ -2,7 +2,7 @@
 import { liftFromFace } from '../problem/feasible-face.js';
 import { matrixFromJson, matrixToJson } from '../problem/json.js';
 import type { Problem } from '../problem/model.js';
-import { FEASIBILITY_TOLERANCE, maxConstraintViolation, relativeConstraintViolation } from '../problem/violation.js';
+import { constraintViolations, FEASIBILITY_TOLERANCE } from '../problem/violation.js';
 import { certificateBreakdown, referenceFromSupport } from '../certificate/bound.js';
 import { trivialLowerBound } from '../certificate/trivial-bound.js';
 import { upperBoundAt } from '../certificate/upper-bound.js';
@@ -100,7 +100,8 @@ export function assembleResult(setup: SolverSetup, state: SolverState): SolveRes
 
   const finalState = matrixToJson(liftFromFace(face, state.x));
   const lifted = matrixFromJson(finalState, 'finalState');
-  const relativeViolation = relativeConstraintViolation(problem, lifted);
+  const violations = constraintViolations(problem, lifted);
+  const relativeViolation = violations.relative;
   const feasible = relativeViolation <= FEASIBILITY_TOLERANCE;
   const value = feasible ? upperBoundAt(face, restricted, setup.entropy, finalState) : null;
   // F at a state within tolerance can dip below a valid lower bound only by rounding; such an upper bound says nothing.
@@ -136,7 +137,7 @@ export function assembleResult(setup: SolverSetup, state: SolverState): SolveRes
     gap,
     toleranceMargin: margin,
     statisticalSlack,
-    maxConstraintViolation: maxConstraintViolation(problem, lifted),
+    maxConstraintViolation: violations.absolute,
     relativeConstraintViolation: relativeViolation,
     feasibilityTolerance: FEASIBILITY_TOLERANCE,
     trivialBound,
