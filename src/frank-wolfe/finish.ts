@@ -108,12 +108,14 @@ export function assembleResult(setup: SolverSetup, state: SolverState): SolveRes
   const upperBound = value !== null && value >= lowerBound ? value : null;
   const gap = upperBound === null ? null : upperBound - lowerBound;
   const status = gap !== null && gap <= settings.gapTolerance ? 'CERTIFIED' : 'LIMIT_REACHED';
-  const limit = status === 'LIMIT_REACHED' ? (state.limit ?? 'iterations') : undefined;
+  // A run that stopped certified but whose final state fails the feasibility check hit no limit: none is named.
+  const limit = status === 'LIMIT_REACHED' ? state.limit : undefined;
+  const stopped = limit === undefined ? 'the run ended' : `stopped by the ${limit} limit`;
   const notes = [...setup.notes];
   if (trivialBoundUsed) {
     notes.push(
       certificate === null
-        ? `no certificate was computed before the ${limit} limit: the bound is the trivial bound ${trivialBound}, which holds for every state`
+        ? `no certificate was computed before the run stopped (${limit ?? 'no limit'}): the bound is the trivial bound ${trivialBound}, which holds for every state`
         : `the certificate's bound ${certifiedBound} lies below the trivial bound ${trivialBound}, which holds for every state and is reported instead`,
     );
   }
@@ -121,11 +123,11 @@ export function assembleResult(setup: SolverSetup, state: SolverState): SolveRes
   if (status === 'LIMIT_REACHED') {
     message =
       upperBound !== null
-        ? `stopped by the ${limit} limit with gap ${(gap as number).toExponential(3)} above the requested ${settings.gapTolerance}`
+        ? `${stopped} with gap ${(gap as number).toExponential(3)} above the requested ${settings.gapTolerance}`
         : !feasible
-          ? `stopped by the ${limit} limit; the final state violates the constraints by ${relativeViolation.toExponential(3)} ` +
+          ? `${stopped}; the final state violates the constraints by ${relativeViolation.toExponential(3)} ` +
             `(relative to ‖Γ‖_F, tolerance ${FEASIBILITY_TOLERANCE}), so no upper bound is stated`
-          : `stopped by the ${limit} limit; F at the final state is not above the lower bound within rounding, so no upper bound is stated`;
+          : `${stopped}; F at the final state is not above the lower bound within rounding, so no upper bound is stated`;
   }
   return {
     ...base,
