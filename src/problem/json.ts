@@ -2,6 +2,7 @@
 // name the field path of every defect.
 import { ComplexMatrix } from '../linear-algebra/complex-matrix.js';
 import { ValidationError } from './errors.js';
+import type { HonestStatisticsJson } from '../finite-size/honest-statistics.js';
 
 /** Matrices on the wire and in JSON files: row-major, im omitted for real matrices. */
 export interface MatrixJson {
@@ -49,6 +50,8 @@ export interface ProblemJson {
   entropy?: string;
   alpha?: number | null;
   description?: string;
+  /** renyibound.v1.HonestStatistics (docs/finite-size.md). */
+  honestStatistics?: HonestStatisticsJson | null;
 }
 
 type JsonObject = Record<string, unknown>;

@@ -28,6 +28,7 @@ import { SolveCoordinator } from './solve-coordinator.js';
 import type { WorkerReply, WorkerTask } from './solve-worker.js';
 import { QueueFullError, SolverPool } from './solver-pool.js';
 import { entropyKindFromWire, resultFromWire, resultToWire, wireToJson } from './wire.js';
+import { handleKeyLength } from './key-length.js';
 
 export interface ServerOptions {
   /** Interface to bind; loopback unless told otherwise. */
@@ -172,6 +173,7 @@ export class RenyiBoundServer {
       Solve: (call, callback) => void this.solve(call, callback),
       SolveBatch: (call) => void this.solveBatch(call),
       Verify: (call, callback) => this.verify(call, callback),
+      KeyLength: (call, callback) => void handleKeyLength(call, callback, this.coordinator),
       DecoyRate: decoyRateHandler(),
     };
   }
