@@ -1,18 +1,25 @@
 // The protobuf JSON mapping of problem.proto: TypeScript shapes of the JSON files and strict readers that
 // name the field path of every defect.
 import { ComplexMatrix } from '../linear-algebra/complex-matrix.js';
-import type { MatrixJson } from '../frank-wolfe/types.js';
 import { ValidationError } from './errors.js';
 import type { HonestStatisticsJson } from '../finite-size/honest-statistics.js';
 
-export type { MatrixJson };
+/** Matrices on the wire and in JSON files: row-major, im omitted for real matrices. */
+export interface MatrixJson {
+  rows: number;
+  cols: number;
+  re: number[];
+  im?: number[];
+}
 
 /** renyibound.v1.LinearConstraint in JSON. */
 export interface LinearConstraintJson {
   label?: string;
   operator: MatrixJson;
-  lower: number;
-  upper: number;
+  /** Absent: no lower bound. */
+  lower?: number;
+  /** Absent: no upper bound. */
+  upper?: number;
 }
 
 /** renyibound.v1.ObservedStatistics in JSON. */
@@ -132,6 +139,12 @@ export class JsonMessage {
     if (value === undefined) return '';
     if (typeof value !== 'string') throw new ValidationError(this.field(name), 'must be a string');
     return value;
+  }
+
+  /** A proto3 `optional` double: undefined when absent. */
+  optionalNumber(name: string): number | undefined {
+    const value = this.get(name);
+    return value === undefined ? undefined : finiteNumber(value, this.field(name));
   }
 
   /** A double field; absent means 0 (the proto3 default) unless `required`. */
