@@ -3,19 +3,22 @@ import { Command } from 'commander';
 import { checkHealth } from '../service/client.js';
 import { withInputErrors } from './io.js';
 import { integerOption, serverAddressOption } from './service-options.js';
+import { addClientSecurityOptions, type SecurityCommandOptions } from './security-options.js';
+import { clientSecurityFromPaths, setDefaultClientSecurity } from '../service/security.js';
 
 /** Exit code when the server answers but is not serving, or cannot be reached. */
 export const EXIT_NOT_SERVING = 1;
 
 export function register(program: Command): void {
-  program
+  addClientSecurityOptions(program
     .command('health')
     .description('ask a server for its health status (SERVING, NOT_SERVING, ...); exit 0 only when serving')
     .option('--server <host:port>', 'server address', '127.0.0.1:50051')
     .option('--service <name>', 'service to ask about; empty means the server as a whole', '')
-    .option('--timeout-ms <ms>', 'give up after this long', '3000')
+    .option('--timeout-ms <ms>', 'give up after this long', '3000'))
     .action(
-      withInputErrors(async (options: { server: string; service: string; timeoutMs: string }) => {
+      withInputErrors(async (options: { server: string; service: string; timeoutMs: string } & SecurityCommandOptions) => {
+        setDefaultClientSecurity(clientSecurityFromPaths(options));
         const status = await checkHealth(serverAddressOption(options.server), options.service, {
           deadlineMs: integerOption(options.timeoutMs, '--timeout-ms', 1, 600_000),
         });

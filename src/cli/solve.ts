@@ -8,6 +8,8 @@ import { densityOperatorFromJson } from '../problem/state.js';
 import { ValidationError, entropyRequestFrom, parseProblemJson } from '../problem/validate.js';
 import { closeClients, RemoteCallError, solveRemote } from '../service/client.js';
 import { parseNumberOption, printJson, readJsonInput, withInputErrors } from './io.js';
+import { addClientSecurityOptions, type SecurityCommandOptions } from './security-options.js';
+import { accessFailure, clientSecurityFromPaths, setDefaultClientSecurity } from '../service/security.js';
 
 /** Exit codes by status: a limit is a result (0); infeasible data and numerical failure have their own codes. */
 export const EXIT_CODES: Record<SolveResult['status'], number> = {
@@ -17,7 +19,7 @@ export const EXIT_CODES: Record<SolveResult['status'], number> = {
   NUMERICAL_ERROR: 3,
 };
 
-interface SolveOptions {
+interface SolveOptions extends SecurityCommandOptions {
   entropy?: string;
   alpha?: string;
   gap?: string;
@@ -36,7 +38,7 @@ function settingsFrom(options: SolveOptions): Partial<SolverSettings> {
 }
 
 export function register(program: Command): void {
-  program
+  addClientSecurityOptions(program
     .command('solve')
     .description('certified lower bound on the entropy over every state consistent with the problem')
     .argument('<problem>', 'problem JSON file, or - for standard input')
@@ -46,7 +48,7 @@ export function register(program: Command): void {
     .option('--max-iterations <n>', 'iteration limit (default 20000)')
     .option('--time-limit-ms <t>', 'time limit in milliseconds (default 120000)')
     .option('--warm-start <matrix.json>', 'density operator to start from')
-    .option('--server <host:port>', 'send the request to a running renyi-bound server instead of solving here')
+    .option('--server <host:port>', 'send the request to a running renyi-bound server instead of solving here'))
     .action(
       withInputErrors(async (problemSource: string, options: SolveOptions) => {
         const alpha = options.alpha === undefined ? undefined : parseNumberOption(options.alpha, 'alpha');
@@ -62,6 +64,7 @@ export function register(program: Command): void {
           warmStartJson === undefined ? undefined : densityOperatorFromJson(warmStartJson, 'warm-start', dimension);
         let result: SolveResult;
         if (options.server !== undefined) {
+          setDefaultClientSecurity(clientSecurityFromPaths(options));
           try {
             result = await solveRemote(options.server, {
               problem: problemJson,
@@ -76,7 +79,7 @@ export function register(program: Command): void {
               const reason = error.details.startsWith(`${error.field}: `) ? error.details.slice(error.field.length + 2) : error.details;
               throw new ValidationError(error.field, reason);
             }
-            throw error;
+            throw accessFailure(options.server, error) ?? error;
           } finally {
             closeClients();
           }

@@ -10,6 +10,8 @@ import { renderSvg, sweepCsv, sweepPlotSpec, sweepTable } from '../service/repor
 import { gridFromJson, runSweep, type SweepOutcome } from '../service/sweep.js';
 import { readJsonInput, withInputErrors } from './io.js';
 import { integerOption, MAX_WORKERS, serverAddressOption } from './service-options.js';
+import { addClientSecurityOptions, type SecurityCommandOptions } from './security-options.js';
+import { accessFailure, clientSecurityFromPaths, setDefaultClientSecurity } from '../service/security.js';
 
 /** Exit code when some grid points failed (the others are still written). */
 export const EXIT_SOME_POINTS_FAILED = 1;
@@ -76,7 +78,7 @@ export async function writeSweepOutputs(
   if (paths.plot !== undefined) writeFile(paths.plot, await renderSvg(sweepPlotSpec(outcome.items, axisNames, paths.title)));
 }
 
-interface SweepCommandOptions {
+interface SweepCommandOptions extends SecurityCommandOptions {
   server?: string;
   out: string;
   plot?: string;
@@ -87,7 +89,7 @@ interface SweepCommandOptions {
 }
 
 export function register(program: Command): void {
-  program
+  addClientSecurityOptions(program
     .command('sweep')
     .description('run a parameter grid (an example builder × parameter values × entropy kinds) and write CSV, JSON and a plot')
     .argument('<grid.json>', 'renyibound.v1.ParameterGrid as JSON, or - for standard input')
@@ -97,10 +99,11 @@ export function register(program: Command): void {
     .option('--workers <n>', 'threads of the embedded server (default: the cores)')
     .option('--cache-dir <dir>', 'SQLite cache directory of the embedded server')
     .option('--no-disk-cache', 'embedded server keeps results in memory only')
-    .option('--no-warm-start', 'start every point cold (to measure what warm starts save)')
+    .option('--no-warm-start', 'start every point cold (to measure what warm starts save)'))
     .action(
       withInputErrors(async (gridPath: string, options: SweepCommandOptions) => {
         const grid = gridFromJson(readJsonInput(gridPath, 'grid.json'));
+        if (options.server !== undefined) setDefaultClientSecurity(clientSecurityFromPaths(options));
         const bar = progressBar();
         let outcome: SweepOutcome;
         try {
@@ -111,6 +114,8 @@ export function register(program: Command): void {
             warmStarts: options.warmStart,
             onItem: (item) => bar.update(item),
           });
+        } catch (error) {
+          throw (options.server !== undefined && accessFailure(options.server, error)) || error;
         } finally {
           bar.stop();
         }

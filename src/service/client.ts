@@ -14,6 +14,7 @@ import type { EntropyKind } from './generated/renyibound/v1/EntropyKind.js';
 import type { Problem } from './generated/renyibound/v1/Problem.js';
 import type { RenyiBoundClient } from './generated/renyibound/v1/RenyiBound.js';
 import { loadServicePackage } from './proto.js';
+import { channelCredentials, clientOptions, clientSecurityKey, getDefaultClientSecurity, type ClientSecurity } from './security.js';
 import { entropyKindToWire, matrixToWire, resultFromWire, resultToWire, settingsToWire, type DeliveredResult } from './wire.js';
 
 /** One problem to send: the problem as protobuf JSON (the same file `renyi-bound solve` reads). */
@@ -55,13 +56,14 @@ function callOptions(options: CallOptions): grpc.CallOptions {
 
 const clients = new Map<string, RenyiBoundClient>();
 
-/** A client for `address` (host:port), kept for reuse; plaintext, as the server binds to loopback by default. */
-export function renyiBoundClient(address: string): RenyiBoundClient {
-  let client = clients.get(address);
+/** A client for `address` (host:port), kept for reuse; plaintext and no token unless `security` says otherwise. */
+export function renyiBoundClient(address: string, security: ClientSecurity = getDefaultClientSecurity()): RenyiBoundClient {
+  const key = `${address} ${clientSecurityKey(security)}`;
+  let client = clients.get(key);
   if (client === undefined) {
     const Client = loadServicePackage().renyibound.v1.RenyiBound;
-    client = new Client(address, grpc.credentials.createInsecure());
-    clients.set(address, client);
+    client = new Client(address, channelCredentials(security), clientOptions(security));
+    clients.set(key, client);
   }
   return client;
 }
@@ -196,9 +198,10 @@ interface HealthClient extends grpc.Client {
 export function checkHealth(address: string, service = '', options: CallOptions = { deadlineMs: 3000 }): Promise<HealthStatusName> {
   const definition = protoLoader.loadSync(healthProtoPath, PROTO_LOADER_OPTIONS);
   const Health = (grpc.loadPackageDefinition(definition) as unknown as {
-    grpc: { health: { v1: { Health: new (address: string, credentials: grpc.ChannelCredentials) => HealthClient } } };
+    grpc: { health: { v1: { Health: new (address: string, credentials: grpc.ChannelCredentials, options: grpc.ClientOptions) => HealthClient } } };
   }).grpc.health.v1.Health;
-  const client = new Health(address, grpc.credentials.createInsecure());
+  const security = getDefaultClientSecurity();
+  const client = new Health(address, channelCredentials(security), clientOptions(security));
   return new Promise((resolve) => {
     client.Check({ service }, callOptions(options), (error, reply) => {
       client.close();

@@ -26,6 +26,7 @@ import { loadServiceDefinition, loadServicePackage, SERVICE_NAME } from './proto
 import { SolveCoordinator } from './solve-coordinator.js';
 import type { WorkerReply, WorkerTask } from './solve-worker.js';
 import { QueueFullError, SolverPool } from './solver-pool.js';
+import { checkExposure, serveHealthOnly, serverCredentials, serverOptions, type ServerSecurity } from './security.js';
 import { entropyKindFromWire, resultFromWire, resultToWire, wireToJson } from './wire.js';
 
 export interface ServerOptions {
@@ -48,6 +49,10 @@ export interface ServerOptions {
   drainTimeoutMs?: number;
   /** Attempts per task when its solver thread dies (default 2: one retry). */
   workerAttempts?: number;
+  /** TLS, bearer token, and whether a plaintext non-loopback bind is allowed (see security.ts). */
+  security?: ServerSecurity;
+  /** A second, plaintext port serving only grpc.health.v1 (for probes that cannot speak TLS). */
+  healthPort?: number;
 }
 
 /** Defaults of the command line (`renyi-bound serve`). */
@@ -72,6 +77,8 @@ export class RenyiBoundServer {
   private readonly callControllers = new Set<AbortController>();
   private shuttingDown: Promise<void> | undefined;
   private servingStatus: ServingStatus = 'SERVING';
+  /** The plaintext health-only listener, when one was asked for. */
+  healthServer: grpc.Server | undefined;
 
   private constructor(
     readonly grpcServer: grpc.Server,
@@ -97,6 +104,8 @@ export class RenyiBoundServer {
 
   static async start(options: ServerOptions = {}): Promise<RenyiBoundServer> {
     const logger = options.logger ?? pino({ name: 'renyi-bound' });
+    const security = options.security ?? {};
+    checkExposure(options.host ?? DEFAULT_HOST, security);
     const layers: CacheLayer[] = [new MemoryCacheLayer(options.memoryEntries ?? DEFAULT_MEMORY_ENTRIES)];
     if (options.cacheDirectory !== false) {
       layers.push(SqliteCacheLayer.inDirectory(options.cacheDirectory ?? defaultCacheDirectory()));
@@ -115,12 +124,12 @@ export class RenyiBoundServer {
       maxAttempts: options.workerAttempts,
     });
     const coordinator = new SolveCoordinator(pool, cache, logger);
-    const grpcServer = new grpc.Server();
+    const grpcServer = new grpc.Server(serverOptions(security));
     const host = options.host ?? DEFAULT_HOST;
     let port: number;
     try {
       port = await new Promise<number>((resolve, reject) =>
-        grpcServer.bindAsync(bindAddress(host, options.port ?? DEFAULT_PORT), grpc.ServerCredentials.createInsecure(), (error, bound) =>
+        grpcServer.bindAsync(bindAddress(host, options.port ?? DEFAULT_PORT), serverCredentials(security.tls), (error, bound) =>
           error ? reject(error) : resolve(bound),
         ),
       );
@@ -134,8 +143,14 @@ export class RenyiBoundServer {
     server.health.addToServer(grpcServer);
     // Reflection lists the health service too, so tools like grpcurl can discover both.
     new ReflectionService({ ...loadServiceDefinition(), ...protoLoader.loadSync(healthProtoPath, PROTO_LOADER_OPTIONS) }).addToServer(grpcServer);
+    if (options.healthPort !== undefined) {
+      server.healthServer = await serveHealthOnly(server.health, bindAddress(host, options.healthPort)).catch(async (error: unknown) => {
+        await server.shutdown();
+        throw error;
+      });
+    }
     logger.info(
-      { event: 'listening', address: server.address, workers: pool.workers, queueLimit: pool.queueLimit, cache: layers.map((l) => l.name) },
+      { event: 'listening', address: server.address, tls: security.tls ? (security.tls.clientCa ? 'mutual' : 'server') : 'off', token: security.token !== undefined, workers: pool.workers, queueLimit: pool.queueLimit, cache: layers.map((l) => l.name) },
       'renyi-bound service listening',
     );
     return server;
@@ -292,6 +307,7 @@ export class RenyiBoundServer {
         clearTimeout(forced);
       }
       clearTimeout(timer);
+      this.healthServer?.forceShutdown();
       await this.pool.destroy();
       await this.cache.close();
       this.logger.info({ event: 'shutdown' }, 'stopped');
