@@ -248,11 +248,14 @@ export function accessFailure(address: string, error: unknown): ValidationError 
  * A plaintext listener serving only grpc.health.v1, for probes that speak neither TLS nor tokens (Kubernetes'
  * native gRPC probes). It tells nothing but SERVING / NOT_SERVING.
  */
-export async function serveHealthOnly(health: { addToServer(server: grpc.Server): void }, address: string): Promise<grpc.Server> {
+export async function serveHealthOnly(
+  health: { addToServer(server: grpc.Server): void },
+  address: string,
+): Promise<{ server: grpc.Server; port: number }> {
   const server = new grpc.Server();
   health.addToServer(server);
-  await new Promise<number>((resolve, reject) =>
-    server.bindAsync(address, grpc.ServerCredentials.createInsecure(), (error, port) => (error ? reject(error) : resolve(port))),
+  const port = await new Promise<number>((resolve, reject) =>
+    server.bindAsync(address, grpc.ServerCredentials.createInsecure(), (error, bound) => (error ? reject(error) : resolve(bound))),
   );
-  return server;
+  return { server, port };
 }

@@ -77,8 +77,8 @@ export class RenyiBoundServer {
   private readonly callControllers = new Set<AbortController>();
   private shuttingDown: Promise<void> | undefined;
   private servingStatus: ServingStatus = 'SERVING';
-  /** The plaintext health-only listener, when one was asked for. */
-  healthServer: grpc.Server | undefined;
+  /** The plaintext health-only listener and its port, when one was asked for. */
+  healthListener: { server: grpc.Server; port: number } | undefined;
 
   private constructor(
     readonly grpcServer: grpc.Server,
@@ -144,7 +144,7 @@ export class RenyiBoundServer {
     // Reflection lists the health service too, so tools like grpcurl can discover both.
     new ReflectionService({ ...loadServiceDefinition(), ...protoLoader.loadSync(healthProtoPath, PROTO_LOADER_OPTIONS) }).addToServer(grpcServer);
     if (options.healthPort !== undefined) {
-      server.healthServer = await serveHealthOnly(server.health, bindAddress(host, options.healthPort)).catch(async (error: unknown) => {
+      server.healthListener = await serveHealthOnly(server.health, bindAddress(host, options.healthPort)).catch(async (error: unknown) => {
         await server.shutdown();
         throw error;
       });
@@ -307,7 +307,7 @@ export class RenyiBoundServer {
         clearTimeout(forced);
       }
       clearTimeout(timer);
-      this.healthServer?.forceShutdown();
+      this.healthListener?.server.forceShutdown();
       await this.pool.destroy();
       await this.cache.close();
       this.logger.info({ event: 'shutdown' }, 'stopped');
