@@ -25,8 +25,8 @@ export interface ServerTls {
 /** How the server protects itself; everything absent means plaintext and no token (the loopback default). */
 export interface ServerSecurity {
   tls?: ServerTls;
-  /** The bearer token every RPC but health must carry. */
-  token?: string;
+  /** Bearer tokens accepted on every RPC but health (several during a rotation). */
+  tokens?: string[];
   /** Bind a non-loopback address even without TLS and token (the operator says the network is trusted). */
   allowInsecureRemote?: boolean;
 }
@@ -51,26 +51,30 @@ function readPem(path: string, field: string): Buffer {
 }
 
 /**
- * The token in a file: surrounding whitespace (a trailing newline) is dropped; it must be printable ASCII without
- * spaces (a metadata value) and at least MIN_TOKEN_LENGTH long.
+ * The tokens in a file, one per line (blank lines and surrounding whitespace ignored): a server accepts each, a
+ * client sends the first, so a new token can be put first and the old one kept below it during a rotation. Each
+ * must be printable ASCII without spaces (a metadata value) and at least MIN_TOKEN_LENGTH long.
  */
-export function readTokenFile(path: string, field = '--token-file'): string {
+export function readTokenFile(path: string, field = '--token-file'): string[] {
   let text: string;
   try {
     text = readFileSync(path, 'utf8');
   } catch (error) {
     throw new ValidationError(field, `cannot read ${JSON.stringify(path)}: ${(error as NodeJS.ErrnoException).code ?? (error as Error).message}`);
   }
-  const token = text.trim();
-  if (!/^[\x21-\x7e]*$/.test(token)) throw new ValidationError(field, 'the token must be printable ASCII without spaces');
-  if (token.length < MIN_TOKEN_LENGTH) {
-    throw new ValidationError(field, `the token must have at least ${MIN_TOKEN_LENGTH} characters (got ${token.length})`);
+  const tokens = text.split(/\r?\n/).map((line) => line.trim()).filter((line) => line !== '');
+  if (tokens.length === 0) throw new ValidationError(field, `${JSON.stringify(path)} holds no token`);
+  for (const token of tokens) {
+    if (!/^[\x21-\x7e]*$/.test(token)) throw new ValidationError(field, 'a token must be printable ASCII without spaces');
+    if (token.length < MIN_TOKEN_LENGTH) {
+      throw new ValidationError(field, `a token must have at least ${MIN_TOKEN_LENGTH} characters (got ${token.length})`);
+    }
   }
-  return token;
+  return tokens;
 }
 
-/** The token named by `--token-file`, else by RENYI_BOUND_TOKEN_FILE, else none. */
-export function tokenFromOptions(tokenFile: string | undefined, env: NodeJS.ProcessEnv = process.env): string | undefined {
+/** The tokens of the file named by `--token-file`, else by RENYI_BOUND_TOKEN_FILE, else none. */
+export function tokensFromOptions(tokenFile: string | undefined, env: NodeJS.ProcessEnv = process.env): string[] | undefined {
   if (tokenFile !== undefined) return readTokenFile(tokenFile, '--token-file');
   const fromEnv = env[TOKEN_FILE_ENV];
   return fromEnv ? readTokenFile(fromEnv, TOKEN_FILE_ENV) : undefined;
@@ -100,7 +104,7 @@ export function serverSecurityFromPaths(paths: ServerSecurityPaths, env: NodeJS.
           key: readPem(paths.tlsKey!, '--tls-key'),
           clientCa: paths.tlsClientCa === undefined ? undefined : readPem(paths.tlsClientCa, '--tls-client-ca'),
         };
-  return { tls, token: tokenFromOptions(paths.tokenFile, env), allowInsecureRemote: paths.allowInsecureRemote };
+  return { tls, tokens: tokensFromOptions(paths.tokenFile, env), allowInsecureRemote: paths.allowInsecureRemote };
 }
 
 /** Command-line paths of a client's security options. */
@@ -122,7 +126,7 @@ export function clientSecurityFromPaths(paths: ClientSecurityPaths, env: NodeJS.
     ca: paths.tlsCa === undefined ? undefined : readPem(paths.tlsCa, '--tls-ca'),
     cert: paths.tlsCert === undefined ? undefined : readPem(paths.tlsCert, '--tls-cert'),
     key: paths.tlsKey === undefined ? undefined : readPem(paths.tlsKey, '--tls-key'),
-    token: tokenFromOptions(paths.tokenFile, env),
+    token: tokensFromOptions(paths.tokenFile, env)?.[0],
   };
 }
 
@@ -134,12 +138,18 @@ export function isLoopbackHost(host: string): boolean {
 
 /** Refuses to expose a plaintext server without a token beyond loopback, unless the operator said so. */
 export function checkExposure(host: string, security: ServerSecurity): void {
-  if (isLoopbackHost(host) || security.tls !== undefined || security.token !== undefined || security.allowInsecureRemote) return;
+  if (isLoopbackHost(host) || security.tls !== undefined || security.tokens !== undefined || security.allowInsecureRemote) return;
   throw new ValidationError(
     '--host',
     `refusing to serve ${host} without TLS or a token: give --tls-cert/--tls-key, --token-file (or ${TOKEN_FILE_ENV}), ` +
       'or --allow-insecure-remote if the network is trusted',
   );
+}
+
+/** A warning for a token sent in plaintext beyond loopback (allowed, but anyone on the path can read it). */
+export function exposureWarning(host: string, security: ServerSecurity): string | undefined {
+  if (isLoopbackHost(host) || security.tls !== undefined || security.tokens === undefined) return undefined;
+  return `the bearer token travels in plaintext on ${host}: give --tls-cert/--tls-key unless the network is trusted`;
 }
 
 export function serverCredentials(tls: ServerTls | undefined): grpc.ServerCredentials {
@@ -151,26 +161,30 @@ function digest(text: string): Buffer {
   return createHash('sha256').update(text, 'utf8').digest();
 }
 
-/** Compares presented tokens with the expected one in constant time (equal-length SHA-256 digests). */
+/** Compares a presented token with the accepted ones in constant time (equal-length SHA-256 digests). */
 export class TokenCheck {
-  private readonly expected: Buffer;
+  private readonly expected: Buffer[];
 
-  constructor(token: string) {
-    this.expected = digest(token);
+  constructor(tokens: string[]) {
+    this.expected = tokens.map(digest);
   }
 
-  /** Whether an `authorization` header value is `Bearer <the token>`. */
+  /** Whether an `authorization` header value is `Bearer <an accepted token>`. */
   accepts(header: unknown): boolean {
     if (typeof header !== 'string') return false;
     const match = /^Bearer ([\x21-\x7e]+)$/i.exec(header);
-    // Digest something even for a malformed header, so its timing says nothing about the token.
-    return timingSafeEqual(digest(match?.[1] ?? header), this.expected) && match !== null;
+    // Digest something even for a malformed header, and compare with every token without stopping early, so the
+    // timing says nothing about the tokens.
+    const presented = digest(match?.[1] ?? header);
+    let accepted = false;
+    for (const expected of this.expected) accepted = timingSafeEqual(presented, expected) || accepted;
+    return accepted && match !== null;
   }
 }
 
-/** A server interceptor answering UNAUTHENTICATED to every call but health that lacks the token. */
-export function tokenInterceptor(token: string): grpc.ServerInterceptor {
-  const check = new TokenCheck(token);
+/** A server interceptor answering UNAUTHENTICATED to every call but health that lacks an accepted token. */
+export function tokenInterceptor(tokens: string[]): grpc.ServerInterceptor {
+  const check = new TokenCheck(tokens);
   return (method, call) => {
     if (method.path.startsWith(HEALTH_SERVICE_PREFIX)) return new grpc.ServerInterceptingCall(call);
     const listener = new grpc.ServerListenerBuilder()
@@ -191,7 +205,7 @@ export function tokenInterceptor(token: string): grpc.ServerInterceptor {
 
 /** The grpc.Server options for `security` (its interceptors). */
 export function serverOptions(security: ServerSecurity): grpc.ServerOptions {
-  return security.token === undefined ? {} : { interceptors: [tokenInterceptor(security.token)] };
+  return security.tokens === undefined ? {} : { interceptors: [tokenInterceptor(security.tokens)] };
 }
 
 /** Channel credentials: TLS when a CA is given (with the client's pair for mutual TLS), plaintext otherwise. */

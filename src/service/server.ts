@@ -26,7 +26,7 @@ import { loadServiceDefinition, loadServicePackage, SERVICE_NAME } from './proto
 import { SolveCoordinator } from './solve-coordinator.js';
 import type { WorkerReply, WorkerTask } from './solve-worker.js';
 import { QueueFullError, SolverPool } from './solver-pool.js';
-import { checkExposure, serveHealthOnly, serverCredentials, serverOptions, type ServerSecurity } from './security.js';
+import { checkExposure, exposureWarning, serveHealthOnly, serverCredentials, serverOptions, type ServerSecurity } from './security.js';
 import { entropyKindFromWire, resultFromWire, resultToWire, wireToJson } from './wire.js';
 
 export interface ServerOptions {
@@ -106,6 +106,8 @@ export class RenyiBoundServer {
     const logger = options.logger ?? pino({ name: 'renyi-bound' });
     const security = options.security ?? {};
     checkExposure(options.host ?? DEFAULT_HOST, security);
+    const warning = exposureWarning(options.host ?? DEFAULT_HOST, security);
+    if (warning !== undefined) logger.warn({ event: 'security' }, warning);
     const layers: CacheLayer[] = [new MemoryCacheLayer(options.memoryEntries ?? DEFAULT_MEMORY_ENTRIES)];
     if (options.cacheDirectory !== false) {
       layers.push(SqliteCacheLayer.inDirectory(options.cacheDirectory ?? defaultCacheDirectory()));
@@ -150,7 +152,7 @@ export class RenyiBoundServer {
       });
     }
     logger.info(
-      { event: 'listening', address: server.address, tls: security.tls ? (security.tls.clientCa ? 'mutual' : 'server') : 'off', token: security.token !== undefined, workers: pool.workers, queueLimit: pool.queueLimit, cache: layers.map((l) => l.name) },
+      { event: 'listening', address: server.address, tls: security.tls ? (security.tls.clientCa ? 'mutual' : 'server') : 'off', tokens: security.tokens?.length ?? 0, workers: pool.workers, queueLimit: pool.queueLimit, cache: layers.map((l) => l.name) },
       'renyi-bound service listening',
     );
     return server;

@@ -15,13 +15,14 @@ import { buildExample } from '../../src/protocols/index.js';
 import { checkHealth, closeClients, RemoteCallError, solveBatchRemote, solveRemote } from '../../src/service/client.js';
 import {
   checkExposure,
+  exposureWarning,
   clientSecurityFromPaths,
   isLoopbackHost,
   readTokenFile,
   serverSecurityFromPaths,
   setDefaultClientSecurity,
   TokenCheck,
-  tokenFromOptions,
+  tokensFromOptions,
   TOKEN_FILE_ENV,
   type ClientSecurity,
   type ServerSecurity,
@@ -30,6 +31,8 @@ import { RenyiBoundServer } from '../../src/service/server.js';
 import { startTestServer, type TestServer } from './harness.js';
 
 const TOKEN = 'c0ffee-5ca1ab1e-0ddba11-f00d-beef';
+/** The next token of a rotation: listed first in the server's file, both accepted meanwhile. */
+const NEW_TOKEN = 'feed-face-0123456789abcdef';
 const GAP = 1e-6;
 
 let directory: string;
@@ -63,6 +66,8 @@ beforeAll(() => {
   writeFileSync(file('token'), `${TOKEN}\n`);
   writeFileSync(file('wrong-token'), 'c0ffee-5ca1ab1e-0ddba11-f00d-beeF\n');
   writeFileSync(file('short-token'), 'tiny\n');
+  writeFileSync(file('empty-token'), '\n  \n');
+  writeFileSync(file('rotation'), `${NEW_TOKEN}\n  ${TOKEN}  \n\n`);
 });
 afterAll(() => rmSync(directory, { recursive: true, force: true }));
 afterEach(() => {
@@ -92,7 +97,7 @@ async function serverWith(security: ServerSecurity): Promise<TestServer> {
 
 describe('token check', () => {
   it('accepts exactly `Bearer <token>` and nothing else', () => {
-    const check = new TokenCheck(TOKEN);
+    const check = new TokenCheck([TOKEN]);
     expect(check.accepts(`Bearer ${TOKEN}`)).toBe(true);
     expect(check.accepts(`bearer ${TOKEN}`)).toBe(true); // the scheme is case-insensitive (RFC 7235)
     for (const header of [undefined, '', TOKEN, `Bearer ${TOKEN}x`, `Bearer ${TOKEN.slice(1)}`, `Bearer  ${TOKEN}`, `Basic ${TOKEN}`, Buffer.from(TOKEN)]) {
@@ -100,13 +105,16 @@ describe('token check', () => {
     }
   });
 
-  it('reads the token from a file (trailing newline dropped), from RENYI_BOUND_TOKEN_FILE, and refuses short ones', () => {
-    expect(readTokenFile(file('token'))).toBe(TOKEN);
-    expect(tokenFromOptions(undefined, { [TOKEN_FILE_ENV]: file('token') })).toBe(TOKEN);
-    expect(tokenFromOptions(file('token'), { [TOKEN_FILE_ENV]: file('wrong-token') })).toBe(TOKEN); // the option wins
-    expect(tokenFromOptions(undefined, {})).toBeUndefined();
+  it('reads tokens from a file (one per line, whitespace dropped), from RENYI_BOUND_TOKEN_FILE, and refuses short ones', () => {
+    expect(readTokenFile(file('token'))).toEqual([TOKEN]);
+    expect(readTokenFile(file('rotation'))).toEqual([NEW_TOKEN, TOKEN]);
+    expect(tokensFromOptions(undefined, { [TOKEN_FILE_ENV]: file('token') })).toEqual([TOKEN]);
+    expect(tokensFromOptions(file('token'), { [TOKEN_FILE_ENV]: file('wrong-token') })).toEqual([TOKEN]); // the option wins
+    expect(tokensFromOptions(undefined, {})).toBeUndefined();
+    expect(clientSecurityFromPaths({ tokenFile: file('rotation') }, {}).token).toBe(NEW_TOKEN); // clients send the first
     expect(() => readTokenFile(file('short-token'))).toThrow(/at least 16 characters/);
-    expect(() => tokenFromOptions(undefined, { [TOKEN_FILE_ENV]: file('missing') })).toThrow(new RegExp(`^${TOKEN_FILE_ENV}: cannot read`));
+    expect(() => readTokenFile(file('empty-token'))).toThrow(/holds no token/);
+    expect(() => tokensFromOptions(undefined, { [TOKEN_FILE_ENV]: file('missing') })).toThrow(new RegExp(`^${TOKEN_FILE_ENV}: cannot read`));
   });
 
   it('needs both halves of a TLS pair, and PEM files', () => {
@@ -127,8 +135,11 @@ describe('exposure beyond loopback', () => {
     expect(() => checkExposure('0.0.0.0', {})).toThrow(ValidationError);
     expect(() => checkExposure('0.0.0.0', {})).toThrow(/^--host: refusing to serve 0\.0\.0\.0 without TLS or a token/);
     expect(() => checkExposure('127.0.0.1', {})).not.toThrow();
-    expect(() => checkExposure('0.0.0.0', { token: TOKEN })).not.toThrow();
+    expect(() => checkExposure('0.0.0.0', { tokens: [TOKEN] })).not.toThrow();
     expect(() => checkExposure('0.0.0.0', { allowInsecureRemote: true })).not.toThrow();
+    // A token without TLS beyond loopback is allowed, with a warning in the log.
+    expect(exposureWarning('0.0.0.0', { tokens: [TOKEN] })).toMatch(/plaintext on 0\.0\.0\.0/);
+    expect(exposureWarning('127.0.0.1', { tokens: [TOKEN] })).toBeUndefined();
     await expect(RenyiBoundServer.start({ host: '0.0.0.0', port: 0, workers: 1, cacheDirectory: false })).rejects.toThrow(/refusing to serve/);
     const allowed = await startTestServer({ host: '0.0.0.0', workers: 1, cacheDirectory: false, security: { allowInsecureRemote: true } });
     expect(await checkHealth(allowed.server.address)).toBe('SERVING');
@@ -155,7 +166,7 @@ describe('exposure beyond loopback', () => {
 describe('bearer token', () => {
   let harness: TestServer;
   beforeAll(async () => {
-    harness = await serverWith({ token: TOKEN });
+    harness = await serverWith(serverSecurityFromPaths({ tokenFile: file('rotation') }, {}));
   });
   afterAll(async () => harness.stop());
 
@@ -164,11 +175,13 @@ describe('bearer token', () => {
     const missing = await solveWith(address, {});
     expect(missing.error?.code).toBe(grpc.status.UNAUTHENTICATED);
     expect(missing.error?.details).toMatch(/requires a bearer token/);
-    const wrong = await solveWith(address, { token: readTokenFile(file('wrong-token')) });
+    const wrong = await solveWith(address, { token: readTokenFile(file('wrong-token'))[0] });
     expect(wrong.error?.code).toBe(grpc.status.UNAUTHENTICATED);
     expect(wrong.error?.details).toMatch(/not accepted/);
     const right = await solveWith(address, { token: TOKEN });
     expect(right.error).toBeUndefined();
+    // Both tokens of a rotation are accepted.
+    expect((await solveWith(address, { token: NEW_TOKEN })).error).toBeUndefined();
     // 1 − h(Q_X) for the entangled BB84 model with Q_X = 0.03 (Shor & Preskill 2000): 0.80560...
     expect(right.bound!).toBeCloseTo(1 - (-0.03 * Math.log2(0.03) - 0.97 * Math.log2(0.97)), 5);
   });
