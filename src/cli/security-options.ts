@@ -22,7 +22,7 @@ export function addServerSecurityOptions(command: Command): Command {
     .option('--tls-cert <cert.pem>', 'serve TLS with this certificate chain (PEM)')
     .option('--tls-key <key.pem>', 'private key of --tls-cert (PEM)')
     .option('--tls-client-ca <ca.pem>', 'require client certificates signed by this CA (mutual TLS)')
-    .option('--token-file <path>', `${TOKEN_FILE_HELP}; every RPC but health must carry it`)
+    .option('--token-file <path>', `${TOKEN_FILE_HELP}; every RPC but health must carry it (one token per line: each is accepted)`)
     .option('--allow-insecure-remote', 'allow a non-loopback --host without TLS and without a token (trusted networks only)')
     .option('--health-port <port>', 'also serve grpc.health.v1 alone, in plaintext, on this port (for probes that cannot speak TLS)');
 }
@@ -33,5 +33,5 @@ export function addClientSecurityOptions(command: Command): Command {
     .option('--tls-ca <ca.pem>', 'connect with TLS, trusting server certificates signed by this CA')
     .option('--tls-cert <cert.pem>', 'client certificate for mutual TLS (PEM)')
     .option('--tls-key <key.pem>', 'private key of the client certificate (PEM)')
-    .option('--token-file <path>', TOKEN_FILE_HELP);
+    .option('--token-file <path>', `${TOKEN_FILE_HELP}; the first line is sent`);
 }
