@@ -4,12 +4,23 @@ import type * as grpc from '@grpc/grpc-js'
 import type { MethodDefinition } from '@grpc/proto-loader'
 import type { BatchItem as _renyibound_v1_BatchItem, BatchItem__Output as _renyibound_v1_BatchItem__Output } from '../../renyibound/v1/BatchItem.js';
 import type { BatchRequest as _renyibound_v1_BatchRequest, BatchRequest__Output as _renyibound_v1_BatchRequest__Output } from '../../renyibound/v1/BatchRequest.js';
+import type { DecoyRateReply as _renyibound_v1_DecoyRateReply, DecoyRateReply__Output as _renyibound_v1_DecoyRateReply__Output } from '../../renyibound/v1/DecoyRateReply.js';
+import type { DecoyRateRequest as _renyibound_v1_DecoyRateRequest, DecoyRateRequest__Output as _renyibound_v1_DecoyRateRequest__Output } from '../../renyibound/v1/DecoyRateRequest.js';
 import type { SolveReply as _renyibound_v1_SolveReply, SolveReply__Output as _renyibound_v1_SolveReply__Output } from '../../renyibound/v1/SolveReply.js';
 import type { SolveRequest as _renyibound_v1_SolveRequest, SolveRequest__Output as _renyibound_v1_SolveRequest__Output } from '../../renyibound/v1/SolveRequest.js';
 import type { VerifyReply as _renyibound_v1_VerifyReply, VerifyReply__Output as _renyibound_v1_VerifyReply__Output } from '../../renyibound/v1/VerifyReply.js';
 import type { VerifyRequest as _renyibound_v1_VerifyRequest, VerifyRequest__Output as _renyibound_v1_VerifyRequest__Output } from '../../renyibound/v1/VerifyRequest.js';
 
 export interface RenyiBoundClient extends grpc.Client {
+  DecoyRate(argument: _renyibound_v1_DecoyRateRequest, metadata: grpc.Metadata, options: grpc.CallOptions, callback: grpc.requestCallback<_renyibound_v1_DecoyRateReply__Output>): grpc.ClientUnaryCall;
+  DecoyRate(argument: _renyibound_v1_DecoyRateRequest, metadata: grpc.Metadata, callback: grpc.requestCallback<_renyibound_v1_DecoyRateReply__Output>): grpc.ClientUnaryCall;
+  DecoyRate(argument: _renyibound_v1_DecoyRateRequest, options: grpc.CallOptions, callback: grpc.requestCallback<_renyibound_v1_DecoyRateReply__Output>): grpc.ClientUnaryCall;
+  DecoyRate(argument: _renyibound_v1_DecoyRateRequest, callback: grpc.requestCallback<_renyibound_v1_DecoyRateReply__Output>): grpc.ClientUnaryCall;
+  decoyRate(argument: _renyibound_v1_DecoyRateRequest, metadata: grpc.Metadata, options: grpc.CallOptions, callback: grpc.requestCallback<_renyibound_v1_DecoyRateReply__Output>): grpc.ClientUnaryCall;
+  decoyRate(argument: _renyibound_v1_DecoyRateRequest, metadata: grpc.Metadata, callback: grpc.requestCallback<_renyibound_v1_DecoyRateReply__Output>): grpc.ClientUnaryCall;
+  decoyRate(argument: _renyibound_v1_DecoyRateRequest, options: grpc.CallOptions, callback: grpc.requestCallback<_renyibound_v1_DecoyRateReply__Output>): grpc.ClientUnaryCall;
+  decoyRate(argument: _renyibound_v1_DecoyRateRequest, callback: grpc.requestCallback<_renyibound_v1_DecoyRateReply__Output>): grpc.ClientUnaryCall;
+  
   Solve(argument: _renyibound_v1_SolveRequest, metadata: grpc.Metadata, options: grpc.CallOptions, callback: grpc.requestCallback<_renyibound_v1_SolveReply__Output>): grpc.ClientUnaryCall;
   Solve(argument: _renyibound_v1_SolveRequest, metadata: grpc.Metadata, callback: grpc.requestCallback<_renyibound_v1_SolveReply__Output>): grpc.ClientUnaryCall;
   Solve(argument: _renyibound_v1_SolveRequest, options: grpc.CallOptions, callback: grpc.requestCallback<_renyibound_v1_SolveReply__Output>): grpc.ClientUnaryCall;
@@ -36,6 +47,8 @@ export interface RenyiBoundClient extends grpc.Client {
 }
 
 export interface RenyiBoundHandlers extends grpc.UntypedServiceImplementation {
+  DecoyRate: grpc.handleUnaryCall<_renyibound_v1_DecoyRateRequest__Output, _renyibound_v1_DecoyRateReply>;
+  
   Solve: grpc.handleUnaryCall<_renyibound_v1_SolveRequest__Output, _renyibound_v1_SolveReply>;
   
   SolveBatch: grpc.handleServerStreamingCall<_renyibound_v1_BatchRequest__Output, _renyibound_v1_BatchItem>;
@@ -45,6 +58,7 @@ export interface RenyiBoundHandlers extends grpc.UntypedServiceImplementation {
 }
 
 export interface RenyiBoundDefinition extends grpc.ServiceDefinition {
+  DecoyRate: MethodDefinition<_renyibound_v1_DecoyRateRequest, _renyibound_v1_DecoyRateReply, _renyibound_v1_DecoyRateRequest__Output, _renyibound_v1_DecoyRateReply__Output>
   Solve: MethodDefinition<_renyibound_v1_SolveRequest, _renyibound_v1_SolveReply, _renyibound_v1_SolveRequest__Output, _renyibound_v1_SolveReply__Output>
   SolveBatch: MethodDefinition<_renyibound_v1_BatchRequest, _renyibound_v1_BatchItem, _renyibound_v1_BatchRequest__Output, _renyibound_v1_BatchItem__Output>
   Verify: MethodDefinition<_renyibound_v1_VerifyRequest, _renyibound_v1_VerifyReply, _renyibound_v1_VerifyRequest__Output, _renyibound_v1_VerifyReply__Output>
