@@ -80,6 +80,16 @@ export function tokensFromOptions(tokenFile: string | undefined, env: NodeJS.Pro
   return fromEnv ? readTokenFile(fromEnv, TOKEN_FILE_ENV) : undefined;
 }
 
+/** A certificate and its key come together: one without the other is an error naming the missing option. */
+function checkPair(paths: { tlsCert?: string; tlsKey?: string }, what: string): void {
+  if ((paths.tlsCert === undefined) !== (paths.tlsKey === undefined)) {
+    throw new ValidationError(paths.tlsCert === undefined ? '--tls-cert' : '--tls-key', `${what} needs both --tls-cert and --tls-key`);
+  }
+}
+
+/** A PEM file option, when given. */
+const optionalPem = (path: string | undefined, field: string): Buffer | undefined => (path === undefined ? undefined : readPem(path, field));
+
 /** Command-line paths of the server's security options. */
 export interface ServerSecurityPaths {
   tlsCert?: string;
@@ -90,9 +100,7 @@ export interface ServerSecurityPaths {
 }
 
 export function serverSecurityFromPaths(paths: ServerSecurityPaths, env: NodeJS.ProcessEnv = process.env): ServerSecurity {
-  if ((paths.tlsCert === undefined) !== (paths.tlsKey === undefined)) {
-    throw new ValidationError(paths.tlsCert === undefined ? '--tls-cert' : '--tls-key', 'TLS needs both --tls-cert and --tls-key');
-  }
+  checkPair(paths, 'TLS');
   if (paths.tlsClientCa !== undefined && paths.tlsCert === undefined) {
     throw new ValidationError('--tls-client-ca', 'mutual TLS needs the server’s own --tls-cert and --tls-key');
   }
@@ -102,7 +110,7 @@ export function serverSecurityFromPaths(paths: ServerSecurityPaths, env: NodeJS.
       : {
           cert: readPem(paths.tlsCert, '--tls-cert'),
           key: readPem(paths.tlsKey!, '--tls-key'),
-          clientCa: paths.tlsClientCa === undefined ? undefined : readPem(paths.tlsClientCa, '--tls-client-ca'),
+          clientCa: optionalPem(paths.tlsClientCa, '--tls-client-ca'),
         };
   return { tls, tokens: tokensFromOptions(paths.tokenFile, env), allowInsecureRemote: paths.allowInsecureRemote };
 }
@@ -116,16 +124,14 @@ export interface ClientSecurityPaths {
 }
 
 export function clientSecurityFromPaths(paths: ClientSecurityPaths, env: NodeJS.ProcessEnv = process.env): ClientSecurity {
-  if ((paths.tlsCert === undefined) !== (paths.tlsKey === undefined)) {
-    throw new ValidationError(paths.tlsCert === undefined ? '--tls-cert' : '--tls-key', 'a client certificate needs both --tls-cert and --tls-key');
-  }
+  checkPair(paths, 'a client certificate');
   if (paths.tlsCert !== undefined && paths.tlsCa === undefined) {
     throw new ValidationError('--tls-ca', 'a client certificate is only sent over TLS: give the server’s CA too');
   }
   return {
-    ca: paths.tlsCa === undefined ? undefined : readPem(paths.tlsCa, '--tls-ca'),
-    cert: paths.tlsCert === undefined ? undefined : readPem(paths.tlsCert, '--tls-cert'),
-    key: paths.tlsKey === undefined ? undefined : readPem(paths.tlsKey, '--tls-key'),
+    ca: optionalPem(paths.tlsCa, '--tls-ca'),
+    cert: optionalPem(paths.tlsCert, '--tls-cert'),
+    key: optionalPem(paths.tlsKey, '--tls-key'),
     token: tokensFromOptions(paths.tokenFile, env)?.[0],
   };
 }
