@@ -29,6 +29,7 @@ import type { WorkerReply, WorkerTask } from './solve-worker.js';
 import { QueueFullError, SolverPool } from './solver-pool.js';
 import { checkExposure, exposureWarning, serveHealthOnly, serverCredentials, serverOptions, type ServerSecurity } from './security.js';
 import { entropyKindFromWire, resultFromWire, resultToWire, wireToJson } from './wire.js';
+import { handleKeyLength } from './key-length.js';
 
 export interface ServerOptions {
   /** Interface to bind; loopback unless told otherwise. */
@@ -189,6 +190,7 @@ export class RenyiBoundServer {
       Solve: (call, callback) => void this.solve(call, callback),
       SolveBatch: (call) => void this.solveBatch(call),
       Verify: (call, callback) => this.verify(call, callback),
+      KeyLength: (call, callback) => void handleKeyLength(call, callback, this.coordinator),
       DecoyRate: decoyRateHandler(),
     };
   }

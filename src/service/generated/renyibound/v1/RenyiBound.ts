@@ -6,6 +6,8 @@ import type { BatchItem as _renyibound_v1_BatchItem, BatchItem__Output as _renyi
 import type { BatchRequest as _renyibound_v1_BatchRequest, BatchRequest__Output as _renyibound_v1_BatchRequest__Output } from '../../renyibound/v1/BatchRequest.js';
 import type { DecoyRateReply as _renyibound_v1_DecoyRateReply, DecoyRateReply__Output as _renyibound_v1_DecoyRateReply__Output } from '../../renyibound/v1/DecoyRateReply.js';
 import type { DecoyRateRequest as _renyibound_v1_DecoyRateRequest, DecoyRateRequest__Output as _renyibound_v1_DecoyRateRequest__Output } from '../../renyibound/v1/DecoyRateRequest.js';
+import type { KeyLengthReply as _renyibound_v1_KeyLengthReply, KeyLengthReply__Output as _renyibound_v1_KeyLengthReply__Output } from '../../renyibound/v1/KeyLengthReply.js';
+import type { KeyLengthRequest as _renyibound_v1_KeyLengthRequest, KeyLengthRequest__Output as _renyibound_v1_KeyLengthRequest__Output } from '../../renyibound/v1/KeyLengthRequest.js';
 import type { SolveReply as _renyibound_v1_SolveReply, SolveReply__Output as _renyibound_v1_SolveReply__Output } from '../../renyibound/v1/SolveReply.js';
 import type { SolveRequest as _renyibound_v1_SolveRequest, SolveRequest__Output as _renyibound_v1_SolveRequest__Output } from '../../renyibound/v1/SolveRequest.js';
 import type { VerifyReply as _renyibound_v1_VerifyReply, VerifyReply__Output as _renyibound_v1_VerifyReply__Output } from '../../renyibound/v1/VerifyReply.js';
@@ -20,6 +22,15 @@ export interface RenyiBoundClient extends grpc.Client {
   decoyRate(argument: _renyibound_v1_DecoyRateRequest, metadata: grpc.Metadata, callback: grpc.requestCallback<_renyibound_v1_DecoyRateReply__Output>): grpc.ClientUnaryCall;
   decoyRate(argument: _renyibound_v1_DecoyRateRequest, options: grpc.CallOptions, callback: grpc.requestCallback<_renyibound_v1_DecoyRateReply__Output>): grpc.ClientUnaryCall;
   decoyRate(argument: _renyibound_v1_DecoyRateRequest, callback: grpc.requestCallback<_renyibound_v1_DecoyRateReply__Output>): grpc.ClientUnaryCall;
+  
+  KeyLength(argument: _renyibound_v1_KeyLengthRequest, metadata: grpc.Metadata, options: grpc.CallOptions, callback: grpc.requestCallback<_renyibound_v1_KeyLengthReply__Output>): grpc.ClientUnaryCall;
+  KeyLength(argument: _renyibound_v1_KeyLengthRequest, metadata: grpc.Metadata, callback: grpc.requestCallback<_renyibound_v1_KeyLengthReply__Output>): grpc.ClientUnaryCall;
+  KeyLength(argument: _renyibound_v1_KeyLengthRequest, options: grpc.CallOptions, callback: grpc.requestCallback<_renyibound_v1_KeyLengthReply__Output>): grpc.ClientUnaryCall;
+  KeyLength(argument: _renyibound_v1_KeyLengthRequest, callback: grpc.requestCallback<_renyibound_v1_KeyLengthReply__Output>): grpc.ClientUnaryCall;
+  keyLength(argument: _renyibound_v1_KeyLengthRequest, metadata: grpc.Metadata, options: grpc.CallOptions, callback: grpc.requestCallback<_renyibound_v1_KeyLengthReply__Output>): grpc.ClientUnaryCall;
+  keyLength(argument: _renyibound_v1_KeyLengthRequest, metadata: grpc.Metadata, callback: grpc.requestCallback<_renyibound_v1_KeyLengthReply__Output>): grpc.ClientUnaryCall;
+  keyLength(argument: _renyibound_v1_KeyLengthRequest, options: grpc.CallOptions, callback: grpc.requestCallback<_renyibound_v1_KeyLengthReply__Output>): grpc.ClientUnaryCall;
+  keyLength(argument: _renyibound_v1_KeyLengthRequest, callback: grpc.requestCallback<_renyibound_v1_KeyLengthReply__Output>): grpc.ClientUnaryCall;
   
   Solve(argument: _renyibound_v1_SolveRequest, metadata: grpc.Metadata, options: grpc.CallOptions, callback: grpc.requestCallback<_renyibound_v1_SolveReply__Output>): grpc.ClientUnaryCall;
   Solve(argument: _renyibound_v1_SolveRequest, metadata: grpc.Metadata, callback: grpc.requestCallback<_renyibound_v1_SolveReply__Output>): grpc.ClientUnaryCall;
@@ -49,6 +60,8 @@ export interface RenyiBoundClient extends grpc.Client {
 export interface RenyiBoundHandlers extends grpc.UntypedServiceImplementation {
   DecoyRate: grpc.handleUnaryCall<_renyibound_v1_DecoyRateRequest__Output, _renyibound_v1_DecoyRateReply>;
   
+  KeyLength: grpc.handleUnaryCall<_renyibound_v1_KeyLengthRequest__Output, _renyibound_v1_KeyLengthReply>;
+  
   Solve: grpc.handleUnaryCall<_renyibound_v1_SolveRequest__Output, _renyibound_v1_SolveReply>;
   
   SolveBatch: grpc.handleServerStreamingCall<_renyibound_v1_BatchRequest__Output, _renyibound_v1_BatchItem>;
@@ -59,6 +72,7 @@ export interface RenyiBoundHandlers extends grpc.UntypedServiceImplementation {
 
 export interface RenyiBoundDefinition extends grpc.ServiceDefinition {
   DecoyRate: MethodDefinition<_renyibound_v1_DecoyRateRequest, _renyibound_v1_DecoyRateReply, _renyibound_v1_DecoyRateRequest__Output, _renyibound_v1_DecoyRateReply__Output>
+  KeyLength: MethodDefinition<_renyibound_v1_KeyLengthRequest, _renyibound_v1_KeyLengthReply, _renyibound_v1_KeyLengthRequest__Output, _renyibound_v1_KeyLengthReply__Output>
   Solve: MethodDefinition<_renyibound_v1_SolveRequest, _renyibound_v1_SolveReply, _renyibound_v1_SolveRequest__Output, _renyibound_v1_SolveReply__Output>
   SolveBatch: MethodDefinition<_renyibound_v1_BatchRequest, _renyibound_v1_BatchItem, _renyibound_v1_BatchRequest__Output, _renyibound_v1_BatchItem__Output>
   Verify: MethodDefinition<_renyibound_v1_VerifyRequest, _renyibound_v1_VerifyReply, _renyibound_v1_VerifyRequest__Output, _renyibound_v1_VerifyReply__Output>
