@@ -3,7 +3,8 @@
 import { Command } from 'commander';
 import { solve } from '../frank-wolfe/solve.js';
 import { SettingsError } from '../frank-wolfe/settings.js';
-import type { SolveResult, SolverSettings } from '../frank-wolfe/types.js';
+import type { SolveResult } from '../result/types.js';
+import type { SolverSettings } from '../frank-wolfe/settings.js';
 import { densityOperatorFromJson } from '../problem/state.js';
 import { ValidationError, entropyRequestFrom, parseProblemJson } from '../problem/validate.js';
 import { closeClients, RemoteCallError, solveRemote } from '../service/client.js';

@@ -3,7 +3,7 @@
 // the Farkas certificate instead.
 import { Command } from 'commander';
 import { verifyInfeasibility, verifyResult, type VerificationReport } from '../certificate/verify.js';
-import type { SolveResult } from '../frank-wolfe/types.js';
+import type { SolveResult } from '../result/types.js';
 import { ValidationError, entropyRequestFrom, problemFromJson } from '../problem/validate.js';
 import { printJson, readJsonInput, withInputErrors } from './io.js';
 

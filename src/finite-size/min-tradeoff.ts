@@ -2,7 +2,7 @@
 // not depend on them), so g(s) = constant + Σ_i y_i·s_i lower-bounds H(S|CE) at every state on the certificate's
 // feasible face, whatever its statistics s_i = Tr(Γ_i σ) (docs/finite-size.md, "Min-tradeoff export").
 import { certificateBreakdown, MARGIN_CONSTANT } from '../certificate/bound.js';
-import type { SolveResult } from '../frank-wolfe/types.js';
+import type { SolveResult } from '../result/types.js';
 import { frobeniusNorm } from '../linear-algebra/complex-matrix.js';
 import { createObjective } from '../objectives/index.js';
 import { feasibleFace, restrictToFace } from '../problem/feasible-face.js';

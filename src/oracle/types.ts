@@ -1,4 +1,4 @@
-// Public types of the semidefinite linear oracle (MATH.md §4) and its settings.
+// Public types of the semidefinite linear oracle and its settings.
 import type { ComplexMatrix } from '../linear-algebra/complex-matrix.js';
 
 /** lower ≤ Tr(operator·σ) ≤ upper; lower === upper is an equality; ±Infinity leaves a side open. operator is d×d Hermitian. */
@@ -16,6 +16,28 @@ export interface OracleSettings {
   maxIterations: number;
 }
 
+/**
+ * Called between expensive steps (once per interior-point iteration, between the constructor's big passes, between
+ * facial-reduction steps); throws to abort the computation. The oracle never catches what it throws.
+ */
+export type Checkpoint = () => void;
+
+/** Constructor options: settings plus an optional checkpoint kept for every later call. */
+export interface OracleOptions extends Partial<OracleSettings> {
+  checkpoint?: Checkpoint;
+  /**
+   * Relative right-hand-side mismatch up to which an equality that depends on the others counts as implied by them
+   * (default 1e-9). Only faces found numerically by exposing directions need more: their constraints agree to
+   * about √u only (the square-root sensitivity of facial reduction).
+   */
+  impliedEqualityTolerance?: number;
+}
+
+/** Per-call options of `minimize`: settings for this call and a checkpoint (overrides the constructor's). */
+export interface MinimizeOptions extends Partial<OracleSettings> {
+  checkpoint?: Checkpoint;
+}
+
 export const DEFAULT_ORACLE_SETTINGS: Readonly<OracleSettings> = Object.freeze({
   relativeAccuracy: 1e-7,
   maxIterations: 100,
@@ -27,7 +49,7 @@ export const DEFAULT_ORACLE_SETTINGS: Readonly<OracleSettings> = Object.freeze({
  */
 export type OracleStatus = 'OPTIMAL' | 'INFEASIBLE' | 'ITERATION_LIMIT' | 'NUMERICAL_ERROR';
 
-/** Farkas certificate of MATH.md §4: y⁺, y⁻ ≥ 0, Σ(y⁺ + y⁻) = 1, violation = Σy⁺ℓ − Σy⁻u − λ_max(Σ yΓ) > 0. */
+/** Farkas certificate (README, "The bound"): y⁺, y⁻ ≥ 0, Σ(y⁺ + y⁻) = 1, violation = Σy⁺ℓ − Σy⁻u − λ_max(Σ yΓ) > 0. */
 export interface InfeasibilityCertificate {
   multipliersLower: Float64Array;
   multipliersUpper: Float64Array;
@@ -67,7 +89,9 @@ export const HERMITICITY_TOLERANCE = 1e-10;
 
 /** Validates and completes settings; errors name the field. */
 export function resolveSettings(base: Readonly<OracleSettings>, override: Partial<OracleSettings> | undefined, path: string): OracleSettings {
-  const settings: OracleSettings = { ...base, ...(override ?? {}) };
+  const settings: OracleSettings = { relativeAccuracy: base.relativeAccuracy, maxIterations: base.maxIterations };
+  if (override?.relativeAccuracy !== undefined) settings.relativeAccuracy = override.relativeAccuracy;
+  if (override?.maxIterations !== undefined) settings.maxIterations = override.maxIterations;
   const accuracy = settings.relativeAccuracy;
   if (typeof accuracy !== 'number' || !(accuracy > 0 && accuracy <= 0.1)) {
     throw new OracleInputError(`${path}.relativeAccuracy`, `must be a number in (0, 0.1], got ${String(accuracy)}`);

@@ -73,6 +73,7 @@ export interface ProtoGrpcType {
       LinearConstraint: MessageTypeDefinition<_renyibound_v1_LinearConstraint, _renyibound_v1_LinearConstraint__Output>
       Matrix: MessageTypeDefinition<_renyibound_v1_Matrix, _renyibound_v1_Matrix__Output>
       MinTradeoffFunction: MessageTypeDefinition<_renyibound_v1_MinTradeoffFunction, _renyibound_v1_MinTradeoffFunction__Output>
+      NoProgressCause: EnumTypeDefinition
       ObservedStatistics: MessageTypeDefinition<_renyibound_v1_ObservedStatistics, _renyibound_v1_ObservedStatistics__Output>
       ParameterAxis: MessageTypeDefinition<_renyibound_v1_ParameterAxis, _renyibound_v1_ParameterAxis__Output>
       ParameterGrid: MessageTypeDefinition<_renyibound_v1_ParameterGrid, _renyibound_v1_ParameterGrid__Output>
