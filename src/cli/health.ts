@@ -5,13 +5,14 @@ import { parseServers } from '../client/servers.js';
 import { ValidationError } from '../problem/errors.js';
 import { parseNumberOption, withInputErrors } from './io.js';
 import { integerOption, SERVER_OPTION_HELP, serversOption } from './service-options.js';
+import { addClientSecurityOptions, type SecurityCommandOptions } from './security-options.js';
 
 /** Exit code when the server answers but is not serving, or cannot be reached. */
 export const EXIT_NOT_SERVING = 1;
 /** Longest --wait accepted, in seconds. */
 const MAX_WAIT_SECONDS = 3600;
 
-interface HealthOptions {
+interface HealthOptions extends SecurityCommandOptions {
   server: string;
   service: string;
   timeoutMs: string;
@@ -19,16 +20,18 @@ interface HealthOptions {
 }
 
 export function register(program: Command): void {
-  program
+  addClientSecurityOptions(program
     .command('health')
     .description('ask a server for its health status (SERVING, NOT_SERVING, ...); exit 0 only when serving')
     .option('--server <servers>', SERVER_OPTION_HELP, '127.0.0.1:50051')
     .option('--service <name>', 'service to ask about; empty means the server as a whole', '')
     .option('--timeout-ms <ms>', 'give up on one check after this long', '3000')
-    .option('--wait <seconds>', 'keep asking until the server says SERVING or this many seconds pass (a server still starting)')
+    .option('--wait <seconds>', 'keep asking until the server says SERVING or this many seconds pass (a server still starting)'))
     .action(
       withInputErrors(async (options: HealthOptions) => {
         const { checkHealthOf, waitForServing } = await import('../client/client.js');
+        const { clientSecurityFromPaths, setDefaultClientSecurity } = await import('../service/security.js');
+        setDefaultClientSecurity(clientSecurityFromPaths(options));
         const servers = serversOption(options.server);
         const timeoutMs = integerOption(options.timeoutMs, '--timeout-ms', 1, 600_000)!;
         const waitSeconds = options.wait === undefined ? undefined : parseNumberOption(options.wait, '--wait');

@@ -6,11 +6,12 @@ import { ValidationError } from '../problem/errors.js';
 import { withInputErrors } from './io.js';
 import { integerOption, MAX_WORKERS, messageBytesOption } from './service-options.js';
 import { DEFAULT_MAX_MESSAGE_BYTES, mebibytes } from '../service/message-size.js';
+import { addServerSecurityOptions, type SecurityCommandOptions } from './security-options.js';
 
 /** Largest queue accepted on the command line. */
 const MAX_QUEUE_LIMIT = 1_000_000;
 
-interface ServeOptions {
+interface ServeOptions extends SecurityCommandOptions {
   host: string;
   port: string;
   workers?: string;
@@ -23,7 +24,7 @@ interface ServeOptions {
 }
 
 export function register(program: Command): void {
-  program
+  addServerSecurityOptions(program
     .command('serve')
     .description('run the gRPC service (renyibound.v1.RenyiBound, grpc.health.v1.Health, server reflection)')
     .option('--host <host>', 'interface to bind (loopback unless told otherwise)', DEFAULT_HOST)
@@ -34,9 +35,10 @@ export function register(program: Command): void {
     .option('--redis-url <url>', 'Redis shared between replicas, e.g. redis://127.0.0.1:6379')
     .option('--redis-required', 'refuse to start while Redis cannot be reached (default: start with the local cache, join Redis when it answers)')
     .option('--max-message-mib <n>', `largest request accepted, in MiB (default ${mebibytes(DEFAULT_MAX_MESSAGE_BYTES)}: 64 dense complex matrices of the maximum dimension)`)
-    .option('--queue-limit <n>', 'solves allowed to wait for a thread before RESOURCE_EXHAUSTED (default: 16 per thread)')
+    .option('--queue-limit <n>', 'solves allowed to wait for a thread before RESOURCE_EXHAUSTED (default: 16 per thread)'))
     .action(
       withInputErrors(async (options: ServeOptions) => {
+        const { serverSecurityFromPaths } = await import('../service/security.js');
         const settings = {
           host: options.host,
           port: integerOption(options.port, '--port', 0, 65535),
@@ -46,12 +48,15 @@ export function register(program: Command): void {
           redisUrl: options.redisUrl,
           redisRequired: options.redisRequired === true,
           maxMessageBytes: messageBytesOption(options.maxMessageMib),
+          security: serverSecurityFromPaths(options),
+          healthPort: integerOption(options.healthPort, '--health-port', 0, 65535),
         };
         let server: RenyiBoundServer;
         try {
           server = await RenyiBoundServer.start(settings);
         } catch (error) {
           // The usual start-up failures are bad option values: an unreachable Redis, a port in use.
+          if (error instanceof ValidationError) throw error;
           const message = (error as Error).message;
           if (/Redis/.test(message)) throw new ValidationError('--redis-url', message);
           if (/bind|address|EADDRINUSE|port/i.test(message)) throw new ValidationError('--port', message);

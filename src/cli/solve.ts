@@ -9,6 +9,7 @@ import { densityOperatorFromJson } from '../problem/state.js';
 import { ValidationError, entropyRequestFrom, parseProblemJson } from '../problem/validate.js';
 import { parseNumberOption, printJson, readJsonInput, withInputErrors } from './io.js';
 import { SERVER_OPTION_HELP, serversOption } from './service-options.js';
+import { addClientSecurityOptions, type SecurityCommandOptions } from './security-options.js';
 
 /** Attempts of a remote solve whose replica fails (the next attempt goes to the next replica). */
 const REMOTE_ATTEMPTS = 3;
@@ -22,7 +23,7 @@ export const EXIT_CODES: Record<SolveResult['status'], number> = {
   FEASIBILITY_UNDECIDED: 4,
 };
 
-interface SolveOptions {
+interface SolveOptions extends SecurityCommandOptions {
   entropy?: string;
   alpha?: string;
   gap?: string;
@@ -41,7 +42,7 @@ function settingsFrom(options: SolveOptions): Partial<SolverSettings> {
 }
 
 export function register(program: Command): void {
-  program
+  addClientSecurityOptions(program
     .command('solve')
     .description('certified lower bound on the entropy over every state consistent with the problem')
     .argument('<problem>', 'problem JSON file, or - for standard input')
@@ -51,7 +52,7 @@ export function register(program: Command): void {
     .option('--max-iterations <n>', 'iteration limit (default 20000)')
     .option('--time-limit-ms <t>', 'time limit in milliseconds (default 120000)')
     .option('--warm-start <matrix.json>', 'density operator to start from')
-    .option('--server <servers>', `send the request to running renyi-bound server(s) instead of solving here: ${SERVER_OPTION_HELP}`)
+    .option('--server <servers>', `send the request to running renyi-bound server(s) instead of solving here: ${SERVER_OPTION_HELP}`))
     .action(
       withInputErrors(async (problemSource: string, options: SolveOptions) => {
         const alpha = options.alpha === undefined ? undefined : parseNumberOption(options.alpha, 'alpha');
@@ -70,6 +71,8 @@ export function register(program: Command): void {
           const server = serversOption(options.server);
           const { closeClients, solveRemote } = await import('../client/client.js');
           const { commandLineError } = await import('../client/errors.js');
+          const { clientSecurityFromPaths, setDefaultClientSecurity } = await import('../service/security.js');
+          setDefaultClientSecurity(clientSecurityFromPaths(options));
           try {
             result = await solveRemote(
               server,

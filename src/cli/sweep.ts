@@ -5,13 +5,14 @@ import type { SweepOutcome } from '../client/sweep.js';
 import { ValidationError } from '../problem/errors.js';
 import { readJsonInput, withInputErrors } from './io.js';
 import { integerOption, MAX_WORKERS, noticeNewCacheFile, SERVER_OPTION_HELP, serversOption } from './service-options.js';
+import { addClientSecurityOptions, type SecurityCommandOptions } from './security-options.js';
 
 /** Exit code when some grid points failed or are missing (the others are still written). */
 export const EXIT_SOME_POINTS_FAILED = 1;
 /** Largest --in-flight accepted. */
 const MAX_IN_FLIGHT = 256;
 
-interface SweepCommandOptions {
+interface SweepCommandOptions extends SecurityCommandOptions {
   server?: string;
   out: string;
   plot?: string;
@@ -40,7 +41,7 @@ export function reportProblems(outcome: SweepOutcome): boolean {
 }
 
 export function register(program: Command): void {
-  program
+  addClientSecurityOptions(program
     .command('sweep')
     .description('run a parameter grid (an example builder × parameter values × entropy kinds) and write CSV, JSON and a plot')
     .argument('<grid.json>', 'renyibound.v1.ParameterGrid as JSON, or - for standard input')
@@ -53,7 +54,7 @@ export function register(program: Command): void {
     .option('--cache-dir <dir>', 'SQLite cache directory of the embedded server')
     .option('--no-disk-cache', 'embedded server keeps results in memory only')
     .option('--redis-url <url>', 'Redis shared with other sweeps and replicas (embedded server)')
-    .option('--no-warm-start', 'start every point cold (to measure what warm starts save)')
+    .option('--no-warm-start', 'start every point cold (to measure what warm starts save)'))
     .action(
       withInputErrors(async (gridPath: string, options: SweepCommandOptions) => {
         const { gridFromJson, parseShard, runSweep } = await import('../client/sweep.js');
@@ -65,6 +66,10 @@ export function register(program: Command): void {
           throw new ValidationError('--redis-url', 'is for the embedded server; the servers behind --server have their own');
         }
         const shard = options.shard === undefined ? undefined : parseShard(options.shard);
+        if (server !== undefined) {
+          const { clientSecurityFromPaths, setDefaultClientSecurity } = await import('../service/security.js');
+          setDefaultClientSecurity(clientSecurityFromPaths(options));
+        }
         const cacheNotice = noticeNewCacheFile(server === undefined ? cacheDirectoryOption(options) : false);
         const bar = progressBar();
         let outcome: SweepOutcome;

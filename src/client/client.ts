@@ -17,6 +17,7 @@ import type { SolveRequest } from '../service/generated/renyibound/v1/SolveReque
 import { loadServicePackage } from '../service/proto.js';
 import { entropyKindToWire, matrixToWire, resultFromWire, resultToWire, settingsToWire, type DeliveredResult } from '../service/wire.js';
 import { channelSettings } from './channel.js';
+import { clientSecurityKey, getDefaultClientSecurity } from '../service/security.js';
 import { parseServers, resolveServers } from './servers.js';
 import { asRemoteError, isReplicaFailure, remoteError } from './errors.js';
 
@@ -51,6 +52,11 @@ function callOptions(options: CallOptions): grpc.CallOptions {
 const clients = new Map<string, Promise<{ client: RenyiBoundClient; replicas: number }>>();
 const plainClients = new Map<string, RenyiBoundClient>();
 
+/** Clients with different credentials are never shared. */
+function cacheKey(servers: string): string {
+  return `${servers} ${clientSecurityKey(getDefaultClientSecurity())}`;
+}
+
 function newClient(target: string): RenyiBoundClient {
   const Client = loadServicePackage().renyibound.v1.RenyiBound;
   const { credentials, options } = channelSettings();
@@ -63,12 +69,13 @@ function newClient(target: string): RenyiBoundClient {
  * A list of names needs `connect`.
  */
 export function renyiBoundClient(servers: string): RenyiBoundClient {
-  let client = plainClients.get(servers);
+  const key = cacheKey(servers);
+  let client = plainClients.get(key);
   if (client === undefined) {
     const { target } = parseServers(servers);
     if (target === '') throw new ValidationError('--server', 'a list of host names must be resolved first (use connect)');
     client = newClient(target);
-    plainClients.set(servers, client);
+    plainClients.set(key, client);
   }
   return client;
 }
@@ -78,14 +85,15 @@ export function renyiBoundClient(servers: string): RenyiBoundClient {
  * Calls on it are spread round robin over every address; `replicas` is how many were found.
  */
 export function connect(servers: string): Promise<{ client: RenyiBoundClient; replicas: number }> {
-  let entry = clients.get(servers);
+  const key = cacheKey(servers);
+  let entry = clients.get(key);
   if (entry === undefined) {
     entry = (async () => {
       const resolved = await resolveServers(parseServers(servers));
       return { client: newClient(resolved.servers.target), replicas: resolved.replicas };
     })();
-    entry.catch(() => clients.delete(servers));
-    clients.set(servers, entry);
+    entry.catch(() => clients.delete(key));
+    clients.set(key, entry);
   }
   return entry;
 }

@@ -29,6 +29,7 @@ import { loadServiceDefinition, loadServicePackage, SERVICE_NAME } from './proto
 import { SolveCoordinator } from './solve-coordinator.js';
 import type { WorkerReply, WorkerTask } from './solve-worker.js';
 import { QueueFullError, SolverPool } from './solver-pool.js';
+import { checkExposure, exposureWarning, serveHealthOnly, serverCredentials, serverOptions, type ServerSecurity } from './security.js';
 import { entropyKindFromWire, resultFromWire, resultToWire, wireToJson } from './wire.js';
 import { handleKeyLength } from './key-length.js';
 
@@ -56,6 +57,10 @@ export interface ServerOptions {
   drainTimeoutMs?: number;
   /** Attempts per task when its solver thread dies (default 2: one retry). */
   workerAttempts?: number;
+  /** TLS, bearer token, and whether a plaintext non-loopback bind is allowed (see security.ts). */
+  security?: ServerSecurity;
+  /** A second, plaintext port serving only grpc.health.v1 (for probes that cannot speak TLS). */
+  healthPort?: number;
 }
 
 /** Defaults of the command line (`renyi-bound serve`). */
@@ -98,6 +103,8 @@ export class RenyiBoundServer {
   private readonly callControllers = new Set<AbortController>();
   private shuttingDown: Promise<void> | undefined;
   private servingStatus: ServingStatus = 'SERVING';
+  /** The plaintext health-only listener and its port, when one was asked for. */
+  healthListener: { server: grpc.Server; port: number } | undefined;
 
   private constructor(
     readonly grpcServer: grpc.Server,
@@ -123,6 +130,10 @@ export class RenyiBoundServer {
 
   static async start(options: ServerOptions = {}): Promise<RenyiBoundServer> {
     const logger = options.logger ?? pino({ name: 'renyi-bound' });
+    const security = options.security ?? {};
+    checkExposure(options.host ?? DEFAULT_HOST, security);
+    const warning = exposureWarning(options.host ?? DEFAULT_HOST, security);
+    if (warning !== undefined) logger.warn({ event: 'security' }, warning);
     const layers: CacheLayer[] = [new MemoryCacheLayer(options.memoryEntries ?? DEFAULT_MEMORY_ENTRIES)];
     if (options.cacheDirectory !== false) {
       layers.push(SqliteCacheLayer.inDirectory(options.cacheDirectory ?? defaultCacheDirectory(), (event: SqliteOpenEvent) => {
@@ -151,6 +162,7 @@ export class RenyiBoundServer {
     const maxMessageBytes = options.maxMessageBytes ?? DEFAULT_MAX_MESSAGE_BYTES;
     // Up to the cap the transport reads a message, and guardRequests refuses one above the limit by name.
     const grpcServer = new grpc.Server({
+      ...serverOptions(security),
       'grpc.max_receive_message_length': maxMessageBytes * TRANSPORT_CAP_FACTOR,
       'grpc.max_send_message_length': maxMessageBytes * TRANSPORT_CAP_FACTOR,
     });
@@ -158,7 +170,7 @@ export class RenyiBoundServer {
     let port: number;
     try {
       port = await new Promise<number>((resolve, reject) =>
-        grpcServer.bindAsync(bindAddress(host, options.port ?? DEFAULT_PORT), grpc.ServerCredentials.createInsecure(), (error, bound) =>
+        grpcServer.bindAsync(bindAddress(host, options.port ?? DEFAULT_PORT), serverCredentials(security.tls), (error, bound) =>
           error ? reject(error) : resolve(bound),
         ),
       );
@@ -172,8 +184,14 @@ export class RenyiBoundServer {
     server.health.addToServer(grpcServer);
     // Reflection lists the health service too, so tools like grpcurl can discover both.
     new ReflectionService({ ...loadServiceDefinition(), ...protoLoader.loadSync(healthProtoPath, PROTO_LOADER_OPTIONS) }).addToServer(grpcServer);
+    if (options.healthPort !== undefined) {
+      server.healthListener = await serveHealthOnly(server.health, bindAddress(host, options.healthPort)).catch(async (error: unknown) => {
+        await server.shutdown();
+        throw error;
+      });
+    }
     logger.info(
-      { event: 'listening', address: server.address, workers: pool.workers, queueLimit: pool.queueLimit, cache: layers.map((l) => l.name) },
+      { event: 'listening', address: server.address, tls: security.tls ? (security.tls.clientCa ? 'mutual' : 'server') : 'off', tokens: security.tokens?.length ?? 0, workers: pool.workers, queueLimit: pool.queueLimit, cache: layers.map((l) => l.name) },
       'renyi-bound service listening',
     );
     return server;
@@ -333,6 +351,7 @@ export class RenyiBoundServer {
         clearTimeout(forced);
       }
       clearTimeout(timer);
+      this.healthListener?.server.forceShutdown();
       await this.pool.destroy();
       await this.cache.close();
       this.logger.info({ event: 'shutdown' }, 'stopped');
