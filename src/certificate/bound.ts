@@ -37,7 +37,7 @@ export interface BoundBreakdown {
 }
 
 /**
- * The certified lower bound from a full-rank linearization point on the feasible face (MATH.md §5 restated in
+ * The certified lower bound from a full-rank linearization point on the feasible face (docs/math.md §5 restated in
  * the README). Valid for any multipliers y⁺, y⁻ ≥ 0 and any full-rank ρ' by convexity and weak duality.
  */
 export function linearizationBound(

@@ -1,4 +1,4 @@
-// Public types of the semidefinite linear oracle (MATH.md §4) and its settings.
+// Public types of the semidefinite linear oracle (docs/math.md §4) and its settings.
 import type { ComplexMatrix } from '../linear-algebra/complex-matrix.js';
 
 /** lower ≤ Tr(operator·σ) ≤ upper; lower === upper is an equality; ±Infinity leaves a side open. operator is d×d Hermitian. */
@@ -27,7 +27,7 @@ export const DEFAULT_ORACLE_SETTINGS: Readonly<OracleSettings> = Object.freeze({
  */
 export type OracleStatus = 'OPTIMAL' | 'INFEASIBLE' | 'ITERATION_LIMIT' | 'NUMERICAL_ERROR';
 
-/** Farkas certificate of MATH.md §4: y⁺, y⁻ ≥ 0, Σ(y⁺ + y⁻) = 1, violation = Σy⁺ℓ − Σy⁻u − λ_max(Σ yΓ) > 0. */
+/** Farkas certificate of docs/math.md §4: y⁺, y⁻ ≥ 0, Σ(y⁺ + y⁻) = 1, violation = Σy⁺ℓ − Σy⁻u − λ_max(Σ yΓ) > 0. */
 export interface InfeasibilityCertificate {
   multipliersLower: Float64Array;
   multipliersUpper: Float64Array;

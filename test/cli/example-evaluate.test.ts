@@ -94,7 +94,7 @@ describe('renyi-bound CLI: version, example, evaluate', { timeout: 30_000 }, () 
     expect((await cli(['example', 'nope'])).stderr).toContain('name: unknown example "nope"');
   });
 
-  it('evaluate gives 1 bit on |Φ+⟩ and 0 on the maximally mixed state for every kind (CHECKS.md: purity / full purification)', async () => {
+  it('evaluate gives 1 bit on |Φ+⟩ and 0 on the maximally mixed state for every kind (docs/checks.md: purity / full purification)', async () => {
     const problem = file('bb84.json', buildExample('bb84-entangled', {}));
     const phi = file('phi.json', PHI_PLUS);
     const mixed = file('mixed.json', MAXIMALLY_MIXED);
