@@ -1,11 +1,8 @@
 // `renyi-bound evaluate <problem.json | -> --state <matrix.json> --entropy <kind> [--alpha a]`
 // (--entropy may be left out when the problem JSON names the entropy):
 // the objective's value (bits) and gradient norm at a given density operator.
-import { Command } from 'commander';
-import { frobeniusNorm } from '../linear-algebra/complex-matrix.js';
-import { createObjective } from '../objectives/index.js';
-import { densityOperatorFromJson } from '../problem/state.js';
-import { ValidationError, entropyRequestFrom, parseProblemJson } from '../problem/validate.js';
+import type { Command } from 'commander';
+import { ValidationError } from '../problem/errors.js';
 import { parseNumberOption, printJson, readJsonInput, withInputErrors } from './io.js';
 
 export interface EvaluateOutput {
@@ -31,7 +28,11 @@ export function register(program: Command): void {
     .option('--entropy <kind>', 'von-neumann, petz-up, petz-down or sandwiched-up (default: the problem’s entropy field)')
     .option('--alpha <a>', 'Rényi order in (1, 2] (Rényi kinds only)')
     .action(
-      withInputErrors((problemSource: string, options: EvaluateOptions) => {
+      withInputErrors(async (problemSource: string, options: EvaluateOptions) => {
+        const { frobeniusNorm } = await import('../linear-algebra/complex-matrix.js');
+        const { createObjective } = await import('../objectives/index.js');
+        const { densityOperatorFromJson } = await import('../problem/state.js');
+        const { entropyRequestFrom, parseProblemJson } = await import('../problem/validate.js');
         const alpha = options.alpha === undefined ? undefined : parseNumberOption(options.alpha, 'alpha');
         if (options.entropy === undefined && alpha !== undefined) {
           throw new ValidationError('alpha', 'given without --entropy');

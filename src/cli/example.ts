@@ -1,5 +1,5 @@
 // `renyi-bound example <name> [--param value ...]`: prints an example problem as protobuf JSON.
-import { Command } from 'commander';
+import type { Command } from 'commander';
 import { EXAMPLES, buildExample } from '../protocols/index.js';
 import { parseNumberOption, printJson, withInputErrors } from './io.js';
 

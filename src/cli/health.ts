@@ -1,6 +1,5 @@
 // `renyi-bound health --server host:port`: prints the grpc.health.v1 status name; exit 0 only when SERVING.
-import { Command } from 'commander';
-import { checkHealth } from '../service/client.js';
+import type { Command } from 'commander';
 import { withInputErrors } from './io.js';
 import { integerOption, serverAddressOption } from './service-options.js';
 
@@ -16,6 +15,7 @@ export function register(program: Command): void {
     .option('--timeout-ms <ms>', 'give up after this long', '3000')
     .action(
       withInputErrors(async (options: { server: string; service: string; timeoutMs: string }) => {
+        const { checkHealth } = await import('../service/client.js');
         const status = await checkHealth(serverAddressOption(options.server), options.service, {
           deadlineMs: integerOption(options.timeoutMs, '--timeout-ms', 1, 600_000),
         });

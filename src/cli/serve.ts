@@ -1,7 +1,6 @@
 // `renyi-bound serve`: runs the gRPC service until SIGTERM/SIGINT, then drains and exits 0.
-import { Command } from 'commander';
-import { DEFAULT_HOST, DEFAULT_PORT, RenyiBoundServer } from '../service/server.js';
-import { defaultCacheDirectory } from '../cache/sqlite.js';
+import type { Command } from 'commander';
+import type { RenyiBoundServer } from '../service/server.js';
 import { ValidationError } from '../problem/errors.js';
 import { withInputErrors } from './io.js';
 import { integerOption, MAX_WORKERS } from './service-options.js';
@@ -10,8 +9,8 @@ import { integerOption, MAX_WORKERS } from './service-options.js';
 const MAX_QUEUE_LIMIT = 1_000_000;
 
 interface ServeOptions {
-  host: string;
-  port: string;
+  host?: string;
+  port?: string;
   workers?: string;
   cacheDir?: string;
   diskCache: boolean;
@@ -23,15 +22,16 @@ export function register(program: Command): void {
   program
     .command('serve')
     .description('run the gRPC service (renyibound.v1.RenyiBound, grpc.health.v1.Health, server reflection)')
-    .option('--host <host>', 'interface to bind (loopback unless told otherwise)', DEFAULT_HOST)
-    .option('--port <port>', 'TCP port; 0 picks a free one', String(DEFAULT_PORT))
+    .option('--host <host>', 'interface to bind (default: loopback, 127.0.0.1)')
+    .option('--port <port>', 'TCP port; 0 picks a free one (default: 50051)')
     .option('--workers <n>', 'solver threads (default: the number of cores)')
-    .option('--cache-dir <dir>', `directory of the SQLite result cache (default: ${defaultCacheDirectory()})`)
+    .option('--cache-dir <dir>', 'directory of the SQLite result cache (default: $XDG_CACHE_HOME/renyi-bound or ~/.cache/renyi-bound)')
     .option('--no-disk-cache', 'keep results in memory only (no SQLite file)')
     .option('--redis-url <url>', 'Redis shared between replicas, e.g. redis://127.0.0.1:6379')
     .option('--queue-limit <n>', 'solves allowed to wait for a thread before RESOURCE_EXHAUSTED (default: 16 per thread)')
     .action(
       withInputErrors(async (options: ServeOptions) => {
+        const { RenyiBoundServer } = await import('../service/server.js');
         const settings = {
           host: options.host,
           port: integerOption(options.port, '--port', 0, 65535),

@@ -1,12 +1,8 @@
 // `renyi-bound solve <problem.json | -> --entropy <kind> [--alpha a] [--gap g] [--max-iterations n]
 //  [--time-limit-ms t] [--warm-start matrix.json] [--server host:port]`: a certified bound as JSON.
-import { Command } from 'commander';
-import { solve } from '../frank-wolfe/solve.js';
-import { SettingsError } from '../frank-wolfe/settings.js';
+import type { Command } from 'commander';
 import type { SolveResult, SolverSettings } from '../frank-wolfe/types.js';
-import { densityOperatorFromJson } from '../problem/state.js';
-import { ValidationError, entropyRequestFrom, parseProblemJson } from '../problem/validate.js';
-import { closeClients, RemoteCallError, solveRemote } from '../service/client.js';
+import { ValidationError } from '../problem/errors.js';
 import { parseNumberOption, printJson, readJsonInput, withInputErrors } from './io.js';
 
 /** Exit codes by status: a limit is a result (0); infeasible data and numerical failure have their own codes. */
@@ -49,6 +45,8 @@ export function register(program: Command): void {
     .option('--server <host:port>', 'send the request to a running renyi-bound server instead of solving here')
     .action(
       withInputErrors(async (problemSource: string, options: SolveOptions) => {
+        const { entropyRequestFrom, parseProblemJson } = await import('../problem/validate.js');
+        const { densityOperatorFromJson } = await import('../problem/state.js');
         const alpha = options.alpha === undefined ? undefined : parseNumberOption(options.alpha, 'alpha');
         if (options.entropy === undefined && alpha !== undefined) throw new ValidationError('alpha', 'given without --entropy');
         const problemJson = readJsonInput(problemSource, 'problem');
@@ -62,6 +60,7 @@ export function register(program: Command): void {
           warmStartJson === undefined ? undefined : densityOperatorFromJson(warmStartJson, 'warm-start', dimension);
         let result: SolveResult;
         if (options.server !== undefined) {
+          const { closeClients, RemoteCallError, solveRemote } = await import('../service/client.js');
           try {
             result = await solveRemote(options.server, {
               problem: problemJson,
@@ -81,6 +80,8 @@ export function register(program: Command): void {
             closeClients();
           }
         } else {
+          const { solve } = await import('../frank-wolfe/solve.js');
+          const { SettingsError } = await import('../frank-wolfe/settings.js');
           try {
             result = solve(parsed.problem, request, settings, { warmStart });
           } catch (error) {

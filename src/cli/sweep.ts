@@ -2,12 +2,10 @@
 // then writes CSV, JSON and optionally an SVG plot.
 import { mkdirSync, writeFileSync } from 'node:fs';
 import { dirname, extname } from 'node:path';
-import cliProgress from 'cli-progress';
-import { Command } from 'commander';
+import type { Command } from 'commander';
 import type { RemoteBatchItem } from '../service/client.js';
 import type { ParameterGrid } from '../service/generated/renyibound/v1/ParameterGrid.js';
-import { renderSvg, sweepCsv, sweepPlotSpec, sweepTable } from '../service/report.js';
-import { gridFromJson, runSweep, type SweepOutcome } from '../service/sweep.js';
+import type { SweepOutcome } from '../service/sweep.js';
 import { readJsonInput, withInputErrors } from './io.js';
 import { integerOption, MAX_WORKERS, serverAddressOption } from './service-options.js';
 
@@ -15,7 +13,8 @@ import { integerOption, MAX_WORKERS, serverAddressOption } from './service-optio
 export const EXIT_SOME_POINTS_FAILED = 1;
 
 /** A progress bar on standard error: points done, rate, ETA and cache hits; silent when stderr is not a terminal. */
-export function progressBar(): { update(item: RemoteBatchItem): void; stop(): void } {
+export async function progressBar(): Promise<{ update(item: RemoteBatchItem): void; stop(): void }> {
+  const { default: cliProgress } = await import('cli-progress');
   const bar = new cliProgress.SingleBar(
     {
       format: 'sweep |{bar}| {value}/{total} points | {rate} points/s | ETA {eta_formatted} | {cached} from cache',
@@ -70,6 +69,7 @@ export async function writeSweepOutputs(
   outcome: SweepOutcome,
   paths: { csv: string; plot?: string; title: string },
 ): Promise<void> {
+  const { renderSvg, sweepCsv, sweepPlotSpec } = await import('../service/report.js');
   const axisNames = (grid.axes ?? []).map((a) => a.name!);
   writeFile(paths.csv, sweepCsv(outcome.items, axisNames));
   writeFile(jsonPathFor(paths.csv), `${JSON.stringify(sweepJson(grid, outcome), null, 1)}\n`);
@@ -100,8 +100,10 @@ export function register(program: Command): void {
     .option('--no-warm-start', 'start every point cold (to measure what warm starts save)')
     .action(
       withInputErrors(async (gridPath: string, options: SweepCommandOptions) => {
+        const { gridFromJson, runSweep } = await import('../service/sweep.js');
+        const { sweepTable } = await import('../service/report.js');
         const grid = gridFromJson(readJsonInput(gridPath, 'grid.json'));
-        const bar = progressBar();
+        const bar = await progressBar();
         let outcome: SweepOutcome;
         try {
           outcome = await runSweep(grid, {
