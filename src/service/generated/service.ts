@@ -6,8 +6,12 @@ import type { AnnouncementBranch as _renyibound_v1_AnnouncementBranch, Announcem
 import type { BatchItem as _renyibound_v1_BatchItem, BatchItem__Output as _renyibound_v1_BatchItem__Output } from './renyibound/v1/BatchItem.js';
 import type { BatchRequest as _renyibound_v1_BatchRequest, BatchRequest__Output as _renyibound_v1_BatchRequest__Output } from './renyibound/v1/BatchRequest.js';
 import type { Certificate as _renyibound_v1_Certificate, Certificate__Output as _renyibound_v1_Certificate__Output } from './renyibound/v1/Certificate.js';
+import type { ExampleInfo as _renyibound_v1_ExampleInfo, ExampleInfo__Output as _renyibound_v1_ExampleInfo__Output } from './renyibound/v1/ExampleInfo.js';
+import type { ExampleParameterInfo as _renyibound_v1_ExampleParameterInfo, ExampleParameterInfo__Output as _renyibound_v1_ExampleParameterInfo__Output } from './renyibound/v1/ExampleParameterInfo.js';
 import type { InfeasibilityCertificate as _renyibound_v1_InfeasibilityCertificate, InfeasibilityCertificate__Output as _renyibound_v1_InfeasibilityCertificate__Output } from './renyibound/v1/InfeasibilityCertificate.js';
 import type { LinearConstraint as _renyibound_v1_LinearConstraint, LinearConstraint__Output as _renyibound_v1_LinearConstraint__Output } from './renyibound/v1/LinearConstraint.js';
+import type { ListExamplesReply as _renyibound_v1_ListExamplesReply, ListExamplesReply__Output as _renyibound_v1_ListExamplesReply__Output } from './renyibound/v1/ListExamplesReply.js';
+import type { ListExamplesRequest as _renyibound_v1_ListExamplesRequest, ListExamplesRequest__Output as _renyibound_v1_ListExamplesRequest__Output } from './renyibound/v1/ListExamplesRequest.js';
 import type { Matrix as _renyibound_v1_Matrix, Matrix__Output as _renyibound_v1_Matrix__Output } from './renyibound/v1/Matrix.js';
 import type { ObservedStatistics as _renyibound_v1_ObservedStatistics, ObservedStatistics__Output as _renyibound_v1_ObservedStatistics__Output } from './renyibound/v1/ObservedStatistics.js';
 import type { ParameterAxis as _renyibound_v1_ParameterAxis, ParameterAxis__Output as _renyibound_v1_ParameterAxis__Output } from './renyibound/v1/ParameterAxis.js';
@@ -35,8 +39,12 @@ export interface ProtoGrpcType {
       BatchRequest: MessageTypeDefinition<_renyibound_v1_BatchRequest, _renyibound_v1_BatchRequest__Output>
       Certificate: MessageTypeDefinition<_renyibound_v1_Certificate, _renyibound_v1_Certificate__Output>
       EntropyKind: EnumTypeDefinition
+      ExampleInfo: MessageTypeDefinition<_renyibound_v1_ExampleInfo, _renyibound_v1_ExampleInfo__Output>
+      ExampleParameterInfo: MessageTypeDefinition<_renyibound_v1_ExampleParameterInfo, _renyibound_v1_ExampleParameterInfo__Output>
       InfeasibilityCertificate: MessageTypeDefinition<_renyibound_v1_InfeasibilityCertificate, _renyibound_v1_InfeasibilityCertificate__Output>
       LinearConstraint: MessageTypeDefinition<_renyibound_v1_LinearConstraint, _renyibound_v1_LinearConstraint__Output>
+      ListExamplesReply: MessageTypeDefinition<_renyibound_v1_ListExamplesReply, _renyibound_v1_ListExamplesReply__Output>
+      ListExamplesRequest: MessageTypeDefinition<_renyibound_v1_ListExamplesRequest, _renyibound_v1_ListExamplesRequest__Output>
       Matrix: MessageTypeDefinition<_renyibound_v1_Matrix, _renyibound_v1_Matrix__Output>
       ObservedStatistics: MessageTypeDefinition<_renyibound_v1_ObservedStatistics, _renyibound_v1_ObservedStatistics__Output>
       ParameterAxis: MessageTypeDefinition<_renyibound_v1_ParameterAxis, _renyibound_v1_ParameterAxis__Output>

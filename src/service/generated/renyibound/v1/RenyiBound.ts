@@ -4,12 +4,23 @@ import type * as grpc from '@grpc/grpc-js'
 import type { MethodDefinition } from '@grpc/proto-loader'
 import type { BatchItem as _renyibound_v1_BatchItem, BatchItem__Output as _renyibound_v1_BatchItem__Output } from '../../renyibound/v1/BatchItem.js';
 import type { BatchRequest as _renyibound_v1_BatchRequest, BatchRequest__Output as _renyibound_v1_BatchRequest__Output } from '../../renyibound/v1/BatchRequest.js';
+import type { ListExamplesReply as _renyibound_v1_ListExamplesReply, ListExamplesReply__Output as _renyibound_v1_ListExamplesReply__Output } from '../../renyibound/v1/ListExamplesReply.js';
+import type { ListExamplesRequest as _renyibound_v1_ListExamplesRequest, ListExamplesRequest__Output as _renyibound_v1_ListExamplesRequest__Output } from '../../renyibound/v1/ListExamplesRequest.js';
 import type { SolveReply as _renyibound_v1_SolveReply, SolveReply__Output as _renyibound_v1_SolveReply__Output } from '../../renyibound/v1/SolveReply.js';
 import type { SolveRequest as _renyibound_v1_SolveRequest, SolveRequest__Output as _renyibound_v1_SolveRequest__Output } from '../../renyibound/v1/SolveRequest.js';
 import type { VerifyReply as _renyibound_v1_VerifyReply, VerifyReply__Output as _renyibound_v1_VerifyReply__Output } from '../../renyibound/v1/VerifyReply.js';
 import type { VerifyRequest as _renyibound_v1_VerifyRequest, VerifyRequest__Output as _renyibound_v1_VerifyRequest__Output } from '../../renyibound/v1/VerifyRequest.js';
 
 export interface RenyiBoundClient extends grpc.Client {
+  ListExamples(argument: _renyibound_v1_ListExamplesRequest, metadata: grpc.Metadata, options: grpc.CallOptions, callback: grpc.requestCallback<_renyibound_v1_ListExamplesReply__Output>): grpc.ClientUnaryCall;
+  ListExamples(argument: _renyibound_v1_ListExamplesRequest, metadata: grpc.Metadata, callback: grpc.requestCallback<_renyibound_v1_ListExamplesReply__Output>): grpc.ClientUnaryCall;
+  ListExamples(argument: _renyibound_v1_ListExamplesRequest, options: grpc.CallOptions, callback: grpc.requestCallback<_renyibound_v1_ListExamplesReply__Output>): grpc.ClientUnaryCall;
+  ListExamples(argument: _renyibound_v1_ListExamplesRequest, callback: grpc.requestCallback<_renyibound_v1_ListExamplesReply__Output>): grpc.ClientUnaryCall;
+  listExamples(argument: _renyibound_v1_ListExamplesRequest, metadata: grpc.Metadata, options: grpc.CallOptions, callback: grpc.requestCallback<_renyibound_v1_ListExamplesReply__Output>): grpc.ClientUnaryCall;
+  listExamples(argument: _renyibound_v1_ListExamplesRequest, metadata: grpc.Metadata, callback: grpc.requestCallback<_renyibound_v1_ListExamplesReply__Output>): grpc.ClientUnaryCall;
+  listExamples(argument: _renyibound_v1_ListExamplesRequest, options: grpc.CallOptions, callback: grpc.requestCallback<_renyibound_v1_ListExamplesReply__Output>): grpc.ClientUnaryCall;
+  listExamples(argument: _renyibound_v1_ListExamplesRequest, callback: grpc.requestCallback<_renyibound_v1_ListExamplesReply__Output>): grpc.ClientUnaryCall;
+  
   Solve(argument: _renyibound_v1_SolveRequest, metadata: grpc.Metadata, options: grpc.CallOptions, callback: grpc.requestCallback<_renyibound_v1_SolveReply__Output>): grpc.ClientUnaryCall;
   Solve(argument: _renyibound_v1_SolveRequest, metadata: grpc.Metadata, callback: grpc.requestCallback<_renyibound_v1_SolveReply__Output>): grpc.ClientUnaryCall;
   Solve(argument: _renyibound_v1_SolveRequest, options: grpc.CallOptions, callback: grpc.requestCallback<_renyibound_v1_SolveReply__Output>): grpc.ClientUnaryCall;
@@ -36,6 +47,8 @@ export interface RenyiBoundClient extends grpc.Client {
 }
 
 export interface RenyiBoundHandlers extends grpc.UntypedServiceImplementation {
+  ListExamples: grpc.handleUnaryCall<_renyibound_v1_ListExamplesRequest__Output, _renyibound_v1_ListExamplesReply>;
+  
   Solve: grpc.handleUnaryCall<_renyibound_v1_SolveRequest__Output, _renyibound_v1_SolveReply>;
   
   SolveBatch: grpc.handleServerStreamingCall<_renyibound_v1_BatchRequest__Output, _renyibound_v1_BatchItem>;
@@ -45,6 +58,7 @@ export interface RenyiBoundHandlers extends grpc.UntypedServiceImplementation {
 }
 
 export interface RenyiBoundDefinition extends grpc.ServiceDefinition {
+  ListExamples: MethodDefinition<_renyibound_v1_ListExamplesRequest, _renyibound_v1_ListExamplesReply, _renyibound_v1_ListExamplesRequest__Output, _renyibound_v1_ListExamplesReply__Output>
   Solve: MethodDefinition<_renyibound_v1_SolveRequest, _renyibound_v1_SolveReply, _renyibound_v1_SolveRequest__Output, _renyibound_v1_SolveReply__Output>
   SolveBatch: MethodDefinition<_renyibound_v1_BatchRequest, _renyibound_v1_BatchItem, _renyibound_v1_BatchRequest__Output, _renyibound_v1_BatchItem__Output>
   Verify: MethodDefinition<_renyibound_v1_VerifyRequest, _renyibound_v1_VerifyReply, _renyibound_v1_VerifyRequest__Output, _renyibound_v1_VerifyReply__Output>
