@@ -25,6 +25,8 @@ export function readJsonInput(source: string, field: string): unknown {
     const reason = error instanceof Error && 'code' in error ? String((error as NodeJS.ErrnoException).code) : String(error);
     throw new ValidationError(field, `cannot read ${source === '-' ? 'standard input' : JSON.stringify(source)} (${reason})`);
   }
+  // Editors on some systems save UTF-8 with a byte-order mark; it is not part of the JSON text.
+  if (text.charCodeAt(0) === 0xfeff) text = text.slice(1);
   try {
     return JSON.parse(text) as unknown;
   } catch (error) {

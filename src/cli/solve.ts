@@ -37,7 +37,7 @@ export function register(program: Command): void {
     .description('certified lower bound on the entropy over every state consistent with the problem')
     .argument('<problem>', 'problem JSON file, or - for standard input')
     .option('--entropy <kind>', 'von-neumann, petz-up, petz-down or sandwiched-up (default: the problem’s entropy field)')
-    .option('--alpha <a>', 'Rényi order in (1, 2] (Rényi kinds only)')
+    .option('--alpha <a>', 'Rényi order in (1, 2] (Rényi kinds only; default: the problem’s alpha field)')
     .option('--gap <g>', 'requested certified gap in bits (default 1e-6)')
     .option('--max-iterations <n>', 'iteration limit (default 20000)')
     .option('--time-limit-ms <t>', 'time limit in milliseconds (default 120000)')
@@ -45,14 +45,13 @@ export function register(program: Command): void {
     .option('--server <host:port>', 'send the request to a running renyi-bound server instead of solving here')
     .action(
       withInputErrors(async (problemSource: string, options: SolveOptions) => {
-        const { entropyRequestFrom, parseProblemJson } = await import('../problem/validate.js');
+        const { parseProblemJson } = await import('../problem/validate.js');
+        const { resolveEntropyRequest } = await import('../problem/entropy-request.js');
         const { densityOperatorFromJson } = await import('../problem/state.js');
         const alpha = options.alpha === undefined ? undefined : parseNumberOption(options.alpha, 'alpha');
-        if (options.entropy === undefined && alpha !== undefined) throw new ValidationError('alpha', 'given without --entropy');
         const problemJson = readJsonInput(problemSource, 'problem');
         const parsed = parseProblemJson(problemJson);
-        const request = options.entropy === undefined ? parsed.request : entropyRequestFrom(options.entropy, alpha);
-        if (request === undefined) throw new ValidationError('entropy', 'is required: give --entropy or set entropy in the problem');
+        const request = resolveEntropyRequest({ kind: options.entropy, alpha }, parsed.request);
         const settings = settingsFrom(options);
         const dimension = parsed.problem.dimensionA * parsed.problem.dimensionB;
         const warmStartJson = options.warmStart === undefined ? undefined : readJsonInput(options.warmStart, 'warm-start');

@@ -4,7 +4,7 @@ import * as grpc from '@grpc/grpc-js';
 import * as protoLoader from '@grpc/proto-loader';
 import { protoPath as healthProtoPath } from 'grpc-health-check';
 import type { MatrixJson, SolveResult, SolverSettings } from '../frank-wolfe/types.js';
-import { ValidationError } from '../problem/errors.js';
+import { entropyKindFrom, isUnspecifiedEntropy } from '../problem/entropy-request.js';
 import { PROTO_LOADER_OPTIONS } from '../problem/proto-options.js';
 import { parseProblemJson } from '../problem/validate.js';
 import { FIELD_METADATA_KEY } from './errors.js';
@@ -92,10 +92,8 @@ export function problemToWire(problem: unknown): Problem {
 }
 
 function entropyToWire(entropy: string | undefined): EntropyKind {
-  if (entropy === undefined) return 'ENTROPY_KIND_UNSPECIFIED';
-  const wire = /^[A-Z_]+$/.test(entropy) ? entropy : entropyKindToWire(entropy);
-  if (wire === 'ENTROPY_KIND_UNSPECIFIED') throw new ValidationError('entropy', `unknown entropy kind ${JSON.stringify(entropy)}`);
-  return wire as EntropyKind;
+  if (isUnspecifiedEntropy(entropy)) return 'ENTROPY_KIND_UNSPECIFIED';
+  return entropyKindToWire(entropyKindFrom(entropy)) as EntropyKind;
 }
 
 /** Solves one problem on a server. Bad input surfaces as ValidationError (local) or RemoteCallError (server). */
