@@ -17,9 +17,8 @@ import type { Certificate } from '../frank-wolfe/types.js';
 import { pinchedBlocks } from '../objectives/spectral-blocks.js';
 import { isKeyless } from '../objectives/branch-supports.js';
 
-/** Generous constant c in the eigensolver backward-error scale c·n·u·‖A‖_F used for the margin. */
-export const MARGIN_CONSTANT = 64;
-const UNIT_ROUNDOFF = 2 ** -53;
+// The margin uses the eigensolver backward-error scale c·n·u·‖A‖_F (docs/math.md §5).
+import { BACKWARD_ERROR_CONSTANT as MARGIN_CONSTANT, UNIT_ROUNDOFF } from '../linear-algebra/rounding.js';
 
 /** Every term of LB = F(ρ') − ⟨∇F, ρ'⟩ + Σy⁺ℓ − Σy⁻u + λ_min(∇F − Σ yΓ) [+ τ terms] − margin. */
 export interface BoundBreakdown {

@@ -1,6 +1,7 @@
 // Independent re-check of a certificate: no optimiser code is imported here (a test enforces it).
 import { addScaledInPlace, ComplexMatrix, frobeniusNorm } from '../linear-algebra/complex-matrix.js';
 import { eigvalsh } from '../linear-algebra/eigen.js';
+import { BACKWARD_ERROR_CONSTANT, UNIT_ROUNDOFF } from '../linear-algebra/rounding.js';
 import { createObjective } from '../objectives/index.js';
 import { feasibleFace, restrictToFace } from '../problem/feasible-face.js';
 import { inputHash } from '../problem/hash.js';
@@ -89,7 +90,7 @@ export function verifyCertificate(
 }
 
 /** Relative size below which a recomputed Farkas violation is not trusted as positive (rounding of λ_max). */
-const FARKAS_ROUNDING_FACTOR = 64;
+const FARKAS_ROUNDING_FACTOR = BACKWARD_ERROR_CONSTANT;
 
 /**
  * Re-checks a Farkas certificate of infeasibility: y⁺, y⁻ ≥ 0 with Σy⁺ℓ − Σy⁻u − λ_max(Σ(y⁺−y⁻)Γ) > 0 on the
@@ -119,7 +120,7 @@ export function verifyInfeasibility(
   });
   const largest = eigvalsh(combination)[face.dimension - 1];
   const violation = bound - largest;
-  const rounding = FARKAS_ROUNDING_FACTOR * face.dimension * 2 ** -53 * scale;
+  const rounding = FARKAS_ROUNDING_FACTOR * face.dimension * UNIT_ROUNDOFF * scale;
   if (!(violation > rounding)) {
     return reject(`Farkas violation ${violation} is not above the rounding level ${rounding}`);
   }

@@ -3,6 +3,7 @@
 // kept for comparison.
 import { EigenvalueDecomposition, Matrix } from 'ml-matrix';
 import { ComplexMatrix } from './complex-matrix.js';
+import { BACKWARD_ERROR_CONSTANT, UNIT_ROUNDOFF } from './rounding.js';
 
 /** Eigendecomposition A = V·diag(values)·V† of a Hermitian matrix; values ascending, eigenvectors in columns. */
 export interface HermitianEigen {
@@ -10,8 +11,6 @@ export interface HermitianEigen {
   vectors: ComplexMatrix;
 }
 
-/** Unit roundoff of IEEE double precision, u = 2^-53. */
-export const UNIT_ROUNDOFF = 2 ** -53;
 
 /**
  * Largest size for which `eigh` uses Jacobi. Measured (src/bench/linear-algebra.ts, CPU time):
@@ -781,7 +780,7 @@ export function eighRealEmbedding(input: ComplexMatrix): HermitianEigen {
   const realVectors = decomposition.eigenvectorMatrix;
   const order = Array.from({ length: m }, (_, i) => i).sort((a, b) => realValues[a] - realValues[b]);
   // Eigenvalues closer than the embedding's backward error belong to one cluster.
-  const clusterTolerance = SUPPORT_TOLERANCE_FACTOR * m * UNIT_ROUNDOFF * Math.sqrt(2 * norm2);
+  const clusterTolerance = BACKWARD_ERROR_CONSTANT * m * UNIT_ROUNDOFF * Math.sqrt(2 * norm2);
   const valuesOut: number[] = [];
   const basisRe: Float64Array[] = [];
   const basisIm: Float64Array[] = [];
@@ -850,9 +849,6 @@ export function eighRealEmbedding(input: ComplexMatrix): HermitianEigen {
   }
   return { values: sorted, vectors };
 }
-
-/** Constant c of the support tolerance c·n·u·‖A‖_F (shared with src/linear-algebra/support.ts). */
-export const SUPPORT_TOLERANCE_FACTOR = 64;
 
 /** x ← x − Σ_b ⟨b, x⟩ b for the orthonormal complex vectors b. */
 function projectOut(xr: Float64Array, xi: Float64Array, basisRe: Float64Array[], basisIm: Float64Array[]): void {

@@ -1,7 +1,8 @@
 // Functions of Hermitian matrices through their eigendecomposition, and their Fréchet derivatives
 // (Daleckii–Krein formula).
 import { adjoint, ComplexMatrix, multiply, multiplyAdjointLeft, multiplyAdjointRight } from './complex-matrix.js';
-import { eigh, UNIT_ROUNDOFF, type HermitianEigen } from './eigen.js';
+import { eigh, type HermitianEigen } from './eigen.js';
+import { UNIT_ROUNDOFF } from './rounding.js';
 import { zeroEigenvalueTolerance } from './support.js';
 
 /**
