@@ -85,6 +85,7 @@ def main():
     parser = argparse.ArgumentParser(description=__doc__.split("\n\n")[0])
     parser.add_argument("--server", required=True, help="host:port of a running renyi-bound server")
     parser.add_argument("--timeout", type=float, default=120.0, help="seconds allowed for each call")
+    parser.add_argument("--connect-timeout", type=float, default=10.0, help="seconds to wait for the server")
     arguments = parser.parse_args()
 
     try:
@@ -104,9 +105,9 @@ def main():
 
         channel = grpc.insecure_channel(arguments.server)
         try:
-            grpc.channel_ready_future(channel).result(timeout=arguments.timeout)
+            grpc.channel_ready_future(channel).result(timeout=arguments.connect_timeout)
         except grpc.FutureTimeoutError:
-            fail("%s: no server answered within %.0f s" % (arguments.server, arguments.timeout))
+            fail("%s: no server answered within %.0f s" % (arguments.server, arguments.connect_timeout))
         stub = service_pb2_grpc.RenyiBoundStub(channel)
         ok = True
 
