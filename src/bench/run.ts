@@ -8,6 +8,7 @@ const SECTIONS: Record<string, () => Promise<BenchTable[]>> = {
   oracle: async () => (await import('./oracle.js')).benchOracle(),
   objectives: async () => [(await import('./solver.js')).benchObjectives()],
   solver: async () => [(await import('./solver.js')).benchSolves()],
+  decoy: async () => (await import('./decoy.js')).benchDecoy(),
   // Loaded by name: the service benchmark starts servers and worker threads only when asked for.
   cli: async () => (await import('./cli.js')).benchCli(),
   service: async () => ((await import(SERVICE_MODULE)) as { benchService: () => Promise<BenchTable[]> }).benchService(),

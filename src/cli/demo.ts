@@ -78,6 +78,8 @@ export function register(program: Command): void {
             `${limited} stopped by a limit with a valid but looser bound, ${failed} without a bound)\n` +
             `wrote ${csv}, ${jsonPathFor(csv)}, ${plot}\n`,
         );
+        // Decoy-state scenario: fitted from made-up counts; an estimate, not a security claim (see its caution).
+        process.stdout.write(await (await import('../decoy/demo-scenario.js')).harbourDemo(options.outDir));
       }),
     );
 }

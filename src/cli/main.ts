@@ -10,6 +10,7 @@ import { register as registerServe } from './serve.js';
 import { register as registerSweep } from './sweep.js';
 import { register as registerHealth } from './health.js';
 import { register as registerDemo } from './demo.js';
+import { register as registerDecoyRate } from './decoy-rate.js';
 
 const program = new Command('renyi-bound')
   .description('certified lower bounds on single-round conditional Rényi entropies for QKD security proofs')
@@ -23,5 +24,6 @@ registerServe(program);
 registerSweep(program);
 registerHealth(program);
 registerDemo(program);
+registerDecoyRate(program);
 
 await program.parseAsync(process.argv);

@@ -13,6 +13,7 @@ import { defaultCacheDirectory, SqliteCacheLayer } from '../cache/sqlite.js';
 import { verifyInfeasibility, verifyResult } from '../certificate/verify.js';
 import { ValidationError } from '../problem/errors.js';
 import { expandGrid, expandRequestList, runBatch, solveInputFromWire, type BatchPoint } from './batch.js';
+import { decoyRateHandler } from './decoy-rate.js';
 import { toServiceError } from './errors.js';
 import type { BatchItem } from './generated/renyibound/v1/BatchItem.js';
 import type { BatchRequest__Output } from './generated/renyibound/v1/BatchRequest.js';
@@ -173,6 +174,7 @@ export class RenyiBoundServer {
       SolveBatch: (call) => void this.solveBatch(call),
       Verify: (call, callback) => this.verify(call, callback),
       ListExamples: listExamples,
+      DecoyRate: decoyRateHandler(),
     };
   }
 

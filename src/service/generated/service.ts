@@ -6,6 +6,16 @@ import type { AnnouncementBranch as _renyibound_v1_AnnouncementBranch, Announcem
 import type { BatchItem as _renyibound_v1_BatchItem, BatchItem__Output as _renyibound_v1_BatchItem__Output } from './renyibound/v1/BatchItem.js';
 import type { BatchRequest as _renyibound_v1_BatchRequest, BatchRequest__Output as _renyibound_v1_BatchRequest__Output } from './renyibound/v1/BatchRequest.js';
 import type { Certificate as _renyibound_v1_Certificate, Certificate__Output as _renyibound_v1_Certificate__Output } from './renyibound/v1/Certificate.js';
+import type { DecoyChannel as _renyibound_v1_DecoyChannel, DecoyChannel__Output as _renyibound_v1_DecoyChannel__Output } from './renyibound/v1/DecoyChannel.js';
+import type { DecoyCountRecord as _renyibound_v1_DecoyCountRecord, DecoyCountRecord__Output as _renyibound_v1_DecoyCountRecord__Output } from './renyibound/v1/DecoyCountRecord.js';
+import type { DecoyCountSession as _renyibound_v1_DecoyCountSession, DecoyCountSession__Output as _renyibound_v1_DecoyCountSession__Output } from './renyibound/v1/DecoyCountSession.js';
+import type { DecoyFittedParameter as _renyibound_v1_DecoyFittedParameter, DecoyFittedParameter__Output as _renyibound_v1_DecoyFittedParameter__Output } from './renyibound/v1/DecoyFittedParameter.js';
+import type { DecoyKnownParameters as _renyibound_v1_DecoyKnownParameters, DecoyKnownParameters__Output as _renyibound_v1_DecoyKnownParameters__Output } from './renyibound/v1/DecoyKnownParameters.js';
+import type { DecoyMeasuredCounts as _renyibound_v1_DecoyMeasuredCounts, DecoyMeasuredCounts__Output as _renyibound_v1_DecoyMeasuredCounts__Output } from './renyibound/v1/DecoyMeasuredCounts.js';
+import type { DecoyProtocol as _renyibound_v1_DecoyProtocol, DecoyProtocol__Output as _renyibound_v1_DecoyProtocol__Output } from './renyibound/v1/DecoyProtocol.js';
+import type { DecoyRateReply as _renyibound_v1_DecoyRateReply, DecoyRateReply__Output as _renyibound_v1_DecoyRateReply__Output } from './renyibound/v1/DecoyRateReply.js';
+import type { DecoyRateRequest as _renyibound_v1_DecoyRateRequest, DecoyRateRequest__Output as _renyibound_v1_DecoyRateRequest__Output } from './renyibound/v1/DecoyRateRequest.js';
+import type { DecoySweepPoint as _renyibound_v1_DecoySweepPoint, DecoySweepPoint__Output as _renyibound_v1_DecoySweepPoint__Output } from './renyibound/v1/DecoySweepPoint.js';
 import type { ExampleInfo as _renyibound_v1_ExampleInfo, ExampleInfo__Output as _renyibound_v1_ExampleInfo__Output } from './renyibound/v1/ExampleInfo.js';
 import type { ExampleParameterInfo as _renyibound_v1_ExampleParameterInfo, ExampleParameterInfo__Output as _renyibound_v1_ExampleParameterInfo__Output } from './renyibound/v1/ExampleParameterInfo.js';
 import type { InfeasibilityCertificate as _renyibound_v1_InfeasibilityCertificate, InfeasibilityCertificate__Output as _renyibound_v1_InfeasibilityCertificate__Output } from './renyibound/v1/InfeasibilityCertificate.js';
@@ -38,6 +48,16 @@ export interface ProtoGrpcType {
       BatchItem: MessageTypeDefinition<_renyibound_v1_BatchItem, _renyibound_v1_BatchItem__Output>
       BatchRequest: MessageTypeDefinition<_renyibound_v1_BatchRequest, _renyibound_v1_BatchRequest__Output>
       Certificate: MessageTypeDefinition<_renyibound_v1_Certificate, _renyibound_v1_Certificate__Output>
+      DecoyChannel: MessageTypeDefinition<_renyibound_v1_DecoyChannel, _renyibound_v1_DecoyChannel__Output>
+      DecoyCountRecord: MessageTypeDefinition<_renyibound_v1_DecoyCountRecord, _renyibound_v1_DecoyCountRecord__Output>
+      DecoyCountSession: MessageTypeDefinition<_renyibound_v1_DecoyCountSession, _renyibound_v1_DecoyCountSession__Output>
+      DecoyFittedParameter: MessageTypeDefinition<_renyibound_v1_DecoyFittedParameter, _renyibound_v1_DecoyFittedParameter__Output>
+      DecoyKnownParameters: MessageTypeDefinition<_renyibound_v1_DecoyKnownParameters, _renyibound_v1_DecoyKnownParameters__Output>
+      DecoyMeasuredCounts: MessageTypeDefinition<_renyibound_v1_DecoyMeasuredCounts, _renyibound_v1_DecoyMeasuredCounts__Output>
+      DecoyProtocol: MessageTypeDefinition<_renyibound_v1_DecoyProtocol, _renyibound_v1_DecoyProtocol__Output>
+      DecoyRateReply: MessageTypeDefinition<_renyibound_v1_DecoyRateReply, _renyibound_v1_DecoyRateReply__Output>
+      DecoyRateRequest: MessageTypeDefinition<_renyibound_v1_DecoyRateRequest, _renyibound_v1_DecoyRateRequest__Output>
+      DecoySweepPoint: MessageTypeDefinition<_renyibound_v1_DecoySweepPoint, _renyibound_v1_DecoySweepPoint__Output>
       EntropyKind: EnumTypeDefinition
       ExampleInfo: MessageTypeDefinition<_renyibound_v1_ExampleInfo, _renyibound_v1_ExampleInfo__Output>
       ExampleParameterInfo: MessageTypeDefinition<_renyibound_v1_ExampleParameterInfo, _renyibound_v1_ExampleParameterInfo__Output>

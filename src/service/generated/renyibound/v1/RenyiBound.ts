@@ -4,6 +4,8 @@ import type * as grpc from '@grpc/grpc-js'
 import type { MethodDefinition } from '@grpc/proto-loader'
 import type { BatchItem as _renyibound_v1_BatchItem, BatchItem__Output as _renyibound_v1_BatchItem__Output } from '../../renyibound/v1/BatchItem.js';
 import type { BatchRequest as _renyibound_v1_BatchRequest, BatchRequest__Output as _renyibound_v1_BatchRequest__Output } from '../../renyibound/v1/BatchRequest.js';
+import type { DecoyRateReply as _renyibound_v1_DecoyRateReply, DecoyRateReply__Output as _renyibound_v1_DecoyRateReply__Output } from '../../renyibound/v1/DecoyRateReply.js';
+import type { DecoyRateRequest as _renyibound_v1_DecoyRateRequest, DecoyRateRequest__Output as _renyibound_v1_DecoyRateRequest__Output } from '../../renyibound/v1/DecoyRateRequest.js';
 import type { ListExamplesReply as _renyibound_v1_ListExamplesReply, ListExamplesReply__Output as _renyibound_v1_ListExamplesReply__Output } from '../../renyibound/v1/ListExamplesReply.js';
 import type { ListExamplesRequest as _renyibound_v1_ListExamplesRequest, ListExamplesRequest__Output as _renyibound_v1_ListExamplesRequest__Output } from '../../renyibound/v1/ListExamplesRequest.js';
 import type { SolveReply as _renyibound_v1_SolveReply, SolveReply__Output as _renyibound_v1_SolveReply__Output } from '../../renyibound/v1/SolveReply.js';
@@ -12,6 +14,15 @@ import type { VerifyReply as _renyibound_v1_VerifyReply, VerifyReply__Output as 
 import type { VerifyRequest as _renyibound_v1_VerifyRequest, VerifyRequest__Output as _renyibound_v1_VerifyRequest__Output } from '../../renyibound/v1/VerifyRequest.js';
 
 export interface RenyiBoundClient extends grpc.Client {
+  DecoyRate(argument: _renyibound_v1_DecoyRateRequest, metadata: grpc.Metadata, options: grpc.CallOptions, callback: grpc.requestCallback<_renyibound_v1_DecoyRateReply__Output>): grpc.ClientUnaryCall;
+  DecoyRate(argument: _renyibound_v1_DecoyRateRequest, metadata: grpc.Metadata, callback: grpc.requestCallback<_renyibound_v1_DecoyRateReply__Output>): grpc.ClientUnaryCall;
+  DecoyRate(argument: _renyibound_v1_DecoyRateRequest, options: grpc.CallOptions, callback: grpc.requestCallback<_renyibound_v1_DecoyRateReply__Output>): grpc.ClientUnaryCall;
+  DecoyRate(argument: _renyibound_v1_DecoyRateRequest, callback: grpc.requestCallback<_renyibound_v1_DecoyRateReply__Output>): grpc.ClientUnaryCall;
+  decoyRate(argument: _renyibound_v1_DecoyRateRequest, metadata: grpc.Metadata, options: grpc.CallOptions, callback: grpc.requestCallback<_renyibound_v1_DecoyRateReply__Output>): grpc.ClientUnaryCall;
+  decoyRate(argument: _renyibound_v1_DecoyRateRequest, metadata: grpc.Metadata, callback: grpc.requestCallback<_renyibound_v1_DecoyRateReply__Output>): grpc.ClientUnaryCall;
+  decoyRate(argument: _renyibound_v1_DecoyRateRequest, options: grpc.CallOptions, callback: grpc.requestCallback<_renyibound_v1_DecoyRateReply__Output>): grpc.ClientUnaryCall;
+  decoyRate(argument: _renyibound_v1_DecoyRateRequest, callback: grpc.requestCallback<_renyibound_v1_DecoyRateReply__Output>): grpc.ClientUnaryCall;
+  
   ListExamples(argument: _renyibound_v1_ListExamplesRequest, metadata: grpc.Metadata, options: grpc.CallOptions, callback: grpc.requestCallback<_renyibound_v1_ListExamplesReply__Output>): grpc.ClientUnaryCall;
   ListExamples(argument: _renyibound_v1_ListExamplesRequest, metadata: grpc.Metadata, callback: grpc.requestCallback<_renyibound_v1_ListExamplesReply__Output>): grpc.ClientUnaryCall;
   ListExamples(argument: _renyibound_v1_ListExamplesRequest, options: grpc.CallOptions, callback: grpc.requestCallback<_renyibound_v1_ListExamplesReply__Output>): grpc.ClientUnaryCall;
@@ -47,6 +58,8 @@ export interface RenyiBoundClient extends grpc.Client {
 }
 
 export interface RenyiBoundHandlers extends grpc.UntypedServiceImplementation {
+  DecoyRate: grpc.handleUnaryCall<_renyibound_v1_DecoyRateRequest__Output, _renyibound_v1_DecoyRateReply>;
+  
   ListExamples: grpc.handleUnaryCall<_renyibound_v1_ListExamplesRequest__Output, _renyibound_v1_ListExamplesReply>;
   
   Solve: grpc.handleUnaryCall<_renyibound_v1_SolveRequest__Output, _renyibound_v1_SolveReply>;
@@ -58,6 +71,7 @@ export interface RenyiBoundHandlers extends grpc.UntypedServiceImplementation {
 }
 
 export interface RenyiBoundDefinition extends grpc.ServiceDefinition {
+  DecoyRate: MethodDefinition<_renyibound_v1_DecoyRateRequest, _renyibound_v1_DecoyRateReply, _renyibound_v1_DecoyRateRequest__Output, _renyibound_v1_DecoyRateReply__Output>
   ListExamples: MethodDefinition<_renyibound_v1_ListExamplesRequest, _renyibound_v1_ListExamplesReply, _renyibound_v1_ListExamplesRequest__Output, _renyibound_v1_ListExamplesReply__Output>
   Solve: MethodDefinition<_renyibound_v1_SolveRequest, _renyibound_v1_SolveReply, _renyibound_v1_SolveRequest__Output, _renyibound_v1_SolveReply__Output>
   SolveBatch: MethodDefinition<_renyibound_v1_BatchRequest, _renyibound_v1_BatchItem, _renyibound_v1_BatchRequest__Output, _renyibound_v1_BatchItem__Output>

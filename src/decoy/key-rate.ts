@@ -1,0 +1,145 @@
+// Asymptotic key rate per signal pulse of decoy-state BB84: certified single-photon entropy from the solver,
+// minus error-correction leakage on every detected signal pulse (docs/decoy.md, "Key rate").
+import type { Highs } from 'highs';
+import { solve } from '../frank-wolfe/solve.js';
+import type { SolveResult, SolverSettings } from '../frank-wolfe/types.js';
+import type { EntropyRequest } from '../problem/model.js';
+import { problemFromJson } from '../problem/validate.js';
+import { BASES, basisBounds, DEFAULT_CUTOFF, type Basis, type BasisBounds, type IntensityObservation } from './bounds.js';
+import { binaryEntropy, expectedGain, photonYield, type ChannelParameters } from './channel.js';
+import { singlePhotonProblem } from './single-photon.js';
+
+/** The protocol as run: intensities, basis choice, error-correction efficiency. */
+export interface DecoyProtocol {
+  /** Mean photon number μ of the signal (key) pulses. */
+  signal: number;
+  /** Decoy mean photon numbers ν₁, ν₂, … (0 is the vacuum decoy). */
+  decoys: number[];
+  /** Probability that Alice prepares, and Bob measures, in Z (the key basis). */
+  zBasisProbability: number;
+  /** f ≥ 1: leakage is f·h(E_μ) per sifted detected signal pulse. */
+  ecEfficiency: number;
+}
+
+export interface DecoyAnalysisOptions {
+  entropy?: EntropyRequest;
+  cutoff?: number;
+  /** Solver settings; the gap tolerance is relative to the key-branch weight p_Z²·Y₁ᴸ (see singlePhotonSettings). */
+  settings?: Partial<SolverSettings>;
+}
+
+/** Relative gap asked of the single-photon solve unless the caller sets one. */
+export const DEFAULT_RELATIVE_GAP = 1e-7;
+export const DEFAULT_SINGLE_PHOTON_TIME_LIMIT_MS = 20_000;
+
+export interface DecoyRateResult {
+  /** Key bits per signal pulse (negative: no key at this point). Null when the single-photon solve gave no bound. */
+  ratePerPulse: number | null;
+  /** Y₁ᴸ in the key basis Z. */
+  singlePhotonYieldLower: number;
+  /** e₁ᵁ in the X basis: the bound on the phase error of the single-photon key rounds. */
+  singlePhotonErrorUpper: number;
+  /** P(n = 1 | μ) = μe^{−μ}. */
+  singlePhotonFraction: number;
+  /** Certified single-photon entropy per single-photon pulse, and the solver's full result. */
+  singlePhotonBound: number | null;
+  singlePhoton: SolveResult;
+  /** analyticSinglePhoton(): the von Neumann value by Shor–Preskill / GLLP, for comparison only. */
+  analyticSinglePhotonBound: number;
+  /** p_Z²·Q_μ·f·h(E_μ) in the Z basis. */
+  leakage: number;
+  signalGain: number;
+  signalErrorRate: number;
+  bases: Record<Basis, Omit<BasisBounds, 'certificates'> & { certificates: BasisBounds['certificates'] }>;
+  entropy: string;
+  alpha: number | null;
+  cutoff: number;
+}
+
+/** Both bases see the channel alike: the observations the model predicts at every intensity. */
+export function simulatedObservations(channel: ChannelParameters, protocol: DecoyProtocol): Record<Basis, IntensityObservation[]> {
+  const rows = [protocol.signal, ...protocol.decoys].map((intensity) => ({ intensity, ...expectedGain(channel, intensity) }));
+  return { Z: rows, X: rows.map((r) => ({ ...r })) };
+}
+
+export function analyseDecoy(
+  highs: Highs,
+  protocol: DecoyProtocol,
+  observations: Record<Basis, IntensityObservation[]>,
+  options: DecoyAnalysisOptions = {},
+): DecoyRateResult {
+  const cutoff = options.cutoff ?? DEFAULT_CUTOFF;
+  const entropy = options.entropy ?? { kind: 'von-neumann' };
+  const bases = { Z: basisBounds(highs, 'Z', observations.Z, cutoff), X: basisBounds(highs, 'X', observations.X, cutoff) };
+  const pz = protocol.zBasisProbability;
+  const keyWeight = pz * pz * bases.Z.yieldLower;
+  const problem = problemFromJson(singlePhotonProblem(bases, pz));
+  const settings: Partial<SolverSettings> = {
+    gapTolerance: Math.min(1, Math.max(1e-12, DEFAULT_RELATIVE_GAP * keyWeight)),
+    timeLimitMs: DEFAULT_SINGLE_PHOTON_TIME_LIMIT_MS,
+    ...options.settings,
+  };
+  const singlePhoton = solve(problem, entropy, settings);
+  const signalRow = signalObservation(protocol, observations);
+  const { leakage, errorRate: signalErrorRate } = leakageOf(protocol, signalRow);
+  const singlePhotonFraction = protocol.signal * Math.exp(-protocol.signal);
+  const bound = singlePhoton.certifiedLowerBound;
+  return {
+    ratePerPulse: bound === null ? null : singlePhotonFraction * bound - leakage,
+    singlePhotonYieldLower: bases.Z.yieldLower,
+    singlePhotonErrorUpper: bases.X.errorRateUpper,
+    singlePhotonFraction,
+    singlePhotonBound: bound,
+    singlePhoton,
+    analyticSinglePhotonBound: analyticSinglePhoton(bases, pz),
+    leakage,
+    signalGain: signalRow.gain,
+    signalErrorRate,
+    bases,
+    entropy: singlePhoton.entropy,
+    alpha: singlePhoton.alpha,
+    cutoff,
+  };
+}
+
+/**
+ * p_Z²·Y·(1 − h(e)) with Y = max(Y₁ᴸ_Z, Y₁ᴸ_X) (the source fixes one single-photon yield for both bases) and
+ * e = (e₁Y₁)ᵁ_X / Y: the von Neumann value of the single-photon problem by Shor–Preskill / GLLP.
+ */
+export function analyticSinglePhoton(bases: Record<Basis, BasisBounds>, zBasisProbability: number): number {
+  const y = Math.max(bases.Z.yieldLower, bases.X.yieldLower);
+  if (y <= 0) return 0;
+  const e = Math.min(0.5, bases.X.errorYieldUpper / y);
+  return zBasisProbability * zBasisProbability * y * (1 - binaryEntropy(e));
+}
+
+/** Leakage p_Z²·Q_μ·f·h(E_μ) of the Z-basis signal detections. */
+function leakageOf(protocol: DecoyProtocol, signalRow: IntensityObservation): { leakage: number; errorRate: number } {
+  const errorRate = signalRow.gain > 0 ? signalRow.errorGain / signalRow.gain : 0;
+  const pz = protocol.zBasisProbability;
+  return { leakage: pz * pz * signalRow.gain * protocol.ecEfficiency * binaryEntropy(errorRate), errorRate };
+}
+
+function signalObservation(protocol: DecoyProtocol, observations: Record<Basis, IntensityObservation[]>): IntensityObservation {
+  const row = observations.Z.find((o) => o.intensity === protocol.signal);
+  if (row === undefined) throw new RangeError(`no Z-basis observation at the signal intensity ${protocol.signal}`);
+  return row;
+}
+
+/** The rate with the analytic single-photon term (von Neumann): fast, for sweeps and uncertainty bands. */
+export function analyticRate(highs: Highs, protocol: DecoyProtocol, observations: Record<Basis, IntensityObservation[]>, cutoff = DEFAULT_CUTOFF): number {
+  const bases = { Z: basisBounds(highs, 'Z', observations.Z, cutoff), X: basisBounds(highs, 'X', observations.X, cutoff) };
+  const { leakage } = leakageOf(protocol, signalObservation(protocol, observations));
+  return protocol.signal * Math.exp(-protocol.signal) * analyticSinglePhoton(bases, protocol.zBasisProbability) - leakage;
+}
+
+/** The infinite-decoy limit: the true Y₁ and e₁ of the channel in place of their bounds (Lo, Ma, Chen 2005). */
+export function infiniteDecoyRate(channel: ChannelParameters, protocol: DecoyProtocol): number {
+  const { yield: y1, errorYield } = photonYield(channel, 1);
+  const pz = protocol.zBasisProbability;
+  const single = pz * pz * y1 * (1 - binaryEntropy(Math.min(0.5, errorYield / y1)));
+  const { leakage } = leakageOf(protocol, { intensity: protocol.signal, ...expectedGain(channel, protocol.signal) });
+  return protocol.signal * Math.exp(-protocol.signal) * single - leakage;
+}
+
+export { BASES };

@@ -1,0 +1,89 @@
+// Decoy-state key rate (docs/decoy.md): the published reach with the Gobby–Yuan–Shields channel, the numerical
+// single-photon bound against Shor–Preskill's 1 − h(e₁), and monotonicity in the decoy set.
+import { beforeAll, describe, expect, it } from 'vitest';
+import type { Highs } from 'highs';
+import { lpSolver } from '../../src/decoy/bounds.js';
+import { binaryEntropy } from '../../src/decoy/channel.js';
+import { analyseDecoy, analyticRate, infiniteDecoyRate, simulatedObservations, type DecoyProtocol } from '../../src/decoy/key-rate.js';
+import { singlePhotonProblem } from '../../src/decoy/single-photon.js';
+import { problemFromJson } from '../../src/problem/validate.js';
+import { verifyResult } from '../../src/certificate/verify.js';
+
+/** Gobby, Yuan, Shields, APL 84, 3762 (2004): 0.21 dB/km, η_det 4.5 %, Y₀ 1.7e-6, e_det 3.3 %; f = 1.22. */
+const GYS = { fiberLossDbPerKm: 0.21, detectorEfficiency: 0.045, darkCountYield: 1.7e-6, misalignment: 0.033 };
+const protocolWith = (signal: number, decoys: number[], zBasisProbability = 0.5): DecoyProtocol => ({ signal, decoys, zBasisProbability, ecEfficiency: 1.22 });
+
+let highs: Highs;
+beforeAll(async () => {
+  highs = await lpSolver();
+});
+
+/** Largest distance with a positive rate when μ is chosen best at each distance (grid 0.01 on [0.3, 0.6], where the optimum lies), by bisection. */
+function reach(rate: (distanceKm: number, mu: number) => number): number {
+  const best = (d: number) => Math.max(...Array.from({ length: 31 }, (_, i) => rate(d, 0.3 + 0.01 * i)));
+  let low = 130;
+  let high = 150;
+  while (high - low > 0.25) {
+    const mid = (low + high) / 2;
+    if (best(mid) > 0) low = mid;
+    else high = mid;
+  }
+  return low;
+}
+
+describe('reach with the GYS channel (Ma, Qi, Zhao, Lo, PRA 72, 012326 (2005); Ma, MSc report, quant-ph/0503057: "over 140 km")', () => {
+  it('the infinite-decoy rate reaches about 140 km and vacuum + weak decoy (ν = 0.01) comes within 2 km of it', () => {
+    const infinite = reach((d, mu) => infiniteDecoyRate({ distanceKm: d, ...GYS }, protocolWith(mu, [])));
+    const twoDecoy = reach((d, mu) => {
+      const p = protocolWith(mu, [0.01, 0]);
+      return analyticRate(highs, p, simulatedObservations({ distanceKm: d, ...GYS }, p));
+    });
+    expect(infinite).toBeGreaterThan(138);
+    expect(infinite).toBeLessThan(146);
+    expect(twoDecoy).toBeLessThanOrEqual(infinite + 0.25);
+    expect(infinite - twoDecoy).toBeLessThan(2);
+  }, 120_000);
+});
+
+describe('numerical single-photon bound = p_Z²·Y₁ᴸ·(1 − h(e₁ᵁ)) (Shor & Preskill 2000; GLLP 2004) to 1e-6', () => {
+  for (const [distanceKm, pz] of [
+    [0, 0.5],
+    [10, 0.5],
+    [0, 0.8],
+  ]) {
+    it(`${distanceKm} km, p_Z = ${pz}: certified bound per key-branch weight within 1e-6 of 1 − h(e₁ᵁ), verified`, () => {
+      const p = protocolWith(0.48, [0.1, 0], pz);
+      const result = analyseDecoy(highs, p, simulatedObservations({ distanceKm, ...GYS }, p));
+      const weight = pz * pz * Math.max(result.bases.Z.yieldLower, result.bases.X.yieldLower);
+      const analytic = 1 - binaryEntropy(result.bases.X.errorYieldUpper / (weight / (pz * pz)));
+      expect(result.singlePhotonBound!).toBeLessThanOrEqual(result.analyticSinglePhotonBound * (1 + 1e-9));
+      expect(Math.abs(result.singlePhotonBound! / weight - analytic)).toBeLessThan(1e-6);
+      const problem = problemFromJson(singlePhotonProblem(result.bases, pz));
+      expect(verifyResult(problem, { kind: 'von-neumann' }, result.singlePhoton).valid).toBe(true);
+    }, 60_000);
+  }
+
+  it('a Rényi kind (Petz, α = 1.5) gives a certified bound below von Neumann (ordering of the kinds, Tomamichel 2016)', () => {
+    const p = protocolWith(0.48, [0.1, 0], 0.8);
+    const obs = simulatedObservations({ distanceKm: 0, ...GYS }, p);
+    const renyi = analyseDecoy(highs, p, obs, { entropy: { kind: 'petz-up', alpha: 1.5 } });
+    expect(renyi.singlePhotonBound).not.toBeNull();
+    expect(renyi.singlePhotonBound!).toBeLessThanOrEqual(renyi.analyticSinglePhotonBound);
+    expect(renyi.singlePhotonBound!).toBeGreaterThan(0);
+  }, 60_000);
+});
+
+describe('more decoys never lower the rate (Lo, Ma, Chen 2005: extra constraints only shrink the LP feasible set)', () => {
+  for (const distanceKm of [20, 90, 130]) {
+    it(`${distanceKm} km: nested decoy sets give non-decreasing rates, all below the infinite-decoy rate`, () => {
+      const channel = { distanceKm, ...GYS };
+      const sets = [[0.1], [0.1, 0], [0.1, 0.05, 0], [0.2, 0.1, 0.05, 0]];
+      const rates = sets.map((decoys) => {
+        const p = protocolWith(0.48, decoys);
+        return analyticRate(highs, p, simulatedObservations(channel, p));
+      });
+      for (let i = 1; i < rates.length; i++) expect(rates[i]).toBeGreaterThanOrEqual(rates[i - 1] - 1e-15);
+      expect(rates.at(-1)!).toBeLessThanOrEqual(infiniteDecoyRate(channel, protocolWith(0.48, [])) + 1e-15);
+    });
+  }
+});
