@@ -8,6 +8,7 @@ const SECTIONS: Record<string, () => Promise<BenchTable[]>> = {
   oracle: async () => (await import('./oracle.js')).benchOracle(),
   objectives: async () => [(await import('./solver.js')).benchObjectives()],
   solver: async () => [(await import('./solver.js')).benchSolves()],
+  'finite-size': async () => (await import('./finite-size.js')).benchFiniteSize(),
   decoy: async () => (await import('./decoy.js')).benchDecoy(),
   // Loaded by name: the service benchmark starts servers and worker threads only when asked for.
   cli: async () => (await import('./cli.js')).benchCli(),

@@ -10,6 +10,7 @@ import { register as registerServe } from './serve.js';
 import { register as registerSweep } from './sweep.js';
 import { register as registerHealth } from './health.js';
 import { register as registerDemo } from './demo.js';
+import { register as registerKeyLength } from './key-length.js';
 import { register as registerDecoyRate } from './decoy-rate.js';
 
 const program = new Command('renyi-bound')
@@ -24,6 +25,7 @@ registerServe(program);
 registerSweep(program);
 registerHealth(program);
 registerDemo(program);
+registerKeyLength(program);
 registerDecoyRate(program);
 
 await program.parseAsync(process.argv);

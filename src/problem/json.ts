@@ -3,6 +3,7 @@
 import { ComplexMatrix } from '../linear-algebra/complex-matrix.js';
 import type { MatrixJson } from '../frank-wolfe/types.js';
 import { ValidationError } from './errors.js';
+import type { HonestStatisticsJson } from '../finite-size/honest-statistics.js';
 
 export type { MatrixJson };
 
@@ -42,6 +43,8 @@ export interface ProblemJson {
   entropy?: string;
   alpha?: number | null;
   description?: string;
+  /** renyibound.v1.HonestStatistics (docs/finite-size.md). */
+  honestStatistics?: HonestStatisticsJson | null;
 }
 
 type JsonObject = Record<string, unknown>;

@@ -1,4 +1,5 @@
 import type { ComplexMatrix } from '../linear-algebra/complex-matrix.js';
+import type { HonestStatistics } from '../finite-size/honest-statistics.js';
 
 /** The entropy kinds the service bounds (see the README's mathematics section). */
 export type EntropyKind = 'von-neumann' | 'petz-up' | 'petz-down' | 'sandwiched-up';
@@ -29,6 +30,8 @@ export interface Problem {
   constraints: LinearConstraint[];
   branches: AnnouncementBranch[];
   description?: string;
+  /** Honest expected announcement statistics for finite-size key lengths (not part of the input hash). */
+  honestStatistics?: HonestStatistics;
 }
 
 /** Which entropy to bound, at which Rényi order (alpha is ignored for von Neumann). */

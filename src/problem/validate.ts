@@ -19,6 +19,7 @@ import {
   requireShape,
 } from './operator-checks.js';
 import { DEFAULT_MAX_DIMENSION, PROBABILITY_SUM_TOLERANCE, STRUCTURE_TOLERANCE } from './tolerances.js';
+import { HONEST_STATISTICS_FIELDS, honestStatisticsFromJson } from '../finite-size/honest-statistics.js';
 
 export { ValidationError } from './errors.js';
 
@@ -43,6 +44,7 @@ const PROBLEM_FIELDS = [
   'entropy',
   'alpha',
   'description',
+  'honestStatistics',
 ] as const;
 const CONSTRAINT_FIELDS = ['label', 'operator', 'lower', 'upper'] as const;
 const OBSERVATION_FIELDS = ['label', 'povmA', 'povmB', 'probabilities', 'tolerance'] as const;
@@ -55,6 +57,7 @@ export const MESSAGE_FIELDS: Readonly<Record<string, readonly string[]>> = {
   ObservedStatistics: OBSERVATION_FIELDS,
   AnnouncementBranch: BRANCH_FIELDS,
   Problem: PROBLEM_FIELDS,
+  HonestStatistics: HONEST_STATISTICS_FIELDS,
 };
 
 /** Validates and expands a problem; see parseProblemJson. */
@@ -110,6 +113,10 @@ export function parseProblemJson(json: unknown, limits: ValidationLimits = {}): 
   const problem: Problem = { dimensionA, dimensionB, constraints, branches };
   if (sourceMarginal !== undefined) problem.sourceMarginal = sourceMarginal;
   if (description !== '') problem.description = description;
+  const honestJson = message.get('honestStatistics');
+  if (honestJson !== undefined) {
+    problem.honestStatistics = honestStatisticsFromJson(honestJson, 'honestStatistics', branches.map((b) => b.keyProjectors.length));
+  }
 
   const entropyJson = message.get('entropy');
   const alphaJson = message.get('alpha');

@@ -5,9 +5,10 @@
 // |ψ⟩ = Σ_i √p_i |i⟩_A|φ_i⟩_B, so ρ_A is the Gram matrix (ρ_A)_ij = √(p_i p_j)⟨φ_j|φ_i⟩ (rank 2).
 // Bob's system is a qubit, plus a vacuum level (index 2) when the transmittance η < 1.
 import { ComplexMatrix, kron } from '../linear-algebra/complex-matrix.js';
-import { matrixToJson, type MatrixJson } from '../problem/json.js';
+import { matrixToJson, type MatrixJson, type ProblemJson } from '../problem/json.js';
 import { projectorOnto } from './operators.js';
 import type { ExampleDefinition } from './example.js';
+import { TEST_PROBABILITY_PARAMETER, binaryEntropy, testRoundForm, type TestOutcome } from './test-rounds.js';
 
 const HALF = Math.SQRT1_2;
 
@@ -121,6 +122,37 @@ export function noKeyBranchKrausOperator(zBasisProbability: number, dimensionB: 
   return m;
 }
 
+/** Which coarse-grained test outcome Alice's state i and Bob's outcome y (4 = no click) fall in. */
+function testOutcomeLabel(i: number, y: number): string {
+  if (y === 4) return 'test-no-click';
+  const aliceZ = i < 2;
+  if (aliceZ !== y < 2) return 'test-basis-mismatch';
+  return `test-${aliceZ ? 'z' : 'x'}-${i === y ? 'agree' : 'error'}`;
+}
+
+/**
+ * Test rounds: Alice announces her state and Bob his outcome, coarse-grained to agreement/error per basis, a
+ * basis mismatch, or no click. One Kraus operator |i⟩⟨i| ⊗ √w_y|χ_y⟩⟨χ_y| per pair (i, y) of the outcome.
+ */
+function testOutcomes(qber: number, transmittance: number, zBasisProbability: number): TestOutcome[] {
+  const dimensionB = bobDimension(transmittance);
+  const table = expectedTable(qber, transmittance, zBasisProbability);
+  const outcomes = bobOutcomes(zBasisProbability, dimensionB);
+  const byLabel = new Map<string, TestOutcome>();
+  for (let i = 0; i < 4; i++) {
+    outcomes.forEach(({ weight, vector }, y) => {
+      const label = testOutcomeLabel(i, y);
+      const outcome = byLabel.get(label) ?? { label, krausOperators: [], honestProbability: 0 };
+      const bob = projectorOnto(vector);
+      for (let k = 0; k < bob.re.length; k++) bob.re[k] *= Math.sqrt(weight);
+      outcome.krausOperators.push(kron(projectorOnto([0, 1, 2, 3].map((k) => (k === i ? 1 : 0))), bob));
+      outcome.honestProbability += table[i * outcomes.length + y];
+      byLabel.set(label, outcome);
+    });
+  }
+  return [...byLabel.values()];
+}
+
 export const bb84PrepareMeasure: ExampleDefinition = {
   name: 'bb84-prepare-measure',
   description:
@@ -136,11 +168,13 @@ export const bb84PrepareMeasure: ExampleDefinition = {
       minimum: 0,
       maximum: 1,
     },
+    TEST_PROBABILITY_PARAMETER,
   ],
   build(parameters) {
     const qber = parameters['qber'];
     const transmittance = parameters['transmittance'];
     const zBasisProbability = parameters['z-basis-probability'];
+    const gamma = parameters['test-probability'] ?? 0;
     const dimensionB = bobDimension(transmittance);
     const povmA: MatrixJson[] = [0, 1, 2, 3].map((i) => matrixToJson(projectorOnto([0, 1, 2, 3].map((k) => (k === i ? 1 : 0)))));
     const povmB: MatrixJson[] = bobOutcomes(zBasisProbability, dimensionB).map(({ weight, vector }) => {
@@ -150,7 +184,7 @@ export const bb84PrepareMeasure: ExampleDefinition = {
     });
     const keyRegisterProjector = (k: number) =>
       matrixToJson(kron(projectorOnto(k === 0 ? [1, 0] : [0, 1]), ComplexMatrix.identity(dimensionB)));
-    return {
+    const plain: ProblemJson = {
       dimensionA: 4,
       dimensionB,
       sourceMarginal: matrixToJson(sourceMarginal(zBasisProbability)),
@@ -179,5 +213,17 @@ export const bb84PrepareMeasure: ExampleDefinition = {
         `bb84-prepare-measure: error rate ${qber}, transmittance ${transmittance}, ` +
         `Z-basis probability ${zBasisProbability}; value per round`,
     };
+    if (gamma === 0) return plain;
+    // In a key round the key branch has probability p_Z (Alice) · p_Z (Bob) · η (click) in an honest run.
+    const keyProbability = zBasisProbability * zBasisProbability * transmittance;
+    return testRoundForm(
+      plain,
+      gamma,
+      [
+        { branch: plain.branches[0], honestProbability: keyProbability, errorCorrectionEntropy: binaryEntropy(qber) },
+        { branch: plain.branches[1], honestProbability: 1 - keyProbability, errorCorrectionEntropy: 0 },
+      ],
+      testOutcomes(qber, transmittance, zBasisProbability),
+    );
   },
 };

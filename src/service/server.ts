@@ -29,6 +29,7 @@ import { SolveCoordinator } from './solve-coordinator.js';
 import type { WorkerReply, WorkerTask } from './solve-worker.js';
 import { QueueFullError, SolverPool } from './solver-pool.js';
 import { entropyKindFromWire, resultFromWire, resultToWire, wireToJson } from './wire.js';
+import { handleKeyLength } from './key-length.js';
 
 export interface ServerOptions {
   /** Interface to bind; loopback unless told otherwise. */
@@ -174,6 +175,7 @@ export class RenyiBoundServer {
       SolveBatch: (call) => void this.solveBatch(call),
       Verify: (call, callback) => this.verify(call, callback),
       ListExamples: listExamples,
+      KeyLength: (call, callback) => void handleKeyLength(call, callback, this.coordinator),
       DecoyRate: decoyRateHandler(),
     };
   }

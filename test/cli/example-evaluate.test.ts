@@ -88,7 +88,7 @@ describe('renyi-bound CLI: version, example, evaluate', { timeout: 30_000 }, () 
   it('example exits 1 naming the parameter for bad input', async () => {
     const unknownParameter = await cli(['example', 'six-state', '--qber-z', '0.1']);
     expect(unknownParameter.status).toBe(1);
-    expect(unknownParameter.stderr).toBe('renyi-bound: qber-z: unknown parameter for six-state (expected qber)\n');
+    expect(unknownParameter.stderr).toBe('renyi-bound: qber-z: unknown parameter for six-state (expected qber, test-probability)\n');
     const notANumber = await cli(['example', 'six-state', '--qber', 'abc']);
     expect(notANumber.status).toBe(1);
     expect(notANumber.stderr).toContain('qber: must be a finite number');

@@ -175,7 +175,7 @@ describe('matrix JSON', () => {
 const MAX_256 = undefined;
 const rejections: [string, (p: Json) => void, string][] = [
   ['not an object', (p) => Object.assign(p, { __replace: true }), 'problem: must be a JSON object'],
-  ['unknown field', (p) => (p.dimensionC = 2), 'dimensionC: unknown field (expected one of dimensionA, dimensionB, sourceMarginal, constraints, observations, branches, entropy, alpha, description)'],
+  ['unknown field', (p) => (p.dimensionC = 2), 'dimensionC: unknown field (expected one of dimensionA, dimensionB, sourceMarginal, constraints, observations, branches, entropy, alpha, description, honestStatistics)'],
   ['field given twice', (p) => (p.dimension_a = 2), 'dimensionA: given twice (as dimensionA and dimension_a)'],
   ['missing dimension', (p) => delete p.dimensionA, 'dimensionA: is required'],
   ['fractional dimension', (p) => (p.dimensionA = 1.5), 'dimensionA: must be a nonnegative integer (got 1.5)'],

@@ -86,7 +86,7 @@ describe('example registry', () => {
 
   const errors: [string, () => unknown, string][] = [
     ['unknown example', () => buildExample('bb85'), 'name: unknown example "bb85" (expected one of bb84-entangled, six-state, chsh-tested, bb84-prepare-measure)'],
-    ['unknown parameter', () => buildExample('six-state', { 'qber-z': 0.1 }), 'qber-z: unknown parameter for six-state (expected qber)'],
+    ['unknown parameter', () => buildExample('six-state', { 'qber-z': 0.1 }), 'qber-z: unknown parameter for six-state (expected qber, test-probability)'],
     ['parameter out of range', () => buildExample('bb84-prepare-measure', { transmittance: 1.5 }), 'transmittance: must lie in [0, 1] (got 1.5)'],
     ['parameter not finite', () => buildExample('chsh-tested', { 'win-probability': Number.NaN }), 'win-probability: must be a finite number (got NaN)'],
   ];
@@ -246,6 +246,21 @@ describe('bb84-prepare-measure', () => {
     expect(trace(conjugate(noKey.krausOperators[0], rho)).re).toBeCloseTo(1 - pZ * pZ * eta, 14);
   });
 
+  it.each([
+    [0.02, 1, 0.5, 0.05],
+    [0.05, 0.1, 0.9, 0.2],
+  ])('q=%f η=%f p_Z=%f γ=%f: test-round form carries the honest branch distribution of the channel output', (q, eta, pZ, gamma) => {
+    const problem = problemFromJson(
+      buildExample('bb84-prepare-measure', { qber: q, transmittance: eta, 'z-basis-probability': pZ, 'test-probability': gamma }),
+    );
+    const rho = expectedState(q, eta, pZ);
+    expectHonestDistribution(problem, rho);
+    expect(problem.branches.map((b) => b.label)).toContain('test-x-error');
+    // Key rounds: p_Z²·η of them are key (common practice), with H(S|B) = h(q) for the depolarising channel.
+    expect(problem.honestStatistics!.branchProbabilities[0]).toBeCloseTo((1 - gamma) * pZ * pZ * eta, 14);
+    expect(problem.honestStatistics!.errorCorrectionEntropy[0]).toBeCloseTo(shannonBinary(q), 14);
+  });
+
   it('the source marginal has rank 2 with eigenvalues 1/2, 1/2 (ρ_A has the spectrum of Σ p_i|φ_i⟩⟨φ_i| = 1/2; mathjs)', () => {
     const json = buildExample('bb84-prepare-measure', { 'z-basis-probability': 0.7 });
     const marginal = matrixFromJson(json.sourceMarginal, 'sourceMarginal');
@@ -254,5 +269,51 @@ describe('bb84-prepare-measure', () => {
     expect(values[1]).toBeCloseTo(0, 14);
     expect(values[2]).toBeCloseTo(0.5, 14);
     expect(values[3]).toBeCloseTo(0.5, 14);
+  });
+});
+
+/** −q log q − (1−q) log(1−q), written here independently of the builders. */
+function shannonBinary(q: number): number {
+  return q === 0 ? 0 : -(q * Math.log2(q) + (1 - q) * Math.log2(1 - q));
+}
+
+/** Every branch probability Σ_j Tr(K_j ρ K_j†) equals the problem's honest distribution; the branches are complete. */
+function expectHonestDistribution(problem: Problem, rho: ComplexMatrix): void {
+  const honest = problem.honestStatistics!.branchProbabilities;
+  expect(honest).toHaveLength(problem.branches.length);
+  problem.branches.forEach((branch, c) => {
+    const p = branch.krausOperators.reduce((acc, k) => acc + trace(conjugate(k, rho)).re, 0);
+    expect(p, branch.label).toBeCloseTo(honest[c], 13);
+  });
+  expect(honest.reduce((a, b) => a + b, 0)).toBeCloseTo(1, 13);
+}
+
+describe('test-round forms (--test-probability γ)', () => {
+  it('leave the default output unchanged when γ is 0 or absent', () => {
+    for (const name of ['bb84-entangled', 'six-state', 'bb84-prepare-measure']) {
+      const plain = buildExample(name);
+      expect(buildExample(name, { 'test-probability': 0 })).toEqual(plain);
+      expect(plain).not.toHaveProperty('honestStatistics');
+    }
+  });
+
+  it('entangled BB84: key rounds plus X-test outcomes, honest distribution of a Bell-diagonal state', () => {
+    const [qz, qx, gamma] = [0.03, 0.05, 0.1];
+    const problem = problemFromJson(buildExample('bb84-entangled', { 'qber-z': qz, 'qber-x': qx, 'test-probability': gamma }));
+    const w = qz * qx;
+    const rho = bellDiagonal([1 - qz - qx + w, qx - w, qz - w, w]);
+    expectSatisfies(problem, rho);
+    expectHonestDistribution(problem, rho);
+    expect(problem.branches.map((b) => b.label)).toEqual(['key', 'test-x-agree', 'test-x-error']);
+    expect(problem.honestStatistics!.errorCorrectionEntropy).toEqual([shannonBinary(qz), 0, 0].map((x) => expect.closeTo(x, 14)));
+  });
+
+  it('six-state: tests in X, Y and Z; the Bell-diagonal state (1 − 3Q/2, Q/2, Q/2, Q/2) (Lo 2001) gives the distribution', () => {
+    const [q, gamma] = [0.04, 0.3];
+    const problem = problemFromJson(buildExample('six-state', { qber: q, 'test-probability': gamma }));
+    const rho = bellDiagonal([1 - (3 * q) / 2, q / 2, q / 2, q / 2]);
+    expectSatisfies(problem, rho);
+    expectHonestDistribution(problem, rho);
+    expect(problem.branches).toHaveLength(7);
   });
 });

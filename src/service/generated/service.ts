@@ -2,6 +2,7 @@
 import type * as grpc from '@grpc/grpc-js';
 import type { EnumTypeDefinition, MessageTypeDefinition } from '@grpc/proto-loader';
 
+import type { AcceptanceWindow as _renyibound_v1_AcceptanceWindow, AcceptanceWindow__Output as _renyibound_v1_AcceptanceWindow__Output } from './renyibound/v1/AcceptanceWindow.js';
 import type { AnnouncementBranch as _renyibound_v1_AnnouncementBranch, AnnouncementBranch__Output as _renyibound_v1_AnnouncementBranch__Output } from './renyibound/v1/AnnouncementBranch.js';
 import type { BatchItem as _renyibound_v1_BatchItem, BatchItem__Output as _renyibound_v1_BatchItem__Output } from './renyibound/v1/BatchItem.js';
 import type { BatchRequest as _renyibound_v1_BatchRequest, BatchRequest__Output as _renyibound_v1_BatchRequest__Output } from './renyibound/v1/BatchRequest.js';
@@ -16,13 +17,19 @@ import type { DecoyProtocol as _renyibound_v1_DecoyProtocol, DecoyProtocol__Outp
 import type { DecoyRateReply as _renyibound_v1_DecoyRateReply, DecoyRateReply__Output as _renyibound_v1_DecoyRateReply__Output } from './renyibound/v1/DecoyRateReply.js';
 import type { DecoyRateRequest as _renyibound_v1_DecoyRateRequest, DecoyRateRequest__Output as _renyibound_v1_DecoyRateRequest__Output } from './renyibound/v1/DecoyRateRequest.js';
 import type { DecoySweepPoint as _renyibound_v1_DecoySweepPoint, DecoySweepPoint__Output as _renyibound_v1_DecoySweepPoint__Output } from './renyibound/v1/DecoySweepPoint.js';
+import type { EpsilonSplit as _renyibound_v1_EpsilonSplit, EpsilonSplit__Output as _renyibound_v1_EpsilonSplit__Output } from './renyibound/v1/EpsilonSplit.js';
 import type { ExampleInfo as _renyibound_v1_ExampleInfo, ExampleInfo__Output as _renyibound_v1_ExampleInfo__Output } from './renyibound/v1/ExampleInfo.js';
 import type { ExampleParameterInfo as _renyibound_v1_ExampleParameterInfo, ExampleParameterInfo__Output as _renyibound_v1_ExampleParameterInfo__Output } from './renyibound/v1/ExampleParameterInfo.js';
+import type { HonestStatistics as _renyibound_v1_HonestStatistics, HonestStatistics__Output as _renyibound_v1_HonestStatistics__Output } from './renyibound/v1/HonestStatistics.js';
 import type { InfeasibilityCertificate as _renyibound_v1_InfeasibilityCertificate, InfeasibilityCertificate__Output as _renyibound_v1_InfeasibilityCertificate__Output } from './renyibound/v1/InfeasibilityCertificate.js';
+import type { KeyLengthReply as _renyibound_v1_KeyLengthReply, KeyLengthReply__Output as _renyibound_v1_KeyLengthReply__Output } from './renyibound/v1/KeyLengthReply.js';
+import type { KeyLengthRequest as _renyibound_v1_KeyLengthRequest, KeyLengthRequest__Output as _renyibound_v1_KeyLengthRequest__Output } from './renyibound/v1/KeyLengthRequest.js';
+import type { KeyLengthTerm as _renyibound_v1_KeyLengthTerm, KeyLengthTerm__Output as _renyibound_v1_KeyLengthTerm__Output } from './renyibound/v1/KeyLengthTerm.js';
 import type { LinearConstraint as _renyibound_v1_LinearConstraint, LinearConstraint__Output as _renyibound_v1_LinearConstraint__Output } from './renyibound/v1/LinearConstraint.js';
 import type { ListExamplesReply as _renyibound_v1_ListExamplesReply, ListExamplesReply__Output as _renyibound_v1_ListExamplesReply__Output } from './renyibound/v1/ListExamplesReply.js';
 import type { ListExamplesRequest as _renyibound_v1_ListExamplesRequest, ListExamplesRequest__Output as _renyibound_v1_ListExamplesRequest__Output } from './renyibound/v1/ListExamplesRequest.js';
 import type { Matrix as _renyibound_v1_Matrix, Matrix__Output as _renyibound_v1_Matrix__Output } from './renyibound/v1/Matrix.js';
+import type { MinTradeoffFunction as _renyibound_v1_MinTradeoffFunction, MinTradeoffFunction__Output as _renyibound_v1_MinTradeoffFunction__Output } from './renyibound/v1/MinTradeoffFunction.js';
 import type { ObservedStatistics as _renyibound_v1_ObservedStatistics, ObservedStatistics__Output as _renyibound_v1_ObservedStatistics__Output } from './renyibound/v1/ObservedStatistics.js';
 import type { ParameterAxis as _renyibound_v1_ParameterAxis, ParameterAxis__Output as _renyibound_v1_ParameterAxis__Output } from './renyibound/v1/ParameterAxis.js';
 import type { ParameterGrid as _renyibound_v1_ParameterGrid, ParameterGrid__Output as _renyibound_v1_ParameterGrid__Output } from './renyibound/v1/ParameterGrid.js';
@@ -34,6 +41,7 @@ import type { SolveRequest as _renyibound_v1_SolveRequest, SolveRequest__Output 
 import type { SolveRequestList as _renyibound_v1_SolveRequestList, SolveRequestList__Output as _renyibound_v1_SolveRequestList__Output } from './renyibound/v1/SolveRequestList.js';
 import type { SolveResult as _renyibound_v1_SolveResult, SolveResult__Output as _renyibound_v1_SolveResult__Output } from './renyibound/v1/SolveResult.js';
 import type { SolverSettings as _renyibound_v1_SolverSettings, SolverSettings__Output as _renyibound_v1_SolverSettings__Output } from './renyibound/v1/SolverSettings.js';
+import type { VariableLengthRule as _renyibound_v1_VariableLengthRule, VariableLengthRule__Output as _renyibound_v1_VariableLengthRule__Output } from './renyibound/v1/VariableLengthRule.js';
 import type { VerifyReply as _renyibound_v1_VerifyReply, VerifyReply__Output as _renyibound_v1_VerifyReply__Output } from './renyibound/v1/VerifyReply.js';
 import type { VerifyRequest as _renyibound_v1_VerifyRequest, VerifyRequest__Output as _renyibound_v1_VerifyRequest__Output } from './renyibound/v1/VerifyRequest.js';
 
@@ -44,6 +52,7 @@ type SubtypeConstructor<Constructor extends new (...args: any) => any, Subtype> 
 export interface ProtoGrpcType {
   renyibound: {
     v1: {
+      AcceptanceWindow: MessageTypeDefinition<_renyibound_v1_AcceptanceWindow, _renyibound_v1_AcceptanceWindow__Output>
       AnnouncementBranch: MessageTypeDefinition<_renyibound_v1_AnnouncementBranch, _renyibound_v1_AnnouncementBranch__Output>
       BatchItem: MessageTypeDefinition<_renyibound_v1_BatchItem, _renyibound_v1_BatchItem__Output>
       BatchRequest: MessageTypeDefinition<_renyibound_v1_BatchRequest, _renyibound_v1_BatchRequest__Output>
@@ -59,13 +68,19 @@ export interface ProtoGrpcType {
       DecoyRateRequest: MessageTypeDefinition<_renyibound_v1_DecoyRateRequest, _renyibound_v1_DecoyRateRequest__Output>
       DecoySweepPoint: MessageTypeDefinition<_renyibound_v1_DecoySweepPoint, _renyibound_v1_DecoySweepPoint__Output>
       EntropyKind: EnumTypeDefinition
+      EpsilonSplit: MessageTypeDefinition<_renyibound_v1_EpsilonSplit, _renyibound_v1_EpsilonSplit__Output>
       ExampleInfo: MessageTypeDefinition<_renyibound_v1_ExampleInfo, _renyibound_v1_ExampleInfo__Output>
       ExampleParameterInfo: MessageTypeDefinition<_renyibound_v1_ExampleParameterInfo, _renyibound_v1_ExampleParameterInfo__Output>
+      HonestStatistics: MessageTypeDefinition<_renyibound_v1_HonestStatistics, _renyibound_v1_HonestStatistics__Output>
       InfeasibilityCertificate: MessageTypeDefinition<_renyibound_v1_InfeasibilityCertificate, _renyibound_v1_InfeasibilityCertificate__Output>
+      KeyLengthReply: MessageTypeDefinition<_renyibound_v1_KeyLengthReply, _renyibound_v1_KeyLengthReply__Output>
+      KeyLengthRequest: MessageTypeDefinition<_renyibound_v1_KeyLengthRequest, _renyibound_v1_KeyLengthRequest__Output>
+      KeyLengthTerm: MessageTypeDefinition<_renyibound_v1_KeyLengthTerm, _renyibound_v1_KeyLengthTerm__Output>
       LinearConstraint: MessageTypeDefinition<_renyibound_v1_LinearConstraint, _renyibound_v1_LinearConstraint__Output>
       ListExamplesReply: MessageTypeDefinition<_renyibound_v1_ListExamplesReply, _renyibound_v1_ListExamplesReply__Output>
       ListExamplesRequest: MessageTypeDefinition<_renyibound_v1_ListExamplesRequest, _renyibound_v1_ListExamplesRequest__Output>
       Matrix: MessageTypeDefinition<_renyibound_v1_Matrix, _renyibound_v1_Matrix__Output>
+      MinTradeoffFunction: MessageTypeDefinition<_renyibound_v1_MinTradeoffFunction, _renyibound_v1_MinTradeoffFunction__Output>
       ObservedStatistics: MessageTypeDefinition<_renyibound_v1_ObservedStatistics, _renyibound_v1_ObservedStatistics__Output>
       ParameterAxis: MessageTypeDefinition<_renyibound_v1_ParameterAxis, _renyibound_v1_ParameterAxis__Output>
       ParameterGrid: MessageTypeDefinition<_renyibound_v1_ParameterGrid, _renyibound_v1_ParameterGrid__Output>
@@ -79,6 +94,7 @@ export interface ProtoGrpcType {
       SolveStatus: EnumTypeDefinition
       SolverSettings: MessageTypeDefinition<_renyibound_v1_SolverSettings, _renyibound_v1_SolverSettings__Output>
       StopLimit: EnumTypeDefinition
+      VariableLengthRule: MessageTypeDefinition<_renyibound_v1_VariableLengthRule, _renyibound_v1_VariableLengthRule__Output>
       VerifyReply: MessageTypeDefinition<_renyibound_v1_VerifyReply, _renyibound_v1_VerifyReply__Output>
       VerifyRequest: MessageTypeDefinition<_renyibound_v1_VerifyRequest, _renyibound_v1_VerifyRequest__Output>
     }

@@ -5,6 +5,7 @@ import type { LinearConstraint as _renyibound_v1_LinearConstraint, LinearConstra
 import type { ObservedStatistics as _renyibound_v1_ObservedStatistics, ObservedStatistics__Output as _renyibound_v1_ObservedStatistics__Output } from '../../renyibound/v1/ObservedStatistics.js';
 import type { AnnouncementBranch as _renyibound_v1_AnnouncementBranch, AnnouncementBranch__Output as _renyibound_v1_AnnouncementBranch__Output } from '../../renyibound/v1/AnnouncementBranch.js';
 import type { EntropyKind as _renyibound_v1_EntropyKind, EntropyKind__Output as _renyibound_v1_EntropyKind__Output } from '../../renyibound/v1/EntropyKind.js';
+import type { HonestStatistics as _renyibound_v1_HonestStatistics, HonestStatistics__Output as _renyibound_v1_HonestStatistics__Output } from '../../renyibound/v1/HonestStatistics.js';
 
 export interface Problem {
   'dimensionA'?: (number);
@@ -16,6 +17,7 @@ export interface Problem {
   'entropy'?: (_renyibound_v1_EntropyKind);
   'alpha'?: (number | string);
   'description'?: (string);
+  'honestStatistics'?: (_renyibound_v1_HonestStatistics | null);
   '_alpha'?: "alpha";
 }
 
@@ -29,5 +31,6 @@ export interface Problem__Output {
   'entropy': (_renyibound_v1_EntropyKind__Output);
   'alpha'?: (number);
   'description': (string);
+  'honestStatistics': (_renyibound_v1_HonestStatistics__Output | null);
   '_alpha'?: "alpha";
 }

@@ -1,0 +1,119 @@
+// The KeyLength RPC: validates the request, runs the finite-size search with every single-round solve going
+// through the server's coordinator (cache by input hash → pool), and answers the ledger (docs/finite-size.md).
+import type * as grpc from '@grpc/grpc-js';
+import { keyLength, type KeyLengthReport } from '../finite-size/key-length.js';
+import { problemToJson, type SingleRoundSolver } from '../finite-size/single-round.js';
+import { matrixToJson } from '../problem/json.js';
+import type { Problem } from '../problem/model.js';
+import { ValidationError } from '../problem/errors.js';
+import { parseProblemJson } from '../problem/validate.js';
+import { toServiceError } from './errors.js';
+import type { KeyLengthReply } from './generated/renyibound/v1/KeyLengthReply.js';
+import type { KeyLengthRequest__Output } from './generated/renyibound/v1/KeyLengthRequest.js';
+import { prepareSolve } from './prepare.js';
+import type { SolveCoordinator } from './solve-coordinator.js';
+import { wireToJson } from './wire.js';
+
+/** Single-round solves through the coordinator, so repeated searches are answered from the cache. */
+function coordinatedSolver(coordinator: SolveCoordinator, signal: AbortSignal | undefined, requestId: string): SingleRoundSolver {
+  return async (problem, request, settings, warmStart) => {
+    // A cancelled call stops the search instead of finishing it on cancelled (loose) solves.
+    if (signal?.aborted) throw new Error('key-length search cancelled by the client');
+    const prepared = prepareSolve({
+      problemJson: problemToJson(problem),
+      entropy: request.kind,
+      alpha: request.alpha,
+      settings,
+      warmStart: warmStart ? matrixToJson(warmStart) : undefined,
+    });
+    return coordinator.solve(prepared, { signal, requestId });
+  };
+}
+
+function optionalNumber(value: number | undefined, present: boolean): number | undefined {
+  return present ? value : undefined;
+}
+
+export function reportToWire(report: KeyLengthReport, requestId: string): KeyLengthReply {
+  const reply: KeyLengthReply = {
+    keyLength: report.keyLength,
+    ratePerRound: report.ratePerRound,
+    rounds: report.rounds,
+    alpha: report.alpha,
+    scores: report.scores,
+    singleRoundBoundJson: JSON.stringify(report.singleRoundBound),
+    singleRoundProblem: report.singleRoundProblem as never,
+    terms: report.terms,
+    epsilons: report.epsilons,
+    acceptanceWindow: {
+      meanScore: report.acceptanceWindow.meanScore,
+      deviation: report.acceptanceWindow.deviation,
+      minimumScoreSum: report.acceptanceWindow.minimumScoreSum,
+      tail: report.acceptanceWindow.tail,
+    },
+    errorCorrectionBits: report.errorCorrection.bits,
+    singleRoundSolves: report.search.singleRoundSolves,
+    requestId,
+    entropy: report.entropy,
+  };
+  if (report.variableLength) {
+    reply.variableLength = {
+      intercept: report.variableLength.intercept,
+      keyLengthAtHonestMean: report.variableLength.keyLengthAtHonestMean,
+    };
+  }
+  const asymptotic = report.asymptotic;
+  if (asymptotic?.ratePerRound !== null && asymptotic?.ratePerRound !== undefined) reply.asymptoticRatePerRound = asymptotic.ratePerRound;
+  if (asymptotic?.minTradeoff) {
+    reply.minTradeoff = {
+      constant: asymptotic.minTradeoff.constant,
+      coefficients: asymptotic.minTradeoff.coefficients,
+      validity: asymptotic.minTradeoff.validity,
+    };
+  }
+  return reply;
+}
+
+/** Unary KeyLength handler; bad input answers INVALID_ARGUMENT with the field path. */
+export async function handleKeyLength(
+  call: grpc.ServerUnaryCall<KeyLengthRequest__Output, KeyLengthReply>,
+  callback: grpc.sendUnaryData<KeyLengthReply>,
+  coordinator: SolveCoordinator,
+): Promise<void> {
+  const request = call.request;
+  const controller = new AbortController();
+  const abort = () => controller.abort('cancelled');
+  call.on('cancelled', abort);
+  try {
+    if (request.problem === null) throw new ValidationError('problem', 'is required');
+    let problem: Problem;
+    try {
+      problem = parseProblemJson(wireToJson(request.problem)).problem;
+    } catch (error) {
+      if (error instanceof ValidationError) throw new ValidationError(`problem.${error.field}`, error.reason);
+      throw error;
+    }
+    const has = (field: string) => (request as unknown as Record<string, unknown>)[`_${field}`] === field;
+    const report = await keyLength(
+      problem,
+      {
+        rounds: request.rounds,
+        epsilonSecrecy: optionalNumber(request.epsilonSecrecy, has('epsilonSecrecy')),
+        epsilonCompleteness: optionalNumber(request.epsilonCompleteness, has('epsilonCompleteness')),
+        epsilonPrivacyAmplification: optionalNumber(request.epsilonPrivacyAmplification, has('epsilonPrivacyAmplification')),
+        epsilonErrorVerification: optionalNumber(request.epsilonErrorVerification, has('epsilonErrorVerification')),
+        ecEfficiency: optionalNumber(request.ecEfficiency, has('ecEfficiency')),
+        errorCorrectionBits: optionalNumber(request.errorCorrectionBits, has('errorCorrectionBits')),
+        alpha: optionalNumber(request.alpha, has('alpha')),
+        variableLength: request.variableLength,
+        entropy: request.fast ? 'petz-up' : 'sandwiched-up',
+      },
+      coordinatedSolver(coordinator, controller.signal, request.requestId),
+    );
+    callback(null, reportToWire(report, request.requestId));
+  } catch (error) {
+    callback(toServiceError(error));
+  } finally {
+    call.removeListener('cancelled', abort);
+  }
+}
