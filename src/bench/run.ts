@@ -7,7 +7,11 @@ const SECTIONS: Record<string, () => Promise<BenchTable[]>> = {
   'linear-algebra': async () => (await import('./linear-algebra.js')).benchLinearAlgebra(),
   oracle: async () => (await import('./oracle.js')).benchOracle(),
   objectives: async () => [(await import('./solver.js')).benchObjectives()],
-  solver: async () => [(await import('./solver.js')).benchSolves()],
+  solver: async () => {
+    const solver = await import('./solver.js');
+    return [solver.benchSolves(), solver.benchBoundaryOptima()];
+  },
+  'random-suite': async () => (await import('./random-suite.js')).benchRandomSuite(),
   'finite-size': async () => (await import('./finite-size.js')).benchFiniteSize(),
   decoy: async () => (await import('./decoy.js')).benchDecoy(),
   // Loaded by name: the service benchmark starts servers and worker threads only when asked for.

@@ -1,5 +1,5 @@
 // The tiered result cache: memory → SQLite → Redis, with verification on every untrusted read and every store.
-import type { SolveResult } from '../frank-wolfe/types.js';
+import type { SolveResult } from '../result/types.js';
 import type { CacheLayer } from './layer.js';
 
 /** Re-checks a result against the problem it claims to answer (the certificate verifier, bound to one request). */

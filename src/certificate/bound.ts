@@ -13,9 +13,10 @@ import type { Objective, ObjectiveEvaluation, ReferenceBlocks, BranchSupport } f
 import type { Problem } from '../problem/model.js';
 import { compressToFace, type FeasibleFace } from '../problem/feasible-face.js';
 import { matrixFromJson } from '../problem/json.js';
-import type { Certificate } from '../frank-wolfe/types.js';
+import type { Certificate } from '../result/types.js';
 import { pinchedBlocks } from '../objectives/spectral-blocks.js';
 import { isKeyless } from '../objectives/branch-supports.js';
+import { logCoefficient } from '../objectives/objective.js';
 
 // The margin uses the eigensolver backward-error scale c·n·u·‖A‖_F (docs/math.md §5).
 import { BACKWARD_ERROR_CONSTANT as MARGIN_CONSTANT, UNIT_ROUNDOFF } from '../linear-algebra/rounding.js';
@@ -23,10 +24,11 @@ import { BACKWARD_ERROR_CONSTANT as MARGIN_CONSTANT, UNIT_ROUNDOFF } from '../li
 /** Every term of LB = F(ρ') − ⟨∇F, ρ'⟩ + Σy⁺ℓ − Σy⁻u + λ_min(∇F − Σ yΓ) [+ τ terms] − margin. */
 export interface BoundBreakdown {
   objectiveValue: number;
+  /** ⟨∇F(ρ'), ρ'⟩ (sandwiched-up: jointly with ⟨∇_τF, τ'⟩), by Euler's identity for homogeneous functions. */
   gradientInnerProduct: number;
   dualConstant: number;
   smallestEigenvalue: number;
-  /** Sandwiched-up: −⟨∇_τF, τ'⟩ + min over blocks λ_min(∇_τF); 0 otherwise. */
+  /** Sandwiched-up: min over blocks λ_min(∇_τF); 0 otherwise. */
   referenceTerm: number;
   /** Floating-point allowance (a conservative estimate, not interval arithmetic). */
   margin: number;
@@ -61,16 +63,15 @@ export function linearizationBound(
     objectiveValue = joint.value;
     gradient = joint.gradientState;
     evaluationConditioning = joint.conditioning;
-    let innerProduct = 0;
     let smallest = Infinity;
-    joint.gradientReference.forEach((blocks, c) =>
-      blocks.forEach((g, k) => {
-        innerProduct += traceProductReal(g, reference[c][k]);
+    joint.gradientReference.forEach((blocks) =>
+      blocks.forEach((g) => {
         smallest = Math.min(smallest, eigvalsh(g)[0]);
-        referenceError += MARGIN_CONSTANT * g.rows * UNIT_ROUNDOFF * frobeniusNorm(g) * 2;
+        referenceError += MARGIN_CONSTANT * g.rows * UNIT_ROUNDOFF * frobeniusNorm(g);
       }),
     );
-    referenceTerm = smallest - innerProduct;
+    // −⟨∇_τF, τ'⟩ is carried by the joint Euler term below.
+    referenceTerm = smallest;
   } else {
     const evaluation = precomputed?.gradient ? precomputed : objective.evaluate(rho, { withGradient: true, assumeFullRank: true });
     objectiveValue = evaluation.value;
@@ -94,22 +95,20 @@ export function linearizationBound(
       (yLower + yUpper) * (frobeniusNorm(constraint.operator) + Math.abs(constraint.lower) + Math.abs(constraint.upper));
   });
   const smallestEigenvalue = eigvalsh(shifted)[0];
-  const gradientInnerProduct = traceProductReal(gradient, rho);
+  const gradientInnerProduct = eulerInnerProduct(objective, objectiveValue);
 
   // Backward-error scale of each eigendecomposition; the gradient term grows like ‖ρ'‖/λ_min(ρ') because the
-  // derivative of log or of a negative power amplifies a backward error by the inverse smallest eigenvalue.
+  // derivative of log or of a negative power amplifies a backward error by the inverse smallest eigenvalue. The
+  // gradient enters once (through λ_min): its pairing with ρ' is the exact Euler value, and F itself only for
+  // the Rényi kinds (for von Neumann F(ρ') − ⟨∇F, ρ'⟩ = 0 exactly).
   const rhoEigenvalues = eigvalsh(rho);
   // The worst of ρ' itself and every positive matrix the objective took a function of (branch outputs, pinched
   // blocks, sandwiched products): Kraus maps can make an output worse conditioned than ρ'.
   const conditioning = Math.max(frobeniusNorm(rho) / Math.max(rhoEigenvalues[0], Number.MIN_VALUE), evaluationConditioning);
   const scale = MARGIN_CONSTANT * n * UNIT_ROUNDOFF;
+  const valueError = objective.request.kind === 'von-neumann' ? 0 : Math.abs(objectiveValue);
   const margin =
-    scale *
-      (Math.abs(objectiveValue) +
-        2 * Math.abs(gradientInnerProduct) +
-        frobeniusNorm(shifted) +
-        multiplierWeight +
-        2 * (frobeniusNorm(gradient) + conditioning / Math.LN2)) +
+    scale * (valueError + frobeniusNorm(shifted) + multiplierWeight + frobeniusNorm(gradient) + conditioning / Math.LN2) +
     referenceError;
   const lowerBound =
     objectiveValue - gradientInnerProduct + dualConstant + smallestEigenvalue + referenceTerm - margin;
@@ -193,4 +192,16 @@ export function certificateBreakdown(
     certificate.multipliersUpper,
     read.reference,
   );
+}
+
+/**
+ * ⟨∇F(ρ), ρ⟩ in closed form (docs/convergence.md). Every kind is built from functions of the branch outputs that
+ * are positively homogeneous — D(X‖Z(X)) and the scores of degree 1 in ρ; Q̃, Q̄ of degree 1 in ρ, and
+ * Q̃_β(X‖τ) of degree 1 jointly in (ρ, τ) — so Euler's identity gives ⟨∇F, ρ⟩ = F for von Neumann and
+ * c/ln 2 for F = c·log₂ Q (sandwiched-up: the joint pairing ⟨∇_ρF, ρ⟩ + ⟨∇_τF, τ⟩). Using the exact value
+ * removes the rounding of that pairing, whose error the gradient's conditioning would otherwise amplify.
+ */
+export function eulerInnerProduct(objective: Objective, objectiveValue: number): number {
+  const request = objective.request;
+  return request.kind === 'von-neumann' ? objectiveValue : logCoefficient(request) / Math.LN2;
 }

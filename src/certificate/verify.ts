@@ -6,7 +6,7 @@ import { createObjective } from '../objectives/index.js';
 import { feasibleFace, restrictToFace } from '../problem/feasible-face.js';
 import { inputHash } from '../problem/hash.js';
 import type { EntropyRequest, Problem } from '../problem/model.js';
-import type { Certificate, InfeasibilityCertificate, SolveResult } from '../frank-wolfe/types.js';
+import type { Certificate, FarkasCertificate, SolveResult } from '../result/types.js';
 import { certificateBreakdown, readStoredLinearization, type StoredLinearization } from './bound.js';
 import { SOLVER_VERSION } from './version.js';
 
@@ -98,7 +98,7 @@ const FARKAS_ROUNDING_FACTOR = BACKWARD_ERROR_CONSTANT;
  */
 export function verifyInfeasibility(
   problem: Problem,
-  infeasibility: Pick<InfeasibilityCertificate, 'multipliersLower' | 'multipliersUpper'>,
+  infeasibility: Pick<FarkasCertificate, 'multipliersLower' | 'multipliersUpper'>,
 ): VerificationReport {
   const m = problem.constraints.length;
   if (!nonNegativeFinite(infeasibility.multipliersLower, m) || !nonNegativeFinite(infeasibility.multipliersUpper, m)) {

@@ -1,7 +1,8 @@
 // `renyi-bound solve <problem.json | -> --entropy <kind> [--alpha a] [--gap g] [--max-iterations n]
 //  [--time-limit-ms t] [--warm-start matrix.json] [--server host:port]`: a certified bound as JSON.
 import type { Command } from 'commander';
-import type { SolveResult, SolverSettings } from '../frank-wolfe/types.js';
+import type { SolveResult } from '../result/types.js';
+import type { SolverSettings } from '../frank-wolfe/settings.js';
 import { ValidationError } from '../problem/errors.js';
 import { parseNumberOption, printJson, readJsonInput, withInputErrors } from './io.js';
 

@@ -3,7 +3,7 @@
 // the Farkas certificate instead.
 import type { Command } from 'commander';
 import type { VerificationReport } from '../certificate/verify.js';
-import type { SolveResult } from '../frank-wolfe/types.js';
+import type { SolveResult } from '../result/types.js';
 import { ValidationError } from '../problem/errors.js';
 import { printJson, readJsonInput, withInputErrors } from './io.js';
 

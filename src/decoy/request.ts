@@ -2,7 +2,7 @@
 // point (from a channel or from measured counts), a fit of the channel to counts, and a sweep over distance.
 import type { Highs } from 'highs';
 import { ValidationError } from '../problem/errors.js';
-import type { SolverSettings } from '../frank-wolfe/types.js';
+import type { SolverSettings } from '../frank-wolfe/settings.js';
 import type { EntropyRequest } from '../problem/model.js';
 import { checkChannel, type ChannelParameters } from './channel.js';
 import { observedGains, type MeasuredCounts } from './counts.js';

@@ -6,14 +6,14 @@ import { SqliteCacheLayer, defaultCacheDirectory } from '../cache/sqlite.js';
 import type { CacheLayer } from '../cache/layer.js';
 import { verifyResult } from '../certificate/verify.js';
 import { SOLVER_VERSION } from '../certificate/version.js';
-import { resolveSettings } from '../frank-wolfe/settings.js';
+import { resolveSolverSettings } from '../frank-wolfe/settings.js';
 import { inputHash } from '../problem/hash.js';
 import { localSolver, type SingleRoundSolver } from './single-round.js';
 
 /** A solver that answers from `cache` when it can and stores what it computes (the cache decides what is cacheable). */
 export function cachedSolver(cache: ResultCache, solver: SingleRoundSolver = localSolver): SingleRoundSolver {
   return async (problem, request, settings, warmStart) => {
-    const hash = inputHash(problem, request, resolveSettings(settings), SOLVER_VERSION);
+    const hash = inputHash(problem, request, resolveSolverSettings(settings), SOLVER_VERSION);
     const check = (result: Parameters<typeof verifyResult>[2]) =>
       result.inputHash === hash ? verifyResult(problem, request, result) : { valid: false, reason: 'result answers another input hash' };
     const cached = await cache.lookup(hash, check);

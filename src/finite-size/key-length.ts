@@ -1,6 +1,7 @@
 // The finite-size key length under coherent attacks: options, ε split, α and score optimisation, the ledger,
 // the asymptotic (Devetak–Winter) reference and the min-tradeoff export (docs/finite-size.md).
-import type { SolveResult, SolverSettings } from '../frank-wolfe/types.js';
+import type { SolveResult } from '../result/types.js';
+import type { SolverSettings } from '../frank-wolfe/settings.js';
 import { ValidationError } from '../problem/errors.js';
 import type { Problem } from '../problem/model.js';
 import { keyLengthLedger, privacyAmplificationBits, errorVerificationBits, variableLengthIntercept, type EpsilonSplit, type LedgerTerm } from './ledger.js';

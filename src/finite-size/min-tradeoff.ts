@@ -3,7 +3,7 @@
 // feasible face, whatever its statistics s_i = Tr(Γ_i σ) (docs/finite-size.md, "Min-tradeoff export").
 import { certificateBreakdown } from '../certificate/bound.js';
 import { BACKWARD_ERROR_CONSTANT, UNIT_ROUNDOFF } from '../linear-algebra/rounding.js';
-import type { SolveResult } from '../frank-wolfe/types.js';
+import type { SolveResult } from '../result/types.js';
 import { frobeniusNorm } from '../linear-algebra/complex-matrix.js';
 import { createObjective } from '../objectives/index.js';
 import { feasibleFace, restrictToFace } from '../problem/feasible-face.js';

@@ -3,7 +3,7 @@
 // certified lower bound, so the point finally kept carries a certificate.
 import type { ComplexMatrix } from '../linear-algebra/complex-matrix.js';
 import type { Problem } from '../problem/model.js';
-import type { SolverSettings } from '../frank-wolfe/types.js';
+import type { SolverSettings } from '../frank-wolfe/settings.js';
 import { acceptanceWindow, type AcceptanceWindow } from './acceptance-window.js';
 import { singleRoundValue, tiltedBranchWeights, scoredProblem, type FiniteSizeEntropy, type SingleRoundSolver, type SingleRoundValue } from './single-round.js';
 

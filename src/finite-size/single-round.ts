@@ -2,7 +2,8 @@
 // scores f, no statistical constraints (the statistics enter through f), the source marginal kept. Each value is
 // the solver's certified lower bound; the optimal state's tilted branch weights give a supergradient (Danskin).
 import { solve } from '../frank-wolfe/solve.js';
-import type { SolveResult, SolverSettings } from '../frank-wolfe/types.js';
+import type { SolveResult } from '../result/types.js';
+import type { SolverSettings } from '../frank-wolfe/settings.js';
 import type { ComplexMatrix } from '../linear-algebra/complex-matrix.js';
 import { createObjective } from '../objectives/index.js';
 import { matrixFromJson, matrixToJson, type ProblemJson } from '../problem/json.js';

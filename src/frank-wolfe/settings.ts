@@ -1,5 +1,19 @@
-import type { SolverSettings } from './types.js';
+import type { ComplexMatrix } from '../linear-algebra/complex-matrix.js';
 import { FieldError } from '../problem/errors.js';
+
+export interface SolverSettings {
+  /** Requested certified gap upper − lower, in bits. */
+  gapTolerance: number;
+  maxIterations: number;
+  timeLimitMs: number;
+}
+
+export interface SolveControl {
+  /** Checked once per Frank–Wolfe iteration; true stops the run with LIMIT_REACHED/cancelled. */
+  isCancelled?: () => boolean;
+  /** A density operator on H_A ⊗ H_B to start from (projected onto the feasible set first). */
+  warmStart?: ComplexMatrix;
+}
 
 /** A solver setting out of range; `field` is "settings.<name>". */
 export class SettingsError extends FieldError {}
@@ -12,7 +26,7 @@ export const DEFAULT_SETTINGS: Readonly<SolverSettings> = Object.freeze({
 });
 
 /** Fills defaults and range-checks every field; errors name the field. */
-export function resolveSettings(partial: Partial<SolverSettings> = {}, path = 'settings'): SolverSettings {
+export function resolveSolverSettings(partial: Partial<SolverSettings> = {}, path = 'settings'): SolverSettings {
   const settings: SolverSettings = { ...DEFAULT_SETTINGS };
   for (const [key, value] of Object.entries(partial)) {
     if (value !== undefined && value !== null) (settings as unknown as Record<string, number>)[key] = value as number;

@@ -1,8 +1,9 @@
 // Functions of Hermitian matrices through their eigendecomposition, and their Fréchet derivatives
 // (Daleckii–Krein formula).
 import { adjoint, ComplexMatrix, multiply, multiplyAdjointLeft, multiplyAdjointRight } from './complex-matrix.js';
-import type { HermitianEigen } from './eigen.js';
+import { eigh, type HermitianEigen } from './eigen.js';
 import { UNIT_ROUNDOFF } from './rounding.js';
+import { zeroEigenvalueTolerance } from './support.js';
 
 /**
  * Relative eigenvalue gap below which a divided difference (f(x) − f(y))/(x − y) is replaced by f'
@@ -204,4 +205,36 @@ export function powerFunction(p: number): ScalarFunction {
     derivative: (x) => p * x ** (p - 1),
     difference: (x, y) => (closePositive(x, y) ? y ** p * Math.expm1(p * Math.log1p((x - y) / y)) : x ** p - y ** p),
   };
+}
+
+/**
+ * Eigenvalues of a PSD matrix with rounding-level negatives (|λ| ≤ the support tolerance) set to 0;
+ * throws if one is clearly negative.
+ */
+export function positiveSemidefiniteEigen(a: ComplexMatrix, caller: string): { eig: HermitianEigen; rank: number } {
+  const eig = eigh(a);
+  const tolerance = zeroEigenvalueTolerance(a);
+  const values = eig.values;
+  let rank = 0;
+  for (let k = 0; k < values.length; k++) {
+    if (values[k] < -tolerance) {
+      throw new RangeError(`${caller}: matrix is not positive semidefinite (eigenvalue ${values[k]} < −${tolerance})`);
+    }
+    if (values[k] <= tolerance) values[k] = 0;
+    else rank++;
+  }
+  return { eig, rank };
+}
+
+/**
+ * A^p of a Hermitian PSD matrix. For p > 0 zero eigenvalues stay 0; p ≤ 0 needs full numerical rank
+ * (restrict to the support first, see rangeIsometry) and throws otherwise.
+ */
+export function matrixPower(a: ComplexMatrix, p: number): ComplexMatrix {
+  if (!Number.isFinite(p)) throw new RangeError(`matrixPower: exponent ${p} is not finite`);
+  const { eig, rank } = positiveSemidefiniteEigen(a, 'matrixPower');
+  if (p <= 0 && rank < a.rows) {
+    throw new RangeError(`matrixPower: exponent ${p} ≤ 0 needs a full-rank matrix, but numerical rank is ${rank} of ${a.rows}`);
+  }
+  return spectralFunction(eig, (x) => (x === 0 ? 0 : x ** p));
 }

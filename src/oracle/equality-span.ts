@@ -38,7 +38,15 @@ export class EqualitySpan {
   readonly dependent: DependentEquality[] = [];
 
   /** `operators[i]` with `values[i]` are the equalities, `indices[i]` their constraint positions. */
-  constructor(dimension: number, operators: { re: Float64Array; im: Float64Array }[], values: number[], indices: number[]) {
+  /** `checkpoint` is called between operators (Gram–Schmidt costs O(m²d²) at large d) and may throw to abort. */
+  constructor(
+    dimension: number,
+    operators: { re: Float64Array; im: Float64Array }[],
+    values: number[],
+    indices: number[],
+    checkpoint?: () => void,
+    consistencyTolerance: number = CONSISTENCY_TOLERANCE,
+  ) {
     this.dimension = dimension;
     const n = dimension;
     const identityRe = new Float64Array(n * n);
@@ -52,6 +60,7 @@ export class EqualitySpan {
     const workRe = new Float64Array(n * n);
     const workIm = new Float64Array(n * n);
     for (let c = 0; c < operators.length; c++) {
+      checkpoint?.();
       const { re, im } = operators[c];
       workRe.set(re);
       workIm.set(im);
@@ -80,7 +89,7 @@ export class EqualitySpan {
           constraintIndex: indices[c],
           coefficients: projection,
           mismatch,
-          consistent: Math.abs(mismatch) <= CONSISTENCY_TOLERANCE * (1 + Math.abs(values[c]) + Math.abs(implied)),
+          consistent: Math.abs(mismatch) <= consistencyTolerance * (1 + Math.abs(values[c]) + Math.abs(implied)),
         });
         continue;
       }

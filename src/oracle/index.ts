@@ -3,9 +3,13 @@ export { LinearOracle, PRIMAL_FEASIBILITY_TOLERANCE, INFEASIBILITY_MARGIN } from
 export {
   DEFAULT_ORACLE_SETTINGS,
   OracleInputError,
+  type Checkpoint,
+  type MinimizeOptions,
+  type OracleOptions,
   type InfeasibilityCertificate,
   type OracleConstraint,
   type OracleResult,
   type OracleSettings,
   type OracleStatus,
 } from './types.js';
+export { exposeFeasibleFace, exposingMultipliers, type ExposedFace, type ExposeOptions } from './face-exposure.js';

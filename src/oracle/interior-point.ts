@@ -84,6 +84,8 @@ export interface InteriorPointTargets {
   maxIterations: number;
   /** Called with candidate Farkas multipliers y when the dual objective exceeds what any feasible primal allows. */
   certifyInfeasible?: (y: Float64Array) => boolean;
+  /** Called at the start of every iteration; throws to abort (never caught here). */
+  checkpoint?: () => void;
 }
 
 /** Solver state; `solve` continues from the current iterate when `resume` is true. */
@@ -335,6 +337,7 @@ export class InteriorPointSolver {
     const nu = n + this.slackCount;
     const residualHistory = this.residualHistory;
     for (let iteration = 0; iteration < targets.maxIterations; iteration++) {
+      targets.checkpoint?.();
       // Residuals.
       let primal2 = 0;
       for (let k = 0; k < m; k++) this.primalResidual[k] = rows.rhs[k] - this.rowInner(k, this.xRe, this.xIm);

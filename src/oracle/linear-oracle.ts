@@ -10,8 +10,11 @@ import {
   DEFAULT_ORACLE_SETTINGS,
   OracleInputError,
   resolveSettings,
+  type Checkpoint,
   type InfeasibilityCertificate,
+  type MinimizeOptions,
   type OracleConstraint,
+  type OracleOptions,
   type OracleResult,
   type OracleSettings,
 } from './types.js';
@@ -88,14 +91,23 @@ export class LinearOracle {
   /** Set once the feasibility run has been analysed for a face; a face-reduced oracle never looks for another. */
   private faceAnalysed = false;
   private face: FaceReduction | null = null;
+  /** The constructor's checkpoint; a call's own checkpoint replaces it for that call. */
+  private readonly checkpoint: Checkpoint | undefined;
 
-  constructor(dimension: number, constraints: OracleConstraint[], settings?: Partial<OracleSettings>) {
+  constructor(dimension: number, constraints: OracleConstraint[], options?: OracleOptions) {
     if (!Number.isInteger(dimension) || dimension < 1) {
       throw new OracleInputError('dimension', `must be a positive integer, got ${String(dimension)}`);
     }
     if (!Array.isArray(constraints)) throw new OracleInputError('constraints', 'must be an array');
     this.dimension = dimension;
-    this.settings = resolveSettings(DEFAULT_ORACLE_SETTINGS, settings, 'settings');
+    this.settings = resolveSettings(DEFAULT_ORACLE_SETTINGS, options, 'settings');
+    const checkpoint = options?.checkpoint;
+    if (checkpoint !== undefined && typeof checkpoint !== 'function') throw new OracleInputError('checkpoint', 'must be a function');
+    const implied = options?.impliedEqualityTolerance;
+    if (implied !== undefined && !(typeof implied === 'number' && implied > 0 && implied <= 1e-3)) {
+      throw new OracleInputError('impliedEqualityTolerance', `must be a number in (0, 1e-3], got ${String(implied)}`);
+    }
+    this.checkpoint = checkpoint;
     const n = dimension;
     const size = n * n;
     this.isEquality = [];
@@ -144,7 +156,10 @@ export class LinearOracle {
       equalityIndices.map((i) => ({ re: this.operatorRe[i], im: this.operatorIm[i] })),
       equalityIndices.map((i) => constraints[i].lower),
       equalityIndices,
+      checkpoint,
+      options?.impliedEqualityTolerance,
     );
+    checkpoint?.();
 
     // Interval rows: operators with their equality-span part removed (better conditioned; fixed values detected).
     const rowsRe: Float64Array[] = [...this.span.basisRe];
@@ -159,6 +174,7 @@ export class LinearOracle {
     constraints.forEach((constraint, i) => {
       if (this.isEquality[i]) return;
       if (constraint.lower === -Infinity && constraint.upper === Infinity) return;
+      checkpoint?.();
       const re = this.operatorRe[i].slice();
       const im = this.operatorIm[i].slice();
       const projection = this.span.coefficientsOf(re, im);
@@ -218,6 +234,7 @@ export class LinearOracle {
       boxFirst: Int32Array.from(boxFirst),
       boxSecond: Int32Array.from(boxSecond),
     };
+    checkpoint?.();
     this.solver = new InteriorPointSolver(n, rows);
 
     // Inconsistent data found while preprocessing: report the first certificate that verifies.
@@ -243,12 +260,13 @@ export class LinearOracle {
   }
 
   /** min ⟨G, σ⟩ over S = {σ ⪰ 0, Tr σ = 1, lower ≤ Tr(Γσ) ≤ upper}. G Hermitian d×d. */
-  minimize(G: ComplexMatrix, settings?: Partial<OracleSettings>): OracleResult {
+  minimize(G: ComplexMatrix, options?: MinimizeOptions): OracleResult {
     checkHermitian(G, this.dimension, 'G');
-    const resolved = resolveSettings(this.settings, settings, 'settings');
+    const resolved = resolveSettings(this.settings, options, 'settings');
+    const checkpoint = options?.checkpoint ?? this.checkpoint;
     if (this.knownInfeasibility) return this.copyInfeasible(this.knownInfeasibility);
     if (!this.faceAnalysed) {
-      const feasibility = this.findFeasiblePoint();
+      const feasibility = this.findFeasiblePoint({ checkpoint });
       if (feasibility.status === 'INFEASIBLE') return feasibility;
     }
     const n = this.dimension;
@@ -274,13 +292,13 @@ export class LinearOracle {
     const gradientNorm = Math.sqrt(hermitianInner(gRe, gIm, gRe, gIm));
     if (objectiveScale <= NEGLIGIBLE_OBJECTIVE * gradientNorm) {
       // ⟨G, σ⟩ is the same for every feasible σ: any feasible point is optimal.
-      const feasible = this.findFeasiblePoint();
+      const feasible = this.findFeasiblePoint({ checkpoint });
       if (feasible.status !== 'OPTIMAL' || !feasible.point) return feasible;
       return this.assembleResult(G, feasible.point, new Float64Array(this.solver.m), 0, spanCoefficients, feasible.iterations, 'OPTIMAL');
     }
     if (this.face) {
       const stripped = new ComplexMatrix(n, n, strippedRe.slice(), strippedIm.slice());
-      const reduced = this.minimizeOnFace(this.face, G, stripped, spanCoefficients, resolved);
+      const reduced = this.minimizeOnFace(this.face, G, stripped, spanCoefficients, resolved, checkpoint);
       if (reduced) return reduced;
     }
     for (let t = 0; t < size; t++) {
@@ -303,6 +321,7 @@ export class LinearOracle {
           primalTolerance: PRIMAL_FEASIBILITY_TOLERANCE,
           maxIterations: resolved.maxIterations - (resume ? this.solver.iterations : 0),
           certifyInfeasible: (y) => this.recordRayIfCertified(y),
+          checkpoint,
         },
         resume,
       );
@@ -336,7 +355,7 @@ export class LinearOracle {
           ? `progress stalled after ${this.solver.iterations} interior-point iterations (primal residual ${this.solver.primalResidualNorm.toExponential(2)}); ${gapNote}`
           : `stopped after ${this.solver.iterations} interior-point iterations; ${gapNote}`;
     // No convergence: infeasible data is the usual reason; the feasibility run decides and is cached.
-    const feasibility = this.findFeasiblePoint();
+    const feasibility = this.findFeasiblePoint({ checkpoint });
     if (feasibility.status === 'INFEASIBLE') return this.copyInfeasible(feasibility);
     return fallback;
   }
@@ -355,7 +374,8 @@ export class LinearOracle {
    * Feasibility check once per problem: the analytic centre of S (the central path of the zero objective), i.e. as
    * interior as S allows, or INFEASIBLE with a Farkas certificate. Cached.
    */
-  findFeasiblePoint(): OracleResult {
+  findFeasiblePoint(options?: { checkpoint?: Checkpoint }): OracleResult {
+    const checkpoint = options?.checkpoint ?? this.checkpoint;
     if (this.knownInfeasibility) return this.copyInfeasible(this.knownInfeasibility);
     if (this.feasibleResult) return this.copyResult(this.feasibleResult);
     const size = this.dimension * this.dimension;
@@ -366,6 +386,7 @@ export class LinearOracle {
         primalTolerance: PRIMAL_FEASIBILITY_TOLERANCE,
         maxIterations: this.settings.maxIterations,
         certifyInfeasible: (y) => this.recordRayIfCertified(y),
+        checkpoint,
       },
       false,
     );
@@ -413,7 +434,7 @@ export class LinearOracle {
       ...c,
       operator: compressHermitian(isometry, new ComplexMatrix(n, n, this.operatorRe[i], this.operatorIm[i])),
     }));
-    const inner = new LinearOracle(rank, compressed, this.settings);
+    const inner = new LinearOracle(rank, compressed, { ...this.settings, checkpoint: this.checkpoint });
     inner.faceAnalysed = true;
     this.face = { isometry, inner, exposing };
     return false;
@@ -426,10 +447,11 @@ export class LinearOracle {
     stripped: ComplexMatrix,
     spanCoefficients: Float64Array,
     settings: OracleSettings,
+    checkpoint: Checkpoint | undefined,
   ): OracleResult | null {
     // The face problem sees the stripped G; the full-space span part goes back into y exactly, so the off-face
     // blocks it carries cost nothing in the full-space bound.
-    const inner = face.inner.minimize(compressHermitian(face.isometry, stripped), settings);
+    const inner = face.inner.minimize(compressHermitian(face.isometry, stripped), { ...settings, checkpoint });
     if (inner.status !== 'OPTIMAL' || !inner.point) return null;
     const point = expandHermitian(face.isometry, inner.point);
     const innerY = Float64Array.from(inner.multipliersLower, (x, i) => x - inner.multipliersUpper[i]);

@@ -17,6 +17,28 @@ export interface OracleSettings {
   maxIterations: number;
 }
 
+/**
+ * Called between expensive steps (once per interior-point iteration, between the constructor's big passes, between
+ * facial-reduction steps); throws to abort the computation. The oracle never catches what it throws.
+ */
+export type Checkpoint = () => void;
+
+/** Constructor options: settings plus an optional checkpoint kept for every later call. */
+export interface OracleOptions extends Partial<OracleSettings> {
+  checkpoint?: Checkpoint;
+  /**
+   * Relative right-hand-side mismatch up to which an equality that depends on the others counts as implied by them
+   * (default 1e-9). Only faces found numerically by exposing directions need more: their constraints agree to
+   * about √u only (the square-root sensitivity of facial reduction).
+   */
+  impliedEqualityTolerance?: number;
+}
+
+/** Per-call options of `minimize`: settings for this call and a checkpoint (overrides the constructor's). */
+export interface MinimizeOptions extends Partial<OracleSettings> {
+  checkpoint?: Checkpoint;
+}
+
 export const DEFAULT_ORACLE_SETTINGS: Readonly<OracleSettings> = Object.freeze({
   relativeAccuracy: 1e-7,
   maxIterations: 100,
@@ -61,7 +83,9 @@ export const HERMITICITY_TOLERANCE = 1e-10;
 
 /** Validates and completes settings; errors name the field. */
 export function resolveSettings(base: Readonly<OracleSettings>, override: Partial<OracleSettings> | undefined, path: string): OracleSettings {
-  const settings: OracleSettings = { ...base, ...(override ?? {}) };
+  const settings: OracleSettings = { relativeAccuracy: base.relativeAccuracy, maxIterations: base.maxIterations };
+  if (override?.relativeAccuracy !== undefined) settings.relativeAccuracy = override.relativeAccuracy;
+  if (override?.maxIterations !== undefined) settings.maxIterations = override.maxIterations;
   const accuracy = settings.relativeAccuracy;
   if (typeof accuracy !== 'number' || !(accuracy > 0 && accuracy <= 0.1)) {
     throw new OracleInputError(`${path}.relativeAccuracy`, `must be a number in (0, 0.1], got ${String(accuracy)}`);

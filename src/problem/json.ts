@@ -1,11 +1,16 @@
 // The protobuf JSON mapping of problem.proto: TypeScript shapes of the JSON files and strict readers that
 // name the field path of every defect.
 import { ComplexMatrix } from '../linear-algebra/complex-matrix.js';
-import type { MatrixJson } from '../frank-wolfe/types.js';
 import { ValidationError } from './errors.js';
 import type { HonestStatisticsJson } from '../finite-size/honest-statistics.js';
 
-export type { MatrixJson };
+/** Matrices on the wire and in JSON files: row-major, im omitted for real matrices. */
+export interface MatrixJson {
+  rows: number;
+  cols: number;
+  re: number[];
+  im?: number[];
+}
 
 /** renyibound.v1.LinearConstraint in JSON. */
 export interface LinearConstraintJson {

@@ -1,7 +1,7 @@
 // Batches: expanding a request list or a parameter grid into points, and running them with warm starts
 // taken from the nearest point already solved.
 import { ValidationError } from '../problem/errors.js';
-import type { MatrixJson } from '../frank-wolfe/types.js';
+import type { MatrixJson } from '../result/types.js';
 import { ENTROPY_ENUM_NAMES, entropyRequestFrom } from '../problem/validate.js';
 import { buildExample, EXAMPLES } from '../protocols/index.js';
 import type { ParameterGrid__Output } from './generated/renyibound/v1/ParameterGrid.js';

@@ -3,7 +3,9 @@
 import * as grpc from '@grpc/grpc-js';
 import * as protoLoader from '@grpc/proto-loader';
 import { protoPath as healthProtoPath } from 'grpc-health-check';
-import type { MatrixJson, SolveResult, SolverSettings } from '../frank-wolfe/types.js';
+import type { MatrixJson, SolveResult } from '../result/types.js';
+import type { SolverSettings } from '../frank-wolfe/settings.js';
+import { ValidationError } from '../problem/errors.js';
 import { entropyKindFrom, isUnspecifiedEntropy } from '../problem/entropy-request.js';
 import { PROTO_LOADER_OPTIONS } from '../problem/proto-options.js';
 import { parseProblemJson } from '../problem/validate.js';

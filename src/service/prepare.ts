@@ -1,9 +1,9 @@
 // Turns one request (problem JSON, entropy, order, settings, warm start) into a validated, hashed solve job.
 import { createHash } from 'node:crypto';
 import { LRUCache } from 'lru-cache';
-import type { MatrixJson, SolverSettings } from '../frank-wolfe/types.js';
-import { resolveSettings, SOLVER_VERSION } from '../frank-wolfe/solve.js';
-import { SettingsError } from '../frank-wolfe/settings.js';
+import type { MatrixJson } from '../result/types.js';
+import { resolveSolverSettings, SettingsError, type SolverSettings } from '../frank-wolfe/settings.js';
+import { SOLVER_VERSION } from '../certificate/version.js';
 import { ValidationError } from '../problem/errors.js';
 import { inputHash } from '../problem/hash.js';
 import { matrixToJson } from '../problem/json.js';
@@ -56,7 +56,7 @@ function problemField(error: unknown): never {
 /** Server defaults filled in and every field range-checked by the solver's own rules. */
 export function checkSettings(settings: Partial<SolverSettings>): SolverSettings {
   try {
-    return resolveSettings(settings, 'settings');
+    return resolveSolverSettings(settings, 'settings');
   } catch (error) {
     if (error instanceof SettingsError) throw new ValidationError(error.field, error.reason);
     throw error;

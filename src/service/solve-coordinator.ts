@@ -1,7 +1,7 @@
 // One straight path per request: cache lookup → (shared) solve on the pool → verified store → log line.
 import type { Logger } from 'pino';
 import { verifyResult } from '../certificate/verify.js';
-import type { SolveResult } from '../frank-wolfe/types.js';
+import type { SolveResult } from '../result/types.js';
 import type { ResultCache, ResultCheck } from '../cache/result-cache.js';
 import { ValidationError } from '../problem/errors.js';
 import { createCancelFlag, raiseCancelFlag } from './cancel-flag.js';

@@ -2,7 +2,8 @@
 // part of reading a problem) and solving one, after which the result's certificate is verified right there, so
 // that the event loop only moves data.
 import { verifyResult } from '../certificate/verify.js';
-import type { MatrixJson, SolveResult, SolverSettings } from '../frank-wolfe/types.js';
+import type { MatrixJson, SolveResult } from '../result/types.js';
+import type { SolverSettings } from '../frank-wolfe/settings.js';
 import { solve } from '../frank-wolfe/solve.js';
 import { ValidationError } from '../problem/errors.js';
 import { matrixFromJson } from '../problem/json.js';

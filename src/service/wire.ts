@@ -1,5 +1,6 @@
 // Translation between the protobuf messages (as proto-loader decodes them) and the solver's own types.
-import type { Certificate, InfeasibilityCertificate, MatrixJson, SolveResult, SolverSettings, StopLimit } from '../frank-wolfe/types.js';
+import type { Certificate, FarkasCertificate, MatrixJson, NoProgressCause, SolveResult, StopLimit } from '../result/types.js';
+import type { SolverSettings } from '../frank-wolfe/settings.js';
 import type { EntropyKind } from '../problem/model.js';
 import { ENTROPY_ENUM_NAMES, isUnspecifiedEntropy, UNSPECIFIED_ENTROPY_ENUM, entropyKindFrom } from '../problem/entropy-request.js';
 import type { Certificate as WireCertificate, Certificate__Output } from './generated/renyibound/v1/Certificate.js';
@@ -8,6 +9,7 @@ import type { Matrix, Matrix__Output } from './generated/renyibound/v1/Matrix.js
 import type { SolveResult as WireSolveResult, SolveResult__Output } from './generated/renyibound/v1/SolveResult.js';
 import type { SolverSettings as WireSolverSettings, SolverSettings__Output } from './generated/renyibound/v1/SolverSettings.js';
 import type { StopLimit__Output } from './generated/renyibound/v1/StopLimit.js';
+import type { NoProgressCause__Output } from './generated/renyibound/v1/NoProgressCause.js';
 import type { InfeasibilityCertificate__Output } from './generated/renyibound/v1/InfeasibilityCertificate.js';
 
 /** A result as delivered by the service: the solver's result plus whether it came from the cache. */
@@ -35,6 +37,16 @@ const LIMIT_TO_WIRE: Record<StopLimit, StopLimit__Output> = {
   cancelled: 'STOP_LIMIT_CANCELLED',
   'no-progress': 'STOP_LIMIT_NO_PROGRESS',
 };
+
+const CAUSE_TO_WIRE: Record<NoProgressCause, NoProgressCause__Output> = {
+  margin: 'NO_PROGRESS_CAUSE_MARGIN',
+  'oracle-accuracy': 'NO_PROGRESS_CAUSE_ORACLE_ACCURACY',
+};
+
+function causeFromWire(name: NoProgressCause__Output): NoProgressCause | undefined {
+  for (const [cause, wire] of Object.entries(CAUSE_TO_WIRE)) if (wire === name) return cause as NoProgressCause;
+  return undefined;
+}
 
 function limitFromWire(name: StopLimit__Output): StopLimit | undefined {
   for (const [limit, wire] of Object.entries(LIMIT_TO_WIRE)) if (wire === name) return limit as StopLimit;
@@ -123,7 +135,7 @@ function certificateFromWire(wire: Certificate__Output): Certificate {
   return certificate;
 }
 
-function infeasibilityFromWire(wire: InfeasibilityCertificate__Output): InfeasibilityCertificate {
+function infeasibilityFromWire(wire: InfeasibilityCertificate__Output): FarkasCertificate {
   return {
     multipliersLower: [...wire.multipliersLower],
     multipliersUpper: [...wire.multipliersUpper],
@@ -136,6 +148,7 @@ export function resultToWire(result: SolveResult, fromCache: boolean): WireSolve
   return {
     status: result.status,
     limit: result.limit === undefined ? 'STOP_LIMIT_UNSPECIFIED' : LIMIT_TO_WIRE[result.limit],
+    noProgressCause: result.noProgressCause === undefined ? 'NO_PROGRESS_CAUSE_UNSPECIFIED' : CAUSE_TO_WIRE[result.noProgressCause],
     message: result.message ?? '',
     entropy: entropyKindToWire(result.entropy),
     alpha: optionalNumber(result.alpha),
@@ -181,6 +194,8 @@ export function resultFromWire(wire: SolveResult__Output): DeliveredResult {
   };
   const limit = limitFromWire(wire.limit);
   if (limit !== undefined) result.limit = limit;
+  const cause = causeFromWire(wire.noProgressCause);
+  if (cause !== undefined) result.noProgressCause = cause;
   if (wire.message !== '') result.message = wire.message;
   if (wire.infeasibility !== null) result.infeasibility = infeasibilityFromWire(wire.infeasibility);
   if (wire.finalState !== null) result.finalState = matrixFromWire(wire.finalState);

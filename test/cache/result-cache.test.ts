@@ -5,7 +5,7 @@ import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { SolveResult } from '../../src/frank-wolfe/types.js';
+import type { SolveResult } from '../../src/result/types.js';
 import { MemoryCacheLayer } from '../../src/cache/memory.js';
 import { RedisCacheLayer } from '../../src/cache/redis.js';
 import { type CacheEvent, isCacheable, ResultCache, type ResultCheck } from '../../src/cache/result-cache.js';

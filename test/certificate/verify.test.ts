@@ -8,12 +8,13 @@ import { verifyInfeasibility, verifyResult } from '../../src/certificate/verify.
 import { buildExample } from '../../src/protocols/index.js';
 import { problemFromJson } from '../../src/problem/validate.js';
 import { solve } from '../../src/frank-wolfe/solve.js';
-import { ComplexMatrix, conjugate, multiply, adjoint } from '../../src/linear-algebra/complex-matrix.js';
+import { conjugate } from '../../src/linear-algebra/complex-matrix.js';
 import { createObjective } from '../../src/objectives/index.js';
 import { matrixFromJson } from '../../src/problem/json.js';
 import type { EntropyKind, Problem } from '../../src/problem/model.js';
 import { randomUnitary, seededRandom } from '../helpers/random.js';
 import { example } from '../frank-wolfe/helpers.js';
+import { rotated } from './rotation.js';
 
 const here = dirname(fileURLToPath(import.meta.url));
 const sourceRoot = resolve(here, '../../src');
@@ -83,14 +84,6 @@ describe('tampered certificates are rejected', () => {
  * Deliberately perturbed computation: the same bound evaluated in a random unitary basis (Kraus K·U†,
  * constraints UΓU†, ρ' → Uρ'U†) is mathematically identical, so the spread must stay inside the reported margin.
  */
-function rotated(problem: Problem, u: ComplexMatrix): Problem {
-  return {
-    ...problem,
-    constraints: problem.constraints.map((c) => ({ ...c, operator: conjugate(u, c.operator) })),
-    branches: problem.branches.map((b) => ({ ...b, krausOperators: b.krausOperators.map((k) => multiply(k, adjoint(u))) })),
-  };
-}
-
 describe('the floating-point margin covers rounding (docs/math.md §5: conservative estimate, not interval arithmetic)', () => {
   const cases: [string, Record<string, number>, EntropyKind, number | undefined][] = [
     ['bb84-entangled', { 'qber-z': 0.03, 'qber-x': 0.05 }, 'von-neumann', undefined],

@@ -6,7 +6,7 @@ import { ComplexMatrix } from '../../src/linear-algebra/complex-matrix.js';
 import { basisBounds, lpSolver } from '../../src/decoy/bounds.js';
 import { expectedGain, photonYield } from '../../src/decoy/channel.js';
 import { singlePhotonProblem } from '../../src/decoy/single-photon.js';
-import { maxConstraintViolation } from '../../src/frank-wolfe/solve.js';
+import { maxConstraintViolation } from '../../src/problem/violation.js';
 import { problemFromJson } from '../../src/problem/validate.js';
 
 /** Gobby, Yuan, Shields, APL 84, 3762 (2004). */

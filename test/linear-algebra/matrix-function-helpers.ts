@@ -2,7 +2,8 @@
 // itself evaluates its logarithms and powers on supports (src/objectives/), so these are not part of src/.
 import { ComplexMatrix } from '../../src/linear-algebra/complex-matrix.js';
 import { eigh, type HermitianEigen } from '../../src/linear-algebra/eigen.js';
-import { closePositive, spectralFunction, type ScalarFunction } from '../../src/linear-algebra/matrix-functions.js';
+import { closePositive, positiveSemidefiniteEigen, spectralFunction, type ScalarFunction } from '../../src/linear-algebra/matrix-functions.js';
+export { matrixPower } from '../../src/linear-algebra/matrix-functions.js';
 import { zeroEigenvalueTolerance } from '../../src/linear-algebra/support.js';
 
 /** Natural logarithm with f' = 1/x and a cancellation-free ln x − ln y = log1p((x−y)/y). */
@@ -22,38 +23,6 @@ export const entropyDensityFunction: ScalarFunction = {
   difference: (x, y) =>
     closePositive(x, y) ? x * Math.log1p((x - y) / y) + (x - y) * Math.log(y) : entropyDensityFunction.value(x) - entropyDensityFunction.value(y),
 };
-
-/**
- * Eigenvalues of a PSD matrix with rounding-level negatives (|λ| ≤ the support tolerance) set to 0;
- * throws if one is clearly negative.
- */
-function positiveSemidefiniteEigen(a: ComplexMatrix, caller: string): { eig: HermitianEigen; rank: number } {
-  const eig = eigh(a);
-  const tolerance = zeroEigenvalueTolerance(a);
-  const values = eig.values;
-  let rank = 0;
-  for (let k = 0; k < values.length; k++) {
-    if (values[k] < -tolerance) {
-      throw new RangeError(`${caller}: matrix is not positive semidefinite (eigenvalue ${values[k]} < −${tolerance})`);
-    }
-    if (values[k] <= tolerance) values[k] = 0;
-    else rank++;
-  }
-  return { eig, rank };
-}
-
-/**
- * A^p of a Hermitian PSD matrix. For p > 0 zero eigenvalues stay 0; p ≤ 0 needs full numerical rank
- * (restrict to the support first, see rangeIsometry) and throws otherwise.
- */
-export function matrixPower(a: ComplexMatrix, p: number): ComplexMatrix {
-  if (!Number.isFinite(p)) throw new RangeError(`matrixPower: exponent ${p} is not finite`);
-  const { eig, rank } = positiveSemidefiniteEigen(a, 'matrixPower');
-  if (p <= 0 && rank < a.rows) {
-    throw new RangeError(`matrixPower: exponent ${p} ≤ 0 needs a full-rank matrix, but numerical rank is ${rank} of ${a.rows}`);
-  }
-  return spectralFunction(eig, (x) => (x === 0 ? 0 : x ** p));
-}
 
 /** √A of a Hermitian PSD matrix (the PSD square root). */
 export function matrixSqrt(a: ComplexMatrix): ComplexMatrix {

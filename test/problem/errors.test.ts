@@ -1,6 +1,6 @@
 // One field-error base type for validation, settings and oracle input: callers catch FieldError once.
 import { describe, expect, it } from 'vitest';
-import { resolveSettings as resolveSolverSettings, SettingsError } from '../../src/frank-wolfe/settings.js';
+import { resolveSolverSettings, SettingsError } from '../../src/frank-wolfe/settings.js';
 import { FieldError, ValidationError } from '../../src/problem/errors.js';
 import { OracleInputError } from '../../src/oracle/types.js';
 

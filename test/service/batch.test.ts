@@ -1,6 +1,6 @@
 // Grid expansion and batch scheduling (the solve step injected; the real solver runs in server.test.ts).
 import { describe, expect, it } from 'vitest';
-import type { MatrixJson } from '../../src/frank-wolfe/types.js';
+import type { MatrixJson } from '../../src/result/types.js';
 import { expandGrid, expandRequestList, runBatch, type BatchPoint } from '../../src/service/batch.js';
 import { prepareSolve } from '../../src/service/prepare.js';
 import { ENTROPY_ENUM_NAMES } from '../../src/problem/validate.js';

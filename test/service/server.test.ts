@@ -6,7 +6,7 @@ import * as grpc from '@grpc/grpc-js';
 import * as protoLoader from '@grpc/proto-loader';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { verifyResult } from '../../src/certificate/verify.js';
-import type { SolveResult } from '../../src/frank-wolfe/types.js';
+import type { SolveResult } from '../../src/result/types.js';
 import { entropyRequestFrom, problemFromJson } from '../../src/problem/validate.js';
 import { buildExample } from '../../src/protocols/index.js';
 import { checkHealth, RemoteCallError, renyiBoundClient, solveBatchRemote, solveRemote, verifyRemote, type RemoteBatchItem } from '../../src/service/client.js';

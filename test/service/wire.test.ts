@@ -1,7 +1,7 @@
 // Results survive the wire: solver result → SolveResult message → bytes → message → the same result.
 import { describe, expect, it } from 'vitest';
 import { solve } from '../../src/frank-wolfe/solve.js';
-import type { SolveResult } from '../../src/frank-wolfe/types.js';
+import type { SolveResult } from '../../src/result/types.js';
 import { problemFromJson } from '../../src/problem/validate.js';
 import { buildExample } from '../../src/protocols/index.js';
 import type { SolveReply__Output } from '../../src/service/generated/renyibound/v1/SolveReply.js';

@@ -81,6 +81,7 @@ export interface ProtoGrpcType {
       ListExamplesRequest: MessageTypeDefinition<_renyibound_v1_ListExamplesRequest, _renyibound_v1_ListExamplesRequest__Output>
       Matrix: MessageTypeDefinition<_renyibound_v1_Matrix, _renyibound_v1_Matrix__Output>
       MinTradeoffFunction: MessageTypeDefinition<_renyibound_v1_MinTradeoffFunction, _renyibound_v1_MinTradeoffFunction__Output>
+      NoProgressCause: EnumTypeDefinition
       ObservedStatistics: MessageTypeDefinition<_renyibound_v1_ObservedStatistics, _renyibound_v1_ObservedStatistics__Output>
       ParameterAxis: MessageTypeDefinition<_renyibound_v1_ParameterAxis, _renyibound_v1_ParameterAxis__Output>
       ParameterGrid: MessageTypeDefinition<_renyibound_v1_ParameterGrid, _renyibound_v1_ParameterGrid__Output>

@@ -6,6 +6,7 @@ import type { EntropyKind as _renyibound_v1_EntropyKind, EntropyKind__Output as 
 import type { Certificate as _renyibound_v1_Certificate, Certificate__Output as _renyibound_v1_Certificate__Output } from '../../renyibound/v1/Certificate.js';
 import type { InfeasibilityCertificate as _renyibound_v1_InfeasibilityCertificate, InfeasibilityCertificate__Output as _renyibound_v1_InfeasibilityCertificate__Output } from '../../renyibound/v1/InfeasibilityCertificate.js';
 import type { Matrix as _renyibound_v1_Matrix, Matrix__Output as _renyibound_v1_Matrix__Output } from '../../renyibound/v1/Matrix.js';
+import type { NoProgressCause as _renyibound_v1_NoProgressCause, NoProgressCause__Output as _renyibound_v1_NoProgressCause__Output } from '../../renyibound/v1/NoProgressCause.js';
 
 export interface SolveResult {
   'status'?: (_renyibound_v1_SolveStatus);
@@ -27,6 +28,7 @@ export interface SolveResult {
   'infeasibility'?: (_renyibound_v1_InfeasibilityCertificate | null);
   'finalState'?: (_renyibound_v1_Matrix | null);
   'fromCache'?: (boolean);
+  'noProgressCause'?: (_renyibound_v1_NoProgressCause);
   '_alpha'?: "alpha";
   '_certifiedLowerBound'?: "certifiedLowerBound";
   '_upperBound'?: "upperBound";
@@ -56,6 +58,7 @@ export interface SolveResult__Output {
   'infeasibility': (_renyibound_v1_InfeasibilityCertificate__Output | null);
   'finalState': (_renyibound_v1_Matrix__Output | null);
   'fromCache': (boolean);
+  'noProgressCause': (_renyibound_v1_NoProgressCause__Output);
   '_alpha'?: "alpha";
   '_certifiedLowerBound'?: "certifiedLowerBound";
   '_upperBound'?: "upperBound";

@@ -1,31 +1,18 @@
-import type { ComplexMatrix } from '../linear-algebra/complex-matrix.js';
+// What a solve returns: statuses, certificates and the result record. Shared by the solver, the problem hash,
+// the verifier, the cache, the CLI and the service; it depends on nothing but the JSON matrix shape.
+import type { MatrixJson } from '../problem/json.js';
+
+export type { MatrixJson };
 
 /** CERTIFIED: gap ≤ requested; LIMIT_REACHED: a valid bound, gap above the request; INFEASIBLE: Farkas certificate; NUMERICAL_ERROR: no bound. */
 export type SolveStatus = 'CERTIFIED' | 'LIMIT_REACHED' | 'INFEASIBLE' | 'NUMERICAL_ERROR';
 /** no-progress: the certified gap stopped shrinking (floating-point margin or oracle accuracy dominates it). */
 export type StopLimit = 'iterations' | 'time' | 'cancelled' | 'no-progress';
-
-/** Matrices on the wire and in JSON files: row-major, im omitted for real matrices. */
-export interface MatrixJson {
-  rows: number;
-  cols: number;
-  re: number[];
-  im?: number[];
-}
-
-export interface SolverSettings {
-  /** Requested certified gap upper − lower, in bits. */
-  gapTolerance: number;
-  maxIterations: number;
-  timeLimitMs: number;
-}
-
-export interface SolveControl {
-  /** Checked once per Frank–Wolfe iteration; true stops the run with LIMIT_REACHED/cancelled. */
-  isCancelled?: () => boolean;
-  /** A density operator on H_A ⊗ H_B to start from (projected onto the feasible set first). */
-  warmStart?: ComplexMatrix;
-}
+/**
+ * What dominated the gap when a run stopped on no-progress: the floating-point margin of the best certificate, or
+ * the linear oracle's own duality gap at its finest accuracy (each at least a quarter of the gap at the stop).
+ */
+export type NoProgressCause = 'margin' | 'oracle-accuracy';
 
 /** Everything a third party needs, besides the problem, to recompute the bound. */
 export interface Certificate {
@@ -47,7 +34,8 @@ export interface Certificate {
   toleranceMargin: number;
 }
 
-export interface InfeasibilityCertificate {
+/** The stored proof that no density operator meets the constraints (renyibound.v1.InfeasibilityCertificate). */
+export interface FarkasCertificate {
   multipliersLower: number[];
   multipliersUpper: number[];
   /** Σ y⁺ℓ − Σ y⁻u − λ_max(Σ yΓ) > 0 proves no density operator meets the constraints. */
@@ -59,6 +47,8 @@ export interface InfeasibilityCertificate {
 export interface SolveResult {
   status: SolveStatus;
   limit?: StopLimit;
+  /** For limit no-progress: which floating-point allowance dominated the gap. */
+  noProgressCause?: NoProgressCause;
   message?: string;
   entropy: string;
   alpha: number | null;
@@ -73,7 +63,7 @@ export interface SolveResult {
   oracleSeconds: number;
   inputHash: string;
   certificate: Certificate | null;
-  infeasibility?: InfeasibilityCertificate;
+  infeasibility?: FarkasCertificate;
   /** The final feasible iterate (for warm starts). */
   finalState?: MatrixJson;
 }

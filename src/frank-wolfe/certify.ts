@@ -1,0 +1,99 @@
+// Certification: linearization bounds at the iterate and at better-conditioned neighbours; the best is kept.
+import {
+  add,
+  addScaledInPlace,
+  adjoint,
+  ComplexMatrix,
+  hermitianPart,
+  multiply,
+  scale,
+} from '../linear-algebra/complex-matrix.js';
+import type { ObjectiveEvaluation } from '../objectives/index.js';
+import type { OracleResult } from '../oracle/index.js';
+import { linearizationBound } from '../certificate/bound.js';
+import { TUNING } from './settings.js';
+import { evaluateSafely, iterateEigen, type Multipliers, type SolverSetup, type SolverState } from './state.js';
+
+/** Multipliers for the full gradient from the oracle's answer on the stripped one (G = stripped + c₀·1 + Σ cᵢΓᵢ). */
+export function restoreMultipliers(oracleResult: OracleResult, equalityCoefficients: Float64Array): Multipliers {
+  const lower = Float64Array.from(oracleResult.multipliersLower);
+  const upper = Float64Array.from(oracleResult.multipliersUpper);
+  equalityCoefficients.forEach((c, i) => {
+    if (c > 0) lower[i] += c;
+    else if (c < 0) upper[i] -= c;
+  });
+  return { lower, upper };
+}
+
+/** Keeps the linearization at `point` when its bound beats the best so far. */
+function considerCandidate(
+  setup: SolverSetup,
+  state: SolverState,
+  point: ComplexMatrix,
+  pointEvaluation: ObjectiveEvaluation,
+  y: Multipliers,
+): void {
+  const breakdown = linearizationBound(
+    setup.restricted,
+    setup.objective,
+    point,
+    y.lower,
+    y.upper,
+    pointEvaluation.reference,
+    pointEvaluation,
+  );
+  if (Number.isFinite(breakdown.lowerBound) && (state.best === null || breakdown.lowerBound > state.best.breakdown.lowerBound)) {
+    state.best = {
+      breakdown,
+      state: point,
+      reference: pointEvaluation.reference,
+      multipliersLower: y.lower,
+      multipliersUpper: y.upper,
+    };
+  }
+}
+
+/** A neighbour of the iterate needs its own gradient and therefore its own oracle answer. */
+function certifyNeighbour(setup: SolverSetup, state: SolverState, point: ComplexMatrix): void {
+  const e = evaluateSafely(setup.objective, point);
+  if (!e) return;
+  const split = setup.oracle.stripEqualitySpan(e.gradient);
+  const answer = setup.clock.timeOracle(() => setup.oracle.minimize(split.stripped, { relativeAccuracy: state.oracleAccuracy }));
+  if (answer.point || answer.status === 'ITERATION_LIMIT') {
+    considerCandidate(setup, state, point, e, restoreMultipliers(answer, split.equalityCoefficients));
+  }
+}
+
+/**
+ * Certifies the iterate with multipliers y. Near the boundary of the cone the margin grows like 1/λ_min(ρ'). Any
+ * full-rank ρ' gives a valid bound, so a few better-conditioned neighbours are tried as well and the best bound is
+ * kept: mixtures (1−ε)x + ε·x₀ with the interior point, and x with its small eigenvalues lifted to a level μ
+ * (trace and feasibility not needed).
+ */
+export function certify(setup: SolverSetup, state: SolverState, y: Multipliers): void {
+  const { x } = state;
+  considerCandidate(setup, state, x, state.evaluation, y);
+  const { values, vectors } = iterateEigen(state);
+  if (values[0] >= TUNING.wellConditionedEigenvalue) return;
+  for (const share of TUNING.certificateMixtures) {
+    if (share <= values[0]) continue;
+    const mixture = scale(x, 1 - share);
+    addScaledInPlace(mixture, setup.interiorPoint, share);
+    certifyNeighbour(setup, state, mixture);
+  }
+  // Half-decade steps between the tuned levels: near a boundary optimum the margin (∝ 1/μ) and the linearization
+  // loss (∝ μ) cross steeply, and the best μ decides whether a gap of 1e-6 is reachable at all.
+  const levels = TUNING.certificateLiftLevels.flatMap((level) => [level, level * Math.sqrt(10)]);
+  for (const level of levels) {
+    if (level <= values[0]) continue;
+    const lifted = Float64Array.from(values, (v) => Math.max(v, level) - v);
+    certifyNeighbour(setup, state, add(x, hermitianPart(multiply(multiply(vectors, ComplexMatrix.diagonal(lifted)), adjoint(vectors)))));
+  }
+}
+
+/** Certifies the last iterate with a fresh oracle answer: a limit is a result with a valid bound. */
+export function certifyLastIterate(setup: SolverSetup, state: SolverState): void {
+  const split = setup.oracle.stripEqualitySpan(state.evaluation.gradient);
+  const answer = setup.clock.timeOracle(() => setup.oracle.minimize(split.stripped, { relativeAccuracy: state.oracleAccuracy }));
+  certify(setup, state, restoreMultipliers(answer, split.equalityCoefficients));
+}

@@ -1,0 +1,240 @@
+// One Frank–Wolfe iteration: a quasi-Newton step in the tangent space while those pay off, else a pairwise step
+// toward the oracle's vertex; the oracle also estimates the gap, triggers certification and is tightened on stalls.
+import {
+  addScaledInPlace,
+  hermitianPart,
+  subtract,
+  traceProductReal,
+  type ComplexMatrix,
+} from '../linear-algebra/complex-matrix.js';
+import type { ObjectiveEvaluation } from '../objectives/index.js';
+import type { LinearOracle, OracleResult } from '../oracle/index.js';
+import type { NoProgressCause, StopLimit } from '../result/types.js';
+import { certify, restoreMultipliers } from './certify.js';
+import { faceNewtonStep, FACE_NEWTON_SCHEDULE, heldIntervalSides } from './face-newton.js';
+import { derivativeLineSearch } from './line-search.js';
+import { TUNING } from './settings.js';
+import { alongActiveIntervals, stepToEigenvalueFloor, stepToIntervalBounds } from './step-limits.js';
+import { bestLowerBound, evaluateSafely, iterateEigen, type Multipliers, type SolverSetup, type SolverState } from './state.js';
+
+/** What an iteration asks of the loop: go on, stop (certified), or end without a bound (the reason). */
+export type IterationOutcome = 'continue' | 'stop' | { failure: string };
+
+type EqualitySplit = ReturnType<LinearOracle['stripEqualitySpan']>;
+
+/** The limit that ends the run before the next iteration, if any (also books progress of the certified bound). */
+export function reachedLimit(setup: SolverSetup, state: SolverState): StopLimit | undefined {
+  const { settings, control, clock } = setup;
+  if (control.isCancelled?.()) return 'cancelled';
+  if (state.iterations >= settings.maxIterations) return 'iterations';
+  if (clock.elapsedMs() > settings.timeLimitMs) return 'time';
+  const currentLower = bestLowerBound(state);
+  if (currentLower > state.progressLower + TUNING.progressShare * settings.gapTolerance) {
+    state.progressLower = currentLower;
+    state.progressIteration = state.iterations;
+  } else if (
+    state.oracleAccuracy <= TUNING.finestOracleAccuracy &&
+    state.iterations - state.progressIteration >= TUNING.progressWindow
+  ) {
+    state.noProgressCause = noProgressCause(settings.gapTolerance, state);
+    if (state.noProgressCause !== undefined) return 'no-progress';
+    // Neither allowance explains the gap: keep optimising (the time and iteration limits still apply).
+    state.progressIteration = state.iterations;
+  }
+  return undefined;
+}
+
+/** How many times the dominant floating-point allowance the gap may be for a no-progress stop. */
+const NO_PROGRESS_DOMINANCE = 4;
+
+/**
+ * The allowance that explains a stalled gap — the best certificate's margin or the oracle's own duality gap — when
+ * the gap is at most NO_PROGRESS_DOMINANCE times it; undefined when the gap is larger (the stall is the
+ * optimiser's, not rounding's, so stopping would be premature).
+ */
+export function noProgressCause(gapTolerance: number, state: SolverState): NoProgressCause | undefined {
+  if (state.best === null) return undefined;
+  const gap = state.evaluation.value - state.best.breakdown.lowerBound;
+  if (!(gap > gapTolerance)) return undefined;
+  const margin = state.best.breakdown.margin;
+  const oracle = Math.max(0, state.lastOracleGap);
+  if (gap > NO_PROGRESS_DOMINANCE * Math.max(margin, oracle)) return undefined;
+  return margin >= oracle ? 'margin' : 'oracle-accuracy';
+}
+
+export function iterate(setup: SolverSetup, state: SolverState): IterationOutcome {
+  const split = setup.oracle.stripEqualitySpan(state.evaluation.gradient);
+  state.iterations++;
+  // Quasi-Newton pair from the last move, in the tangent space of the equalities.
+  if (state.previous) {
+    state.quasiNewton.update(subtract(state.x, state.previous.state), subtract(split.stripped, state.previous.tangentGradient));
+  }
+  state.previous = { state: state.x, tangentGradient: split.stripped };
+
+  // The oracle (gap estimate, certificate, Frank–Wolfe vertex) is skipped while quasi-Newton steps pay off; when
+  // they stop paying (a decrease small against the estimated gap), one Frank–Wolfe step is taken instead.
+  const quasiNewtonPaying = state.lastDecrease >= TUNING.quasiNewtonPayoff * state.lastEstimatedGap;
+  const tryQuasiNewton = state.quasiNewton.ready && (quasiNewtonPaying || state.afterFrankWolfe);
+  const oracleDue = !tryQuasiNewton || state.afterFrankWolfe || state.quasiNewtonRun >= TUNING.longestQuasiNewtonRun;
+  state.afterFrankWolfe = false;
+  let answer: OracleResult | null = null;
+  if (oracleDue) {
+    const consulted = consultOracle(setup, state, split);
+    if (consulted === 'stop' || 'failure' in consulted) return consulted;
+    answer = consulted.answer;
+    if (faceNewtonMove(setup, state, consulted.multipliers)) return 'continue';
+  }
+
+  if (tryQuasiNewton && quasiNewtonStep(setup, state, split)) return 'continue';
+  // Quasi-Newton gets another chance after this Frank–Wolfe step.
+  state.lastDecrease = 0;
+  state.afterFrankWolfe = true;
+  if (answer === null) {
+    const consulted = consultOracle(setup, state, split);
+    if (consulted === 'stop' || 'failure' in consulted) return consulted;
+    answer = consulted.answer;
+    if (faceNewtonMove(setup, state, consulted.multipliers)) return 'continue';
+  }
+  pairwiseStep(setup, state, answer.point as ComplexMatrix);
+  return 'continue';
+}
+
+/**
+ * Once Frank–Wolfe has run a few oracle calls without certifying, a Newton step on the face of the interval sides
+ * the oracle's multipliers hold active (and the iterate's large eigen-directions); after a failed attempt the
+ * next waits a few oracle calls. The oracle is consulted right after a move, so the new point is certified next.
+ */
+function faceNewtonMove(setup: SolverSetup, state: SolverState, multipliers: Multipliers): boolean {
+  if (state.oracleCalls < Math.max(FACE_NEWTON_SCHEDULE.firstOracleCall, state.faceNewtonRetryAt)) return false;
+  // Its Hessian costs two evaluations per tangent direction: a budget per iteration keeps it from dominating
+  // (counted, not timed, so that a run is reproducible from its input).
+  if (state.faceNewtonEvaluations > FACE_NEWTON_SCHEDULE.evaluationsPerIteration * state.iterations) return false;
+  const held = heldIntervalSides(setup.restricted.constraints, state.x, multipliers);
+  const moved = faceNewtonStep(state.x, state.evaluation, setup.restricted.constraints, held, (point) => {
+    state.faceNewtonEvaluations++;
+    return evaluateSafely(setup.objective, point);
+  });
+  const decrease = moved ? state.evaluation.value - moved.evaluation.value : 0;
+  if (!moved || decrease < FACE_NEWTON_SCHEDULE.payoff * state.lastEstimatedGap) {
+    // Each unpaid attempt doubles the wait (an optimum on the cone's boundary gains little from the face).
+    state.faceNewtonRetryAt = state.oracleCalls + FACE_NEWTON_SCHEDULE.retryAfterOracleCalls * 2 ** state.faceNewtonMisses;
+    state.faceNewtonMisses++;
+  } else {
+    state.faceNewtonMisses = 0;
+  }
+  if (!moved) return false;
+  state.lastDecrease = 0;
+  state.x = moved.point;
+  state.evaluation = moved.evaluation;
+  state.atoms.reset(state.x);
+  state.afterFrankWolfe = true;
+  return true;
+}
+
+/** A quasi-Newton step sliding along active intervals; false when it cannot lower F (Frank–Wolfe takes over). */
+function quasiNewtonStep(setup: SolverSetup, state: SolverState, split: EqualitySplit): boolean {
+  const { oracle, restricted } = setup;
+  const direction = alongActiveIntervals(
+    restricted,
+    state.x,
+    oracle.stripEqualitySpan(hermitianPart(state.quasiNewton.direction(split.stripped))).stripped,
+    setup.intervalTangents,
+    TUNING.shortestQuasiNewtonStep,
+  );
+  const slope = traceProductReal(split.stripped, direction);
+  if (!(slope < 0)) return false;
+  const maxStep = Math.min(
+    1,
+    stepToEigenvalueFloor(iterateEigen(state), direction, TUNING.eigenvalueFloor),
+    stepToIntervalBounds(restricted, state.x, direction),
+  );
+  // A step cut short by the cone or an interval says the optimum sits on a face: Frank–Wolfe handles that.
+  const moved = maxStep >= TUNING.shortestQuasiNewtonStep ? lineStep(setup, state, direction, slope, maxStep) : null;
+  if (!moved) return false;
+  state.lastDecrease = state.evaluation.value - moved.evaluation.value;
+  state.x = moved.point;
+  state.evaluation = moved.evaluation;
+  state.atoms.reset(state.x);
+  state.quasiNewtonRun++;
+  return true;
+}
+
+/** A pairwise (away-to-toward) step toward the oracle's vertex, projected onto the equalities. */
+function pairwiseStep(setup: SolverSetup, state: SolverState, vertex: ComplexMatrix): void {
+  const gradient = state.evaluation.gradient;
+  const toward = hermitianPart(setup.oracle.projectOntoEqualities(vertex));
+  const away = state.atoms.awayAtom(gradient);
+  const direction = subtract(toward, away.point);
+  const slope = traceProductReal(gradient, direction);
+  if (!(slope < 0)) return;
+  const maxStep = Math.min(away.weight, stepToEigenvalueFloor(iterateEigen(state), direction, TUNING.eigenvalueFloor));
+  const moved = lineStep(setup, state, direction, slope, maxStep);
+  if (!moved) return;
+  state.atoms.pairwiseStep(away.index, toward, moved.step);
+  state.x = moved.point;
+  state.evaluation = moved.evaluation;
+}
+
+/** Exact line search along x + t·d on [0, maxStep]; null when F does not decrease. */
+function lineStep(setup: SolverSetup, state: SolverState, direction: ComplexMatrix, slope: number, maxStep: number) {
+  const trials = new Map<number, ObjectiveEvaluation & { gradient: ComplexMatrix }>();
+  const search = derivativeLineSearch(
+    (step) => {
+      const point = state.x.clone();
+      addScaledInPlace(point, direction, step);
+      const e = evaluateSafely(setup.objective, point);
+      if (!e) return null;
+      trials.set(step, e);
+      return { step, point, value: e.value, gradient: e.gradient };
+    },
+    direction,
+    slope,
+    maxStep,
+    TUNING.lineSearchTolerance,
+    TUNING.lineSearchEvaluations,
+  );
+  const chosen = search.best;
+  if (!chosen || !(chosen.value <= state.evaluation.value) || chosen.step <= 0) return null;
+  return { step: chosen.step, point: chosen.point, evaluation: trials.get(chosen.step)! };
+}
+
+/** One oracle call: gap estimate, certification when it looks close, accuracy tightening on stalls. */
+function consultOracle(
+  setup: SolverSetup,
+  state: SolverState,
+  split: EqualitySplit,
+): { answer: OracleResult; multipliers: Multipliers } | Exclude<IterationOutcome, 'continue'> {
+  const { oracle, settings, clock } = setup;
+  state.quasiNewtonRun = 0;
+  // Far from the optimum a rough answer steps as well as an exact one and costs fewer interior-point iterations.
+  const accuracy = Math.max(
+    state.oracleAccuracy,
+    Math.min(TUNING.coarsestOracleAccuracy, TUNING.oracleAccuracyShare * state.lastEstimatedGap),
+  );
+  const answer = clock.timeOracle(() => oracle.minimize(split.stripped, { relativeAccuracy: accuracy }));
+  if (!answer.point) return { failure: `linear oracle failed: ${answer.message ?? answer.status}` };
+  const multipliers = restoreMultipliers(answer, split.equalityCoefficients);
+  state.lastOracleGap = answer.primalValue - answer.dualBound;
+  const estimatedGap = traceProductReal(split.stripped, state.x) - answer.dualBound;
+  state.lastEstimatedGap = estimatedGap;
+  const upper = state.evaluation.value;
+  if (
+    estimatedGap <= TUNING.certifyShare * settings.gapTolerance ||
+    state.oracleCalls % TUNING.certifyEvery === 0 ||
+    upper - bestLowerBound(state) <= settings.gapTolerance
+  ) {
+    certify(setup, state, multipliers);
+    if (state.best && upper - state.best.breakdown.lowerBound <= settings.gapTolerance) return 'stop';
+  }
+  state.oracleCalls++;
+  // Tighten the oracle when the estimated gap stalls (its rounding then dominates the step).
+  if (estimatedGap < 0.9 * state.gapAtWindowStart) {
+    state.gapAtWindowStart = estimatedGap;
+    state.windowStart = state.iterations;
+  } else if (state.iterations - state.windowStart >= TUNING.stallWindow && state.oracleAccuracy > TUNING.finestOracleAccuracy) {
+    state.oracleAccuracy = Math.max(state.oracleAccuracy / 10, TUNING.finestOracleAccuracy);
+    state.windowStart = state.iterations;
+    state.gapAtWindowStart = estimatedGap;
+  }
+  return { answer, multipliers };
+}

@@ -1,0 +1,91 @@
+// How far a step may go: the eigenvalue floor of the cone, the room left in interval constraints, and sliding
+// along the intervals a step pushes against.
+import { Matrix, solve as solveLinear } from 'ml-matrix';
+import {
+  addScaledInPlace,
+  multiply,
+  multiplyAdjointLeft,
+  traceProductReal,
+  type ComplexMatrix,
+} from '../linear-algebra/complex-matrix.js';
+import { eigvalsh, type HermitianEigen } from '../linear-algebra/eigen.js';
+import type { LinearConstraint, Problem } from '../problem/model.js';
+
+/**
+ * The largest t with λ_min(x + t·d) ≥ floor. Iterates kept this far inside the cone have gradients that
+ * rounding cannot corrupt (an eigenvalue near u·‖x‖ has no correct digits, and neither would log of it).
+ */
+export function stepToEigenvalueFloor(iterate: HermitianEigen, direction: ComplexMatrix, floor: number): number {
+  const { values, vectors } = iterate;
+  const n = values.length;
+  if (!(values[0] > 0)) return 0;
+  const inverseRoot = new Float64Array(n);
+  // An iterate already below the floor (a warm start, a face point) may not sink any further.
+  floor = Math.min(floor, values[0]);
+  const scaled = multiplyAdjointLeft(vectors, multiply(direction, vectors));
+  // At the floor itself only directions that do not lower λ_min are allowed (the scaled matrix is then ill-posed).
+  for (let i = 0; i < n; i++) inverseRoot[i] = 1 / Math.sqrt(Math.max(values[i] - floor, 1e-300));
+  for (let i = 0; i < n; i++) {
+    for (let j = 0; j < n; j++) {
+      scaled.re[i * n + j] *= -inverseRoot[i] * inverseRoot[j];
+      scaled.im[i * n + j] *= -inverseRoot[i] * inverseRoot[j];
+    }
+  }
+  // x − floor + t·d ⪰ 0 ⟺ 1 − t·M ⪰ 0 with M = (Λ−floor)^{-1/2} V†(−d)V (Λ−floor)^{-1/2}.
+  const largest = eigvalsh(scaled)[n - 1];
+  return largest > 0 ? 1 / largest : Infinity;
+}
+
+/** The largest t keeping every interval constraint lower ≤ Tr(Γ(x + t·d)) ≤ upper (equalities are kept by d). */
+export function stepToIntervalBounds(problem: Problem, x: ComplexMatrix, direction: ComplexMatrix): number {
+  return problem.constraints.reduce((step, c) => Math.min(step, intervalRoom(c, x, direction)), Infinity);
+}
+
+/** The largest t with lower ≤ Tr(Γ(x + t·d)) ≤ upper for one interval constraint (Infinity for an equality). */
+export function intervalRoom(c: LinearConstraint, x: ComplexMatrix, direction: ComplexMatrix): number {
+  if (c.lower === c.upper) return Infinity;
+  const rate = traceProductReal(c.operator, direction);
+  if (rate > 0 && Number.isFinite(c.upper)) return Math.max(0, (c.upper - traceProductReal(c.operator, x)) / rate);
+  if (rate < 0 && Number.isFinite(c.lower)) return Math.max(0, (c.lower - traceProductReal(c.operator, x)) / rate);
+  return Infinity;
+}
+
+/** Rounds of adding newly blocking intervals before the projected direction is accepted. */
+const ACTIVE_SET_ROUNDS = 4;
+
+/**
+ * Removes from a tangent direction its components along the interval constraints that would stop it almost at
+ * once (active bounds it pushes against), so quasi-Newton steps slide along those faces instead of stalling.
+ */
+export function alongActiveIntervals(
+  problem: Problem,
+  x: ComplexMatrix,
+  direction: ComplexMatrix,
+  tangents: readonly (ComplexMatrix | null)[],
+  shortestStep: number,
+): ComplexMatrix {
+  const active: ComplexMatrix[] = [];
+  let d = direction;
+  for (let round = 0; round < ACTIVE_SET_ROUNDS; round++) {
+    let added = false;
+    problem.constraints.forEach((c, i) => {
+      const tangent = tangents[i];
+      if (tangent === null || active.includes(tangent)) return;
+      if (intervalRoom(c, x, d) < shortestStep) {
+        active.push(tangent);
+        added = true;
+      }
+    });
+    if (!added) break;
+    const gram = new Matrix(active.length, active.length);
+    const rhs = new Matrix(active.length, 1);
+    active.forEach((a, i) => {
+      rhs.set(i, 0, traceProductReal(a, direction));
+      active.forEach((b, j) => gram.set(i, j, traceProductReal(a, b)));
+    });
+    const coefficients = solveLinear(gram, rhs, true);
+    d = direction.clone();
+    active.forEach((a, i) => addScaledInPlace(d, a, -coefficients.get(i, 0)));
+  }
+  return d;
+}

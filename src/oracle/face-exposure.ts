@@ -1,0 +1,254 @@
+// Facial reduction by exposing directions: when the analytic centre of the feasible set is rank deficient, find
+// equality multipliers y with Z = Σ y_i (b_i·1 − Γ_i) ⪰ 0 and ker Z ⊇ range(centre), record them in the feasible
+// face (where src/problem/feasible-face.ts re-checks them with one eigendecomposition), and repeat on the smaller
+// face until its analytic centre has full rank (Borwein & Wolkowicz 1981; Permenter & Parrilo 2018).
+import { EigenvalueDecomposition, Matrix } from 'ml-matrix';
+import { ComplexMatrix, columns, conjugateAdjoint, frobeniusNorm, multiply } from '../linear-algebra/complex-matrix.js';
+import { eigh, eigvalsh } from '../linear-algebra/eigen.js';
+import { FaceExposureError, feasibleFace, restrictToFace, type FaceExposure, type FeasibleFace } from '../problem/feasible-face.js';
+import type { LinearConstraint, Problem } from '../problem/model.js';
+import { FACE_EIGENVALUE_RATIO, LinearOracle } from './linear-oracle.js';
+import type { Checkpoint, OracleResult, OracleSettings } from './types.js';
+
+/**
+ * Relative mismatch accepted for equalities that become dependent on an exposed face. The face is exact only to
+ * about √u (a feasible state may leave it by an angle √(u·‖Z‖/gap)), so restricted equalities that are implied by
+ * the others disagree at ~1e-8; dropping an implied equality can only enlarge the set, so bounds stay valid.
+ */
+const EXPOSED_FACE_CONSISTENCY = 1e-6;
+/** Sub-problem solves spent looking for a well-separated exposing combination. */
+const EXPOSING_SEARCH_STEPS = 12;
+/** Facial-reduction steps allowed (each shrinks the face by at least one dimension; real problems need one or two). */
+const MAX_EXPOSURE_STEPS = 8;
+/** Singular values of y ↦ Z(y)·V below this share of the largest span the candidate directions. */
+const NULL_SPACE_RATIO = 1e-6;
+/** Passes that re-align the kernel of Z with the face it should expose (each re-projects y). */
+const REFINEMENT_PASSES = 3;
+/** Gram eigenvalues below this share of the largest (the candidate directions themselves) are left out of the corrections. */
+const GRAM_CUTOFF = NULL_SPACE_RATIO * NULL_SPACE_RATIO;
+
+export interface ExposedFace {
+  /** The feasible face with every accepted exposure recorded (pass `face.exposures` to feasibleFace to recompute it). */
+  face: FeasibleFace;
+  /** The oracle on that face and its feasibility answer, for reuse by the caller. */
+  oracle: LinearOracle;
+  feasible: OracleResult;
+}
+
+export interface ExposeOptions {
+  checkpoint?: Checkpoint;
+  settings?: Partial<OracleSettings>;
+}
+
+/**
+ * The exact reductions of feasibleFace, then exposing steps while the analytic centre of the feasible set on the
+ * current face is rank deficient. Every exposure is accepted only if feasibleFace's own check accepts it.
+ */
+export function exposeFeasibleFace(problem: Problem, options: ExposeOptions = {}): ExposedFace {
+  const { checkpoint } = options;
+  const exposures: FaceExposure[] = [];
+  const onFace = (face: FeasibleFace): ExposedFace => {
+    const restricted = restrictToFace(problem, face);
+    const oracle = new LinearOracle(face.dimension, restricted.constraints, {
+      ...options.settings,
+      checkpoint,
+      ...(face.exposures.length > 0 ? { impliedEqualityTolerance: EXPOSED_FACE_CONSISTENCY } : {}),
+    });
+    return { face, oracle, feasible: oracle.findFeasiblePoint() };
+  };
+  let current = onFace(feasibleFace(problem, { checkpoint }));
+  for (let step = 0; step < MAX_EXPOSURE_STEPS; step++) {
+    const { feasible, face } = current;
+    // A point from a run that stalled on the missing interior still shows the face; the exposure is checked anyway.
+    if (feasible.status === 'INFEASIBLE' || !feasible.point) return current;
+    const multipliers = exposingMultipliers(restrictToFace(problem, face).constraints, feasible.point, checkpoint);
+    if (!multipliers) return current;
+    let next: FeasibleFace;
+    try {
+      next = feasibleFace(problem, { exposures: [...exposures, { multipliers }], checkpoint });
+    } catch (error) {
+      if (error instanceof FaceExposureError) return current;
+      throw error;
+    }
+    exposures.push({ multipliers });
+    current = onFace(next);
+  }
+  return current;
+}
+
+/**
+ * Signed multipliers (one per constraint, nonzero on equalities only) with Z ⪰ 0 vanishing on the range V of the
+ * rank-deficient centre and positive on its complement W; null when the centre has full rank or no such
+ * combination exists in one step. Directions: the null space of y ↦ Z(y)·V; among them, c with W†Z(c)W ≻ 0 is a
+ * Farkas certificate of {τ ⪰ 0 on W, Tr τ = 1, Tr(W†Z_j W τ) = 0}, which the oracle finds when that set is empty.
+ */
+export function exposingMultipliers(constraints: readonly LinearConstraint[], centre: ComplexMatrix, checkpoint?: Checkpoint): number[] | null {
+  const n = centre.rows;
+  const { values, vectors } = eigh(centre);
+  let kernel = 0;
+  while (kernel < n && values[kernel] <= FACE_EIGENVALUE_RATIO * values[n - 1]) kernel++;
+  if (kernel === 0 || kernel === n) return null;
+  const equalities = constraints.flatMap((c, i) => (c.lower === c.upper ? [i] : []));
+  if (equalities.length === 0) return null;
+  // A_i = (b_i·1 − Γ_i)/‖·‖_F: Tr(A_i ρ) = 0 for every feasible ρ.
+  const directions = equalities.map((i) => {
+    const a = ComplexMatrix.zeros(n);
+    const c = constraints[i];
+    for (let t = 0; t < n * n; t++) {
+      a.re[t] = -c.operator.re[t];
+      a.im[t] = -c.operator.im[t];
+    }
+    for (let k = 0; k < n; k++) a.re[k * n + k] += c.lower;
+    const norm = frobeniusNorm(a);
+    return { index: i, matrix: norm > 0 ? scaled(a, 1 / norm) : a, norm };
+  });
+  checkpoint?.();
+  let range = columns(vectors, kernel, n);
+  const complement = columns(vectors, 0, kernel);
+  const candidates = nullSpace(directions.map((d) => d.matrix), range, NULL_SPACE_RATIO);
+  if (candidates.length === 0) return null;
+  const combine = (weights: ArrayLike<number>) => combination(directions.map((d) => d.matrix), weights);
+  const onComplement = candidates.map((w) => conjugateAdjoint(complement, combine(w)));
+  const best = bestExposingCombination(onComplement, checkpoint);
+  if (!best) return null;
+  let weights = new Float64Array(directions.length);
+  candidates.forEach((w, j) => {
+    for (let i = 0; i < w.length; i++) weights[i] += best[j] * w[i];
+  });
+  // The centre's range is only as accurate as its small eigenvalues are small: Gauss–Newton corrections of y
+  // (least-squares, minimum norm) make Z vanish on its own near-kernel until rounding is all that is left.
+  const matrices = directions.map((d) => d.matrix);
+  for (let pass = 0; pass < 2 * REFINEMENT_PASSES; pass++) {
+    checkpoint?.();
+    const z = combine(weights);
+    const eigen = eigh(z);
+    range = columns(eigen.vectors, 0, n - kernel);
+    // Newton on the small eigenvalues: to first order they move by V†Z(Δy)V (the off-diagonal block only at second).
+    // Then the whole product Z·V: the off-diagonal block tilts ker Z away from the face (only to second order in
+    // the eigenvalues, but to first order in the face's angle).
+    const blockOnly = pass < REFINEMENT_PASSES;
+    const correction = blockOnly
+      ? leastSquaresCorrection(matrices.map((a) => conjugateAdjoint(range, a)), conjugateAdjoint(range, z))
+      : leastSquaresCorrection(matrices.map((a) => multiply(a, range)), multiply(z, range));
+    for (let i = 0; i < weights.length; i++) weights[i] -= correction[i];
+  }
+  let largest = 0;
+  for (const w of weights) largest = Math.max(largest, Math.abs(w));
+  if (!(largest > 0)) return null;
+  const multipliers = new Array<number>(constraints.length).fill(0);
+  directions.forEach((d, k) => {
+    if (d.norm > 0) multipliers[d.index] = weights[k] / (largest * d.norm);
+  });
+  return multipliers;
+}
+
+/**
+ * c with λ_min(Σ c_j B_j) > s·‖c‖₁ for s as large as a few bisection steps find: the sub-problem
+ * {τ ⪰ 0, Tr τ = 1, −s ≤ Tr(B_j τ) ≤ s} is empty exactly then, and its Farkas certificate is such a c. A large s
+ * keeps Z well separated from zero on the exposed part, so rounding cannot blur its kernel.
+ */
+function bestExposingCombination(operators: readonly ComplexMatrix[], checkpoint: Checkpoint | undefined): Float64Array | null {
+  const attempt = (s: number): Float64Array | null => {
+    checkpoint?.();
+    const constraints = operators.map((operator, j) => ({ label: `candidate-${j}`, operator, lower: -s, upper: s }));
+    const answer = new LinearOracle(operators[0].rows, constraints, { checkpoint }).findFeasiblePoint();
+    if (answer.status !== 'INFEASIBLE' || !answer.infeasibility) return null;
+    const { multipliersLower, multipliersUpper } = answer.infeasibility;
+    return Float64Array.from(multipliersLower, (lower, j) => multipliersUpper[j] - lower);
+  };
+  let best = attempt(0);
+  if (!best) return null;
+  const ratio = (c: Float64Array): number => {
+    let size = 0;
+    for (const x of c) size += Math.abs(x);
+    return eigvalsh(combination(operators, c))[0] / size;
+  };
+  let low = Math.max(ratio(best), 0);
+  let high = Infinity;
+  for (let step = 0; step < EXPOSING_SEARCH_STEPS; step++) {
+    const s = high === Infinity ? Math.max(4 * low, Number.MIN_VALUE) : Math.sqrt(low * high);
+    const found = attempt(s);
+    if (found) {
+      best = found;
+      low = Math.max(s, ratio(found));
+    } else {
+      high = s;
+    }
+    if (high < Infinity && high <= 1.5 * low) break;
+  }
+  return best;
+}
+
+/** Minimum-norm Δy with Σ Δy_i B_i ≈ R in least squares (pseudo-inverse from the Gram matrix, small modes cut). */
+function leastSquaresCorrection(products: readonly ComplexMatrix[], residual: ComplexMatrix): Float64Array {
+  const { evd } = gramDecomposition(products);
+  const k = products.length;
+  const rhs = new Float64Array(k);
+  products.forEach((p, i) => {
+    let s = 0;
+    for (let t = 0; t < p.re.length; t++) s += p.re[t] * residual.re[t] + p.im[t] * residual.im[t];
+    rhs[i] = s;
+  });
+  const eigenvalues = evd.realEigenvalues;
+  const largest = Math.max(...eigenvalues.map(Math.abs), 0);
+  const out = new Float64Array(k);
+  eigenvalues.forEach((value, j) => {
+    if (!(value > GRAM_CUTOFF * largest)) return;
+    const v = evd.eigenvectorMatrix.getColumn(j);
+    let dot = 0;
+    for (let i = 0; i < k; i++) dot += v[i] * rhs[i];
+    for (let i = 0; i < k; i++) out[i] += (dot / value) * v[i];
+  });
+  return out;
+}
+
+function gramDecomposition(products: readonly ComplexMatrix[]): { evd: EigenvalueDecomposition } {
+  const k = products.length;
+  const gram = new Matrix(k, k);
+  for (let i = 0; i < k; i++) {
+    for (let j = 0; j <= i; j++) {
+      const p = products[i];
+      const q = products[j];
+      let s = 0;
+      for (let t = 0; t < p.re.length; t++) s += p.re[t] * q.re[t] + p.im[t] * q.im[t];
+      gram.set(i, j, s);
+      gram.set(j, i, s);
+    }
+  }
+  return { evd: new EigenvalueDecomposition(gram, { assumeSymmetric: true }) };
+}
+
+/** Orthonormal real vectors w spanning {w : ‖Σ w_i A_i·V‖ ≤ ratio·σ_max} (from the Gram matrix of the A_i·V). */
+function nullSpace(matrices: readonly ComplexMatrix[], range: ComplexMatrix, ratio: number): Float64Array[] {
+  const { evd } = gramDecomposition(matrices.map((a) => multiply(a, range)));
+  const eigenvalues = evd.realEigenvalues;
+  const largest = Math.max(...eigenvalues.map(Math.abs), 0);
+  const out: Float64Array[] = [];
+  eigenvalues.forEach((value, j) => {
+    if (value <= ratio * ratio * largest) out.push(Float64Array.from(evd.eigenvectorMatrix.getColumn(j)));
+  });
+  return out;
+}
+
+function combination(matrices: readonly ComplexMatrix[], weights: ArrayLike<number>): ComplexMatrix {
+  const n = matrices[0].rows;
+  const out = ComplexMatrix.zeros(n);
+  matrices.forEach((m, i) => {
+    const w = weights[i];
+    if (w === 0) return;
+    for (let t = 0; t < n * n; t++) {
+      out.re[t] += w * m.re[t];
+      out.im[t] += w * m.im[t];
+    }
+  });
+  return out;
+}
+
+function scaled(a: ComplexMatrix, s: number): ComplexMatrix {
+  const out = a.clone();
+  for (let t = 0; t < out.re.length; t++) {
+    out.re[t] *= s;
+    out.im[t] *= s;
+  }
+  return out;
+}

@@ -1,0 +1,107 @@
+// Facial reduction by exposing directions: models whose equalities pin ρ to the support of a known low-rank state
+// (constructed in src/bench/random-models.ts: Γ₁ − Γ₀ ⪰ 0 vanishes on it). The face found must be that support
+// (mathjs eigenvalues), the re-check in feasibleFace must accept it without the optimiser and reject tampering,
+// and the oracle on the face must find a full-rank point and bounds that hold at the known state.
+import { describe, expect, it } from 'vitest';
+import { randomModel } from '../../src/bench/random-models.js';
+import { ComplexMatrix, conjugate, conjugateAdjoint, multiply, adjoint, traceProductReal } from '../../src/linear-algebra/complex-matrix.js';
+import { exposeFeasibleFace } from '../../src/oracle/index.js';
+import { FaceExposureError, feasibleFace, restrictToFace } from '../../src/problem/feasible-face.js';
+import { randomHermitian, seededRandom } from '../helpers/random.js';
+import { referenceDualBound, referenceEigenvalues } from './reference.js';
+
+/** (1 − PP†)·ρ·(1 − PP†): the part of ρ off the face. */
+function offFace(isometry: ComplexMatrix, rho: ComplexMatrix): ComplexMatrix {
+  const n = rho.rows;
+  const projector = multiply(isometry, adjoint(isometry));
+  const complement = ComplexMatrix.identity(n);
+  for (let t = 0; t < n * n; t++) {
+    complement.re[t] -= projector.re[t];
+    complement.im[t] -= projector.im[t];
+  }
+  return conjugate(complement, rho);
+}
+
+const CASES = [
+  { d: 4, seed: 2, rank: 1 },
+  { d: 8, seed: 1, rank: 4 },
+  { d: 8, seed: 3, rank: 2 },
+  { d: 16, seed: 2, rank: 5 },
+  { d: 32, seed: 4, rank: 6 },
+];
+
+describe('exposeFeasibleFace on equalities that pin ρ to the support of a known state', () => {
+  for (const { d, seed, rank } of CASES) {
+    it(`d=${d} seed ${seed}: the face is the support of the rank-${rank} state, re-checked without the optimiser`, () => {
+      const model = randomModel(d, seed, { face: true, truthRank: rank, intervals: seed % 2 === 0 });
+      const exact = feasibleFace(model.problem);
+      expect(exact.dimension).toBe(d); // the exact reductions (marginal, spectral edges) do not see this face
+      const { face, feasible } = exposeFeasibleFace(model.problem);
+      expect(face.dimension).toBe(rank);
+      expect(face.exposures.length).toBeGreaterThan(0);
+      const isometry = face.isometry as ComplexMatrix;
+      // mathjs: the state has no weight off the face (to rounding), and the face is no larger than its support.
+      expect(referenceEigenvalues(offFace(isometry, model.truth))[d - 1]).toBeLessThan(1e-10);
+      expect(referenceEigenvalues(conjugateAdjoint(isometry, model.truth))[0]).toBeGreaterThan(1e-8);
+      // The verifier's path: the same face from the problem and the stored multipliers, with eigendecompositions only.
+      expect(feasibleFace(model.problem, { exposures: face.exposures }).dimension).toBe(rank);
+      // On the face the analytic centre has full rank (mathjs eigenvalues).
+      expect(feasible.status).toBe('OPTIMAL');
+      const centre = referenceEigenvalues(feasible.point as ComplexMatrix);
+      expect(centre[0]).toBeGreaterThan(1e-6 * centre[rank - 1]);
+    });
+  }
+
+  it('the oracle on the exposed face gives dual bounds that hold at the known state up to its residual there', () => {
+    const model = randomModel(8, 1, { face: true, truthRank: 4, intervals: false });
+    const { face, oracle } = exposeFeasibleFace(model.problem);
+    const restricted = restrictToFace(model.problem, face);
+    const truthOnFace = conjugateAdjoint(face.isometry as ComplexMatrix, model.truth);
+    // The face is exact only to about √u: the known state, compressed onto it, misses the constraints by ~1e-8
+    // (facial reduction's square-root sensitivity; see face-exposure.ts). That is what a bound on the face can be off by.
+    const violations = restricted.constraints.map((c) => {
+      const value = traceProductReal(c.operator, truthOnFace);
+      return Math.max(c.lower - value, value - c.upper, 0);
+    });
+    expect(Math.max(...violations)).toBeLessThan(1e-6);
+    const traceDefect = Math.abs(referenceEigenvalues(truthOnFace).reduce((s, v) => s + v, 0) - 1);
+    const rng = seededRandom(41);
+    for (let k = 0; k < 3; k++) {
+      const G = randomHermitian(face.dimension, rng);
+      const result = oracle.minimize(G);
+      expect(result.status).toBe('OPTIMAL');
+      const bound = referenceDualBound(G, restricted.constraints, result.multipliersLower, result.multipliersUpper);
+      // Weak duality at an approximately feasible τ ⪰ 0 (derivation: ⟨G,τ⟩ − bound ≥ λ_min(S)(Tr τ − 1) +
+      // Σ y⁺(Tr Γτ − ℓ) − Σ y⁻(Tr Γτ − u)), with the dual bound recomputed by mathjs.
+      let slack = 0;
+      violations.forEach((v, i) => (slack += (result.multipliersLower[i] + result.multipliersUpper[i]) * v));
+      let linear = 0;
+      restricted.constraints.forEach((c, i) => (linear += result.multipliersLower[i] * c.lower - result.multipliersUpper[i] * c.upper));
+      slack += Math.abs(bound - linear) * traceDefect;
+      expect(bound).toBeLessThanOrEqual(traceProductReal(G, truthOnFace) + slack + 1e-12);
+      expect(result.primalValue - bound).toBeLessThan(1e-5);
+    }
+  });
+
+  it('a problem with a full-rank feasible state needs no exposure', () => {
+    const model = randomModel(8, 2, { face: false, truthRank: 8 });
+    const { face, feasible } = exposeFeasibleFace(model.problem);
+    expect(face.exposures).toEqual([]);
+    expect(face.dimension).toBe(feasibleFace(model.problem).dimension);
+    expect(feasible.status).toBe('OPTIMAL');
+  });
+
+  it('feasibleFace rejects tampered exposures', () => {
+    const model = randomModel(8, 3, { face: true, truthRank: 2, intervals: false });
+    const { face } = exposeFeasibleFace(model.problem);
+    const multipliers = face.exposures[0].multipliers;
+    expect(() => feasibleFace(model.problem, { exposures: [{ multipliers: multipliers.map((y) => -y) }] })).toThrow(FaceExposureError);
+    expect(() => feasibleFace(model.problem, { exposures: [{ multipliers: multipliers.map(() => 0) }] })).toThrow(/all zero/);
+    expect(() => feasibleFace(model.problem, { exposures: [{ multipliers: multipliers.slice(1) }] })).toThrow(/finite numbers/);
+    const withInterval = randomModel(8, 3, { face: true, truthRank: 2, intervals: true });
+    const intervalIndex = withInterval.problem.constraints.findIndex((c) => c.lower !== c.upper);
+    const onInterval = new Array<number>(withInterval.problem.constraints.length).fill(0);
+    onInterval[intervalIndex] = 1;
+    expect(() => feasibleFace(withInterval.problem, { exposures: [{ multipliers: onInterval }] })).toThrow(/not an equality/);
+  });
+});
