@@ -15,6 +15,7 @@ const SECTIONS: Record<string, () => Promise<BenchTable[]>> = {
   'finite-size': async () => (await import('./finite-size.js')).benchFiniteSize(),
   decoy: async () => (await import('./decoy.js')).benchDecoy(),
   // Loaded by name: the service benchmark starts servers and worker threads only when asked for.
+  cli: async () => (await import('./cli.js')).benchCli(),
   service: async () => ((await import(SERVICE_MODULE)) as { benchService: () => Promise<BenchTable[]> }).benchService(),
   cluster: async () => (await import('./cluster.js')).benchCluster(),
 };

@@ -18,8 +18,9 @@ export interface CacheEvent {
  * Which results are worth keeping. Time limits and cancellations depend on the machine and the moment, not
  * on the input, so those results are never stored; an iteration limit is part of the input hash and a stalled
  * gap ('no-progress') is reached again by the same input, so those are.
- * INFEASIBLE results are not stored: their Farkas certificate is not re-checked by the certificate verifier,
- * and detecting infeasibility takes a single oracle call anyway.
+ * INFEASIBLE results are not stored: every read is re-checked by a verifier of bound certificates, which an
+ * INFEASIBLE result does not carry (its Farkas certificate has its own check, verifyInfeasibility), and detecting
+ * infeasibility takes one oracle call anyway.
  */
 export function isCacheable(result: SolveResult): boolean {
   if (result.certificate === null || result.certifiedLowerBound === null) return false;

@@ -18,9 +18,8 @@ import { pinchedBlocks } from '../objectives/spectral-blocks.js';
 import { isKeyless } from '../objectives/branch-supports.js';
 import { logCoefficient } from '../objectives/objective.js';
 
-/** Generous constant c in the eigensolver backward-error scale c·n·u·‖A‖_F used for the margin. */
-export const MARGIN_CONSTANT = 64;
-const UNIT_ROUNDOFF = 2 ** -53;
+// The margin uses the eigensolver backward-error scale c·n·u·‖A‖_F (docs/math.md §5).
+import { BACKWARD_ERROR_CONSTANT as MARGIN_CONSTANT, UNIT_ROUNDOFF } from '../linear-algebra/rounding.js';
 
 /** Every term of LB = F(ρ') − ⟨∇F, ρ'⟩ + Σy⁺ℓ − Σy⁻u + λ_min(∇F − Σ yΓ) [+ τ terms] − margin. */
 export interface BoundBreakdown {
@@ -39,7 +38,7 @@ export interface BoundBreakdown {
 }
 
 /**
- * The certified lower bound from a full-rank linearization point on the feasible face (MATH.md §5 restated in
+ * The certified lower bound from a full-rank linearization point on the feasible face (docs/math.md §5 restated in
  * the README). Valid for any multipliers y⁺, y⁻ ≥ 0 and any full-rank ρ' by convexity and weak duality.
  */
 export function linearizationBound(

@@ -1,5 +1,6 @@
 // Independent re-check of a certificate: no optimiser code is imported here (a test enforces it).
 import { eigvalsh } from '../linear-algebra/eigen.js';
+import { BACKWARD_ERROR_CONSTANT, UNIT_ROUNDOFF } from '../linear-algebra/rounding.js';
 import { createObjective } from '../objectives/index.js';
 import { reduceProblem } from '../problem/inactive-bounds.js';
 import { farkasTest } from '../problem/farkas.js';

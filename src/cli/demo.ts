@@ -1,10 +1,8 @@
 // `renyi-bound demo`: an invented scenario swept end to end through the embedded service — a table on
 // standard output, CSV, JSON and an SVG plot under demo-output/.
 import { join } from 'node:path';
-import { Command } from 'commander';
+import type { Command } from 'commander';
 import type { ParameterGrid } from '../service/generated/renyibound/v1/ParameterGrid.js';
-import { jsonPathFor, progressBar, sweepTable, writeSweepOutputs } from '../client/report.js';
-import { runSweep } from '../client/sweep.js';
 import { withInputErrors } from './io.js';
 import { integerOption, MAX_WORKERS, noticeNewCacheFile } from './service-options.js';
 
@@ -51,6 +49,8 @@ export function register(program: Command): void {
     .option('--no-disk-cache', 'do not read or write the SQLite cache (solve every point afresh)')
     .action(
       withInputErrors(async (options: DemoOptions) => {
+        const { jsonPathFor, progressBar, sweepTable, writeSweepOutputs } = await import('../client/report.js');
+        const { runSweep } = await import('../client/sweep.js');
         process.stdout.write(`renyi-bound demo — ${DEMO_SCENARIO}\n`);
         process.stdout.write('certified lower bound on H(key | Eve) in bits per round, by error rate (rows) and entropy kind (columns)\n\n');
         const cacheNotice = noticeNewCacheFile(options.diskCache ? undefined : false);

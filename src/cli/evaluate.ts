@@ -1,11 +1,8 @@
 // `renyi-bound evaluate <problem.json | -> --state <matrix.json> --entropy <kind> [--alpha a]`
-// (--entropy may be left out when the problem JSON names the entropy):
+// (--entropy and --alpha default to the problem's fields; the rule is in src/problem/entropy-request.ts):
 // the objective's value (bits) and gradient norm at a given density operator.
-import { Command } from 'commander';
-import { frobeniusNorm } from '../linear-algebra/complex-matrix.js';
-import { createObjective } from '../objectives/index.js';
-import { densityOperatorFromJson } from '../problem/state.js';
-import { ValidationError, entropyRequestFrom, parseProblemJson } from '../problem/validate.js';
+import type { Command } from 'commander';
+import { ValidationError } from '../problem/errors.js';
 import { parseNumberOption, printJson, readJsonInput, withInputErrors } from './io.js';
 
 export interface EvaluateOutput {
@@ -29,20 +26,18 @@ export function register(program: Command): void {
     .argument('<problem>', 'problem JSON file, or - for standard input')
     .requiredOption('--state <matrix.json>', 'density operator on H_A ⊗ H_B as a matrix JSON file')
     .option('--entropy <kind>', 'von-neumann, petz-up, petz-down or sandwiched-up (default: the problem’s entropy field)')
-    .option('--alpha <a>', 'Rényi order in (1, 2] (Rényi kinds only)')
+    .option('--alpha <a>', 'Rényi order in (1, 2] (Rényi kinds only; default: the problem’s alpha field)')
     .action(
-      withInputErrors((problemSource: string, options: EvaluateOptions) => {
+      withInputErrors(async (problemSource: string, options: EvaluateOptions) => {
+        const { frobeniusNorm } = await import('../linear-algebra/complex-matrix.js');
+        const { createObjective } = await import('../objectives/index.js');
+        const { densityOperatorFromJson } = await import('../problem/state.js');
+        const { parseProblemJson } = await import('../problem/validate.js');
+        const { resolveEntropyRequest } = await import('../problem/entropy-request.js');
         const alpha = options.alpha === undefined ? undefined : parseNumberOption(options.alpha, 'alpha');
-        if (options.entropy === undefined && alpha !== undefined) {
-          throw new ValidationError('alpha', 'given without --entropy');
-        }
-        const commandLineRequest = options.entropy === undefined ? undefined : entropyRequestFrom(options.entropy, alpha);
         const parsed = parseProblemJson(readJsonInput(problemSource, 'problem'));
         const problem = parsed.problem;
-        const request = commandLineRequest ?? parsed.request;
-        if (request === undefined) {
-          throw new ValidationError('entropy', 'is required: give --entropy or set entropy in the problem');
-        }
+        const request = resolveEntropyRequest({ kind: options.entropy, alpha }, parsed.request);
         const dimension = problem.dimensionA * problem.dimensionB;
         const rho = densityOperatorFromJson(readJsonInput(options.state, 'state'), 'state', dimension);
         const { value, gradient } = createObjective(problem, request).evaluate(rho);

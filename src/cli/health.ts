@@ -1,6 +1,6 @@
 // `renyi-bound health --server <servers> [--wait <seconds>]`: prints the grpc.health.v1 status name; exit 0 only
 // when SERVING. With a list, one line per server (`host:port STATUS`), exit 0 only when all serve.
-import { Command } from 'commander';
+import type { Command } from 'commander';
 import { parseServers } from '../client/servers.js';
 import { ValidationError } from '../problem/errors.js';
 import { parseNumberOption, withInputErrors } from './io.js';

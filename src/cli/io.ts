@@ -1,7 +1,7 @@
 // Shared helpers of the CLI commands: reading JSON input, printing JSON, and turning bad input into exit code 1.
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { ValidationError } from '../problem/errors.js';
+import { FieldError, ValidationError } from '../problem/errors.js';
 import { packageRoot } from '../problem/proto-options.js';
 
 /** Exit code for bad input (a ValidationError or an unreadable file); the message names the field. */
@@ -25,6 +25,8 @@ export function readJsonInput(source: string, field: string): unknown {
     const reason = error instanceof Error && 'code' in error ? String((error as NodeJS.ErrnoException).code) : String(error);
     throw new ValidationError(field, `cannot read ${source === '-' ? 'standard input' : JSON.stringify(source)} (${reason})`);
   }
+  // Editors on some systems save UTF-8 with a byte-order mark; it is not part of the JSON text.
+  if (text.charCodeAt(0) === 0xfeff) text = text.slice(1);
   try {
     return JSON.parse(text) as unknown;
   } catch (error) {
@@ -55,13 +57,13 @@ export function printJson(value: unknown): void {
 }
 
 /** Reports bad input on standard error and sets exit code 1. */
-export function reportBadInput(error: ValidationError): void {
+export function reportBadInput(error: FieldError): void {
   process.stderr.write(`renyi-bound: ${error.message}\n`);
   process.exitCode = EXIT_BAD_INPUT;
 }
 
 /**
- * Wraps a command action: a ValidationError becomes a message on standard error and exit code 1; anything else
+ * Wraps a command action: a FieldError (validation, settings, oracle input) becomes a message on standard error and exit code 1; anything else
  * is a bug and propagates (Node prints the stack and exits non-zero).
  */
 export function withInputErrors<A extends unknown[]>(action: (...args: A) => void | Promise<void>): (...args: A) => Promise<void> {
@@ -69,7 +71,7 @@ export function withInputErrors<A extends unknown[]>(action: (...args: A) => voi
     try {
       await action(...args);
     } catch (error) {
-      if (error instanceof ValidationError) reportBadInput(error);
+      if (error instanceof FieldError) reportBadInput(error);
       else throw error;
     }
   };

@@ -1,7 +1,7 @@
 // The security options of the service commands: TLS files and the token file (never the token itself, which
 // would show in the process list and the shell history).
 import type { Command } from 'commander';
-import { TOKEN_FILE_ENV } from '../service/security.js';
+import { TOKEN_FILE_ENV } from '../service/security-names.js';
 
 /** What commander collects from the options added below. */
 export interface SecurityCommandOptions {

@@ -1,19 +1,17 @@
 // `renyi-bound serve`: runs the gRPC service until SIGTERM/SIGINT, then drains and exits 0.
-import { Command } from 'commander';
-import { DEFAULT_HOST, DEFAULT_PORT, RenyiBoundServer } from '../service/server.js';
-import { defaultCacheDirectory } from '../cache/sqlite.js';
+import type { Command } from 'commander';
+import type { RenyiBoundServer } from '../service/server.js';
 import { ValidationError } from '../problem/errors.js';
 import { withInputErrors } from './io.js';
 import { integerOption, MAX_WORKERS, messageBytesOption } from './service-options.js';
-import { DEFAULT_MAX_MESSAGE_BYTES, mebibytes } from '../service/message-size.js';
 import { addServerSecurityOptions, type SecurityCommandOptions } from './security-options.js';
 
 /** Largest queue accepted on the command line. */
 const MAX_QUEUE_LIMIT = 1_000_000;
 
 interface ServeOptions extends SecurityCommandOptions {
-  host: string;
-  port: string;
+  host?: string;
+  port?: string;
   workers?: string;
   cacheDir?: string;
   diskCache: boolean;
@@ -27,17 +25,18 @@ export function register(program: Command): void {
   addServerSecurityOptions(program
     .command('serve')
     .description('run the gRPC service (renyibound.v1.RenyiBound, grpc.health.v1.Health, server reflection)')
-    .option('--host <host>', 'interface to bind (loopback unless told otherwise)', DEFAULT_HOST)
-    .option('--port <port>', 'TCP port; 0 picks a free one', String(DEFAULT_PORT))
+    .option('--host <host>', 'interface to bind (default: loopback, 127.0.0.1)')
+    .option('--port <port>', 'TCP port; 0 picks a free one (default: 50051)')
     .option('--workers <n>', 'solver threads (default: the number of cores)')
-    .option('--cache-dir <dir>', `directory of the SQLite result cache (default: ${defaultCacheDirectory()})`)
+    .option('--cache-dir <dir>', 'directory of the SQLite result cache (default: $XDG_CACHE_HOME/renyi-bound or ~/.cache/renyi-bound)')
     .option('--no-disk-cache', 'keep results in memory only (no SQLite file)')
     .option('--redis-url <url>', 'Redis shared between replicas, e.g. redis://127.0.0.1:6379')
     .option('--redis-required', 'refuse to start while Redis cannot be reached (default: start with the local cache, join Redis when it answers)')
-    .option('--max-message-mib <n>', `largest request accepted, in MiB (default ${mebibytes(DEFAULT_MAX_MESSAGE_BYTES)}: 64 dense complex matrices of the maximum dimension)`)
+    .option('--max-message-mib <n>', 'largest request accepted, in MiB (default: room for 64 dense complex matrices of the maximum dimension)')
     .option('--queue-limit <n>', 'solves allowed to wait for a thread before RESOURCE_EXHAUSTED (default: 16 per thread)'))
     .action(
       withInputErrors(async (options: ServeOptions) => {
+        const { RenyiBoundServer } = await import('../service/server.js');
         const { serverSecurityFromPaths } = await import('../service/security.js');
         const settings = {
           host: options.host,

@@ -1,12 +1,9 @@
 // `renyi-bound solve <problem.json | -> --entropy <kind> [--alpha a] [--gap g] [--max-iterations n]
-//  [--time-limit-ms t] [--warm-start matrix.json] [--server host:port]`: a certified bound as JSON.
-import { Command } from 'commander';
-import { solve } from '../frank-wolfe/solve.js';
-import { SettingsError } from '../frank-wolfe/settings.js';
+//  [--time-limit-ms t] [--warm-start matrix.json] [--server servers]`: a certified bound as JSON.
+import type { Command } from 'commander';
 import type { SolveResult } from '../result/types.js';
 import type { SolverSettings } from '../frank-wolfe/settings.js';
-import { densityOperatorFromJson } from '../problem/state.js';
-import { ValidationError, entropyRequestFrom, parseProblemJson } from '../problem/validate.js';
+import { ValidationError } from '../problem/errors.js';
 import { parseNumberOption, printJson, readJsonInput, withInputErrors } from './io.js';
 import { SERVER_OPTION_HELP, serversOption } from './service-options.js';
 import { addClientSecurityOptions, type SecurityCommandOptions } from './security-options.js';
@@ -47,7 +44,7 @@ export function register(program: Command): void {
     .description('certified lower bound on the entropy over every state consistent with the problem')
     .argument('<problem>', 'problem JSON file, or - for standard input')
     .option('--entropy <kind>', 'von-neumann, petz-up, petz-down or sandwiched-up (default: the problem’s entropy field)')
-    .option('--alpha <a>', 'Rényi order in (1, 2] (Rényi kinds only)')
+    .option('--alpha <a>', 'Rényi order in (1, 2] (Rényi kinds only; default: the problem’s alpha field)')
     .option('--gap <g>', 'requested certified gap in bits (default 1e-6)')
     .option('--max-iterations <n>', 'iteration limit (default 20000)')
     .option('--time-limit-ms <t>', 'time limit in milliseconds (default 120000)')
@@ -55,12 +52,13 @@ export function register(program: Command): void {
     .option('--server <servers>', `send the request to running renyi-bound server(s) instead of solving here: ${SERVER_OPTION_HELP}`))
     .action(
       withInputErrors(async (problemSource: string, options: SolveOptions) => {
+        const { parseProblemJson } = await import('../problem/validate.js');
+        const { resolveEntropyRequest } = await import('../problem/entropy-request.js');
+        const { densityOperatorFromJson } = await import('../problem/state.js');
         const alpha = options.alpha === undefined ? undefined : parseNumberOption(options.alpha, 'alpha');
-        if (options.entropy === undefined && alpha !== undefined) throw new ValidationError('alpha', 'given without --entropy');
         const problemJson = readJsonInput(problemSource, 'problem');
         const parsed = parseProblemJson(problemJson);
-        const request = options.entropy === undefined ? parsed.request : entropyRequestFrom(options.entropy, alpha);
-        if (request === undefined) throw new ValidationError('entropy', 'is required: give --entropy or set entropy in the problem');
+        const request = resolveEntropyRequest({ kind: options.entropy, alpha }, parsed.request);
         const settings = settingsFrom(options);
         const dimension = parsed.problem.dimensionA * parsed.problem.dimensionB;
         const warmStartJson = options.warmStart === undefined ? undefined : readJsonInput(options.warmStart, 'warm-start');
@@ -85,6 +83,8 @@ export function register(program: Command): void {
             closeClients();
           }
         } else {
+          const { solve } = await import('../frank-wolfe/solve.js');
+          const { SettingsError } = await import('../frank-wolfe/settings.js');
           try {
             result = solve(parsed.problem, request, settings, { warmStart });
           } catch (error) {

@@ -1,6 +1,6 @@
 // `renyi-bound sweep <grid.json>`: runs a parameter grid (or one shard of it) spread over the replicas behind
 // --server, or on an embedded server, with a progress bar; then writes CSV, JSON and optionally an SVG plot.
-import { Command } from 'commander';
+import type { Command } from 'commander';
 import type { SweepOutcome } from '../client/sweep.js';
 import { ValidationError } from '../problem/errors.js';
 import { readJsonInput, withInputErrors } from './io.js';

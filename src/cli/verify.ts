@@ -1,10 +1,10 @@
 // `renyi-bound verify <result.json | -> --problem <problem.json>`: recomputes a certificate's bound from the
 // problem alone (no optimisation) and says whether the claimed bound holds; for an INFEASIBLE result it re-checks
 // the Farkas certificate instead.
-import { Command } from 'commander';
-import { verifyResult, type VerificationReport } from '../certificate/verify.js';
+import type { Command } from 'commander';
+import type { VerificationReport } from '../certificate/verify.js';
 import type { SolveResult } from '../result/types.js';
-import { ValidationError, entropyRequestFrom, problemFromJson } from '../problem/validate.js';
+import { ValidationError } from '../problem/errors.js';
 import { printJson, readJsonInput, withInputErrors } from './io.js';
 
 export function register(program: Command): void {
@@ -14,7 +14,9 @@ export function register(program: Command): void {
     .argument('<result>', 'result JSON as printed by solve, or - for standard input')
     .requiredOption('--problem <problem.json>', 'the problem the result claims to bound')
     .action(
-      withInputErrors((resultSource: string, options: { problem: string }) => {
+      withInputErrors(async (resultSource: string, options: { problem: string }) => {
+        const { verifyResult } = await import('../certificate/verify.js');
+        const { entropyRequestFrom, problemFromJson } = await import('../problem/validate.js');
         const result = readJsonInput(resultSource, 'result') as Partial<SolveResult> | null;
         if (result === null || typeof result !== 'object') throw new ValidationError('result', 'must be a JSON object');
         if ('dimensionA' in result || 'branches' in result || 'dimension_a' in result) {

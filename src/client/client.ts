@@ -17,6 +17,7 @@ import type { SolveRequest } from '../service/generated/renyibound/v1/SolveReque
 import { loadServicePackage } from '../service/proto.js';
 import { entropyKindToWire, matrixToWire, resultFromWire, resultToWire, settingsToWire, type DeliveredResult } from '../service/wire.js';
 import { channelSettings } from './channel.js';
+import { entropyKindFrom, isUnspecifiedEntropy } from '../problem/entropy-request.js';
 import { clientSecurityKey, getDefaultClientSecurity } from '../service/security.js';
 import { parseServers, resolveServers } from './servers.js';
 import { asRemoteError, isReplicaFailure, remoteError } from './errors.js';
@@ -126,10 +127,8 @@ export function problemToWire(problem: unknown): Problem {
 }
 
 function entropyToWire(entropy: string | undefined): EntropyKind {
-  if (entropy === undefined) return 'ENTROPY_KIND_UNSPECIFIED';
-  const wire = /^[A-Z_]+$/.test(entropy) ? entropy : entropyKindToWire(entropy);
-  if (wire === 'ENTROPY_KIND_UNSPECIFIED') throw new ValidationError('entropy', `unknown entropy kind ${JSON.stringify(entropy)}`);
-  return wire as EntropyKind;
+  if (isUnspecifiedEntropy(entropy)) return 'ENTROPY_KIND_UNSPECIFIED';
+  return entropyKindToWire(entropyKindFrom(entropy)) as EntropyKind;
 }
 
 /** The wire message of a request; `validate` false skips the local check (the caller validated already). */

@@ -5,6 +5,7 @@ import * as grpc from '@grpc/grpc-js';
 import { pino } from 'pino';
 import { DEFAULT_SETTINGS } from '../frank-wolfe/settings.js';
 import { ValidationError } from '../problem/errors.js';
+import { entropyKindFrom } from '../problem/entropy-request.js';
 import { JsonMessage } from '../problem/json.js';
 import { expandGrid, runBatch, type BatchPoint } from '../service/batch.js';
 import type { EntropyKind } from '../service/generated/renyibound/v1/EntropyKind.js';
@@ -41,12 +42,7 @@ function numberMap(value: unknown, field: string): Record<string, number> {
 }
 
 function entropyName(value: unknown, field: string): EntropyKind {
-  if (typeof value !== 'string') throw new ValidationError(field, 'must be an entropy kind name');
-  const wire = /^[A-Z_]+$/.test(value) ? value : entropyKindToWire(value);
-  if (!['VON_NEUMANN', 'PETZ_UP', 'PETZ_DOWN', 'SANDWICHED_UP'].includes(wire)) {
-    throw new ValidationError(field, `unknown entropy kind ${JSON.stringify(value)} (von-neumann, petz-up, petz-down, sandwiched-up)`);
-  }
-  return wire as EntropyKind;
+  return entropyKindToWire(entropyKindFrom(value, field)) as EntropyKind;
 }
 
 /**

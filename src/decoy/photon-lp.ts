@@ -2,9 +2,7 @@
 // Ma, Qi, Zhao, Lo, PRA 72, 012326 (2005)), solved by HiGHS and certified from its duals by weak duality
 // recomputed here (docs/decoy.md, "Photon-number LP" and "Certificate").
 import type { Highs } from 'highs';
-
-/** Unit roundoff of IEEE double precision. */
-const UNIT_ROUNDOFF = 2 ** -53;
+import { UNIT_ROUNDOFF } from '../linear-algebra/rounding.js';
 
 /** Poisson weights e^{−μ}μⁿ/n! for n = 0..cutoff and a rigorous upper bound on the mass above the cut-off. */
 export function poissonWeights(intensity: number, cutoff: number): { weights: number[]; tail: number } {

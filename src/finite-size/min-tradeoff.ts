@@ -1,7 +1,8 @@
 // Min-tradeoff export: a von Neumann certificate's bound is affine in the constraint values (the λ_min term does
 // not depend on them), so g(s) = constant + Σ_i y_i·s_i lower-bounds H(S|CE) at every state on the certificate's
 // feasible face, whatever its statistics s_i = Tr(Γ_i σ) (docs/finite-size.md, "Min-tradeoff export").
-import { certificateBreakdown, MARGIN_CONSTANT } from '../certificate/bound.js';
+import { certificateBreakdown } from '../certificate/bound.js';
+import { BACKWARD_ERROR_CONSTANT, UNIT_ROUNDOFF } from '../linear-algebra/rounding.js';
 import type { SolveResult } from '../result/types.js';
 import { frobeniusNorm } from '../linear-algebra/complex-matrix.js';
 import { createObjective } from '../objectives/index.js';
@@ -32,7 +33,7 @@ export function minTradeoffFunction(problem: Problem, result: SolveResult): MinT
   const restricted = restrictToFace(problem, face);
   const objective = createObjective(restricted, { kind: 'von-neumann' });
   const breakdown = certificateBreakdown(face, restricted, objective, certificate);
-  const scale = MARGIN_CONSTANT * face.dimension * 2 ** -53;
+  const scale = BACKWARD_ERROR_CONSTANT * face.dimension * UNIT_ROUNDOFF;
   let allowance = 0;
   const coefficients = problem.constraints.map((constraint, i) => {
     const yLower = certificate.multipliersLower[i];

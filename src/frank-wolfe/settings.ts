@@ -1,4 +1,5 @@
 import type { ComplexMatrix } from '../linear-algebra/complex-matrix.js';
+import { FieldError } from '../problem/errors.js';
 
 export interface SolverSettings {
   /** Requested certified gap upper − lower, in bits. */
@@ -14,16 +15,8 @@ export interface SolveControl {
   warmStart?: ComplexMatrix;
 }
 
-export class SettingsError extends Error {
-  readonly field: string;
-  readonly reason: string;
-  constructor(field: string, reason: string) {
-    super(`${field}: ${reason}`);
-    this.name = 'SettingsError';
-    this.field = field;
-    this.reason = reason;
-  }
-}
+/** A solver setting out of range; `field` is "settings.<name>". */
+export class SettingsError extends FieldError {}
 
 /** Defaults a caller gets when a field is omitted. */
 export const DEFAULT_SETTINGS: Readonly<SolverSettings> = Object.freeze({

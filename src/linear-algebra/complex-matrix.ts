@@ -118,14 +118,6 @@ export function addScaledInPlace(target: ComplexMatrix, a: ComplexMatrix, s: num
   }
 }
 
-/** Linear combination Σ s_i A_i of same-shape matrices. */
-export function linearCombination(coefficients: ArrayLike<number>, matrices: readonly ComplexMatrix[]): ComplexMatrix {
-  if (matrices.length === 0) throw new RangeError('linearCombination: no matrices');
-  const c = new ComplexMatrix(matrices[0].rows, matrices[0].cols);
-  for (let i = 0; i < matrices.length; i++) addScaledInPlace(c, matrices[i], coefficients[i]);
-  return c;
-}
-
 export function adjoint(a: ComplexMatrix): ComplexMatrix {
   const c = new ComplexMatrix(a.cols, a.rows);
   for (let i = 0; i < a.rows; i++) {
@@ -423,27 +415,6 @@ export function partialTraceB(x: ComplexMatrix, dA: number, dB: number): Complex
       }
       c.re[a * dA + a2] = sr;
       c.im[a * dA + a2] = si;
-    }
-  }
-  return c;
-}
-
-/** Tr_A of an operator on H_A ⊗ H_B (index a·dB + b). */
-export function partialTraceA(x: ComplexMatrix, dA: number, dB: number): ComplexMatrix {
-  if (x.rows !== dA * dB || x.cols !== dA * dB) throw new RangeError('partialTraceA: dimension mismatch');
-  const d = dA * dB;
-  const c = new ComplexMatrix(dB, dB);
-  for (let b = 0; b < dB; b++) {
-    for (let b2 = 0; b2 < dB; b2++) {
-      let sr = 0;
-      let si = 0;
-      for (let a = 0; a < dA; a++) {
-        const idx = (a * dB + b) * d + a * dB + b2;
-        sr += x.re[idx];
-        si += x.im[idx];
-      }
-      c.re[b * dB + b2] = sr;
-      c.im[b * dB + b2] = si;
     }
   }
   return c;

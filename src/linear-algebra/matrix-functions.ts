@@ -1,7 +1,8 @@
 // Functions of Hermitian matrices through their eigendecomposition, and their Fréchet derivatives
 // (Daleckii–Krein formula).
 import { adjoint, ComplexMatrix, multiply, multiplyAdjointLeft, multiplyAdjointRight } from './complex-matrix.js';
-import { eigh, UNIT_ROUNDOFF, type HermitianEigen } from './eigen.js';
+import { eigh, type HermitianEigen } from './eigen.js';
+import { UNIT_ROUNDOFF } from './rounding.js';
 import { zeroEigenvalueTolerance } from './support.js';
 
 /**
@@ -193,7 +194,7 @@ function lowerTimesAdjoint(x: ComplexMatrix, y: ComplexMatrix): ComplexMatrix {
 const DIRECT_DIFFERENCE_RELATIVE_GAP = 0.5;
 
 /** True when x and y are positive and close enough for the log1p/expm1 forms to be the better choice. */
-function closePositive(x: number, y: number): boolean {
+export function closePositive(x: number, y: number): boolean {
   return x > 0 && y > 0 && Math.abs(x - y) <= DIRECT_DIFFERENCE_RELATIVE_GAP * Math.max(x, y);
 }
 
@@ -206,29 +207,11 @@ export function powerFunction(p: number): ScalarFunction {
   };
 }
 
-/** Natural logarithm with f' = 1/x and a cancellation-free ln x − ln y = log1p((x−y)/y). */
-export const naturalLogFunction: ScalarFunction = {
-  value: (x) => Math.log(x),
-  derivative: (x) => 1 / x,
-  difference: (x, y) => (closePositive(x, y) ? Math.log1p((x - y) / y) : Math.log(x) - Math.log(y)),
-};
-
-/**
- * x·ln x (0 at x = 0) with f' = ln x + 1 and a cancellation-free
- * x ln x − y ln y = x·log1p((x−y)/y) + (x−y)·ln y.
- */
-export const entropyDensityFunction: ScalarFunction = {
-  value: (x) => (x > 0 ? x * Math.log(x) : 0),
-  derivative: (x) => Math.log(x) + 1,
-  difference: (x, y) =>
-    closePositive(x, y) ? x * Math.log1p((x - y) / y) + (x - y) * Math.log(y) : entropyDensityFunction.value(x) - entropyDensityFunction.value(y),
-};
-
 /**
  * Eigenvalues of a PSD matrix with rounding-level negatives (|λ| ≤ the support tolerance) set to 0;
  * throws if one is clearly negative.
  */
-function positiveSemidefiniteEigen(a: ComplexMatrix, caller: string): { eig: HermitianEigen; rank: number } {
+export function positiveSemidefiniteEigen(a: ComplexMatrix, caller: string): { eig: HermitianEigen; rank: number } {
   const eig = eigh(a);
   const tolerance = zeroEigenvalueTolerance(a);
   const values = eig.values;
@@ -254,19 +237,4 @@ export function matrixPower(a: ComplexMatrix, p: number): ComplexMatrix {
     throw new RangeError(`matrixPower: exponent ${p} ≤ 0 needs a full-rank matrix, but numerical rank is ${rank} of ${a.rows}`);
   }
   return spectralFunction(eig, (x) => (x === 0 ? 0 : x ** p));
-}
-
-/** √A of a Hermitian PSD matrix (the PSD square root). */
-export function matrixSqrt(a: ComplexMatrix): ComplexMatrix {
-  const { eig } = positiveSemidefiniteEigen(a, 'matrixSqrt');
-  return spectralFunction(eig, Math.sqrt);
-}
-
-/** Natural logarithm of a Hermitian positive-definite matrix; throws if it is not full rank. */
-export function matrixLog(a: ComplexMatrix): ComplexMatrix {
-  const { eig, rank } = positiveSemidefiniteEigen(a, 'matrixLog');
-  if (rank < a.rows) {
-    throw new RangeError(`matrixLog: matrix is not positive definite (numerical rank ${rank} of ${a.rows})`);
-  }
-  return spectralFunction(eig, Math.log);
 }

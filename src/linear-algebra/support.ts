@@ -1,17 +1,16 @@
 // Range and kernel of Hermitian PSD matrices with a rank decision from the eigensolver's backward error.
 import { ComplexMatrix, frobeniusNormSafe } from './complex-matrix.js';
-import { eigh, eigvalsh, SUPPORT_TOLERANCE_FACTOR, UNIT_ROUNDOFF, type HermitianEigen } from './eigen.js';
-
-export { SUPPORT_TOLERANCE_FACTOR, UNIT_ROUNDOFF };
+import { eigh, eigvalsh, type HermitianEigen } from './eigen.js';
+import { BACKWARD_ERROR_CONSTANT, UNIT_ROUNDOFF } from './rounding.js';
 
 /**
  * The threshold c·n·u·‖A‖_F below which an eigenvalue of the Hermitian n×n matrix A is zero.
  * A backward-stable eigensolver returns the exact eigenvalues of A + E with ‖E‖_F ≲ n·u·‖A‖_F, so an
- * eigenvalue of that size cannot be told apart from zero; c = SUPPORT_TOLERANCE_FACTOR (64) adds room
+ * eigenvalue of that size cannot be told apart from zero; c = BACKWARD_ERROR_CONSTANT (64) adds room
  * for rounding in forming A itself (sums of Kraus conjugations, Kronecker products).
  */
 export function zeroEigenvalueTolerance(a: ComplexMatrix): number {
-  return SUPPORT_TOLERANCE_FACTOR * Math.max(a.rows, 1) * UNIT_ROUNDOFF * frobeniusNormSafe(a);
+  return BACKWARD_ERROR_CONSTANT * Math.max(a.rows, 1) * UNIT_ROUNDOFF * frobeniusNormSafe(a);
 }
 
 /** Eigendecomposition split into range (λ > tolerance) and kernel (|λ| ≤ tolerance) parts. */

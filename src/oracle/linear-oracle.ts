@@ -1,4 +1,4 @@
-// The semidefinite linear oracle (README, "Method" and "The bound"): min ⟨G, σ⟩ over {σ ⪰ 0, Tr σ = 1, ℓ ≤ Tr(Γσ) ≤ u},
+// The semidefinite linear oracle of docs/math.md §4: min ⟨G, σ⟩ over {σ ⪰ 0, Tr σ = 1, ℓ ≤ Tr(Γσ) ≤ u},
 // with dual bounds recomputed independently and Farkas certificates for infeasible constraint sets.
 import { ComplexMatrix } from '../linear-algebra/complex-matrix.js';
 import { eigh, eigvalsh } from '../linear-algebra/eigen.js';

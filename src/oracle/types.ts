@@ -1,5 +1,6 @@
-// Public types of the semidefinite linear oracle and its settings.
+// Public types of the semidefinite linear oracle (docs/math.md §4) and its settings.
 import type { ComplexMatrix } from '../linear-algebra/complex-matrix.js';
+import { FieldError } from '../problem/errors.js';
 
 /** lower ≤ Tr(operator·σ) ≤ upper; lower === upper is an equality; ±Infinity leaves a side open. operator is d×d Hermitian. */
 export interface OracleConstraint {
@@ -49,7 +50,7 @@ export const DEFAULT_ORACLE_SETTINGS: Readonly<OracleSettings> = Object.freeze({
  */
 export type OracleStatus = 'OPTIMAL' | 'INFEASIBLE' | 'ITERATION_LIMIT' | 'NUMERICAL_ERROR';
 
-/** Farkas certificate (README, "The bound"): y⁺, y⁻ ≥ 0, Σ(y⁺ + y⁻) = 1, violation = Σy⁺ℓ − Σy⁻u − λ_max(Σ yΓ) > 0. */
+/** Farkas certificate of docs/math.md §4: y⁺, y⁻ ≥ 0, Σ(y⁺ + y⁻) = 1, violation = Σy⁺ℓ − Σy⁻u − λ_max(Σ yΓ) > 0. */
 export interface InfeasibilityCertificate {
   multipliersLower: Float64Array;
   multipliersUpper: Float64Array;
@@ -75,14 +76,7 @@ export interface OracleResult {
 }
 
 /** Thrown for malformed oracle input; `field` is the path of the offending value. */
-export class OracleInputError extends Error {
-  readonly field: string;
-  constructor(field: string, reason: string) {
-    super(`${field}: ${reason}`);
-    this.name = 'OracleInputError';
-    this.field = field;
-  }
-}
+export class OracleInputError extends FieldError {}
 
 /** Relative size of the anti-Hermitian part above which an operator is rejected as not Hermitian. */
 export const HERMITICITY_TOLERANCE = 1e-10;

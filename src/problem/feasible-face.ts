@@ -9,6 +9,7 @@ import {
 } from '../linear-algebra/complex-matrix.js';
 import { eigh } from '../linear-algebra/eigen.js';
 import { rangeIsometry } from '../linear-algebra/support.js';
+import { BACKWARD_ERROR_CONSTANT, UNIT_ROUNDOFF } from '../linear-algebra/rounding.js';
 import { ValidationError } from './errors.js';
 import type { AnnouncementBranch, LinearConstraint, Problem } from './model.js';
 
@@ -16,8 +17,7 @@ import type { AnnouncementBranch, LinearConstraint, Problem } from './model.js';
  * Eigenvalues within EDGE_CONSTANT·n·u·‖Γ‖_F of a spectral edge count as the edge when deciding that a
  * constraint pins ρ to an eigenspace (the eigensolver's backward-error scale, with a generous constant).
  */
-export const EDGE_CONSTANT = 64;
-const UNIT_ROUNDOFF = 2 ** -53;
+export const EDGE_CONSTANT = BACKWARD_ERROR_CONSTANT;
 
 /**
  * An exposing direction found by the optimiser (src/oracle/face-exposure.ts) and re-checked here: signed

@@ -7,8 +7,9 @@ import {
   multiplyAdjointLeft,
 } from '../linear-algebra/complex-matrix.js';
 import { eigvalsh } from '../linear-algebra/eigen.js';
-import { ENTROPY_KINDS, type AnnouncementBranch, type EntropyKind, type EntropyRequest, type LinearConstraint, type Problem } from './model.js';
+import { type AnnouncementBranch, type EntropyRequest, type LinearConstraint, type Problem } from './model.js';
 import { ValidationError } from './errors.js';
+import { entropyRequestFrom, isUnspecifiedEntropy } from './entropy-request.js';
 import { JsonMessage, MATRIX_FIELDS, finiteNumber, matrixFromJson, unsignedInteger } from './json.js';
 import {
   idempotencyDefect,
@@ -130,11 +131,11 @@ export function parseProblemJson(json: unknown, limits: ValidationLimits = {}): 
   const entropyJson = message.get('entropy');
   const alphaJson = message.get('alpha');
   const alpha = alphaJson === undefined ? undefined : finiteNumber(alphaJson, 'alpha');
-  if (entropyJson === undefined || entropyJson === 'ENTROPY_KIND_UNSPECIFIED' || entropyJson === 0) {
+  if (isUnspecifiedEntropy(entropyJson)) {
     if (alpha !== undefined) throw new ValidationError('alpha', 'given without an entropy kind');
     return { problem };
   }
-  return { problem, request: entropyRequestFrom(entropyName(entropyJson), alpha) };
+  return { problem, request: entropyRequestFrom(entropyJson, alpha) };
 }
 
 function positiveDimension(value: unknown, field: string, maxDimension: number): number {
@@ -359,59 +360,11 @@ function requireCompleteness(branches: AnnouncementBranch[], d: number): void {
   }
 }
 
-/** Proto enum names of the entropy kinds, by kind. */
-export const ENTROPY_ENUM_NAMES: Record<EntropyKind, string> = {
-  'von-neumann': 'VON_NEUMANN',
-  'petz-up': 'PETZ_UP',
-  'petz-down': 'PETZ_DOWN',
-  'sandwiched-up': 'SANDWICHED_UP',
-};
-
-const ENUM_NUMBERS: readonly string[] = ['ENTROPY_KIND_UNSPECIFIED', 'VON_NEUMANN', 'PETZ_UP', 'PETZ_DOWN', 'SANDWICHED_UP'];
-
-// The JSON mapping writes enums by name but parsers also accept the number.
-function entropyName(value: unknown): string {
-  if (typeof value === 'number' && Number.isInteger(value) && value >= 0 && value < ENUM_NUMBERS.length) {
-    return ENUM_NUMBERS[value];
-  }
-  if (typeof value !== 'string') throw new ValidationError('entropy', 'must be a string naming an entropy kind');
-  return value;
-}
-
-/** Smallest and largest Rényi order accepted: α ∈ (1, 2], the range where the objectives are convex. */
-export const ALPHA_EXCLUSIVE_MINIMUM = 1;
-export const ALPHA_MAXIMUM = 2;
-
-/**
- * The entropy request for a kind written as 'von-neumann' | 'petz-up' | 'petz-down' | 'sandwiched-up' or as the
- * proto enum name (VON_NEUMANN, ...). Rényi kinds need α ∈ (1, 2]; von Neumann takes no α (α = 1 is accepted).
- */
-export function entropyRequestFrom(kind: string, alpha?: number): EntropyRequest {
-  const resolved = resolveKind(kind);
-  if (resolved === 'von-neumann') {
-    if (alpha !== undefined && alpha !== 1) {
-      throw new ValidationError('alpha', `must be omitted for von-neumann (got ${alpha}); it has no Rényi order`);
-    }
-    return { kind: resolved };
-  }
-  if (alpha === undefined) {
-    throw new ValidationError('alpha', `is required for ${resolved} (a Rényi order in (1, 2])`);
-  }
-  if (!Number.isFinite(alpha)) throw new ValidationError('alpha', `must be a finite number (got ${alpha})`);
-  if (!(alpha > ALPHA_EXCLUSIVE_MINIMUM && alpha <= ALPHA_MAXIMUM)) {
-    throw new ValidationError(
-      'alpha',
-      `must lie in (1, 2] for ${resolved}; Rényi objectives are not convex outside it`,
-    );
-  }
-  return { kind: resolved, alpha };
-}
-
-function resolveKind(kind: string): EntropyKind {
-  if ((ENTROPY_KINDS as readonly string[]).includes(kind)) return kind as EntropyKind;
-  for (const k of ENTROPY_KINDS) if (ENTROPY_ENUM_NAMES[k] === kind) return k;
-  if (kind === 'ENTROPY_KIND_UNSPECIFIED' || kind === '') {
-    throw new ValidationError('entropy', `must be specified (one of ${ENTROPY_KINDS.join(', ')})`);
-  }
-  throw new ValidationError('entropy', `unknown entropy kind ${JSON.stringify(kind)} (expected one of ${ENTROPY_KINDS.join(', ')})`);
-}
+// Entropy kinds and α: one module, one rule (re-exported here for existing importers).
+export {
+  ALPHA_EXCLUSIVE_MINIMUM,
+  ALPHA_MAXIMUM,
+  ENTROPY_ENUM_NAMES,
+  entropyRequestFrom,
+  resolveEntropyRequest,
+} from './entropy-request.js';

@@ -9,7 +9,8 @@ import { inputHash } from '../problem/hash.js';
 import { matrixToJson } from '../problem/json.js';
 import type { EntropyRequest, Problem } from '../problem/model.js';
 import { densityOperatorFromJson } from '../problem/state.js';
-import { entropyRequestFrom, parseProblemJson } from '../problem/validate.js';
+import { resolveEntropyRequest } from '../problem/entropy-request.js';
+import { parseProblemJson } from '../problem/validate.js';
 
 /**
  * A request that passed validation: everything the worker, the cache and the log line need. Plain data, so that
@@ -73,16 +74,7 @@ export function prepareSolve(input: SolveInput): PreparedSolve & { problem: Prob
   } catch (error) {
     problemField(error);
   }
-  let request: EntropyRequest;
-  if (input.entropy !== undefined) {
-    // The problem's own α applies only when the requested kind has an order at all.
-    const ordered = input.entropy !== 'von-neumann' && input.entropy !== 'VON_NEUMANN';
-    request = entropyRequestFrom(input.entropy, input.alpha ?? (ordered ? parsed.request?.alpha : undefined));
-  } else if (parsed.request !== undefined) {
-    request = input.alpha === undefined ? parsed.request : entropyRequestFrom(parsed.request.kind, input.alpha);
-  } else {
-    throw new ValidationError('entropy', 'must be given in the request or in the problem');
-  }
+  const request: EntropyRequest = resolveEntropyRequest({ kind: input.entropy, alpha: input.alpha }, parsed.request);
   const settings = checkSettings(input.settings ?? {});
   const prepared: PreparedSolve & { problem: Problem } = {
     problemJson: input.problemJson,

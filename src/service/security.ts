@@ -4,9 +4,10 @@ import { createHash, timingSafeEqual } from 'node:crypto';
 import { readFileSync } from 'node:fs';
 import * as grpc from '@grpc/grpc-js';
 import { ValidationError } from '../problem/errors.js';
+import { TOKEN_FILE_ENV } from './security-names.js';
 
-/** Environment variable naming the token file when `--token-file` is not given. */
-export const TOKEN_FILE_ENV = 'RENYI_BOUND_TOKEN_FILE';
+export { TOKEN_FILE_ENV };
+
 /** Metadata key of the bearer token (lowercase, as HTTP/2 requires). */
 export const AUTHORIZATION_KEY = 'authorization';
 /** Shortest token accepted: 16 printable characters (e.g. `openssl rand -hex 32` gives 64). */

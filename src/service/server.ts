@@ -24,6 +24,7 @@ import type { SolveReply } from './generated/renyibound/v1/SolveReply.js';
 import type { SolveRequest__Output } from './generated/renyibound/v1/SolveRequest.js';
 import type { VerifyReply } from './generated/renyibound/v1/VerifyReply.js';
 import type { VerifyRequest__Output } from './generated/renyibound/v1/VerifyRequest.js';
+import { listExamples } from './list-examples.js';
 import { PreparedRequestMemo, prepareSolve } from './prepare.js';
 import { loadServiceDefinition, loadServicePackage, SERVICE_NAME } from './proto.js';
 import { SolveCoordinator } from './solve-coordinator.js';
@@ -227,6 +228,7 @@ export class RenyiBoundServer {
       Solve: (call, callback) => void this.solve(call, callback),
       SolveBatch: (call) => void this.solveBatch(call),
       Verify: (call, callback) => this.verify(call, callback),
+      ListExamples: listExamples,
       KeyLength: (call, callback) => void handleKeyLength(call, callback, this.coordinator),
       DecoyRate: decoyRateHandler(),
     };

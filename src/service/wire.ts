@@ -2,7 +2,7 @@
 import type { Certificate, FarkasCertificate, MatrixJson, NoProgressCause, SolveResult, StopLimit } from '../result/types.js';
 import type { SolverSettings } from '../frank-wolfe/settings.js';
 import type { EntropyKind } from '../problem/model.js';
-import { ENTROPY_ENUM_NAMES } from '../problem/validate.js';
+import { ENTROPY_ENUM_NAMES, isUnspecifiedEntropy, UNSPECIFIED_ENTROPY_ENUM, entropyKindFrom } from '../problem/entropy-request.js';
 import type { Certificate as WireCertificate, Certificate__Output } from './generated/renyibound/v1/Certificate.js';
 import type { EntropyKind__Output } from './generated/renyibound/v1/EntropyKind.js';
 import type { Matrix, Matrix__Output } from './generated/renyibound/v1/Matrix.js';
@@ -15,20 +15,20 @@ import type { InfeasibilityCertificate__Output } from './generated/renyibound/v1
 /** A result as delivered by the service: the solver's result plus whether it came from the cache. */
 export type DeliveredResult = SolveResult & { fromCache: boolean };
 
-const UNSPECIFIED_ENTROPY = 'ENTROPY_KIND_UNSPECIFIED';
-
 /** 'von-neumann' → 'VON_NEUMANN'. */
 export function entropyKindToWire(kind: string): EntropyKind__Output {
   const name = ENTROPY_ENUM_NAMES[kind as EntropyKind];
-  return (name ?? UNSPECIFIED_ENTROPY) as EntropyKind__Output;
+  return (name ?? UNSPECIFIED_ENTROPY_ENUM) as EntropyKind__Output;
 }
 
 /** 'VON_NEUMANN' → 'von-neumann'; undefined for ENTROPY_KIND_UNSPECIFIED (the caller falls back to the problem's kind). */
 export function entropyKindFromWire(name: string | number | undefined): EntropyKind | undefined {
-  for (const [kind, enumName] of Object.entries(ENTROPY_ENUM_NAMES)) {
-    if (enumName === name) return kind as EntropyKind;
+  if (isUnspecifiedEntropy(name)) return undefined;
+  try {
+    return entropyKindFrom(name);
+  } catch {
+    return undefined;
   }
-  return undefined;
 }
 
 const LIMIT_TO_WIRE: Record<StopLimit, StopLimit__Output> = {

@@ -84,7 +84,7 @@ describe('tampered certificates are rejected', () => {
  * Deliberately perturbed computation: the same bound evaluated in a random unitary basis (Kraus K·U†,
  * constraints UΓU†, ρ' → Uρ'U†) is mathematically identical, so the spread must stay inside the reported margin.
  */
-describe('the floating-point margin covers rounding (MATH.md §5: conservative estimate, not interval arithmetic)', () => {
+describe('the floating-point margin covers rounding (docs/math.md §5: conservative estimate, not interval arithmetic)', () => {
   const cases: [string, Record<string, number>, EntropyKind, number | undefined][] = [
     ['bb84-entangled', { 'qber-z': 0.03, 'qber-x': 0.05 }, 'von-neumann', undefined],
     ['chsh-tested', { 'win-probability': 0.85 }, 'petz-up', 1.3],
@@ -109,7 +109,7 @@ describe('the floating-point margin covers rounding (MATH.md §5: conservative e
   }
 });
 
-describe('Farkas certificates of infeasible data are re-checked (MATH.md §4; Tsirelson 1980 for the CHSH case)', () => {
+describe('Farkas certificates of infeasible data are re-checked (docs/math.md §4; Tsirelson 1980 for the CHSH case)', () => {
   it('accepts the solver’s certificate for a CHSH win probability above cos²(π/8)', () => {
     const problem = example('chsh-tested', { 'win-probability': 0.9 });
     const result = solve(problem, { kind: 'von-neumann' });

@@ -6,7 +6,8 @@ import { Command } from 'commander';
 import { afterEach, describe, expect, it, vi } from 'vitest';
 import { register as registerEvaluate } from '../../src/cli/evaluate.js';
 import { register as registerExample } from '../../src/cli/example.js';
-import { buildExample } from '../../src/protocols/index.js';
+import { readJsonInput } from '../../src/cli/io.js';
+import { buildExample, EXAMPLES } from '../../src/protocols/index.js';
 import { problemFromJson } from '../../src/problem/validate.js';
 import { packageRoot } from '../../src/problem/proto-options.js';
 
@@ -94,7 +95,7 @@ describe('renyi-bound CLI: version, example, evaluate', { timeout: 30_000 }, () 
     expect((await cli(['example', 'nope'])).stderr).toContain('name: unknown example "nope"');
   });
 
-  it('evaluate gives 1 bit on |Φ+⟩ and 0 on the maximally mixed state for every kind (CHECKS.md: purity / full purification)', async () => {
+  it('evaluate gives 1 bit on |Φ+⟩ and 0 on the maximally mixed state for every kind (docs/checks.md: purity / full purification)', async () => {
     const problem = file('bb84.json', buildExample('bb84-entangled', {}));
     const phi = file('phi.json', PHI_PLUS);
     const mixed = file('mixed.json', MAXIMALLY_MIXED);
@@ -144,12 +145,65 @@ describe('renyi-bound CLI: version, example, evaluate', { timeout: 30_000 }, () 
     expect(notJsonRun.status).toBe(1);
     expect(notJsonRun.stderr).toMatch(/^renyi-bound: state: is not valid JSON \(/);
     const alphaAlone = await cli(['evaluate', problem, '--state', badTrace, '--alpha', '1.5']);
-    expect(alphaAlone.stderr).toBe('renyi-bound: alpha: given without --entropy\n');
+    expect(alphaAlone.stderr).toBe('renyi-bound: entropy: is required: name it with the command or request, or set entropy in the problem\n');
     const noEntropy = await cli(['evaluate', problem, '--state', badTrace]);
     expect(noEntropy.status).toBe(1);
-    expect(noEntropy.stderr).toBe('renyi-bound: entropy: is required: give --entropy or set entropy in the problem\n');
+    expect(noEntropy.stderr).toBe('renyi-bound: entropy: is required: name it with the command or request, or set entropy in the problem\n');
     const badProblem = await cli(['evaluate', '-', '--state', badTrace, '--entropy', 'von-neumann'], '{"dimensionA": 2}');
     expect(badProblem.status).toBe(1);
     expect(badProblem.stderr).toBe('renyi-bound: dimensionB: is required\n');
+  });
+});
+
+describe('renyi-bound CLI: the α rule, example --list, byte-order marks', { timeout: 30_000 }, () => {
+  // Values on |Φ+⟩ are 1 bit for every order (docs/checks.md: purity), so the order used is read from the output.
+  it('α: the one given with the command, else the problem’s, else an error for a Rényi kind', async () => {
+    const problem = file('petz-1.5.json', { ...buildExample('bb84-entangled', {}), entropy: 'PETZ_UP', alpha: 1.5 });
+    const phi = file('phi-rule.json', PHI_PLUS);
+    const problemAlpha = await cli(['evaluate', problem, '--state', phi, '--entropy', 'sandwiched-up']);
+    expect(problemAlpha.status, problemAlpha.stderr).toBe(0);
+    expect(JSON.parse(problemAlpha.stdout)).toMatchObject({ entropy: 'sandwiched-up', alpha: 1.5 });
+    const commandAlpha = await cli(['evaluate', problem, '--state', phi, '--alpha', '1.25']);
+    expect(JSON.parse(commandAlpha.stdout)).toMatchObject({ entropy: 'petz-up', alpha: 1.25 });
+    // Von Neumann has no order: the problem's α (for its own Rényi kind) does not apply.
+    const vonNeumann = await cli(['evaluate', problem, '--state', phi, '--entropy', 'von-neumann']);
+    expect(JSON.parse(vonNeumann.stdout)).toMatchObject({ entropy: 'von-neumann', alpha: null });
+    const plain = file('plain.json', buildExample('bb84-entangled', {}));
+    const missing = await cli(['evaluate', plain, '--state', phi, '--entropy', 'petz-down']);
+    expect(missing.status).toBe(1);
+    expect(missing.stderr).toBe('renyi-bound: alpha: is required for petz-down (a Rényi order in (1, 2])\n');
+  });
+
+  it('example --list prints every builder with its parameters, defaults and ranges, read from the definitions', async () => {
+    const run = await cli(['example', '--list']);
+    expect(run.status, run.stderr).toBe(0);
+    const listing = JSON.parse(run.stdout) as { examples: Array<{ name: string; parameters: Array<Record<string, unknown>> }> };
+    expect(listing.examples.map((e) => e.name)).toEqual(Object.keys(EXAMPLES));
+    for (const example of listing.examples) {
+      expect(example.parameters).toEqual(
+        EXAMPLES[example.name].parameters.map(({ name, description, defaultValue, minimum, maximum }) => ({
+          name,
+          description,
+          defaultValue,
+          minimum,
+          maximum,
+        })),
+      );
+      // Building with every listed default gives the builder's default problem.
+      const defaults = Object.fromEntries(example.parameters.map((p) => [p.name as string, p.defaultValue as number]));
+      expect(buildExample(example.name, defaults)).toEqual(buildExample(example.name));
+    }
+    expect((await cli(['example'])).stderr).toBe('renyi-bound: name: is required (or give --list to see every example)\n');
+    expect((await cli(['example', 'six-state', '--list'])).stderr).toBe('renyi-bound: --list: takes no example name\n');
+  });
+
+  it('a JSON file starting with a UTF-8 byte-order mark is read like one without', async () => {
+    const withMark = join(directory, 'bom.json');
+    writeFileSync(withMark, `\uFEFF${JSON.stringify(buildExample('bb84-entangled', {}))}`, 'utf8');
+    expect(readFileSync(withMark)[0]).toBe(0xef); // the mark is really there (EF BB BF)
+    const run = await cli(['evaluate', withMark, '--state', file('phi-bom.json', PHI_PLUS), '--entropy', 'von-neumann']);
+    expect(run.status, run.stderr).toBe(0);
+    expect(JSON.parse(run.stdout).value).toBeCloseTo(1, 10);
+    expect(readJsonInput(withMark, 'problem')).toEqual(buildExample('bb84-entangled', {}));
   });
 });

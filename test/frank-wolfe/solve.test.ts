@@ -67,7 +67,7 @@ describe('entanglement-based BB84 (Shor & Preskill, PRL 85, 441, 2000)', () => {
   });
 
   for (const kind of ['petz-up', 'petz-down', 'sandwiched-up'] as const) {
-    it(`${kind} at α = 1.5 matches a one-dimensional search over Bell-diagonal states (CHECKS.md: twirling symmetry)`, () => {
+    it(`${kind} at α = 1.5 matches a one-dimensional search over Bell-diagonal states (docs/checks.md: twirling symmetry)`, () => {
       const [qz, qx] = [0.03, 0.07];
       const problem = example('bb84-entangled', { 'qber-z': qz, 'qber-x': qx });
       const objective = createObjective(problem, { kind, alpha: 1.5 });

@@ -1,7 +1,8 @@
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import { ComplexMatrix, directSum, hermitianPart, kron } from '../../src/linear-algebra/complex-matrix.js';
-import { eigh, eighJacobi, eigvalsh } from '../../src/linear-algebra/eigen.js';
+import { eigh, eigvalsh } from '../../src/linear-algebra/eigen.js';
+import { eighJacobi } from '../../src/bench/reference-eigensolvers.js';
 import { randomDensity, randomHermitian, randomIsometry, seededRandom } from '../helpers/random.js';
 import { fromSpectrum, orthonormalityDefect, relativeResidual } from './eigen-helpers.js';
 

@@ -14,16 +14,12 @@ import { eigh } from '../../src/linear-algebra/eigen.js';
 import {
   DIVIDED_DIFFERENCE_RELATIVE_GAP,
   dividedDifferences,
-  entropyDensityFunction,
   frechetDerivative,
-  matrixLog,
-  matrixPower,
-  matrixSqrt,
-  naturalLogFunction,
   powerFunction,
   spectralFunction,
   type ScalarFunction,
 } from '../../src/linear-algebra/matrix-functions.js';
+import { entropyDensityFunction, matrixLog, matrixPower, matrixSqrt, naturalLogFunction } from './matrix-function-helpers.js';
 import { randomDensity, randomHermitian, randomIsometry, seededRandom } from '../helpers/random.js';
 import { fromSpectrum } from './eigen-helpers.js';
 import { fromMathjs, toMathjs } from './mathjs-bridge.js';

@@ -15,11 +15,10 @@ import {
   kernelIsometry,
   numericalRank,
   rangeIsometry,
-  SUPPORT_TOLERANCE_FACTOR,
   supportDecomposition,
-  UNIT_ROUNDOFF,
   zeroEigenvalueTolerance,
 } from '../../src/linear-algebra/support.js';
+import { BACKWARD_ERROR_CONSTANT, UNIT_ROUNDOFF } from '../../src/linear-algebra/rounding.js';
 import { randomComplexGaussian, randomDensity, randomIsometry, seededRandom } from '../helpers/random.js';
 import { orthonormalityDefect } from './eigen-helpers.js';
 
@@ -141,7 +140,7 @@ describe('range and kernel isometries', () => {
   });
 
   it('tolerance is c·n·u·‖A‖_F with the documented constant', () => {
-    expect(SUPPORT_TOLERANCE_FACTOR).toBe(64);
+    expect(BACKWARD_ERROR_CONSTANT).toBe(64);
     expect(UNIT_ROUNDOFF).toBe(2 ** -53);
     const a = randomDensity(5, seededRandom(6));
     expect(zeroEigenvalueTolerance(a)).toBeCloseTo(64 * 5 * 2 ** -53 * frobeniusNorm(a), 30);

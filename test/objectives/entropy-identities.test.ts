@@ -121,7 +121,7 @@ describe('order relations (Tomamichel 2016, ch. 5; Müller-Lennert et al. 2013)'
 });
 
 describe('branch scores and convexity', () => {
-  it('a constant score k shifts every kind by exactly −k (MATH.md §1 weights; entropy accumulation, common practice)', () => {
+  it('a constant score k shifts every kind by exactly −k (docs/math.md §1 weights; entropy accumulation, common practice)', () => {
     const rng = seededRandom(11);
     const k = 0.37;
     const plain = randomInstrumentProblem(2, 2, [3, 3], [2, 1], [0, 0], rng);

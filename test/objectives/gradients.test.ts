@@ -1,4 +1,4 @@
-// Gradients of every kind against central finite differences (relative error ≤ 1e-6; MATH.md §3, common practice).
+// Gradients of every kind against central finite differences (relative error ≤ 1e-6; docs/math.md §3, common practice).
 import { describe, expect, it } from 'vitest';
 import { addScaledInPlace, ComplexMatrix, frobeniusNorm, traceProductReal } from '../../src/linear-algebra/complex-matrix.js';
 import { createObjective } from '../../src/objectives/index.js';

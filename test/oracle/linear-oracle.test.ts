@@ -377,7 +377,7 @@ describe('LinearOracle: CHSH and Tsirelson’s bound', () => {
     const result = oracle.findFeasiblePoint();
     expect(result.status).toBe('INFEASIBLE');
     const certificate = result.infeasibility!;
-    // With y⁺ = 1 the violation is w − λ_max(W) = w − cos²(π/8) exactly (Farkas violation as defined in the README, "The bound").
+    // With y⁺ = 1 the violation is w − λ_max(W) = w − cos²(π/8) exactly (docs/math.md §4).
     expect(certificate.multipliersLower[0]).toBeCloseTo(1, 12);
     expect(certificate.violation).toBeCloseTo(w - tsirelson, 10);
     expect(referenceFarkasViolation(constraints, certificate.multipliersLower, certificate.multipliersUpper)).toBeCloseTo(w - tsirelson, 10);

@@ -50,7 +50,7 @@ describe('problemFromJson accepts and expands', () => {
     const entry = problem.constraints[6];
     expect(entry.lower).toBeCloseTo(0.04, 15);
     expect(entry.upper).toBeCloseTo(0.06, 15);
-    // P_0 ⊗ Q_1 = |01⟩⟨01|: the only nonzero entry is at index 0·2 + 1 (Kronecker convention, MATH.md §1).
+    // P_0 ⊗ Q_1 = |01⟩⟨01|: the only nonzero entry is at index 0·2 + 1 (Kronecker convention, docs/math.md §1).
     expect(Array.from(entry.operator.re)).toEqual([0, 0, 0, 0, 0, 1, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0]);
     expect(problem.branches[0].score).toBe(0);
     expect(problem.sourceMarginal?.re[0]).toBe(0.5);

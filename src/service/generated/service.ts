@@ -18,12 +18,16 @@ import type { DecoyRateReply as _renyibound_v1_DecoyRateReply, DecoyRateReply__O
 import type { DecoyRateRequest as _renyibound_v1_DecoyRateRequest, DecoyRateRequest__Output as _renyibound_v1_DecoyRateRequest__Output } from './renyibound/v1/DecoyRateRequest.js';
 import type { DecoySweepPoint as _renyibound_v1_DecoySweepPoint, DecoySweepPoint__Output as _renyibound_v1_DecoySweepPoint__Output } from './renyibound/v1/DecoySweepPoint.js';
 import type { EpsilonSplit as _renyibound_v1_EpsilonSplit, EpsilonSplit__Output as _renyibound_v1_EpsilonSplit__Output } from './renyibound/v1/EpsilonSplit.js';
+import type { ExampleInfo as _renyibound_v1_ExampleInfo, ExampleInfo__Output as _renyibound_v1_ExampleInfo__Output } from './renyibound/v1/ExampleInfo.js';
+import type { ExampleParameterInfo as _renyibound_v1_ExampleParameterInfo, ExampleParameterInfo__Output as _renyibound_v1_ExampleParameterInfo__Output } from './renyibound/v1/ExampleParameterInfo.js';
 import type { HonestStatistics as _renyibound_v1_HonestStatistics, HonestStatistics__Output as _renyibound_v1_HonestStatistics__Output } from './renyibound/v1/HonestStatistics.js';
 import type { InfeasibilityCertificate as _renyibound_v1_InfeasibilityCertificate, InfeasibilityCertificate__Output as _renyibound_v1_InfeasibilityCertificate__Output } from './renyibound/v1/InfeasibilityCertificate.js';
 import type { KeyLengthReply as _renyibound_v1_KeyLengthReply, KeyLengthReply__Output as _renyibound_v1_KeyLengthReply__Output } from './renyibound/v1/KeyLengthReply.js';
 import type { KeyLengthRequest as _renyibound_v1_KeyLengthRequest, KeyLengthRequest__Output as _renyibound_v1_KeyLengthRequest__Output } from './renyibound/v1/KeyLengthRequest.js';
 import type { KeyLengthTerm as _renyibound_v1_KeyLengthTerm, KeyLengthTerm__Output as _renyibound_v1_KeyLengthTerm__Output } from './renyibound/v1/KeyLengthTerm.js';
 import type { LinearConstraint as _renyibound_v1_LinearConstraint, LinearConstraint__Output as _renyibound_v1_LinearConstraint__Output } from './renyibound/v1/LinearConstraint.js';
+import type { ListExamplesReply as _renyibound_v1_ListExamplesReply, ListExamplesReply__Output as _renyibound_v1_ListExamplesReply__Output } from './renyibound/v1/ListExamplesReply.js';
+import type { ListExamplesRequest as _renyibound_v1_ListExamplesRequest, ListExamplesRequest__Output as _renyibound_v1_ListExamplesRequest__Output } from './renyibound/v1/ListExamplesRequest.js';
 import type { Matrix as _renyibound_v1_Matrix, Matrix__Output as _renyibound_v1_Matrix__Output } from './renyibound/v1/Matrix.js';
 import type { MinTradeoffFunction as _renyibound_v1_MinTradeoffFunction, MinTradeoffFunction__Output as _renyibound_v1_MinTradeoffFunction__Output } from './renyibound/v1/MinTradeoffFunction.js';
 import type { ObservedStatistics as _renyibound_v1_ObservedStatistics, ObservedStatistics__Output as _renyibound_v1_ObservedStatistics__Output } from './renyibound/v1/ObservedStatistics.js';
@@ -65,12 +69,16 @@ export interface ProtoGrpcType {
       DecoySweepPoint: MessageTypeDefinition<_renyibound_v1_DecoySweepPoint, _renyibound_v1_DecoySweepPoint__Output>
       EntropyKind: EnumTypeDefinition
       EpsilonSplit: MessageTypeDefinition<_renyibound_v1_EpsilonSplit, _renyibound_v1_EpsilonSplit__Output>
+      ExampleInfo: MessageTypeDefinition<_renyibound_v1_ExampleInfo, _renyibound_v1_ExampleInfo__Output>
+      ExampleParameterInfo: MessageTypeDefinition<_renyibound_v1_ExampleParameterInfo, _renyibound_v1_ExampleParameterInfo__Output>
       HonestStatistics: MessageTypeDefinition<_renyibound_v1_HonestStatistics, _renyibound_v1_HonestStatistics__Output>
       InfeasibilityCertificate: MessageTypeDefinition<_renyibound_v1_InfeasibilityCertificate, _renyibound_v1_InfeasibilityCertificate__Output>
       KeyLengthReply: MessageTypeDefinition<_renyibound_v1_KeyLengthReply, _renyibound_v1_KeyLengthReply__Output>
       KeyLengthRequest: MessageTypeDefinition<_renyibound_v1_KeyLengthRequest, _renyibound_v1_KeyLengthRequest__Output>
       KeyLengthTerm: MessageTypeDefinition<_renyibound_v1_KeyLengthTerm, _renyibound_v1_KeyLengthTerm__Output>
       LinearConstraint: MessageTypeDefinition<_renyibound_v1_LinearConstraint, _renyibound_v1_LinearConstraint__Output>
+      ListExamplesReply: MessageTypeDefinition<_renyibound_v1_ListExamplesReply, _renyibound_v1_ListExamplesReply__Output>
+      ListExamplesRequest: MessageTypeDefinition<_renyibound_v1_ListExamplesRequest, _renyibound_v1_ListExamplesRequest__Output>
       Matrix: MessageTypeDefinition<_renyibound_v1_Matrix, _renyibound_v1_Matrix__Output>
       MinTradeoffFunction: MessageTypeDefinition<_renyibound_v1_MinTradeoffFunction, _renyibound_v1_MinTradeoffFunction__Output>
       NoProgressCause: EnumTypeDefinition

@@ -8,6 +8,8 @@ import type { DecoyRateReply as _renyibound_v1_DecoyRateReply, DecoyRateReply__O
 import type { DecoyRateRequest as _renyibound_v1_DecoyRateRequest, DecoyRateRequest__Output as _renyibound_v1_DecoyRateRequest__Output } from '../../renyibound/v1/DecoyRateRequest.js';
 import type { KeyLengthReply as _renyibound_v1_KeyLengthReply, KeyLengthReply__Output as _renyibound_v1_KeyLengthReply__Output } from '../../renyibound/v1/KeyLengthReply.js';
 import type { KeyLengthRequest as _renyibound_v1_KeyLengthRequest, KeyLengthRequest__Output as _renyibound_v1_KeyLengthRequest__Output } from '../../renyibound/v1/KeyLengthRequest.js';
+import type { ListExamplesReply as _renyibound_v1_ListExamplesReply, ListExamplesReply__Output as _renyibound_v1_ListExamplesReply__Output } from '../../renyibound/v1/ListExamplesReply.js';
+import type { ListExamplesRequest as _renyibound_v1_ListExamplesRequest, ListExamplesRequest__Output as _renyibound_v1_ListExamplesRequest__Output } from '../../renyibound/v1/ListExamplesRequest.js';
 import type { SolveReply as _renyibound_v1_SolveReply, SolveReply__Output as _renyibound_v1_SolveReply__Output } from '../../renyibound/v1/SolveReply.js';
 import type { SolveRequest as _renyibound_v1_SolveRequest, SolveRequest__Output as _renyibound_v1_SolveRequest__Output } from '../../renyibound/v1/SolveRequest.js';
 import type { VerifyReply as _renyibound_v1_VerifyReply, VerifyReply__Output as _renyibound_v1_VerifyReply__Output } from '../../renyibound/v1/VerifyReply.js';
@@ -31,6 +33,15 @@ export interface RenyiBoundClient extends grpc.Client {
   keyLength(argument: _renyibound_v1_KeyLengthRequest, metadata: grpc.Metadata, callback: grpc.requestCallback<_renyibound_v1_KeyLengthReply__Output>): grpc.ClientUnaryCall;
   keyLength(argument: _renyibound_v1_KeyLengthRequest, options: grpc.CallOptions, callback: grpc.requestCallback<_renyibound_v1_KeyLengthReply__Output>): grpc.ClientUnaryCall;
   keyLength(argument: _renyibound_v1_KeyLengthRequest, callback: grpc.requestCallback<_renyibound_v1_KeyLengthReply__Output>): grpc.ClientUnaryCall;
+  
+  ListExamples(argument: _renyibound_v1_ListExamplesRequest, metadata: grpc.Metadata, options: grpc.CallOptions, callback: grpc.requestCallback<_renyibound_v1_ListExamplesReply__Output>): grpc.ClientUnaryCall;
+  ListExamples(argument: _renyibound_v1_ListExamplesRequest, metadata: grpc.Metadata, callback: grpc.requestCallback<_renyibound_v1_ListExamplesReply__Output>): grpc.ClientUnaryCall;
+  ListExamples(argument: _renyibound_v1_ListExamplesRequest, options: grpc.CallOptions, callback: grpc.requestCallback<_renyibound_v1_ListExamplesReply__Output>): grpc.ClientUnaryCall;
+  ListExamples(argument: _renyibound_v1_ListExamplesRequest, callback: grpc.requestCallback<_renyibound_v1_ListExamplesReply__Output>): grpc.ClientUnaryCall;
+  listExamples(argument: _renyibound_v1_ListExamplesRequest, metadata: grpc.Metadata, options: grpc.CallOptions, callback: grpc.requestCallback<_renyibound_v1_ListExamplesReply__Output>): grpc.ClientUnaryCall;
+  listExamples(argument: _renyibound_v1_ListExamplesRequest, metadata: grpc.Metadata, callback: grpc.requestCallback<_renyibound_v1_ListExamplesReply__Output>): grpc.ClientUnaryCall;
+  listExamples(argument: _renyibound_v1_ListExamplesRequest, options: grpc.CallOptions, callback: grpc.requestCallback<_renyibound_v1_ListExamplesReply__Output>): grpc.ClientUnaryCall;
+  listExamples(argument: _renyibound_v1_ListExamplesRequest, callback: grpc.requestCallback<_renyibound_v1_ListExamplesReply__Output>): grpc.ClientUnaryCall;
   
   Solve(argument: _renyibound_v1_SolveRequest, metadata: grpc.Metadata, options: grpc.CallOptions, callback: grpc.requestCallback<_renyibound_v1_SolveReply__Output>): grpc.ClientUnaryCall;
   Solve(argument: _renyibound_v1_SolveRequest, metadata: grpc.Metadata, callback: grpc.requestCallback<_renyibound_v1_SolveReply__Output>): grpc.ClientUnaryCall;
@@ -62,6 +73,8 @@ export interface RenyiBoundHandlers extends grpc.UntypedServiceImplementation {
   
   KeyLength: grpc.handleUnaryCall<_renyibound_v1_KeyLengthRequest__Output, _renyibound_v1_KeyLengthReply>;
   
+  ListExamples: grpc.handleUnaryCall<_renyibound_v1_ListExamplesRequest__Output, _renyibound_v1_ListExamplesReply>;
+  
   Solve: grpc.handleUnaryCall<_renyibound_v1_SolveRequest__Output, _renyibound_v1_SolveReply>;
   
   SolveBatch: grpc.handleServerStreamingCall<_renyibound_v1_BatchRequest__Output, _renyibound_v1_BatchItem>;
@@ -73,6 +86,7 @@ export interface RenyiBoundHandlers extends grpc.UntypedServiceImplementation {
 export interface RenyiBoundDefinition extends grpc.ServiceDefinition {
   DecoyRate: MethodDefinition<_renyibound_v1_DecoyRateRequest, _renyibound_v1_DecoyRateReply, _renyibound_v1_DecoyRateRequest__Output, _renyibound_v1_DecoyRateReply__Output>
   KeyLength: MethodDefinition<_renyibound_v1_KeyLengthRequest, _renyibound_v1_KeyLengthReply, _renyibound_v1_KeyLengthRequest__Output, _renyibound_v1_KeyLengthReply__Output>
+  ListExamples: MethodDefinition<_renyibound_v1_ListExamplesRequest, _renyibound_v1_ListExamplesReply, _renyibound_v1_ListExamplesRequest__Output, _renyibound_v1_ListExamplesReply__Output>
   Solve: MethodDefinition<_renyibound_v1_SolveRequest, _renyibound_v1_SolveReply, _renyibound_v1_SolveRequest__Output, _renyibound_v1_SolveReply__Output>
   SolveBatch: MethodDefinition<_renyibound_v1_BatchRequest, _renyibound_v1_BatchItem, _renyibound_v1_BatchRequest__Output, _renyibound_v1_BatchItem__Output>
   Verify: MethodDefinition<_renyibound_v1_VerifyRequest, _renyibound_v1_VerifyReply, _renyibound_v1_VerifyRequest__Output, _renyibound_v1_VerifyReply__Output>
