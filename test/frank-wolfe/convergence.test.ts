@@ -88,7 +88,12 @@ describe('boundary optima of the examples certify', () => {
     });
   }
 
-  for (const request of [{ kind: 'von-neumann' }, { kind: 'petz-down', alpha: 1.1 }, { kind: 'petz-up', alpha: 1.1 }] as EntropyRequest[]) {
+  for (const request of [
+    { kind: 'von-neumann' },
+    { kind: 'petz-down', alpha: 1.1 },
+    { kind: 'petz-up', alpha: 1.1 },
+    { kind: 'sandwiched-up', alpha: 1.1 },
+  ] as EntropyRequest[]) {
     it(`BB84 at Q = 1e-4, ${label(request)}: certified, within the gap of 1 − h(Q) from below (Shor & Preskill)`, () => {
       const q = 1e-4;
       const problem = example('bb84-entangled', { 'qber-z': q, 'qber-x': q });
