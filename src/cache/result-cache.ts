@@ -1,4 +1,5 @@
 // The tiered result cache: memory → SQLite → Redis, with verification on every untrusted read and every store.
+import { SOLVER_VERSION } from '../certificate/version.js';
 import type { SolveResult } from '../result/types.js';
 import type { CacheLayer } from './layer.js';
 
@@ -22,6 +23,7 @@ export interface CacheEvent {
  */
 export function isCacheable(result: SolveResult): boolean {
   if (result.certificate === null || result.certifiedLowerBound === null) return false;
+  if (result.certificate.solverVersion !== SOLVER_VERSION) return false;
   if (result.status === 'CERTIFIED') return true;
   return result.status === 'LIMIT_REACHED' && (result.limit === 'iterations' || result.limit === 'no-progress');
 }
@@ -71,7 +73,10 @@ export class ResultCache {
     return undefined;
   }
 
-  /** Stores a freshly computed result in every tier, but only when it is cacheable and its certificate verifies. */
+  /**
+   * Stores a freshly computed result in every tier, but only when it is cacheable and `check` (the full result
+   * verifier: lower bound, upper bound at the final state, its feasibility, the gap and the status) accepts it.
+   */
   async store(inputHash: string, result: SolveResult, check: ResultCheck): Promise<boolean> {
     if (!isCacheable(result) || result.inputHash !== inputHash) return false;
     const verdict = check(result);
@@ -102,6 +107,11 @@ export class ResultCache {
     }
     if (parsed.inputHash !== inputHash) {
       this.onEvent({ kind: 'rejected', layer: layer.name, inputHash, reason: 'entry carries another input hash' });
+      return undefined;
+    }
+    // The version also enters the input hash; this catches entries written under a hash of the same name.
+    if (parsed.certificate?.solverVersion !== SOLVER_VERSION) {
+      this.onEvent({ kind: 'rejected', layer: layer.name, inputHash, reason: `entry written by solver ${parsed.certificate?.solverVersion}` });
       return undefined;
     }
     if (!layer.trusted) {

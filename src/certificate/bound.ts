@@ -91,9 +91,13 @@ export function linearizationBound(
     // An open side (±∞) carries a zero multiplier; skipping it avoids 0·∞.
     if (yLower !== 0) dualConstant += yLower * constraint.lower;
     if (yUpper !== 0) dualConstant -= yUpper * constraint.upper;
-    statisticalSlack += ((yLower + yUpper) * (constraint.upper - constraint.lower)) / 2;
-    multiplierWeight +=
-      (yLower + yUpper) * (frobeniusNorm(constraint.operator) + Math.abs(constraint.lower) + Math.abs(constraint.upper));
+    // A one-sided constraint has no tolerance interval to pay for, and only its finite bound enters the scale.
+    const lower = Number.isFinite(constraint.lower) ? constraint.lower : 0;
+    const upper = Number.isFinite(constraint.upper) ? constraint.upper : 0;
+    if (Number.isFinite(constraint.lower) && Number.isFinite(constraint.upper)) {
+      statisticalSlack += ((yLower + yUpper) * (constraint.upper - constraint.lower)) / 2;
+    }
+    multiplierWeight += (yLower + yUpper) * (frobeniusNorm(constraint.operator) + Math.abs(lower) + Math.abs(upper));
   });
   const smallestEigenvalue = eigvalsh(shifted)[0];
   const gradientInnerProduct = eulerInnerProduct(objective, objectiveValue);

@@ -1,12 +1,16 @@
 // Independent re-check of a certificate: no optimiser code is imported here (a test enforces it).
-import { addScaledInPlace, ComplexMatrix, frobeniusNorm } from '../linear-algebra/complex-matrix.js';
 import { eigvalsh } from '../linear-algebra/eigen.js';
 import { createObjective } from '../objectives/index.js';
-import { feasibleFace, restrictToFace } from '../problem/feasible-face.js';
+import { reduceProblem } from '../problem/inactive-bounds.js';
+import { farkasTest } from '../problem/farkas.js';
 import { inputHash } from '../problem/hash.js';
+import { matrixFromJson } from '../problem/json.js';
+import { FEASIBILITY_TOLERANCE, relativeConstraintViolation } from '../problem/violation.js';
 import type { EntropyRequest, Problem } from '../problem/model.js';
 import type { Certificate, FarkasCertificate, SolveResult } from '../result/types.js';
 import { certificateBreakdown, readStoredLinearization, type StoredLinearization } from './bound.js';
+import { trivialLowerBound } from './trivial-bound.js';
+import { upperBoundAt } from './upper-bound.js';
 import { SOLVER_VERSION } from './version.js';
 
 export interface VerificationReport {
@@ -28,15 +32,91 @@ function nonNegativeFinite(values: unknown, length: number): values is number[] 
   );
 }
 
-/** Recomputes the bound of a result's certificate from the problem; rejects hash mismatches and overclaims. */
-export function verifyResult(
-  problem: Problem,
-  request: EntropyRequest,
-  result: Pick<SolveResult, 'certificate' | 'certifiedLowerBound' | 'inputHash'>,
-): VerificationReport {
-  const certificate = result.certificate;
-  if (!certificate) return reject('the result carries no certificate');
-  return verifyCertificate(problem, request, certificate, result.certifiedLowerBound);
+/** The fields of a result the verifier reads; absent optional fields are claims not made, and are not checked. */
+export type ResultClaims = Pick<SolveResult, 'certificate' | 'certifiedLowerBound' | 'inputHash'> &
+  Partial<
+    Pick<
+      SolveResult,
+      'status' | 'upperBound' | 'gap' | 'finalState' | 'trivialBoundUsed' | 'relativeConstraintViolation' | 'infeasibility'
+    >
+  >;
+
+/** Stated and recomputed numbers agree when they differ by at most this, relative to 1 + |value|. */
+export const REPRODUCTION_TOLERANCE = 1e-12;
+
+/**
+ * Re-checks everything a reader of a result relies on: the lower bound from its certificate (or the trivial bound
+ * when the result says it used it), the upper bound recomputed as F at finalState together with that state's
+ * feasibility, the gap, and the status those numbers allow. INFEASIBLE results get their Farkas certificate checked.
+ */
+export function verifyResult(problem: Problem, request: EntropyRequest, result: ResultClaims): VerificationReport {
+  if (result.status === 'INFEASIBLE') {
+    if (!result.infeasibility) return reject('an INFEASIBLE result must carry its Farkas certificate (infeasibility)');
+    return verifyInfeasibility(problem, result.infeasibility);
+  }
+  if (result.status === 'NUMERICAL_ERROR' || result.status === 'FEASIBILITY_UNDECIDED') {
+    return reject(`a ${result.status} result states no bound`);
+  }
+  const lower = result.certifiedLowerBound;
+  if (typeof lower !== 'number' || !Number.isFinite(lower)) return reject('the result states no finite lower bound');
+  const floor = trivialLowerBound(problem);
+  let report: VerificationReport;
+  if (result.trivialBoundUsed === true) {
+    if (lower !== floor) return reject(`the result says it used the trivial bound, which is ${floor}, not ${lower}`);
+    if (result.certificate) {
+      const certified = verifyCertificate(problem, request, result.certificate, null);
+      if (!certified.valid) return certified;
+      if (result.certificate.claimedBound >= floor) {
+        return reject(`the certificate's bound ${result.certificate.claimedBound} is not below the trivial bound ${floor}: it should be reported`);
+      }
+    } else if (result.status === 'CERTIFIED') {
+      return reject('a CERTIFIED result needs a certificate');
+    }
+    report = { valid: true, certifiedLowerBound: floor, reason: 'trivial bound verified' };
+  } else {
+    if (!result.certificate) return reject('the result carries no certificate');
+    report = verifyCertificate(problem, request, result.certificate, lower);
+    if (!report.valid) return report;
+    if (lower < floor) return reject(`the bound ${lower} is below the trivial bound ${floor}, which holds for every state`);
+  }
+  const upper = checkUpperBound(problem, request, result, lower);
+  if (upper !== null) return reject(upper, report.certifiedLowerBound);
+  return report;
+}
+
+/** Null when the stated upper bound, gap and status hold up; otherwise the reason they do not. */
+function checkUpperBound(problem: Problem, request: EntropyRequest, result: ResultClaims, lower: number): string | null {
+  const { upperBound, gap, status } = result;
+  if (upperBound === undefined && gap === undefined) return status === 'CERTIFIED' ? 'a CERTIFIED result needs an upper bound and a gap' : null;
+  if (upperBound === null || upperBound === undefined) {
+    if (gap !== null && gap !== undefined) return 'a gap is stated without an upper bound';
+    return status === 'CERTIFIED' ? 'a CERTIFIED result needs an upper bound' : null;
+  }
+  if (!result.finalState) return 'an upper bound is stated without the final state it was computed at';
+  if (typeof gap !== 'number' || gap !== upperBound - lower) return `the gap ${gap} is not upperBound − certifiedLowerBound = ${upperBound - lower}`;
+  if (!(gap >= 0)) return `the gap ${gap} is negative`;
+  let state;
+  try {
+    state = matrixFromJson(result.finalState, 'finalState');
+  } catch (error) {
+    return (error as Error).message;
+  }
+  const d = problem.dimensionA * problem.dimensionB;
+  if (state.rows !== d || state.cols !== d) return `finalState must be ${d}×${d}`;
+  const violation = relativeConstraintViolation(problem, state);
+  if (!(violation <= FEASIBILITY_TOLERANCE)) {
+    return `finalState violates the constraints by ${violation} (relative to ‖Γ‖_F), above the feasibility tolerance ${FEASIBILITY_TOLERANCE}`;
+  }
+  const { face, restricted } = reduceProblem(problem);
+  const recomputed = upperBoundAt(face, restricted, request, result.finalState);
+  if (recomputed === null) return 'F is not finite at finalState';
+  if (Math.abs(recomputed - upperBound) > REPRODUCTION_TOLERANCE * (1 + Math.abs(upperBound))) {
+    return `upperBound ${upperBound} is not F at finalState (recomputed ${recomputed})`;
+  }
+  if (status === 'CERTIFIED' && result.certificate && !(gap <= result.certificate.settings.gapTolerance)) {
+    return `CERTIFIED with gap ${gap} above the requested ${result.certificate.settings.gapTolerance}`;
+  }
+  return null;
 }
 
 export function verifyCertificate(
@@ -61,8 +141,7 @@ export function verifyCertificate(
     return reject(`reported bound ${reportedBound} differs from the certificate's claimed bound ${claimed}`);
   }
 
-  const face = feasibleFace(problem);
-  const restricted = restrictToFace(problem, face);
+  const { face, restricted } = reduceProblem(problem);
   const objective = createObjective(restricted, request);
   const references = certificate.referenceStates;
   if (objective.request.kind === 'sandwiched-up' && (!references || references.length !== objective.supports.length)) {
@@ -88,9 +167,6 @@ export function verifyCertificate(
   return { valid: true, certifiedLowerBound: breakdown.lowerBound, reason: 'certificate verified' };
 }
 
-/** Relative size below which a recomputed Farkas violation is not trusted as positive (rounding of λ_max). */
-const FARKAS_ROUNDING_FACTOR = 64;
-
 /**
  * Re-checks a Farkas certificate of infeasibility: y⁺, y⁻ ≥ 0 with Σy⁺ℓ − Σy⁻u − λ_max(Σ(y⁺−y⁻)Γ) > 0 on the
  * feasible face recomputed from the problem (every feasible ρ lies on it, so no feasible ρ exists at all).
@@ -103,23 +179,8 @@ export function verifyInfeasibility(
   if (!nonNegativeFinite(infeasibility.multipliersLower, m) || !nonNegativeFinite(infeasibility.multipliersUpper, m)) {
     return reject(`Farkas multipliers must be ${m} finite non-negative numbers each`);
   }
-  const face = feasibleFace(problem);
-  const restricted = restrictToFace(problem, face);
-  const combination = ComplexMatrix.zeros(face.dimension);
-  let bound = 0;
-  let scale = 0;
-  restricted.constraints.forEach((c, i) => {
-    const yLower = infeasibility.multipliersLower[i];
-    const yUpper = infeasibility.multipliersUpper[i];
-    if (yLower === 0 && yUpper === 0) return;
-    addScaledInPlace(combination, c.operator, yLower - yUpper);
-    if (yLower !== 0) bound += yLower * c.lower;
-    if (yUpper !== 0) bound -= yUpper * c.upper;
-    scale += (yLower + yUpper) * (frobeniusNorm(c.operator) + Math.abs(c.lower) + Math.abs(c.upper));
-  });
-  const largest = eigvalsh(combination)[face.dimension - 1];
-  const violation = bound - largest;
-  const rounding = FARKAS_ROUNDING_FACTOR * face.dimension * 2 ** -53 * scale;
+  const { face, restricted } = reduceProblem(problem);
+  const { violation, rounding } = farkasTest(restricted.constraints, face.dimension, infeasibility.multipliersLower, infeasibility.multipliersUpper);
   if (!(violation > rounding)) {
     return reject(`Farkas violation ${violation} is not above the rounding level ${rounding}`);
   }

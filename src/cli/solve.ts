@@ -16,6 +16,7 @@ export const EXIT_CODES: Record<SolveResult['status'], number> = {
   LIMIT_REACHED: 0,
   INFEASIBLE: 2,
   NUMERICAL_ERROR: 3,
+  FEASIBILITY_UNDECIDED: 4,
 };
 
 interface SolveOptions {

@@ -2,7 +2,7 @@
 // problem alone (no optimisation) and says whether the claimed bound holds; for an INFEASIBLE result it re-checks
 // the Farkas certificate instead.
 import { Command } from 'commander';
-import { verifyInfeasibility, verifyResult, type VerificationReport } from '../certificate/verify.js';
+import { verifyResult, type VerificationReport } from '../certificate/verify.js';
 import type { SolveResult } from '../result/types.js';
 import { ValidationError, entropyRequestFrom, problemFromJson } from '../problem/validate.js';
 import { printJson, readJsonInput, withInputErrors } from './io.js';
@@ -17,18 +17,20 @@ export function register(program: Command): void {
       withInputErrors((resultSource: string, options: { problem: string }) => {
         const result = readJsonInput(resultSource, 'result') as Partial<SolveResult> | null;
         if (result === null || typeof result !== 'object') throw new ValidationError('result', 'must be a JSON object');
+        if ('dimensionA' in result || 'branches' in result || 'dimension_a' in result) {
+          throw new ValidationError(
+            'result',
+            `${resultSource} is a problem file, not a solve result: solve it first (renyi-bound solve ${resultSource} > result.json), ` +
+              'then verify result.json --problem with the problem file',
+          );
+        }
         const problem = problemFromJson(readJsonInput(options.problem, 'problem'));
         let report: VerificationReport;
         try {
-          if (result.status === 'INFEASIBLE') {
-            if (!result.infeasibility) throw new ValidationError('result.infeasibility', 'is missing for an INFEASIBLE result');
-            report = verifyInfeasibility(problem, result.infeasibility);
-            printJson(report);
-            process.exitCode = report.valid ? 0 : 1;
-            return;
-          }
-          const request = entropyRequestFrom(String(result.entropy), result.alpha ?? undefined);
+          const request =
+            result.status === 'INFEASIBLE' ? { kind: 'von-neumann' as const } : entropyRequestFrom(String(result.entropy), result.alpha ?? undefined);
           report = verifyResult(problem, request, {
+            ...result,
             certificate: result.certificate ?? null,
             certifiedLowerBound: result.certifiedLowerBound ?? null,
             inputHash: String(result.inputHash),

@@ -2,8 +2,8 @@
 // minus error-correction leakage on every detected signal pulse (docs/decoy.md, "Key rate").
 import type { Highs } from 'highs';
 import { solve } from '../frank-wolfe/solve.js';
-import type { SolveResult } from '../result/types.js';
 import type { SolverSettings } from '../frank-wolfe/settings.js';
+import type { SolveResult } from '../result/types.js';
 import type { EntropyRequest } from '../problem/model.js';
 import { problemFromJson } from '../problem/validate.js';
 import { BASES, basisBounds, DEFAULT_CUTOFF, type Basis, type BasisBounds, type IntensityObservation } from './bounds.js';

@@ -55,6 +55,7 @@ function considerCandidate(
 
 /** A neighbour of the iterate needs its own gradient and therefore its own oracle answer. */
 function certifyNeighbour(setup: SolverSetup, state: SolverState, point: ComplexMatrix): void {
+  setup.clock.checkpoint();
   const e = evaluateSafely(setup.objective, point);
   if (!e) return;
   const split = setup.oracle.stripEqualitySpan(e.gradient);

@@ -1,10 +1,11 @@
 // Result assembly: the certified result from the best linearization, and the results that carry no bound.
-import type { ComplexMatrix } from '../linear-algebra/complex-matrix.js';
-import type { OracleResult } from '../oracle/index.js';
 import { liftFromFace } from '../problem/feasible-face.js';
-import { matrixToJson } from '../problem/json.js';
-import { maxConstraintViolation } from '../problem/violation.js';
+import { matrixFromJson, matrixToJson } from '../problem/json.js';
+import type { Problem } from '../problem/model.js';
+import { constraintViolations, FEASIBILITY_TOLERANCE } from '../problem/violation.js';
 import { certificateBreakdown, referenceFromSupport } from '../certificate/bound.js';
+import { trivialLowerBound } from '../certificate/trivial-bound.js';
+import { upperBoundAt } from '../certificate/upper-bound.js';
 import { SOLVER_VERSION } from '../certificate/version.js';
 import type { Certificate, SolveResult } from '../result/types.js';
 import type { CertifiedPoint, ResultBase, RunClock, SolverSetup, SolverState } from './state.js';
@@ -28,20 +29,11 @@ export function resultWithoutBound(base: ResultBase, clock: RunClock, message: s
   };
 }
 
-/** Cancelled before any feasible point existed: no bound can be given. */
-export function cancelledBeforeStart(base: ResultBase, clock: RunClock): SolveResult {
-  return {
-    ...resultWithoutBound(base, clock, 'cancelled before a feasible starting point was found', 0),
-    status: 'LIMIT_REACHED',
-    limit: 'cancelled',
-  };
-}
-
-/** INFEASIBLE with the oracle's Farkas certificate. */
+/** INFEASIBLE with a Farkas certificate (from the pre-processing, the oracle or the equalities). */
 export function infeasibleResult(
   base: ResultBase,
   clock: RunClock,
-  farkas: NonNullable<OracleResult['infeasibility']>,
+  farkas: { multipliersLower: ArrayLike<number>; multipliersUpper: ArrayLike<number>; violation: number; dominantConstraints: string[] },
 ): SolveResult {
   return {
     ...resultWithoutBound(
@@ -60,58 +52,125 @@ export function infeasibleResult(
   };
 }
 
-/** The certified (or limited) result: claims exactly what a verifier recomputes from the stored numbers. */
+/**
+ * The result of a run that has a bound. The lower bound is the certificate's (exactly what a verifier recomputes
+ * from the stored numbers), raised to the trivial bound when lower or missing. The upper bound is F at the final
+ * state when that state meets every constraint within FEASIBILITY_TOLERANCE; CERTIFIED needs it, and 0 ≤ gap ≤ request.
+ */
 export function assembleResult(setup: SolverSetup, state: SolverState): SolveResult {
-  const { base, clock, face, restricted, objective, settings } = setup;
-  if (state.best === null) return resultWithoutBound(base, clock, 'no finite certified bound could be computed', state.iterations);
-  const certified: CertifiedPoint = state.best;
-  const upperBound = state.evaluation.value;
-  const stored = {
-    linearizationState: matrixToJson(liftFromFace(face, certified.state)),
-    referenceStates: certified.reference
-      ? objective.supports.map((support, c) => matrixToJson(referenceFromSupport(support, certified.reference![c])))
-      : undefined,
-    multipliersLower: Array.from(certified.multipliersLower),
-    multipliersUpper: Array.from(certified.multipliersUpper),
-  };
-  const claimed = certificateBreakdown(face, restricted, objective, stored);
-  if (!Number.isFinite(claimed.lowerBound)) {
-    return resultWithoutBound(base, clock, 'the stored certificate does not give a finite bound', state.iterations);
+  const { base, clock, face, restricted, objective, settings, problem } = setup;
+  const trivialBound = trivialLowerBound(problem);
+  let certificate: Certificate | null = null;
+  let certifiedBound = -Infinity;
+  let margin: number | null = null;
+  let statisticalSlack: number | null = null;
+  if (state.best !== null) {
+    const certified: CertifiedPoint = state.best;
+    const stored = {
+      linearizationState: matrixToJson(liftFromFace(face, certified.state)),
+      referenceStates: certified.reference
+        ? objective.supports.map((support, c) => matrixToJson(referenceFromSupport(support, certified.reference![c])))
+        : undefined,
+      multipliersLower: Array.from(certified.multipliersLower),
+      multipliersUpper: Array.from(certified.multipliersUpper),
+    };
+    const claimed = certificateBreakdown(face, restricted, objective, stored);
+    if (Number.isFinite(claimed.lowerBound)) {
+      certifiedBound = claimed.lowerBound;
+      margin = claimed.margin;
+      statisticalSlack = claimed.statisticalSlack;
+      certificate = {
+        inputHash: base.inputHash,
+        solverVersion: SOLVER_VERSION,
+        settings: { gapTolerance: settings.gapTolerance, maxIterations: settings.maxIterations },
+        entropy: base.entropy,
+        alpha: base.alpha,
+        ...stored,
+        claimedBound: certifiedBound,
+        toleranceMargin: claimed.margin,
+      };
+    }
   }
-  const lowerBound = claimed.lowerBound;
-  const gap = upperBound - lowerBound;
-  const certificate: Certificate = {
-    inputHash: base.inputHash,
-    solverVersion: SOLVER_VERSION,
-    settings: { gapTolerance: settings.gapTolerance, maxIterations: settings.maxIterations },
-    entropy: base.entropy,
-    alpha: base.alpha,
-    ...stored,
-    claimedBound: lowerBound,
-    toleranceMargin: claimed.margin,
-  };
-  const finalState: ComplexMatrix = liftFromFace(face, state.x);
-  const status = gap <= settings.gapTolerance ? 'CERTIFIED' : 'LIMIT_REACHED';
-  const limit = state.limit;
+  // Without a certificate only a limit leaves a result with a bound (the trivial one); anything else failed.
+  if (certificate === null && state.limit === undefined) {
+    return resultWithoutBound(base, clock, 'no finite certified bound could be computed', state.iterations);
+  }
+  const trivialBoundUsed = !(certifiedBound >= trivialBound);
+  const lowerBound = trivialBoundUsed ? trivialBound : certifiedBound;
+
+  const finalState = matrixToJson(liftFromFace(face, state.x));
+  const lifted = matrixFromJson(finalState, 'finalState');
+  const violations = constraintViolations(problem, lifted);
+  const relativeViolation = violations.relative;
+  const feasible = relativeViolation <= FEASIBILITY_TOLERANCE;
+  const value = feasible ? upperBoundAt(face, restricted, setup.entropy, finalState) : null;
+  // F at a state within tolerance can dip below a valid lower bound only by rounding; such an upper bound says nothing.
+  const upperBound = value !== null && value >= lowerBound ? value : null;
+  const gap = upperBound === null ? null : upperBound - lowerBound;
+  const status = gap !== null && gap <= settings.gapTolerance ? 'CERTIFIED' : 'LIMIT_REACHED';
+  // A run that stopped certified but whose final state fails the feasibility check hit no limit: none is named.
+  const limit = status === 'LIMIT_REACHED' ? state.limit : undefined;
+  const stopped = limit === undefined ? 'the run ended' : `stopped by the ${limit} limit`;
+  const notes = [...setup.notes];
+  if (trivialBoundUsed) {
+    notes.push(
+      certificate === null
+        ? `no certificate was computed before the run stopped (${limit ?? 'no limit'}): the bound is the trivial bound ${trivialBound}, which holds for every state`
+        : `the certificate's bound ${certifiedBound} lies below the trivial bound ${trivialBound}, which holds for every state and is reported instead`,
+    );
+  }
+  let message: string | undefined;
+  if (status === 'LIMIT_REACHED') {
+    message =
+      upperBound !== null
+        ? `${stopped} with gap ${(gap as number).toExponential(3)} above the requested ${settings.gapTolerance}`
+        : !feasible
+          ? `${stopped}; the final state violates the constraints by ${relativeViolation.toExponential(3)} ` +
+            `(relative to ‖Γ‖_F, tolerance ${FEASIBILITY_TOLERANCE}), so no upper bound is stated`
+          : `${stopped}; F at the final state is not above the lower bound within rounding, so no upper bound is stated`;
+  }
   return {
     ...base,
     status,
-    limit: status === 'LIMIT_REACHED' ? (limit ?? 'iterations') : undefined,
-    noProgressCause: status === 'LIMIT_REACHED' && limit === 'no-progress' ? state.noProgressCause : undefined,
-    message:
-      status === 'LIMIT_REACHED'
-        ? `stopped by the ${limit ?? 'iteration'} limit with gap ${gap.toExponential(3)} above the requested ${settings.gapTolerance}`
-        : undefined,
+    limit,
+    noProgressCause: limit === 'no-progress' ? state.noProgressCause : undefined,
+    message,
     certifiedLowerBound: lowerBound,
     upperBound,
     gap,
-    toleranceMargin: claimed.margin,
-    statisticalSlack: claimed.statisticalSlack,
-    maxConstraintViolation: maxConstraintViolation(setup.problem, finalState),
+    toleranceMargin: margin,
+    statisticalSlack,
+    maxConstraintViolation: violations.absolute,
+    relativeConstraintViolation: relativeViolation,
+    feasibilityTolerance: FEASIBILITY_TOLERANCE,
+    trivialBound,
+    trivialBoundUsed,
+    notes: notes.length > 0 ? notes : undefined,
     iterations: state.iterations,
     seconds: clock.elapsedMs() / 1000,
     oracleSeconds: clock.oracleSeconds,
     certificate,
-    finalState: matrixToJson(finalState),
+    finalState,
+  };
+}
+
+/** Interrupted before an iterate existed: the trivial bound is the best valid bound there is. */
+export function interruptedBeforeStart(base: ResultBase, clock: RunClock, problem: Problem, limit: 'time' | 'cancelled'): SolveResult {
+  const trivialBound = trivialLowerBound(problem);
+  return {
+    ...resultWithoutBound(
+      base,
+      clock,
+      limit === 'time'
+        ? 'the time limit passed during set-up, before a feasible starting point was found'
+        : 'cancelled before a feasible starting point was found',
+      0,
+    ),
+    status: 'LIMIT_REACHED',
+    limit,
+    certifiedLowerBound: trivialBound,
+    trivialBound,
+    trivialBoundUsed: true,
+    notes: [`the bound is the trivial bound ${trivialBound}, which holds for every state`],
   };
 }

@@ -180,6 +180,8 @@ function lineStep(setup: SolverSetup, state: SolverState, direction: ComplexMatr
   const trials = new Map<number, ObjectiveEvaluation & { gradient: ComplexMatrix }>();
   const search = derivativeLineSearch(
     (step) => {
+      // One evaluation can take seconds at d = 256: the deadline is polled before each (the iterate is unchanged).
+      setup.clock.checkpoint();
       const point = state.x.clone();
       addScaledInPlace(point, direction, step);
       const e = evaluateSafely(setup.objective, point);

@@ -5,55 +5,82 @@ import { eigvalsh } from '../linear-algebra/eigen.js';
 import { numericalRank } from '../linear-algebra/support.js';
 import { createObjective, normaliseRequest } from '../objectives/index.js';
 import { LinearOracle } from '../oracle/index.js';
-import { compressToFace, feasibleFace, restrictToFace, type FeasibleFace } from '../problem/feasible-face.js';
+import { compressToFace, liftFromFace, type FeasibleFace } from '../problem/feasible-face.js';
+import { equalityFarkas, farkasTest } from '../problem/farkas.js';
+import { reduceProblem } from '../problem/inactive-bounds.js';
 import { inputHash } from '../problem/hash.js';
 import type { EntropyRequest, Problem } from '../problem/model.js';
-import { maxConstraintViolation } from '../problem/violation.js';
+import { FEASIBILITY_TOLERANCE, maxConstraintViolation, relativeConstraintViolation } from '../problem/violation.js';
 import { SOLVER_VERSION } from '../certificate/version.js';
 import type { SolveResult } from '../result/types.js';
 import { ActiveSet } from './active-set.js';
-import { cancelledBeforeStart, infeasibleResult, resultWithoutBound } from './finish.js';
+import { infeasibleResult, resultWithoutBound } from './finish.js';
 import { TangentQuasiNewton } from './quasi-newton.js';
 import { resolveSolverSettings, TUNING, type SolveControl, type SolverSettings } from './settings.js';
-import { evaluateSafely, RunClock, type ResultBase, type SolverSetup, type SolverState } from './state.js';
+import { evaluateSafely, type ResultBase, type RunClock, type SolverSetup, type SolverState } from './state.js';
 
 export type SetUpOutcome = { ready: true; setup: SolverSetup; state: SolverState } | { ready: false; result: SolveResult };
 
+/** Set-up of a run; SolveInterrupted thrown by a checkpoint is caught by the caller. */
 export function setUp(
   problem: Problem,
   request: EntropyRequest,
   partialSettings: Partial<SolverSettings>,
   control: SolveControl,
+  clock: RunClock,
+  base: ResultBase,
 ): SetUpOutcome {
-  const clock = new RunClock();
   const settings = resolveSolverSettings(partialSettings);
   const entropy = normaliseRequest(request);
-  const base: ResultBase = {
-    entropy: entropy.kind,
-    alpha: entropy.kind === 'von-neumann' ? null : entropy.alpha,
-    inputHash: inputHash(problem, entropy, settings, SOLVER_VERSION),
-  };
   const done = (result: SolveResult): SetUpOutcome => ({ ready: false, result });
+  const { checkpoint } = clock;
 
-  const face = feasibleFace(problem);
-  const restricted = restrictToFace(problem, face);
+  checkpoint();
+  const { active, face, restricted } = reduceProblem(problem, checkpoint);
+  if (active.infeasibility) return done(infeasibleResult(base, clock, active.infeasibility));
   const oracle = new LinearOracle(face.dimension, restricted.constraints, {
     relativeAccuracy: TUNING.initialOracleAccuracy,
+    checkpoint,
   });
-  // Set-up can take a while on large problems: a cancelled request stops before each expensive phase too.
-  if (control.isCancelled?.()) return done(cancelledBeforeStart(base, clock));
   const feasible = clock.timeOracle(() => oracle.findFeasiblePoint());
+  const undecided = (message: string) =>
+    done({ ...resultWithoutBound(base, clock, message, 0), status: 'FEASIBILITY_UNDECIDED' });
   if (feasible.status === 'INFEASIBLE' && feasible.infeasibility) {
-    return done(infeasibleResult(base, clock, feasible.infeasibility));
+    const f = feasible.infeasibility;
+    const test = farkasTest(restricted.constraints, face.dimension, f.multipliersLower, f.multipliersUpper);
+    if (test.violation > test.rounding) return done(infeasibleResult(base, clock, f));
+    return undecided(
+      `the constraints look inconsistent, but the Farkas violation ${test.violation} is not above its rounding level ` +
+        `${test.rounding}: double precision cannot decide whether any density operator meets them`,
+    );
   }
-  if (!feasible.point) {
+  // The oracle's point must meet the constraints; if it does not, the data contradict themselves somewhere the
+  // oracle did not prove, and the equalities alone often do.
+  // Measured on H_A ⊗ H_B: operators restricted to the face can be tiny, and their relative violations mere noise.
+  const pointViolation = feasible.point
+    ? relativeConstraintViolation(active.problem, liftFromFace(face, feasible.point))
+    : Infinity;
+  if (!(pointViolation <= FEASIBILITY_TOLERANCE)) {
+    checkpoint();
+    const farkas = equalityFarkas(restricted.constraints, face.dimension);
+    if (farkas) {
+      const dominant = dominantLabels(restricted, farkas.multipliersLower, farkas.multipliersUpper);
+      return done(infeasibleResult(base, clock, { ...farkas, dominantConstraints: dominant }));
+    }
+    if (feasible.point) {
+      return undecided(
+        `the best point found violates the constraints by ${pointViolation.toExponential(3)} (relative to ‖Γ‖_F, ` +
+          `tolerance ${FEASIBILITY_TOLERANCE}) and no Farkas certificate of infeasibility verifies above rounding`,
+      );
+    }
     return done(resultWithoutBound(base, clock, `no feasible starting point: ${feasible.message ?? feasible.status}`, 0));
   }
+  const interiorPoint = feasible.point as ComplexMatrix;
 
-  if (control.isCancelled?.()) return done(cancelledBeforeStart(base, clock));
+  checkpoint();
   const objective = createObjective(restricted, entropy);
-  const interiorPoint = feasible.point;
   const x = startingPoint(oracle, restricted, face, interiorPoint, control.warmStart);
+  checkpoint();
   const evaluation = evaluateSafely(objective, x);
   if (!evaluation) {
     const rank = numericalRank(interiorPoint);
@@ -76,6 +103,7 @@ export function setUp(
     oracle,
     objective,
     interiorPoint,
+    notes: [...active.dropped, ...quantityNotes(entropy)],
     intervalTangents: restricted.constraints.map((c) => (c.lower === c.upper ? null : oracle.stripEqualitySpan(c.operator).stripped)),
   };
   const state: SolverState = {
@@ -105,6 +133,37 @@ export function setUp(
     eigenOf: null,
   };
   return { ready: true, setup, state };
+}
+
+/** The fields every result repeats (also for results of runs interrupted during set-up). */
+export function resultBase(problem: Problem, request: EntropyRequest, partialSettings: Partial<SolverSettings>): ResultBase {
+  const settings = resolveSolverSettings(partialSettings);
+  const entropy = normaliseRequest(request);
+  return {
+    entropy: entropy.kind,
+    alpha: entropy.kind === 'von-neumann' ? null : entropy.alpha,
+    inputHash: inputHash(problem, entropy, settings, SOLVER_VERSION),
+  };
+}
+
+/** Properties of the requested quantity itself that a reader would otherwise take for a solver failure. */
+function quantityNotes(entropy: Required<EntropyRequest>): string[] {
+  if (entropy.kind !== 'petz-down' || entropy.alpha !== 2) return [];
+  return [
+    'Petz-down at α = 2 evaluates Q̄_0(X‖Z(X)) = Tr(Π_X·Z(X)) with Π_X the support projector of X: for a classical ' +
+      'key given a full-rank eavesdropper marginal it equals Tr X, so the entropy is always 0 (minus the score ' +
+      'shift); this is a property of the quantity, not a solver failure',
+  ];
+}
+
+/** Labels of the constraints with the largest Farkas multipliers. */
+function dominantLabels(problem: Problem, lower: ArrayLike<number>, upper: ArrayLike<number>): string[] {
+  return problem.constraints
+    .map((c, i) => ({ label: c.label, size: lower[i] + upper[i] }))
+    .filter((e) => e.size > 0)
+    .sort((a, b) => b.size - a.size)
+    .slice(0, 4)
+    .map((e) => e.label);
 }
 
 /** The oracle's interior point, or a warm start projected onto the equalities and pulled inside the cone. */

@@ -29,14 +29,37 @@ export interface CertifiedPoint {
 /** The fields every result repeats. */
 export type ResultBase = Pick<SolveResult, 'entropy' | 'alpha' | 'inputHash'>;
 
-/** Wall time since the start and the share of it spent in the oracle. */
+/** Thrown by the run's checkpoint when the time limit passes or the request is cancelled; caught by solve(). */
+export class SolveInterrupted extends Error {
+  constructor(readonly limit: 'time' | 'cancelled') {
+    super(limit === 'time' ? 'time limit reached' : 'cancelled');
+    this.name = 'SolveInterrupted';
+  }
+}
+
+/** Wall time since the start, the share of it spent in the oracle, and the checkpoint every phase polls. */
 export class RunClock {
   readonly started = performance.now();
   oracleSeconds = 0;
+  /** Elapsed milliseconds after which the checkpoint throws (the time limit, extended once for the last certificate). */
+  deadlineMs: number;
+
+  constructor(
+    readonly timeLimitMs: number,
+    private readonly isCancelled: (() => boolean) | undefined,
+  ) {
+    this.deadlineMs = timeLimitMs;
+  }
 
   elapsedMs(): number {
     return performance.now() - this.started;
   }
+
+  /** Called between expensive steps of every phase; throws SolveInterrupted to abort. */
+  readonly checkpoint = (): void => {
+    if (this.isCancelled?.()) throw new SolveInterrupted('cancelled');
+    if (this.elapsedMs() > this.deadlineMs) throw new SolveInterrupted('time');
+  };
 
   /** Runs one oracle call and adds its time to oracleSeconds. */
   timeOracle<T>(call: () => T): T {
@@ -58,8 +81,10 @@ export interface SolverSetup {
   base: ResultBase;
   clock: RunClock;
   face: FeasibleFace;
-  /** The problem on the feasible face (what the oracle and the objective see). */
+  /** The problem on the feasible face, inactive bounds dropped (what the oracle and the objective see). */
   restricted: Problem;
+  /** Remarks for the result (dropped bounds, properties of the requested quantity). */
+  notes: string[];
   oracle: LinearOracle;
   objective: Objective;
   /** The oracle's analytic centre: the mixing partner for better-conditioned certificates. */

@@ -1,13 +1,14 @@
 // The input hash: SHA-256 over a canonical encoding of everything that changes the answer of a solve.
 //
-// Encoding (version tag "renyi-bound/input-hash/v1"): a sequence of tokens, each followed by "\n":
+// Encoding (version tag "renyi-bound/input-hash/v2"): a sequence of tokens, each followed by "\n":
 //   tag; "dimensionA" n; "dimensionB" n;
 //   "sourceMarginal" then "none" or a matrix;
-//   "constraints" count, then per constraint (in order): matrix, lower, upper;
+//   "constraints" count, then per constraint (in order): matrix, lower, upper (an absent side is "none");
 //   "branches" count, then per branch (in order): "kraus" count, matrices; "keyProjectors" count, matrices; score;
 //   "entropy" kind (string); "alpha" double, or "null" for von Neumann; "gapTolerance" double;
 //   "maxIterations" double; "solverVersion" string.
-// A matrix is "matrix" rows cols, then rows·cols real parts, then rows·cols imaginary parts (row-major).
+// A matrix is "matrix" rows cols, then one token of 8·2·rows·cols raw bytes: the big-endian binary64 bits of the
+// rows·cols real parts, then of the rows·cols imaginary parts (row-major, −0 written as +0).
 // Every double is the 16 lower-case hex digits of its IEEE-754 binary64 bits, big-endian, with −0 written as +0,
 // so the encoding is exact and independent of decimal formatting. Dimensions, shapes and counts are decimal integers. Strings are their UTF-8
 // byte length, ":", and the string. Labels and descriptions are excluded (they change no number); constraint and
@@ -22,7 +23,7 @@ export interface HashedSettings {
   maxIterations: number;
 }
 
-export const INPUT_HASH_VERSION = 'renyi-bound/input-hash/v1';
+export const INPUT_HASH_VERSION = 'renyi-bound/input-hash/v2';
 
 const bits = new DataView(new ArrayBuffer(8));
 
@@ -49,6 +50,12 @@ class CanonicalWriter {
     this.token(doubleHex(x));
   }
 
+  /** A constraint bound: an absent side (±Infinity) is a token no double can produce. */
+  bound(x: number): void {
+    if (Number.isFinite(x)) this.double(x);
+    else this.token('none');
+  }
+
   string(s: string): void {
     this.token(`${Buffer.byteLength(s, 'utf8')}:${s}`);
   }
@@ -57,8 +64,14 @@ class CanonicalWriter {
     this.token('matrix');
     this.integer(m.rows);
     this.integer(m.cols);
-    for (const x of m.re) this.double(x);
-    for (const x of m.im) this.double(x);
+    // Raw big-endian binary64 bytes: d = 256 problems carry millions of entries, too many for one token each.
+    const bytes = new DataView(new ArrayBuffer(8 * (m.re.length + m.im.length)));
+    let offset = 0;
+    for (const part of [m.re, m.im]) {
+      for (let k = 0; k < part.length; k++, offset += 8) bytes.setFloat64(offset, part[k] === 0 ? 0 : part[k], false);
+    }
+    this.hash.update(new Uint8Array(bytes.buffer));
+    this.hash.update('\n');
   }
 
   digest(): string {
@@ -86,8 +99,8 @@ export function inputHash(
   w.integer(problem.constraints.length);
   for (const c of problem.constraints) {
     w.matrix(c.operator);
-    w.double(c.lower);
-    w.double(c.upper);
+    w.bound(c.lower);
+    w.bound(c.upper);
   }
   w.token('branches');
   w.integer(problem.branches.length);

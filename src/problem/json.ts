@@ -16,8 +16,10 @@ export interface MatrixJson {
 export interface LinearConstraintJson {
   label?: string;
   operator: MatrixJson;
-  lower: number;
-  upper: number;
+  /** Absent: no lower bound. */
+  lower?: number;
+  /** Absent: no upper bound. */
+  upper?: number;
 }
 
 /** renyibound.v1.ObservedStatistics in JSON. */
@@ -137,6 +139,12 @@ export class JsonMessage {
     if (value === undefined) return '';
     if (typeof value !== 'string') throw new ValidationError(this.field(name), 'must be a string');
     return value;
+  }
+
+  /** A proto3 `optional` double: undefined when absent. */
+  optionalNumber(name: string): number | undefined {
+    const value = this.get(name);
+    return value === undefined ? undefined : finiteNumber(value, this.field(name));
   }
 
   /** A double field; absent means 0 (the proto3 default) unless `required`. */

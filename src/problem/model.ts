@@ -5,12 +5,14 @@ import type { HonestStatistics } from '../finite-size/honest-statistics.js';
 export type EntropyKind = 'von-neumann' | 'petz-up' | 'petz-down' | 'sandwiched-up';
 export const ENTROPY_KINDS: readonly EntropyKind[] = ['von-neumann', 'petz-up', 'petz-down', 'sandwiched-up'];
 
-/** lower ≤ Tr(operator·ρ) ≤ upper; an equality has lower === upper. */
+/** lower ≤ Tr(operator·ρ) ≤ upper; an equality has lower === upper; a side without a bound is ∓Infinity. */
 export interface LinearConstraint {
   label: string;
   operator: ComplexMatrix; // d×d Hermitian on H_A ⊗ H_B
   lower: number;
   upper: number;
+  /** Enclosure [min, max] of the operator's spectrum when validation knows it cheaply (products of POVM spectra). */
+  spectrum?: { min: number; max: number };
 }
 
 /** A public announcement c: Kraus operators K_{c,j}: H → H_c and the key map {Z_{c,k}} on H_c. */

@@ -6,6 +6,7 @@ import {
   kron,
   multiplyAdjointLeft,
 } from '../linear-algebra/complex-matrix.js';
+import { eigvalsh } from '../linear-algebra/eigen.js';
 import { ENTROPY_KINDS, type AnnouncementBranch, type EntropyKind, type EntropyRequest, type LinearConstraint, type Problem } from './model.js';
 import { ValidationError } from './errors.js';
 import { JsonMessage, MATRIX_FIELDS, finiteNumber, matrixFromJson, unsignedInteger } from './json.js';
@@ -25,6 +26,8 @@ export { ValidationError } from './errors.js';
 export interface ValidationLimits {
   /** Largest joint dimension dimensionA·dimensionB and branch output dimension accepted (default 256). */
   maxDimension?: number;
+  /** Called between constraints, observations and branches (large problems take a while); throws to abort. */
+  checkpoint?: () => void;
 }
 
 /** A validated problem and, when the JSON named one, the entropy request it carries. */
@@ -86,9 +89,11 @@ export function parseProblemJson(json: unknown, limits: ValidationLimits = {}): 
     );
   }
 
-  const constraints: LinearConstraint[] = message
-    .list('constraints')
-    .map((c, i) => constraintFromJson(c, `constraints[${i}]`, d));
+  const checkpoint = limits.checkpoint ?? (() => {});
+  const constraints: LinearConstraint[] = message.list('constraints').map((c, i) => {
+    checkpoint();
+    return constraintFromJson(c, `constraints[${i}]`, d);
+  });
 
   let sourceMarginal: ComplexMatrix | undefined;
   const marginalJson = message.get('sourceMarginal');
@@ -98,6 +103,7 @@ export function parseProblemJson(json: unknown, limits: ValidationLimits = {}): 
   }
 
   message.list('observations').forEach((o, k) => {
+    checkpoint();
     constraints.push(...observationConstraints(o, `observations[${k}]`, dimensionA, dimensionB));
   });
 
@@ -105,7 +111,11 @@ export function parseProblemJson(json: unknown, limits: ValidationLimits = {}): 
   if (branchList.length === 0) {
     throw new ValidationError('branches', 'must hold at least one announcement branch');
   }
-  const branches = branchList.map((b, c) => branchFromJson(b, `branches[${c}]`, d, maxDimension));
+  const branches = branchList.map((b, c) => {
+    checkpoint();
+    return branchFromJson(b, `branches[${c}]`, d, maxDimension);
+  });
+  checkpoint();
   requireCompleteness(branches, d);
 
   const description = message.string('description');
@@ -135,12 +145,13 @@ function positiveDimension(value: unknown, field: string, maxDimension: number):
 }
 
 function constraintFromJson(json: unknown, path: string, d: number): LinearConstraint {
-  const message = JsonMessage.read(json, path, CONSTRAINT_FIELDS);
+  const message = JsonMessage.read(json, path, CONSTRAINT_FIELDS, ['lower', 'upper']);
   const operatorField = message.field('operator');
   const operator = matrixFromJson(message.required('operator'), operatorField);
   requireShape(operator, d, d, operatorField, ' (dimensionA·dimensionB square)');
-  const lower = message.number('lower', true);
-  const upper = message.number('upper', true);
+  // An absent side is no bound at all (proto3 field presence): a one-sided constraint.
+  const lower = message.optionalNumber('lower') ?? -Infinity;
+  const upper = message.optionalNumber('upper') ?? Infinity;
   if (lower > upper) throw new ValidationError(message.field('lower'), `must not exceed upper (${lower} > ${upper})`);
   const label = message.string('label');
   return { label: label === '' ? path : label, operator: requireHermitian(operator, operatorField), lower, upper };
@@ -245,6 +256,8 @@ function observationConstraints(json: unknown, path: string, dimensionA: number,
 
   const label = message.string('label');
   const prefix = label === '' ? path : label;
+  const spectraA = povmA.map(spectrumOf);
+  const spectraB = povmB.map(spectrumOf);
   const constraints: LinearConstraint[] = [];
   for (let x = 0; x < povmA.length; x++) {
     for (let y = 0; y < povmB.length; y++) {
@@ -254,10 +267,23 @@ function observationConstraints(json: unknown, path: string, dimensionA: number,
         operator: kron(povmA[x], povmB[y]),
         lower: p - tolerance,
         upper: p + tolerance,
+        spectrum: kronSpectrum(spectraA[x], spectraB[y]),
       });
     }
   }
   return constraints;
+}
+
+/** Smallest and largest eigenvalue of a small Hermitian operator (a POVM element). */
+function spectrumOf(element: ComplexMatrix): { min: number; max: number } {
+  const values = eigvalsh(element);
+  return { min: values[0], max: values[values.length - 1] };
+}
+
+/** The eigenvalues of P ⊗ Q are the products a·b, so its extremes are among the products of the extremes. */
+function kronSpectrum(a: { min: number; max: number }, b: { min: number; max: number }): { min: number; max: number } {
+  const corners = [a.min * b.min, a.min * b.max, a.max * b.min, a.max * b.max];
+  return { min: Math.min(...corners), max: Math.max(...corners) };
 }
 
 function branchFromJson(json: unknown, path: string, d: number, maxDimension: number): AnnouncementBranch {

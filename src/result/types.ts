@@ -4,8 +4,13 @@ import type { MatrixJson } from '../problem/json.js';
 
 export type { MatrixJson };
 
-/** CERTIFIED: gap ≤ requested; LIMIT_REACHED: a valid bound, gap above the request; INFEASIBLE: Farkas certificate; NUMERICAL_ERROR: no bound. */
-export type SolveStatus = 'CERTIFIED' | 'LIMIT_REACHED' | 'INFEASIBLE' | 'NUMERICAL_ERROR';
+/**
+ * CERTIFIED: a verified bound, a final state meeting every constraint within the feasibility tolerance and
+ * 0 ≤ gap ≤ requested; LIMIT_REACHED: a valid bound, the rest not (yet) met; INFEASIBLE: Farkas certificate;
+ * FEASIBILITY_UNDECIDED: the data are inconsistent, or nearly so, at a level double precision cannot decide
+ * (no bound); NUMERICAL_ERROR: no bound.
+ */
+export type SolveStatus = 'CERTIFIED' | 'LIMIT_REACHED' | 'INFEASIBLE' | 'FEASIBILITY_UNDECIDED' | 'NUMERICAL_ERROR';
 /** no-progress: the certified gap stopped shrinking (floating-point margin or oracle accuracy dominates it). */
 export type StopLimit = 'iterations' | 'time' | 'cancelled' | 'no-progress';
 /**
@@ -58,12 +63,22 @@ export interface SolveResult {
   toleranceMargin: number | null;
   statisticalSlack: number | null;
   maxConstraintViolation: number | null;
+  /** max_i violation_i/‖Γ_i‖_F of the final state (absolute for trace and positivity); null without a state. */
+  relativeConstraintViolation?: number | null;
+  /** The state behind upperBound meets the constraints when relativeConstraintViolation ≤ this. */
+  feasibilityTolerance?: number;
+  /** The bound that holds for every state: −max_c f(c) (0 without scores). */
+  trivialBound?: number;
+  /** True when certifiedLowerBound is trivialBound because the certificate's bound was lower (or missing). */
+  trivialBoundUsed?: boolean;
+  /** Remarks a reader should see (dropped inactive bounds, properties of the quantity itself). */
+  notes?: string[];
   iterations: number;
   seconds: number;
   oracleSeconds: number;
   inputHash: string;
   certificate: Certificate | null;
   infeasibility?: FarkasCertificate;
-  /** The final feasible iterate (for warm starts). */
+  /** The final iterate (for warm starts); upperBound is F here when it meets the constraints. */
   finalState?: MatrixJson;
 }

@@ -166,6 +166,11 @@ export function resultToWire(result: SolveResult, fromCache: boolean): WireSolve
     infeasibility: result.infeasibility ?? null,
     finalState: result.finalState === undefined ? null : matrixToWire(result.finalState),
     fromCache,
+    relativeConstraintViolation: optionalNumber(result.relativeConstraintViolation),
+    feasibilityTolerance: result.feasibilityTolerance ?? 0,
+    trivialBound: result.trivialBound ?? 0,
+    trivialBoundUsed: result.trivialBoundUsed ?? false,
+    notes: result.notes ?? [],
   };
 }
 
@@ -199,5 +204,12 @@ export function resultFromWire(wire: SolveResult__Output): DeliveredResult {
   if (wire.message !== '') result.message = wire.message;
   if (wire.infeasibility !== null) result.infeasibility = infeasibilityFromWire(wire.infeasibility);
   if (wire.finalState !== null) result.finalState = matrixFromWire(wire.finalState);
+  if (wire.relativeConstraintViolation != null) result.relativeConstraintViolation = wire.relativeConstraintViolation;
+  if (wire.feasibilityTolerance !== 0) result.feasibilityTolerance = wire.feasibilityTolerance;
+  if (wire.status === 'CERTIFIED' || wire.status === 'LIMIT_REACHED') {
+    result.trivialBound = wire.trivialBound;
+    result.trivialBoundUsed = wire.trivialBoundUsed;
+  }
+  if (wire.notes.length > 0) result.notes = [...wire.notes];
   return result;
 }

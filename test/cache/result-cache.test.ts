@@ -6,6 +6,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { SolveResult } from '../../src/result/types.js';
+import { SOLVER_VERSION } from '../../src/certificate/version.js';
 import { MemoryCacheLayer } from '../../src/cache/memory.js';
 import { RedisCacheLayer } from '../../src/cache/redis.js';
 import { type CacheEvent, isCacheable, ResultCache, type ResultCheck } from '../../src/cache/result-cache.js';
@@ -29,6 +30,8 @@ function sampleResult(inputHash: string, bound = 0.5): SolveResult {
     inputHash,
     certificate: {
       inputHash,
+      solverVersion: SOLVER_VERSION,
+      settings: { gapTolerance: 1e-6, maxIterations: 100 },
       entropy: 'von-neumann',
       alpha: null,
       linearizationState: { rows: 1, cols: 1, re: [1] },

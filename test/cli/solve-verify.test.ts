@@ -59,6 +59,21 @@ describe('renyi-bound solve / verify', () => {
     expect(JSON.parse(checked.stdout).reason).toMatch(/infeasibility verified/);
   });
 
+  it('verify given a problem file instead of a result says what the file is', () => {
+    const r = run(['verify', problemPath, '--problem', problemPath]);
+    expect(r.status).toBe(1);
+    expect(r.stderr).toMatch(/is a problem file, not a solve result/);
+  });
+
+  it('verify rejects a result whose upper bound was edited', () => {
+    const solved = JSON.parse(run(['solve', problemPath, '--entropy', 'von-neumann']).stdout);
+    solved.upperBound += 1e-3;
+    solved.gap = solved.upperBound - solved.certifiedLowerBound;
+    const rejected = run(['verify', file('edited-upper.json', solved), '--problem', problemPath]);
+    expect(rejected.status).toBe(1);
+    expect(JSON.parse(rejected.stdout).reason).toMatch(/not F at finalState/);
+  });
+
   it('exits 1 and names the field for bad input', () => {
     const alpha = run(['solve', problemPath, '--entropy', 'petz-up', '--alpha', '3']);
     expect(alpha.status).toBe(1);

@@ -158,19 +158,31 @@ describe('limits are results', () => {
   });
 
   it('a cancellation flag raised during the iterations stops the run with LIMIT_REACHED/cancelled and a valid bound', () => {
+    // Count the polls of a full run, then raise the flag halfway through them.
+    let total = 0;
+    solve(problem, { kind: 'petz-up', alpha: 1.5 }, { gapTolerance: 1e-12, maxIterations: 60 }, { isCancelled: () => (total++, false) });
     let polls = 0;
-    // Set-up polls the flag twice; it is raised at the first poll inside the iteration loop.
-    const result = solve(problem, { kind: 'petz-up', alpha: 1.5 }, { gapTolerance: 1e-12 }, { isCancelled: () => ++polls > 2 });
+    const result = solve(
+      problem,
+      { kind: 'petz-up', alpha: 1.5 },
+      { gapTolerance: 1e-12, maxIterations: 60 },
+      { isCancelled: () => ++polls > total / 2 },
+    );
     expect(result.status).toBe('LIMIT_REACHED');
     expect(result.limit).toBe('cancelled');
-    expectVerified(problem, 'petz-up', 1.5, result);
+    const report = verifyResult(problem, { kind: 'petz-up', alpha: 1.5 }, result);
+    expect(report.reason).toMatch(/verified/);
+    expect(report.valid).toBe(true);
   });
 
-  it('a request cancelled before set-up ends without a bound', () => {
+  it('a request cancelled before set-up ends with the trivial bound only (0: a classical key has non-negative entropy)', () => {
     const result = solve(problem, { kind: 'petz-up', alpha: 1.5 }, {}, { isCancelled: () => true });
     expect(result.status).toBe('LIMIT_REACHED');
     expect(result.limit).toBe('cancelled');
-    expect(result.certifiedLowerBound).toBeNull();
+    expect(result.certifiedLowerBound).toBe(0);
+    expect(result.trivialBoundUsed).toBe(true);
+    expect(result.certificate).toBeNull();
+    expect(verifyResult(problem, { kind: 'petz-up', alpha: 1.5 }, result).valid).toBe(true);
   });
 
   it('a warm start from a previous solution certifies 1 − h(Q_X) again (Shor & Preskill 2000: the phase error sets the rate)', () => {

@@ -49,16 +49,17 @@ describe('inputHash', () => {
       dimensionB: 1,
       branches: [{ krausOperators: [{ rows: 1, cols: 1, re: [1] }], keyProjectors: [{ rows: 1, cols: 1, re: [1] }] }],
     };
-    const one = '3ff0000000000000';
     const zero = '0000000000000000';
+    // A 1×1 matrix [1]: big-endian binary64 bytes of 1 (re) then 0 (im), as one raw token.
+    const oneByOne = Buffer.from('3ff00000000000000000000000000000', 'hex').toString('latin1');
     const lines = [
-      'renyi-bound/input-hash/v1',
+      'renyi-bound/input-hash/v2',
       'dimensionA', '1', 'dimensionB', '1',
       'sourceMarginal', 'none',
       'constraints', '0',
       'branches', '1',
-      'kraus', '1', 'matrix', '1', '1', one, zero,
-      'keyProjectors', '1', 'matrix', '1', '1', one, zero,
+      'kraus', '1', 'matrix', '1', '1', oneByOne,
+      'keyProjectors', '1', 'matrix', '1', '1', oneByOne,
       zero, // score
       'entropy', '11:von-neumann',
       'alpha', 'null',
@@ -66,7 +67,7 @@ describe('inputHash', () => {
       'maxIterations', doubleHex(1000),
       'solverVersion', '6:test-1',
     ];
-    const expected = createHash('sha256').update(lines.map((l) => `${l}\n`).join('')).digest('hex');
+    const expected = createHash('sha256').update(Buffer.from(lines.map((l) => `${l}\n`).join(''), 'latin1')).digest('hex');
     expect(hashOf(json, { kind: 'von-neumann' })).toBe(expected);
     expect(expected).toMatch(/^[0-9a-f]{64}$/);
   });
@@ -101,6 +102,19 @@ describe('inputHash', () => {
       parent[key] = parent[key] === 0 ? 1e-13 : parent[key] * factor;
       expect(hashOf(changed), path.join('.')).not.toBe(reference);
     }
+  });
+
+  it('encodes an absent bound distinctly from every finite bound', () => {
+    // A one-sided constraint (upper omitted) must never share a cache entry with a two-sided one.
+    const withUpper = (upper: number | undefined) => {
+      const p = baseProblem();
+      if (upper === undefined) delete p.constraints[0].upper;
+      else p.constraints[0].upper = upper;
+      return hashOf(p);
+    };
+    const absent = withUpper(undefined);
+    const lower = baseProblem().constraints[0].lower as number;
+    for (const finite of [lower, lower + 1, 1e300, Number.MAX_VALUE]) expect(absent).not.toBe(withUpper(finite));
   });
 
   it('changes with the entropy kind, alpha, settings and solver version', () => {

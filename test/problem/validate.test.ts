@@ -15,6 +15,7 @@ import { PROBLEM_PROTO_FILE, PROTO_LOADER_OPTIONS, protoDirectory } from '../../
 import { randomDensity, seededRandom } from '../helpers/random.js';
 
 import { ERROR_Z, I4, KEY0, KEY1, P0, P1, baseProblem, real, type Json } from './fixtures.js';
+import { buildExample } from '../../src/protocols/index.js';
 
 function validationError(run: () => unknown): ValidationError {
   try {
@@ -193,7 +194,7 @@ const rejections: [string, (p: Json) => void, string][] = [
   ['matrix entry not a number', (p) => (p.constraints[0].operator.re[3] = 'abc'), 'constraints[0].operator.re[3]: must be a number (got "abc")'],
   ['operator of the wrong shape', (p) => (p.constraints[0].operator = P0), 'constraints[0].operator: must be 4×4 (dimensionA·dimensionB square), got 2×2'],
   ['operator not Hermitian', (p) => (p.constraints[0].operator.re[1] = 1), 'constraints[0].operator: must be Hermitian (relative non-Hermitian part 5.77e-1 exceeds 1e-9)'],
-  ['bound missing', (p) => delete p.constraints[0].upper, 'constraints[0].upper: is required'],
+  ['bound of the wrong type', (p) => (p.constraints[0].upper = [1]), 'constraints[0].upper: must be a number (got an array)'],
   ['bound not finite', (p) => (p.constraints[0].lower = '-Infinity'), 'constraints[0].lower: must be a finite number (got -Infinity)'],
   ['lower above upper', (p) => (p.constraints[0].lower = 0.2), 'constraints[0].lower: must not exceed upper (0.2 > 0.1)'],
   ['marginal of the wrong shape', (p) => (p.sourceMarginal = I4), 'sourceMarginal: must be 2×2, got 4×4'],
@@ -297,5 +298,15 @@ describe('densityOperatorFromJson', () => {
     expect(validationError(() => densityOperatorFromJson(real(2, 2, [0.5, 0.6, 0.6, 0.5]), 'state', 2)).message).toBe(
       'state: must be positive semidefinite (smallest eigenvalue -1.000e-1)',
     );
+  });
+});
+
+describe('validation polls a checkpoint', () => {
+  it('calls it between parts and lets its throw abort the validation', () => {
+    let calls = 0;
+    problemFromJson(buildExample('bb84-prepare-measure', {}), { checkpoint: () => void calls++ });
+    expect(calls).toBeGreaterThan(2);
+    const abort = new Error('deadline');
+    expect(() => problemFromJson(buildExample('bb84-prepare-measure', {}), { checkpoint: () => { throw abort; } })).toThrow(abort);
   });
 });

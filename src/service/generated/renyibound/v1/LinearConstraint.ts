@@ -7,11 +7,15 @@ export interface LinearConstraint {
   'operator'?: (_renyibound_v1_Matrix | null);
   'lower'?: (number | string);
   'upper'?: (number | string);
+  '_lower'?: "lower";
+  '_upper'?: "upper";
 }
 
 export interface LinearConstraint__Output {
   'label': (string);
   'operator': (_renyibound_v1_Matrix__Output | null);
-  'lower': (number);
-  'upper': (number);
+  'lower'?: (number);
+  'upper'?: (number);
+  '_lower'?: "lower";
+  '_upper'?: "upper";
 }

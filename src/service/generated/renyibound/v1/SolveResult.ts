@@ -28,6 +28,11 @@ export interface SolveResult {
   'infeasibility'?: (_renyibound_v1_InfeasibilityCertificate | null);
   'finalState'?: (_renyibound_v1_Matrix | null);
   'fromCache'?: (boolean);
+  'relativeConstraintViolation'?: (number | string);
+  'feasibilityTolerance'?: (number | string);
+  'trivialBound'?: (number | string);
+  'trivialBoundUsed'?: (boolean);
+  'notes'?: (string)[];
   'noProgressCause'?: (_renyibound_v1_NoProgressCause);
   '_alpha'?: "alpha";
   '_certifiedLowerBound'?: "certifiedLowerBound";
@@ -36,6 +41,7 @@ export interface SolveResult {
   '_toleranceMargin'?: "toleranceMargin";
   '_statisticalSlack'?: "statisticalSlack";
   '_maxConstraintViolation'?: "maxConstraintViolation";
+  '_relativeConstraintViolation'?: "relativeConstraintViolation";
 }
 
 export interface SolveResult__Output {
@@ -58,6 +64,11 @@ export interface SolveResult__Output {
   'infeasibility': (_renyibound_v1_InfeasibilityCertificate__Output | null);
   'finalState': (_renyibound_v1_Matrix__Output | null);
   'fromCache': (boolean);
+  'relativeConstraintViolation'?: (number);
+  'feasibilityTolerance': (number);
+  'trivialBound': (number);
+  'trivialBoundUsed': (boolean);
+  'notes': (string)[];
   'noProgressCause': (_renyibound_v1_NoProgressCause__Output);
   '_alpha'?: "alpha";
   '_certifiedLowerBound'?: "certifiedLowerBound";
@@ -66,4 +77,5 @@ export interface SolveResult__Output {
   '_toleranceMargin'?: "toleranceMargin";
   '_statisticalSlack'?: "statisticalSlack";
   '_maxConstraintViolation'?: "maxConstraintViolation";
+  '_relativeConstraintViolation'?: "relativeConstraintViolation";
 }

@@ -6,6 +6,7 @@ export const SolveStatus = {
   LIMIT_REACHED: 'LIMIT_REACHED',
   INFEASIBLE: 'INFEASIBLE',
   NUMERICAL_ERROR: 'NUMERICAL_ERROR',
+  FEASIBILITY_UNDECIDED: 'FEASIBILITY_UNDECIDED',
 } as const;
 
 export type SolveStatus =
@@ -19,5 +20,7 @@ export type SolveStatus =
   | 3
   | 'NUMERICAL_ERROR'
   | 4
+  | 'FEASIBILITY_UNDECIDED'
+  | 5
 
 export type SolveStatus__Output = typeof SolveStatus[keyof typeof SolveStatus]
