@@ -16,6 +16,7 @@ const SECTIONS: Record<string, () => Promise<BenchTable[]>> = {
   decoy: async () => (await import('./decoy.js')).benchDecoy(),
   // Loaded by name: the service benchmark starts servers and worker threads only when asked for.
   service: async () => ((await import(SERVICE_MODULE)) as { benchService: () => Promise<BenchTable[]> }).benchService(),
+  cluster: async () => (await import('./cluster.js')).benchCluster(),
 };
 
 function markdown(table: BenchTable): string {

@@ -3,7 +3,7 @@
 import { availableParallelism, loadavg } from 'node:os';
 import { pino } from 'pino';
 import { buildExample } from '../protocols/index.js';
-import { closeClients, renyiBoundClient, solveBatchRemote, type RemoteBatchItem } from '../service/client.js';
+import { closeClients, connect, solveBatchRemote, type RemoteBatchItem } from '../client/client.js';
 import type { ParameterGrid } from '../service/generated/renyibound/v1/ParameterGrid.js';
 import type { SolveRequest } from '../service/generated/renyibound/v1/SolveRequest.js';
 import { RenyiBoundServer } from '../service/server.js';
@@ -20,14 +20,15 @@ const CACHE_HIT_TARGET_MS = 2;
 const SPEEDUP_TARGET = 1.8;
 const WARM_START_TARGET = 3;
 
-function quantile(sorted: number[], q: number): number {
+/** Quantile of sorted values by linear interpolation. */
+export function quantile(sorted: number[], q: number): number {
   const position = (sorted.length - 1) * q;
   const low = Math.floor(position);
   const high = Math.ceil(position);
   return sorted[low] + (sorted[high] - sorted[low]) * (position - low);
 }
 
-function round(value: number, digits = 3): number {
+export function round(value: number, digits = 3): number {
   return Number(value.toFixed(digits));
 }
 
@@ -35,9 +36,10 @@ async function quietServer(workers: number): Promise<RenyiBoundServer> {
   return RenyiBoundServer.start({ port: 0, workers, cacheDirectory: false, logger: pino({ level: 'silent' }) });
 }
 
-function unary(address: string, request: SolveRequest): Promise<void> {
+async function unary(address: string, request: SolveRequest): Promise<void> {
+  const { client } = await connect(address);
   return new Promise((resolve, reject) => {
-    renyiBoundClient(address).Solve(request, (error) => (error ? reject(error) : resolve()));
+    client.Solve(request, (error) => (error ? reject(error) : resolve()));
   });
 }
 

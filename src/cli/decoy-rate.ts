@@ -95,7 +95,7 @@ export function register(program: Command): void {
           settings: { timeLimitMs: number(options.timeLimitMs ?? '20000', 'time-limit-ms') },
         });
         if (options.plot !== undefined && answer.sweep !== undefined) {
-          const { renderSvg } = await import('../service/report.js');
+          const { renderSvg } = await import('../client/report.js');
           const title = answer.source === 'fit' ? 'Decoy-state BB84 from the fitted channel (band: 95 %)' : 'Decoy-state BB84 key rate';
           writeFileSync(options.plot, await renderSvg(sweepChartSpec(answer.sweep, title)));
         }

@@ -3,11 +3,10 @@
 import { join } from 'node:path';
 import { Command } from 'commander';
 import type { ParameterGrid } from '../service/generated/renyibound/v1/ParameterGrid.js';
-import { sweepTable } from '../service/report.js';
-import { runSweep } from '../service/sweep.js';
+import { jsonPathFor, progressBar, sweepTable, writeSweepOutputs } from '../client/report.js';
+import { runSweep } from '../client/sweep.js';
 import { withInputErrors } from './io.js';
-import { integerOption, MAX_WORKERS } from './service-options.js';
-import { jsonPathFor, progressBar, writeSweepOutputs } from './sweep.js';
+import { integerOption, MAX_WORKERS, noticeNewCacheFile } from './service-options.js';
 
 /**
  * The demo scenario (invented): two buildings of a university campus share a 9 km dark fibre. A prepare-and-measure
@@ -54,17 +53,21 @@ export function register(program: Command): void {
       withInputErrors(async (options: DemoOptions) => {
         process.stdout.write(`renyi-bound demo — ${DEMO_SCENARIO}\n`);
         process.stdout.write('certified lower bound on H(key | Eve) in bits per round, by error rate (rows) and entropy kind (columns)\n\n');
+        const cacheNotice = noticeNewCacheFile(options.diskCache ? undefined : false);
         const bar = progressBar();
         let outcome;
         try {
           outcome = await runSweep(DEMO_GRID, {
-            workers: integerOption(options.workers, '--workers', 1, MAX_WORKERS),
-            cacheDirectory: options.diskCache ? undefined : false,
+            embedded: {
+              workers: integerOption(options.workers, '--workers', 1, MAX_WORKERS),
+              cacheDirectory: options.diskCache ? undefined : false,
+            },
             requestId: 'demo',
             onItem: (item) => bar.update(item),
           });
         } finally {
           bar.stop();
+          cacheNotice();
         }
         const csv = join(options.outDir, DEMO_FILES.csv);
         const plot = join(options.outDir, DEMO_FILES.plot);

@@ -133,7 +133,7 @@ export function register(program: Command): void {
           );
           if (options.plot !== undefined) {
             const { writeFileSync } = await import('node:fs');
-            const { renderSvg } = await import('../service/report.js');
+            const { renderSvg } = await import('../client/report.js');
             const title = `finite-size key rate (${options.example ?? 'problem'}${options.fast ? ', Petz-up' : ''})`;
             writeFileSync(options.plot, await renderSvg(sweepModule.sweepPlotSpec(points, title)));
           }

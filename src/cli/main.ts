@@ -10,6 +10,8 @@ import { register as registerServe } from './serve.js';
 import { register as registerSweep } from './sweep.js';
 import { register as registerHealth } from './health.js';
 import { register as registerDemo } from './demo.js';
+import { register as registerAssemble } from './assemble.js';
+import { register as registerCache } from './cache.js';
 import { register as registerKeyLength } from './key-length.js';
 import { register as registerDecoyRate } from './decoy-rate.js';
 
@@ -25,6 +27,8 @@ registerServe(program);
 registerSweep(program);
 registerHealth(program);
 registerDemo(program);
+registerAssemble(program);
+registerCache(program);
 registerKeyLength(program);
 registerDecoyRate(program);
 

@@ -7,8 +7,12 @@ import type { SolveResult } from '../result/types.js';
 import type { SolverSettings } from '../frank-wolfe/settings.js';
 import { densityOperatorFromJson } from '../problem/state.js';
 import { ValidationError, entropyRequestFrom, parseProblemJson } from '../problem/validate.js';
-import { closeClients, RemoteCallError, solveRemote } from '../service/client.js';
 import { parseNumberOption, printJson, readJsonInput, withInputErrors } from './io.js';
+import { SERVER_OPTION_HELP, serversOption } from './service-options.js';
+import { addClientSecurityOptions, type SecurityCommandOptions } from './security-options.js';
+
+/** Attempts of a remote solve whose replica fails (the next attempt goes to the next replica). */
+const REMOTE_ATTEMPTS = 3;
 
 /** Exit codes by status: a limit is a result (0); infeasible data and numerical failure have their own codes. */
 export const EXIT_CODES: Record<SolveResult['status'], number> = {
@@ -19,7 +23,7 @@ export const EXIT_CODES: Record<SolveResult['status'], number> = {
   FEASIBILITY_UNDECIDED: 4,
 };
 
-interface SolveOptions {
+interface SolveOptions extends SecurityCommandOptions {
   entropy?: string;
   alpha?: string;
   gap?: string;
@@ -38,7 +42,7 @@ function settingsFrom(options: SolveOptions): Partial<SolverSettings> {
 }
 
 export function register(program: Command): void {
-  program
+  addClientSecurityOptions(program
     .command('solve')
     .description('certified lower bound on the entropy over every state consistent with the problem')
     .argument('<problem>', 'problem JSON file, or - for standard input')
@@ -48,7 +52,7 @@ export function register(program: Command): void {
     .option('--max-iterations <n>', 'iteration limit (default 20000)')
     .option('--time-limit-ms <t>', 'time limit in milliseconds (default 120000)')
     .option('--warm-start <matrix.json>', 'density operator to start from')
-    .option('--server <host:port>', 'send the request to a running renyi-bound server instead of solving here')
+    .option('--server <servers>', `send the request to running renyi-bound server(s) instead of solving here: ${SERVER_OPTION_HELP}`))
     .action(
       withInputErrors(async (problemSource: string, options: SolveOptions) => {
         const alpha = options.alpha === undefined ? undefined : parseNumberOption(options.alpha, 'alpha');
@@ -64,21 +68,19 @@ export function register(program: Command): void {
           warmStartJson === undefined ? undefined : densityOperatorFromJson(warmStartJson, 'warm-start', dimension);
         let result: SolveResult;
         if (options.server !== undefined) {
+          const server = serversOption(options.server);
+          const { closeClients, solveRemote } = await import('../client/client.js');
+          const { commandLineError } = await import('../client/errors.js');
+          const { clientSecurityFromPaths, setDefaultClientSecurity } = await import('../service/security.js');
+          setDefaultClientSecurity(clientSecurityFromPaths(options));
           try {
-            result = await solveRemote(options.server, {
-              problem: problemJson,
-              entropy: request.kind,
-              alpha: request.alpha,
-              settings,
-              warmStart: warmStartJson as never,
-            });
+            result = await solveRemote(
+              server,
+              { problem: problemJson, entropy: request.kind, alpha: request.alpha, settings, warmStart: warmStartJson as never },
+              { attempts: REMOTE_ATTEMPTS },
+            );
           } catch (error) {
-            if (error instanceof RemoteCallError && error.field) {
-              // The server's message already starts with the field path.
-              const reason = error.details.startsWith(`${error.field}: `) ? error.details.slice(error.field.length + 2) : error.details;
-              throw new ValidationError(error.field, reason);
-            }
-            throw error;
+            throw commandLineError(error, server);
           } finally {
             closeClients();
           }

@@ -53,7 +53,7 @@ export async function harbourDemo(outDir: string): Promise<string> {
   const { lpSolver } = await import('./bounds.js');
   const { decoyRate, CAUTION } = await import('./request.js');
   const { sweepChartSpec } = await import('./sweep.js');
-  const { renderSvg } = await import('../service/report.js');
+  const { renderSvg } = await import('../client/report.js');
   const highs = await lpSolver();
   const protocol = { signal: HARBOUR_COUNTS.signal, decoys: HARBOUR_COUNTS.decoys, zBasisProbability: 0.75, ecEfficiency: 1.16 };
   const answer = decoyRate(highs, {

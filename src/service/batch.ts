@@ -87,10 +87,16 @@ function checkGrid(grid: ParameterGrid__Output): void {
   grid.entropies.forEach((kind, i) => {
     if (entropyKindFromWire(kind) === undefined) throw new ValidationError(`grid.entropies[${i}]`, 'must be a specified entropy kind');
   });
+  // Parameter names are checked once, here: a misspelt axis would otherwise fail every point on its own.
+  const known = EXAMPLES[grid.example].parameters.map((p) => p.name);
+  const expected = `expected ${[...known, ALPHA_PARAMETER].join(', ')}`;
   const seen = new Set<string>();
   grid.axes.forEach((axis, k) => {
     if (axis.name === '') throw new ValidationError(`grid.axes[${k}].name`, 'must name a parameter or "alpha"');
     const name = kebabCase(axis.name);
+    if (name !== ALPHA_PARAMETER && !known.includes(name)) {
+      throw new ValidationError(`grid.axes[${k}].name`, `${JSON.stringify(axis.name)} is not a parameter of ${grid.example} (${expected})`);
+    }
     if (seen.has(name)) throw new ValidationError(`grid.axes[${k}].name`, `sweeps ${axis.name} twice`);
     seen.add(name);
     if (axis.values.length === 0) throw new ValidationError(`grid.axes[${k}].values`, 'must hold at least one value');
@@ -99,6 +105,9 @@ function checkGrid(grid: ParameterGrid__Output): void {
     });
   });
   for (const [key, value] of Object.entries(grid.baseParameters)) {
+    if (key !== ALPHA_PARAMETER && !known.includes(kebabCase(key))) {
+      throw new ValidationError(`grid.baseParameters.${key}`, `is not a parameter of ${grid.example} (${expected})`);
+    }
     if (!Number.isFinite(value)) throw new ValidationError(`grid.baseParameters.${key}`, `must be finite (got ${value})`);
   }
   try {

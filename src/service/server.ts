@@ -9,12 +9,14 @@ import { MemoryCacheLayer, DEFAULT_MEMORY_ENTRIES } from '../cache/memory.js';
 import type { CacheLayer } from '../cache/layer.js';
 import { RedisCacheLayer } from '../cache/redis.js';
 import { ResultCache } from '../cache/result-cache.js';
-import { defaultCacheDirectory, SqliteCacheLayer } from '../cache/sqlite.js';
+import { defaultCacheDirectory, SqliteCacheLayer, type SqliteOpenEvent } from '../cache/sqlite.js';
 import { verifyInfeasibility, verifyResult } from '../certificate/verify.js';
 import { ValidationError } from '../problem/errors.js';
 import { expandGrid, expandRequestList, runBatch, solveInputFromWire, type BatchPoint } from './batch.js';
 import { decoyRateHandler } from './decoy-rate.js';
 import { toServiceError } from './errors.js';
+import { guardRequests, malformedReason } from './guarded-service.js';
+import { DEFAULT_MAX_MESSAGE_BYTES, TRANSPORT_CAP_FACTOR } from './message-size.js';
 import type { BatchItem } from './generated/renyibound/v1/BatchItem.js';
 import type { BatchRequest__Output } from './generated/renyibound/v1/BatchRequest.js';
 import type { RenyiBoundHandlers } from './generated/renyibound/v1/RenyiBound.js';
@@ -27,6 +29,7 @@ import { loadServiceDefinition, loadServicePackage, SERVICE_NAME } from './proto
 import { SolveCoordinator } from './solve-coordinator.js';
 import type { WorkerReply, WorkerTask } from './solve-worker.js';
 import { QueueFullError, SolverPool } from './solver-pool.js';
+import { checkExposure, exposureWarning, serveHealthOnly, serverCredentials, serverOptions, type ServerSecurity } from './security.js';
 import { entropyKindFromWire, resultFromWire, resultToWire, wireToJson } from './wire.js';
 import { handleKeyLength } from './key-length.js';
 
@@ -43,6 +46,10 @@ export interface ServerOptions {
   cacheDirectory?: string | false;
   /** Redis shared between replicas. */
   redisUrl?: string;
+  /** Refuse to start while Redis cannot be reached (default: start with the local tiers and join Redis later). */
+  redisRequired?: boolean;
+  /** Largest request accepted; larger ones get INVALID_ARGUMENT naming the limit (default: DEFAULT_MAX_MESSAGE_BYTES). */
+  maxMessageBytes?: number;
   /** Results kept in the in-memory tier. */
   memoryEntries?: number;
   logger?: Logger;
@@ -50,6 +57,10 @@ export interface ServerOptions {
   drainTimeoutMs?: number;
   /** Attempts per task when its solver thread dies (default 2: one retry). */
   workerAttempts?: number;
+  /** TLS, bearer token, and whether a plaintext non-loopback bind is allowed (see security.ts). */
+  security?: ServerSecurity;
+  /** A second, plaintext port serving only grpc.health.v1 (for probes that cannot speak TLS). */
+  healthPort?: number;
 }
 
 /** Defaults of the command line (`renyi-bound serve`). */
@@ -66,6 +77,24 @@ function bindAddress(host: string, port: number): string {
   return host.includes(':') && !host.startsWith('[') ? `[${host}]:${port}` : `${host}:${port}`;
 }
 
+/**
+ * Every handler first refuses a request the guard could not decode (garbage bytes, over the size limit) with
+ * INVALID_ARGUMENT, so that no handler ever sees it.
+ */
+function refuseMalformed<H extends object>(handlers: H): H {
+  const guarded: Record<string, unknown> = {};
+  for (const [name, handler] of Object.entries(handlers) as [string, (call: grpc.ServerUnaryCall<unknown, unknown>, callback?: grpc.sendUnaryData<unknown>) => void][]) {
+    guarded[name] = (call: grpc.ServerUnaryCall<unknown, unknown>, callback?: grpc.sendUnaryData<unknown>) => {
+      const reason = malformedReason(call.request);
+      if (reason === undefined) return handler(call, callback);
+      const status = toServiceError(new ValidationError('request', reason));
+      if (callback) callback(status);
+      else call.emit('error', status);
+    };
+  }
+  return guarded as H;
+}
+
 export class RenyiBoundServer {
   readonly health: HealthImplementation;
   /** Validated, hashed requests by fingerprint: a repeated request skips validation and hashing. */
@@ -74,6 +103,8 @@ export class RenyiBoundServer {
   private readonly callControllers = new Set<AbortController>();
   private shuttingDown: Promise<void> | undefined;
   private servingStatus: ServingStatus = 'SERVING';
+  /** The plaintext health-only listener and its port, when one was asked for. */
+  healthListener: { server: grpc.Server; port: number } | undefined;
 
   private constructor(
     readonly grpcServer: grpc.Server,
@@ -99,14 +130,25 @@ export class RenyiBoundServer {
 
   static async start(options: ServerOptions = {}): Promise<RenyiBoundServer> {
     const logger = options.logger ?? pino({ name: 'renyi-bound' });
+    const security = options.security ?? {};
+    checkExposure(options.host ?? DEFAULT_HOST, security);
+    const warning = exposureWarning(options.host ?? DEFAULT_HOST, security);
+    if (warning !== undefined) logger.warn({ event: 'security' }, warning);
     const layers: CacheLayer[] = [new MemoryCacheLayer(options.memoryEntries ?? DEFAULT_MEMORY_ENTRIES)];
     if (options.cacheDirectory !== false) {
-      layers.push(SqliteCacheLayer.inDirectory(options.cacheDirectory ?? defaultCacheDirectory()));
+      layers.push(SqliteCacheLayer.inDirectory(options.cacheDirectory ?? defaultCacheDirectory(), (event: SqliteOpenEvent) => {
+        if (event.kind === 'created') logger.info({ event: 'cache-file', path: event.path }, 'created the result cache file');
+        else logger.warn({ event: 'cache-file', ...event }, 'the result cache file was damaged: moved aside and rebuilt empty');
+      }));
     }
     if (options.redisUrl) {
       layers.push(
         await RedisCacheLayer.connect(options.redisUrl, {
-          onConnectionError: (error) => logger.warn({ event: 'redis', reason: error.message }, 'redis connection error'),
+          required: options.redisRequired,
+          onEvent: (event) => {
+            if (event.kind === 'available') logger.info({ event: 'redis', ...event }, 'redis reachable: the shared cache is in use');
+            else logger.warn({ event: 'redis', ...event }, 'redis unreachable: going on with the local cache tiers');
+          },
         }),
       );
     }
@@ -117,12 +159,18 @@ export class RenyiBoundServer {
       maxAttempts: options.workerAttempts,
     });
     const coordinator = new SolveCoordinator(pool, cache, logger);
-    const grpcServer = new grpc.Server();
+    const maxMessageBytes = options.maxMessageBytes ?? DEFAULT_MAX_MESSAGE_BYTES;
+    // Up to the cap the transport reads a message, and guardRequests refuses one above the limit by name.
+    const grpcServer = new grpc.Server({
+      ...serverOptions(security),
+      'grpc.max_receive_message_length': maxMessageBytes * TRANSPORT_CAP_FACTOR,
+      'grpc.max_send_message_length': maxMessageBytes * TRANSPORT_CAP_FACTOR,
+    });
     const host = options.host ?? DEFAULT_HOST;
     let port: number;
     try {
       port = await new Promise<number>((resolve, reject) =>
-        grpcServer.bindAsync(bindAddress(host, options.port ?? DEFAULT_PORT), grpc.ServerCredentials.createInsecure(), (error, bound) =>
+        grpcServer.bindAsync(bindAddress(host, options.port ?? DEFAULT_PORT), serverCredentials(security.tls), (error, bound) =>
           error ? reject(error) : resolve(bound),
         ),
       );
@@ -132,12 +180,18 @@ export class RenyiBoundServer {
       throw error;
     }
     const server = new RenyiBoundServer(grpcServer, pool, cache, coordinator, logger, host, port, options.drainTimeoutMs ?? DEFAULT_DRAIN_TIMEOUT_MS);
-    grpcServer.addService(loadServicePackage().renyibound.v1.RenyiBound.service, server.handlers());
+    grpcServer.addService(guardRequests(loadServicePackage().renyibound.v1.RenyiBound.service, maxMessageBytes), server.handlers());
     server.health.addToServer(grpcServer);
     // Reflection lists the health service too, so tools like grpcurl can discover both.
     new ReflectionService({ ...loadServiceDefinition(), ...protoLoader.loadSync(healthProtoPath, PROTO_LOADER_OPTIONS) }).addToServer(grpcServer);
+    if (options.healthPort !== undefined) {
+      server.healthListener = await serveHealthOnly(server.health, bindAddress(host, options.healthPort)).catch(async (error: unknown) => {
+        await server.shutdown();
+        throw error;
+      });
+    }
     logger.info(
-      { event: 'listening', address: server.address, workers: pool.workers, queueLimit: pool.queueLimit, cache: layers.map((l) => l.name) },
+      { event: 'listening', address: server.address, tls: security.tls ? (security.tls.clientCa ? 'mutual' : 'server') : 'off', tokens: security.tokens?.length ?? 0, workers: pool.workers, queueLimit: pool.queueLimit, cache: layers.map((l) => l.name) },
       'renyi-bound service listening',
     );
     return server;
@@ -169,13 +223,14 @@ export class RenyiBoundServer {
   }
 
   private handlers(): RenyiBoundHandlers {
-    return {
+    const handlers: RenyiBoundHandlers = {
       Solve: (call, callback) => void this.solve(call, callback),
       SolveBatch: (call) => void this.solveBatch(call),
       Verify: (call, callback) => this.verify(call, callback),
       KeyLength: (call, callback) => void handleKeyLength(call, callback, this.coordinator),
       DecoyRate: decoyRateHandler(),
     };
+    return refuseMalformed(handlers);
   }
 
   private async solve(
@@ -296,6 +351,7 @@ export class RenyiBoundServer {
         clearTimeout(forced);
       }
       clearTimeout(timer);
+      this.healthListener?.server.forceShutdown();
       await this.pool.destroy();
       await this.cache.close();
       this.logger.info({ event: 'shutdown' }, 'stopped');

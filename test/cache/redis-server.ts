@@ -74,3 +74,40 @@ export async function startTestRedis(): Promise<TestRedis | { skipReason: string
     },
   };
 }
+
+/** A redis-server of this test's own, which the test may stop and start again on the same port. */
+export interface PrivateRedis {
+  url: string;
+  port: number;
+  /** Stops the server (SIGTERM; nothing persisted). */
+  stop(): Promise<void>;
+  /** Starts it again on the same port. */
+  start(): Promise<void>;
+}
+
+/** A private redis-server, or the reason there is none (the binary is not on PATH). */
+export async function startPrivateRedis(): Promise<PrivateRedis | { skipReason: string }> {
+  if (spawnSync('redis-server', ['--version']).error) {
+    return { skipReason: 'redis-server is not on PATH (apt-get install redis-server): this test stops and restarts its own Redis' };
+  }
+  const port = await freePort();
+  const url = `redis://127.0.0.1:${port}`;
+  let child: ChildProcess | undefined;
+  const start = async () => {
+    child = spawn('redis-server', ['--port', String(port), '--bind', '127.0.0.1', '--save', '', '--appendonly', 'no'], { stdio: 'ignore' });
+    const deadline = Date.now() + STARTUP_TIMEOUT_MS;
+    while (!(await answersPing(url))) {
+      if (Date.now() > deadline) throw new Error(`redis-server on port ${port} did not start within ${STARTUP_TIMEOUT_MS} ms`);
+      await new Promise((resolve) => setTimeout(resolve, 50));
+    }
+  };
+  const stop = async () => {
+    const running = child;
+    if (running === undefined || running.exitCode !== null) return;
+    const exited = new Promise((resolve) => running.once('exit', resolve));
+    running.kill('SIGTERM');
+    await exited;
+  };
+  await start();
+  return { url, port, stop, start };
+}

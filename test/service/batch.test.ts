@@ -7,8 +7,8 @@ import { ENTROPY_ENUM_NAMES } from '../../src/problem/validate.js';
 import { buildExample } from '../../src/protocols/index.js';
 import type { ParameterGrid__Output } from '../../src/service/generated/renyibound/v1/ParameterGrid.js';
 import type { DeliveredResult } from '../../src/service/wire.js';
-import { renderSvg, sweepCsv, sweepPlotSpec, sweepTable } from '../../src/service/report.js';
-import type { RemoteBatchItem } from '../../src/service/client.js';
+import { renderSvg, sweepCsv, sweepPlotSpec, sweepTable } from '../../src/client/report.js';
+import type { RemoteBatchItem } from '../../src/client/client.js';
 
 function grid(overrides: Partial<ParameterGrid__Output> = {}): ParameterGrid__Output {
   return {

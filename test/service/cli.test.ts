@@ -4,38 +4,21 @@ import { spawn, type ChildProcess } from 'node:child_process';
 import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { Command } from 'commander';
-import { afterAll, afterEach, beforeAll, describe, expect, it, vi } from 'vitest';
+import { afterAll, afterEach, beforeAll, describe, expect, it } from 'vitest';
 import { register as registerHealth } from '../../src/cli/health.js';
 import { register as registerSweep } from '../../src/cli/sweep.js';
 import { RenyiBoundServer } from '../../src/service/server.js';
 import { packageRoot } from '../../src/problem/proto-options.js';
-import { solveRemote } from '../../src/service/client.js';
-import { slowProblem, startTestServer, type TestServer } from './harness.js';
+import { solveRemote } from '../../src/client/client.js';
+import { buildExample } from '../../src/protocols/index.js';
+import { runRegistered, slowProblem, startTestServer, type TestServer } from './harness.js';
 
 const root = packageRoot();
 /** The CLI from its TypeScript sources (tsx), as the rest of the test suite runs them. */
 const cli = ['--import', 'tsx', join(root, 'src', 'cli', 'main.ts')];
 
-/** Runs one command through its register() in this process, capturing its output and exit code. */
-async function run(args: string[]): Promise<{ status: number; stdout: string; stderr: string }> {
-  const program = new Command('renyi-bound').exitOverride();
-  registerHealth(program);
-  registerSweep(program);
-  let stdout = '';
-  let stderr = '';
-  const out = vi.spyOn(process.stdout, 'write').mockImplementation((chunk) => ((stdout += String(chunk)), true));
-  const err = vi.spyOn(process.stderr, 'write').mockImplementation((chunk) => ((stderr += String(chunk)), true));
-  process.exitCode = undefined;
-  try {
-    await program.parseAsync(args, { from: 'user' });
-  } finally {
-    out.mockRestore();
-    err.mockRestore();
-  }
-  const status = Number(process.exitCode ?? 0);
-  process.exitCode = undefined;
-  return { status, stdout, stderr };
+function run(args: string[]): Promise<{ status: number; stdout: string; stderr: string }> {
+  return runRegistered([registerHealth, registerSweep], args);
 }
 
 afterEach(() => {
@@ -90,6 +73,8 @@ describe('renyi-bound serve', () => {
       child.once('exit', () => reject(new Error(`serve exited early: ${output}`)));
     });
     expect(address).toMatch(/^127\.0\.0\.1:\d+$/);
+    // A first call opens the connection, so that the slow solve reaches the server before the signal does.
+    await solveRemote(address, { problem: buildExample('six-state'), entropy: 'von-neumann' });
     const solving = solveRemote(address, {
       problem: slowProblem(0.99),
       entropy: 'von-neumann',
@@ -104,10 +89,10 @@ describe('renyi-bound serve', () => {
     expect(output).toMatch(/"event":"shutdown"/);
   }, 60_000);
 
-  it('fails to start with the Redis URL in the message when Redis cannot be reached', async () => {
-    await expect(RenyiBoundServer.start({ port: 0, workers: 1, cacheDirectory: false, redisUrl: 'redis://127.0.0.1:1' })).rejects.toThrow(
-      /cannot reach Redis at redis:\/\/127\.0\.0\.1:1/,
-    );
+  it('with --redis-required refuses to start, naming the Redis URL, when Redis cannot be reached', async () => {
+    await expect(
+      RenyiBoundServer.start({ port: 0, workers: 1, cacheDirectory: false, redisUrl: 'redis://127.0.0.1:1', redisRequired: true }),
+    ).rejects.toThrow(/cannot reach Redis at redis:\/\/127\.0\.0\.1:1/);
   });
 });
 

@@ -2,7 +2,9 @@
 import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
+import { Command } from 'commander';
 import { pino } from 'pino';
+import { vi } from 'vitest';
 import { RenyiBoundServer, type ServerOptions } from '../../src/service/server.js';
 
 export interface LogLine {
@@ -81,4 +83,30 @@ export function slowProblem(fidelity: number, n = 6): unknown {
     branches: [{ label: 'key', krausOperators: [identity], keyProjectors }],
     description: 'slow synthetic test problem',
   };
+}
+
+/**
+ * Runs command-line commands through their register() in this process (a child per call would cost seconds of
+ * start-up each), capturing standard output, standard error and the exit code.
+ */
+export async function runRegistered(
+  registers: ((program: Command) => void)[],
+  args: string[],
+): Promise<{ status: number; stdout: string; stderr: string }> {
+  const program = new Command('renyi-bound').exitOverride();
+  for (const register of registers) register(program);
+  let stdout = '';
+  let stderr = '';
+  const out = vi.spyOn(process.stdout, 'write').mockImplementation((chunk) => ((stdout += String(chunk)), true));
+  const err = vi.spyOn(process.stderr, 'write').mockImplementation((chunk) => ((stderr += String(chunk)), true));
+  process.exitCode = undefined;
+  try {
+    await program.parseAsync(args, { from: 'user' });
+  } finally {
+    out.mockRestore();
+    err.mockRestore();
+  }
+  const status = Number(process.exitCode ?? 0);
+  process.exitCode = undefined;
+  return { status, stdout, stderr };
 }

@@ -5,7 +5,7 @@ import { verifyResult } from '../../src/certificate/verify.js';
 import { RedisCacheLayer } from '../../src/cache/redis.js';
 import { entropyRequestFrom, problemFromJson } from '../../src/problem/validate.js';
 import { buildExample } from '../../src/protocols/index.js';
-import { solveRemote } from '../../src/service/client.js';
+import { solveRemote } from '../../src/client/client.js';
 import { startTestRedis, type TestRedis } from '../cache/redis-server.js';
 import { startTestServer, type TestServer } from './harness.js';
 

@@ -9,7 +9,7 @@ import { verifyResult } from '../../src/certificate/verify.js';
 import type { SolveResult } from '../../src/result/types.js';
 import { entropyRequestFrom, problemFromJson } from '../../src/problem/validate.js';
 import { buildExample } from '../../src/protocols/index.js';
-import { checkHealth, RemoteCallError, renyiBoundClient, solveBatchRemote, solveRemote, verifyRemote, type RemoteBatchItem } from '../../src/service/client.js';
+import { checkHealth, connect, RemoteCallError, solveBatchRemote, solveRemote, verifyRemote, type RemoteBatchItem } from '../../src/client/client.js';
 import { FIELD_METADATA_KEY } from '../../src/service/errors.js';
 import type { BatchRequest } from '../../src/service/generated/renyibound/v1/BatchRequest.js';
 import type { SolveRequest } from '../../src/service/generated/renyibound/v1/SolveRequest.js';
@@ -40,15 +40,16 @@ function verifies(problemJson: unknown, kind: string, alpha: number | undefined,
 }
 
 /** A unary call with the raw generated client, so bad input reaches the server unchecked. */
-function rawSolve(address: string, request: SolveRequest, deadline?: Date): Promise<grpc.ServiceError | undefined> {
+async function rawSolve(address: string, request: SolveRequest, deadline?: Date): Promise<grpc.ServiceError | undefined> {
+  const { client } = await connect(address);
   return new Promise((resolve) => {
-    renyiBoundClient(address).Solve(request, deadline ? { deadline } : {}, (error) => resolve(error ?? undefined));
+    client.Solve(request, deadline ? { deadline } : {}, (error) => resolve(error ?? undefined));
   });
 }
 
 async function rawBatchError(address: string, request: BatchRequest): Promise<grpc.ServiceError | undefined> {
   try {
-    for await (const _ of renyiBoundClient(address).SolveBatch(request)) {
+    for await (const _ of (await connect(address)).client.SolveBatch(request)) {
       // drain
     }
   } catch (error) {
