@@ -112,9 +112,14 @@ export function sandwichedPower(
   gamma: number,
 ): { quasiEntropy: number; weight: ComplexMatrix; powerOfM: ComplexMatrix } {
   if (outputRange === null) {
-    const m = multiply(multiply(ys, x), ys);
-    const me = positiveEigen(m);
-    const quasiEntropy = traceFunction(me.values, (t) => (t > 0 ? t ** gamma : 0));
+    // M = G·G† with G = Y^s·V·Λ^{1/2} (X = V·Λ·V†): the spectrum of M comes from G's singular values, which one-sided
+    // Jacobi gets to high relative accuracy, instead of from the formed product, whose small eigenvalues carry an
+    // absolute error u·‖M‖ (so M's conditioning, about κ(X)·κ(Y)^{2s}, never enters the margin; docs/convergence.md).
+    const xe = positiveEigen(x);
+    const { left, singularValues } = oneSidedJacobi(multiply(multiply(ys, xe.vectors), diagonalRoot(xe.values)));
+    const squares = Float64Array.from(singularValues, (t) => t * t);
+    const quasiEntropy = traceFunction(squares, (t) => (t > 0 ? t ** gamma : 0));
+    const me = { values: squares, vectors: left };
     const weight = spectralFunction(me, (t) => gamma * t ** (gamma - 1));
     const powerOfM = spectralFunction(me, (t) => (t > 0 ? t ** gamma : 0));
     return { quasiEntropy, weight, powerOfM };
@@ -126,6 +131,80 @@ export function sandwichedPower(
   const weight = expand(factor, spectralFunction(ne, (t) => gamma * t ** (gamma - 2)));
   const powerOfM = expand(factor, spectralFunction(ne, (t) => t ** (gamma - 1)));
   return { quasiEntropy, weight, powerOfM };
+}
+
+function diagonalRoot(values: Float64Array): ComplexMatrix {
+  return ComplexMatrix.diagonal(Array.from(values, (t) => Math.sqrt(Math.max(t, 0))));
+}
+
+/** Sweeps allowed to one-sided Jacobi; a handful suffice at the dimensions of the branch outputs (quadratic convergence). */
+const JACOBI_SWEEPS = 60;
+
+/**
+ * Singular values and left singular vectors of a square G by one-sided (Hestenes) Jacobi: plane rotations on the
+ * right until the columns are orthogonal; σ_j = ‖g_j‖, u_j = g_j/σ_j. For G = B·D with D diagonal the singular
+ * values come out with relative error O(u·κ(B)) however graded D is (Demmel & Veselić, SIAM J. Matrix Anal. Appl.
+ * 13, 1204, 1992). No library we use has a complex Jacobi SVD (ml-matrix's SVD is real and only absolutely accurate).
+ */
+export function oneSidedJacobi(g: ComplexMatrix): { left: ComplexMatrix; singularValues: Float64Array } {
+  const n = g.rows;
+  const k = g.cols;
+  const re = Float64Array.from(g.re);
+  const im = Float64Array.from(g.im);
+  const at = (i: number, j: number) => i * k + j;
+  for (let sweep = 0; sweep < JACOBI_SWEEPS; sweep++) {
+    let rotated = false;
+    for (let p = 0; p < k - 1; p++) {
+      for (let q = p + 1; q < k; q++) {
+        let a = 0;
+        let b = 0;
+        let cre = 0;
+        let cim = 0;
+        for (let i = 0; i < n; i++) {
+          const pr = re[at(i, p)], pi = im[at(i, p)], qr = re[at(i, q)], qi = im[at(i, q)];
+          a += pr * pr + pi * pi;
+          b += qr * qr + qi * qi;
+          // g_p†·g_q
+          cre += pr * qr + pi * qi;
+          cim += pr * qi - pi * qr;
+        }
+        const c = Math.hypot(cre, cim);
+        if (c === 0 || c <= Number.EPSILON * Math.sqrt(a * b)) continue;
+        rotated = true;
+        // Phase e^{−iφ} on g_q makes g_p†g_q = |c| real; then a real rotation orthogonalises the pair.
+        const er = cre / c;
+        const ei = -cim / c;
+        const zeta = (b - a) / (2 * c);
+        const t = (zeta >= 0 ? 1 : -1) / (Math.abs(zeta) + Math.sqrt(1 + zeta * zeta));
+        const cs = 1 / Math.sqrt(1 + t * t);
+        const sn = cs * t;
+        for (let i = 0; i < n; i++) {
+          const pr = re[at(i, p)], pi = im[at(i, p)];
+          const qr0 = re[at(i, q)], qi0 = im[at(i, q)];
+          const hr = qr0 * er - qi0 * ei;
+          const hi = qr0 * ei + qi0 * er;
+          re[at(i, p)] = cs * pr - sn * hr;
+          im[at(i, p)] = cs * pi - sn * hi;
+          re[at(i, q)] = sn * pr + cs * hr;
+          im[at(i, q)] = sn * pi + cs * hi;
+        }
+      }
+    }
+    if (!rotated) break;
+  }
+  const singularValues = new Float64Array(k);
+  const left = ComplexMatrix.zeros(n, k);
+  for (let j = 0; j < k; j++) {
+    let norm = 0;
+    for (let i = 0; i < n; i++) norm += re[at(i, j)] ** 2 + im[at(i, j)] ** 2;
+    singularValues[j] = Math.sqrt(norm);
+    if (singularValues[j] === 0) continue;
+    for (let i = 0; i < n; i++) {
+      left.re[i * k + j] = re[at(i, j)] / singularValues[j];
+      left.im[i * k + j] = im[at(i, j)] / singularValues[j];
+    }
+  }
+  return { left, singularValues };
 }
 
 /** Tr X with its gradient, the identity on the support (the value of every quasi-entropy of X relative to itself). */

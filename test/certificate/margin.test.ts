@@ -45,6 +45,9 @@ describe("Euler's identity for positively homogeneous functions: ⟨∇f(x), x�
 describe('near-singular linearization points: bounds recomputed in random bases stay within the margin', () => {
   const cases: [string, Record<string, number>, EntropyRequest][] = [
     ['chsh-tested', { 'win-probability': 0.85 }, { kind: 'petz-up', alpha: 2 }],
+    ['chsh-tested', { 'win-probability': 0.8 }, { kind: 'petz-up', alpha: 2 }],
+    ['bb84-entangled', { 'qber-z': 1e-4, 'qber-x': 1e-4 }, { kind: 'petz-up', alpha: 2 }],
+    ['bb84-entangled', { 'qber-z': 1e-4, 'qber-x': 1e-4 }, { kind: 'sandwiched-up', alpha: 1.5 }],
     ['chsh-tested', { 'win-probability': 0.8 }, { kind: 'sandwiched-up', alpha: 2 }],
     ['chsh-tested', { 'win-probability': 0.85 }, { kind: 'von-neumann' }],
     ['bb84-entangled', { 'qber-z': 1e-4, 'qber-x': 1e-4 }, { kind: 'petz-up', alpha: 1.5 }],
