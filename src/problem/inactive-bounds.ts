@@ -3,11 +3,11 @@
 // spectrum is infeasible on its own, and a zero operator is decided outright.
 import { frobeniusNorm } from '../linear-algebra/complex-matrix.js';
 import { eigvalsh } from '../linear-algebra/eigen.js';
+import { UNIT_ROUNDOFF } from '../linear-algebra/rounding.js';
 import { EDGE_CONSTANT, feasibleFace, restrictToFace, type FeasibleFace } from './feasible-face.js';
 import { farkasTest } from './farkas.js';
 import type { LinearConstraint, Problem } from './model.js';
 
-const UNIT_ROUNDOFF = 2 ** -53;
 
 /** A constraint that no density operator can meet, with the single-constraint Farkas multipliers proving it. */
 export interface ConstraintInfeasibility {
