@@ -1,20 +1,23 @@
-// `renyi-bound verify <result.json | -> --problem <problem.json>`: recomputes a certificate's bound from the
-// problem alone (no optimisation) and says whether the claimed bound holds; for an INFEASIBLE result it re-checks
-// the Farkas certificate instead.
+// `renyi-bound verify <result.json | -> --problem <problem.json> [--server servers]`: recomputes a certificate's bound
+// from the problem alone (no optimisation) and says whether every stated number holds; for an INFEASIBLE result it
+// re-checks the Farkas certificate instead. With --server the check runs on a server (the Verify RPC).
 import type { Command } from 'commander';
 import type { VerificationReport } from '../certificate/verify.js';
 import type { SolveResult } from '../result/types.js';
 import { ValidationError } from '../problem/errors.js';
 import { printJson, readJsonInput, withInputErrors } from './io.js';
+import { SERVER_OPTION_HELP, serversOption } from './service-options.js';
+import { addClientSecurityOptions, type SecurityCommandOptions } from './security-options.js';
 
 export function register(program: Command): void {
-  program
+  addClientSecurityOptions(program
     .command('verify')
     .description('re-check the certificate of a solve result against its problem')
     .argument('<result>', 'result JSON as printed by solve, or - for standard input')
     .requiredOption('--problem <problem.json>', 'the problem the result claims to bound')
+    .option('--server <servers>', `re-check on running renyi-bound server(s) instead of here: ${SERVER_OPTION_HELP}`))
     .action(
-      withInputErrors(async (resultSource: string, options: { problem: string }) => {
+      withInputErrors(async (resultSource: string, options: { problem: string; server?: string } & SecurityCommandOptions) => {
         const { verifyResult } = await import('../certificate/verify.js');
         const { entropyRequestFrom, problemFromJson } = await import('../problem/validate.js');
         const result = readJsonInput(resultSource, 'result') as Partial<SolveResult> | null;
@@ -26,7 +29,12 @@ export function register(program: Command): void {
               'then verify result.json --problem with the problem file',
           );
         }
-        const problem = problemFromJson(readJsonInput(options.problem, 'problem'));
+        const problemJson = readJsonInput(options.problem, 'problem');
+        if (options.server !== undefined) {
+          printJson(await verifyOnServer(serversOption(options.server), problemJson, result as SolveResult, options));
+          return;
+        }
+        const problem = problemFromJson(problemJson);
         let report: VerificationReport;
         try {
           const request =
@@ -45,4 +53,21 @@ export function register(program: Command): void {
         process.exitCode = report.valid ? 0 : 1;
       }),
     );
+}
+
+/** The Verify RPC: the same checks, run by the server; a server that cannot be reached is one line, exit 1. */
+async function verifyOnServer(server: string, problem: unknown, result: SolveResult, options: SecurityCommandOptions) {
+  const { closeClients, verifyRemote } = await import('../client/client.js');
+  const { commandLineError } = await import('../client/errors.js');
+  const { clientSecurityFromPaths, setDefaultClientSecurity } = await import('../service/security.js');
+  setDefaultClientSecurity(clientSecurityFromPaths(options));
+  try {
+    const report = await verifyRemote(server, { problem, entropy: result.entropy, alpha: result.alpha ?? undefined, result });
+    process.exitCode = report.valid ? 0 : 1;
+    return report;
+  } catch (error) {
+    throw commandLineError(error, server);
+  } finally {
+    closeClients();
+  }
 }

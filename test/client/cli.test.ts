@@ -10,6 +10,7 @@ import { register as registerCache } from '../../src/cli/cache.js';
 import { register as registerHealth } from '../../src/cli/health.js';
 import { register as registerSolve } from '../../src/cli/solve.js';
 import { register as registerSweep } from '../../src/cli/sweep.js';
+import { register as registerVerify } from '../../src/cli/verify.js';
 import { closeClients } from '../../src/client/client.js';
 import { buildExample, EXAMPLES } from '../../src/protocols/index.js';
 import { runRegistered, startTestServer, type TestServer } from '../service/harness.js';
@@ -17,7 +18,7 @@ import { startReplica } from '../service/replica-process.js';
 
 async function run(args: string[]): Promise<{ status: number; stdout: string; stderr: string }> {
   try {
-    return await runRegistered([registerAssemble, registerCache, registerHealth, registerSolve, registerSweep], args);
+    return await runRegistered([registerAssemble, registerCache, registerHealth, registerSolve, registerSweep, registerVerify], args);
   } finally {
     closeClients();
   }
@@ -53,6 +54,11 @@ describe('client commands against a server that is down', () => {
     expect(health.status).toBe(1);
     expect(health.stdout).toBe('UNREACHABLE\n');
     expect(health.stderr).toMatch(ONE_LINE);
+    const result = join(directory, 'result.json');
+    writeFileSync(result, (await run(['solve', problem, '--entropy', 'von-neumann'])).stdout);
+    const verify = await run(['verify', result, '--problem', problem, '--server', DOWN]);
+    expect(verify.status).toBe(1);
+    expect(verify.stderr).toMatch(ONE_LINE);
   }, 60_000);
 
   it('a misspelt grid axis is one line naming the axis, before anything runs', async () => {
@@ -63,6 +69,35 @@ describe('client commands against a server that is down', () => {
     const expected = [...EXAMPLES['six-state'].parameters.map((p) => p.name), 'alpha'].join(', ');
     expect(sweep.stderr).toBe(`renyi-bound: grid.axes[0].name: "qbr" is not a parameter of six-state (expected ${expected})\n`);
   });
+});
+
+describe('verify --server', () => {
+  it('re-checks a result on the server (Verify RPC) and rejects one whose upper bound was edited', async () => {
+    const harness = await startTestServer({ workers: 1, cacheDirectory: false });
+    try {
+      const problem = join(directory, 'verify-problem.json');
+      writeFileSync(problem, JSON.stringify(buildExample('bb84-entangled', { 'qber-z': 0.05, 'qber-x': 0.05 })));
+      const solved = await run(['solve', problem, '--entropy', 'von-neumann']);
+      const result = join(directory, 'verify-result.json');
+      writeFileSync(result, solved.stdout);
+      const answer = await run(['verify', result, '--problem', problem, '--server', harness.server.address]);
+      expect(answer.status).toBe(0);
+      const report = JSON.parse(answer.stdout);
+      expect(report.valid).toBe(true);
+      // Shor–Preskill (PRL 85, 441, 2000): min H(Z|E) = 1 − h(0.05) ≈ 0.713603 for BB84 with error rate 0.05.
+      const h = -0.05 * Math.log2(0.05) - 0.95 * Math.log2(0.95);
+      expect(report.certifiedLowerBound).toBeLessThanOrEqual(1 - h + 1e-12);
+      expect(report.certifiedLowerBound).toBeGreaterThan(1 - h - 1e-6);
+      const edited = JSON.parse(solved.stdout);
+      edited.upperBound += 0.01;
+      writeFileSync(result, JSON.stringify(edited));
+      const refused = await run(['verify', result, '--problem', problem, '--server', harness.server.address]);
+      expect(refused.status).toBe(1);
+      expect(JSON.parse(refused.stdout).valid).toBe(false);
+    } finally {
+      await harness.stop();
+    }
+  }, 60_000);
 });
 
 describe('health --wait', () => {

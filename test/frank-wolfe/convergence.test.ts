@@ -10,16 +10,11 @@ import { matrixFromJson } from '../../src/problem/json.js';
 import type { EntropyRequest, Problem } from '../../src/problem/model.js';
 import type { SolveResult } from '../../src/result/types.js';
 import { binaryEntropy } from '../objectives/fixtures.js';
-import { deviceIndependentBound, example } from './helpers.js';
+import { deviceIndependentBound, example, KINDS_AT_ONE_AND_A_HALF } from './helpers.js';
 import { povmTableProblem } from './interval-fixtures.js';
 
 const GAP = 1e-6;
-const KINDS: EntropyRequest[] = [
-  { kind: 'von-neumann' },
-  { kind: 'petz-up', alpha: 1.5 },
-  { kind: 'petz-down', alpha: 1.5 },
-  { kind: 'sandwiched-up', alpha: 1.5 },
-];
+const KINDS = KINDS_AT_ONE_AND_A_HALF;
 const label = (r: EntropyRequest) => (r.alpha ? `${r.kind} α = ${r.alpha}` : r.kind);
 
 function expectCertifiedAndVerified(problem: Problem, request: EntropyRequest, result: SolveResult) {

@@ -1,7 +1,15 @@
 // Builds example problems through the public builder + validation path, as a user's JSON would go.
 import { buildExample } from '../../src/protocols/index.js';
 import { problemFromJson } from '../../src/problem/validate.js';
-import type { Problem } from '../../src/problem/model.js';
+import type { EntropyRequest, Problem } from '../../src/problem/model.js';
+
+/** Every entropy kind, the Rényi ones at α = 1.5. */
+export const KINDS_AT_ONE_AND_A_HALF: readonly EntropyRequest[] = [
+  { kind: 'von-neumann' },
+  { kind: 'petz-up', alpha: 1.5 },
+  { kind: 'petz-down', alpha: 1.5 },
+  { kind: 'sandwiched-up', alpha: 1.5 },
+];
 
 export function example(name: string, params: Record<string, number> = {}): Problem {
   return problemFromJson(buildExample(name, params));

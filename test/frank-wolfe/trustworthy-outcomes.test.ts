@@ -12,14 +12,10 @@ import { FEASIBILITY_TOLERANCE } from '../../src/problem/violation.js';
 import type { SolveResult } from '../../src/result/types.js';
 import { binaryEntropy } from '../objectives/fixtures.js';
 import { largeProblemJson } from './large-problem.js';
+import { KINDS_AT_ONE_AND_A_HALF } from './helpers.js';
 
 const GAP = 1e-6;
-const KINDS: EntropyRequest[] = [
-  { kind: 'von-neumann' },
-  { kind: 'petz-up', alpha: 1.5 },
-  { kind: 'petz-down', alpha: 1.5 },
-  { kind: 'sandwiched-up', alpha: 1.5 },
-];
+const KINDS = KINDS_AT_ONE_AND_A_HALF;
 // eslint-disable-next-line @typescript-eslint/no-explicit-any
 type Json = any;
 const json = (name: string, params: Record<string, number> = {}): Json => structuredClone(buildExample(name, params));
