@@ -1,35 +1,33 @@
 #!/usr/bin/env node
-// The renyi-bound command line. Each command lives in its own module exporting register(program).
+// The renyi-bound command line. Each command lives in its own module exporting register(program); only the
+// module of the command being run is loaded (all of them for the overall help), so start-up stays short.
 import { Command } from 'commander';
 import { packageVersion } from './io.js';
-import { register as registerExample } from './example.js';
-import { register as registerEvaluate } from './evaluate.js';
-import { register as registerSolve } from './solve.js';
-import { register as registerVerify } from './verify.js';
-import { register as registerServe } from './serve.js';
-import { register as registerSweep } from './sweep.js';
-import { register as registerHealth } from './health.js';
-import { register as registerDemo } from './demo.js';
-import { register as registerAssemble } from './assemble.js';
-import { register as registerCache } from './cache.js';
-import { register as registerKeyLength } from './key-length.js';
-import { register as registerDecoyRate } from './decoy-rate.js';
+
+type CommandModule = { register(program: Command): void };
+
+/** Every command by name, in the order the overall help lists them. */
+const COMMANDS: Readonly<Record<string, () => Promise<CommandModule>>> = {
+  example: () => import('./example.js'),
+  evaluate: () => import('./evaluate.js'),
+  solve: () => import('./solve.js'),
+  verify: () => import('./verify.js'),
+  serve: () => import('./serve.js'),
+  sweep: () => import('./sweep.js'),
+  health: () => import('./health.js'),
+  demo: () => import('./demo.js'),
+  assemble: () => import('./assemble.js'),
+  cache: () => import('./cache.js'),
+  'key-length': () => import('./key-length.js'),
+  'decoy-rate': () => import('./decoy-rate.js'),
+};
 
 const program = new Command('renyi-bound')
   .description('certified lower bounds on single-round conditional Rényi entropies for QKD security proofs')
   .version(packageVersion());
 
-registerExample(program);
-registerEvaluate(program);
-registerSolve(program);
-registerVerify(program);
-registerServe(program);
-registerSweep(program);
-registerHealth(program);
-registerDemo(program);
-registerAssemble(program);
-registerCache(program);
-registerKeyLength(program);
-registerDecoyRate(program);
+const named = process.argv[2];
+const loaders = named !== undefined && Object.hasOwn(COMMANDS, named) ? [COMMANDS[named]] : Object.values(COMMANDS);
+for (const module of await Promise.all(loaders.map((load) => load()))) module.register(program);
 
 await program.parseAsync(process.argv);
