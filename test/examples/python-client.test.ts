@@ -6,7 +6,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { packageRoot } from '../../src/problem/proto-options.js';
 import { exampleCatalogue } from '../../src/protocols/catalogue.js';
 import { EXAMPLES } from '../../src/protocols/index.js';
-import { closeClients, renyiBoundClient } from '../../src/service/client.js';
+import { closeClients, renyiBoundClient } from '../../src/client/client.js';
 import type { ListExamplesReply__Output } from '../../src/service/generated/renyibound/v1/ListExamplesReply.js';
 import { startTestServer, type TestServer } from '../service/harness.js';
 

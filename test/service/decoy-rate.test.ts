@@ -2,7 +2,7 @@
 // INVALID_ARGUMENT (docs/decoy.md).
 import * as grpc from '@grpc/grpc-js';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { renyiBoundClient } from '../../src/service/client.js';
+import { renyiBoundClient } from '../../src/client/client.js';
 import type { DecoyRateReply__Output } from '../../src/service/generated/renyibound/v1/DecoyRateReply.js';
 import type { DecoyRateRequest } from '../../src/service/generated/renyibound/v1/DecoyRateRequest.js';
 import { startTestServer, type TestServer } from './harness.js';

@@ -4,7 +4,7 @@ import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
 import { keyLength } from '../../src/finite-size/key-length.js';
 import { buildExample } from '../../src/protocols/index.js';
 import { problemFromJson } from '../../src/problem/validate.js';
-import { closeClients, renyiBoundClient } from '../../src/service/client.js';
+import { closeClients, renyiBoundClient } from '../../src/client/client.js';
 import { FIELD_METADATA_KEY } from '../../src/service/errors.js';
 import type { KeyLengthReply__Output } from '../../src/service/generated/renyibound/v1/KeyLengthReply.js';
 import type { KeyLengthRequest } from '../../src/service/generated/renyibound/v1/KeyLengthRequest.js';

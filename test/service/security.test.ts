@@ -12,7 +12,7 @@ import { register as registerServe } from '../../src/cli/serve.js';
 import { ValidationError } from '../../src/problem/errors.js';
 import { packageRoot } from '../../src/problem/proto-options.js';
 import { buildExample } from '../../src/protocols/index.js';
-import { checkHealth, closeClients, RemoteCallError, solveBatchRemote, solveRemote } from '../../src/service/client.js';
+import { checkHealth, closeClients, RemoteCallError, solveBatchRemote, solveRemote } from '../../src/client/client.js';
 import {
   checkExposure,
   exposureWarning,

@@ -8,7 +8,7 @@ import * as grpc from '@grpc/grpc-js';
 import fc from 'fast-check';
 import { packageRoot } from '../../src/problem/proto-options.js';
 import { buildExample } from '../../src/protocols/index.js';
-import { checkHealth, closeClients } from '../../src/service/client.js';
+import { checkHealth, closeClients } from '../../src/client/client.js';
 import { loadServicePackage } from '../../src/service/proto.js';
 import { badRequestProblem, garbageBytes, malformedRequest, RawClient } from './wire-fuzz-cases.js';
 

@@ -5,7 +5,7 @@ import * as grpc from '@grpc/grpc-js';
 import fc from 'fast-check';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { buildExample } from '../../src/protocols/index.js';
-import { checkHealth } from '../../src/service/client.js';
+import { checkHealth } from '../../src/client/client.js';
 import { loadServicePackage } from '../../src/service/proto.js';
 import { startTestServer, type TestServer } from './harness.js';
 import { badRequestProblem, garbageBytes, malformedRequest, RawClient } from './wire-fuzz-cases.js';

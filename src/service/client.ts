@@ -1,2 +1,0 @@
-// The client library moved to src/client/; this module keeps older imports working.
-export * from '../client/client.js';
