@@ -59,7 +59,7 @@ export function register(program: Command): void {
           }
         }
         const number = (text: string, field: string) => parseNumberOption(text, field);
-        const { entropyRequestFrom } = await import('../problem/validate.js');
+        const { entropyRequestFrom } = await import('../problem/entropy-request.js');
         const { readMeasuredCounts } = await import('../decoy/counts.js');
         const { distanceGrid, sweepChartSpec } = await import('../decoy/sweep.js');
         const { decoyRate } = await import('../decoy/request.js');

@@ -19,7 +19,8 @@ export function register(program: Command): void {
     .action(
       withInputErrors(async (resultSource: string, options: { problem: string; server?: string } & SecurityCommandOptions) => {
         const { verifyResult } = await import('../certificate/verify.js');
-        const { entropyRequestFrom, problemFromJson } = await import('../problem/validate.js');
+        const { problemFromJson } = await import('../problem/validate.js');
+        const { entropyRequestFrom } = await import('../problem/entropy-request.js');
         const result = readJsonInput(resultSource, 'result') as Partial<SolveResult> | null;
         if (result === null || typeof result !== 'object') throw new ValidationError('result', 'must be a JSON object');
         if ('dimensionA' in result || 'branches' in result || 'dimension_a' in result) {

@@ -9,7 +9,7 @@ import { ValidationError } from '../problem/errors.js';
 import type { ParameterGrid } from '../service/generated/renyibound/v1/ParameterGrid.js';
 import { prepareSolve } from '../service/prepare.js';
 import { checkFor } from '../service/solve-coordinator.js';
-import { ENTROPY_ENUM_NAMES } from '../problem/validate.js';
+import { ENTROPY_ENUM_NAMES } from '../problem/entropy-request.js';
 import type { RemoteBatchItem } from './client.js';
 import { gridPoints } from './sweep.js';
 

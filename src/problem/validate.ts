@@ -359,12 +359,3 @@ function requireCompleteness(branches: AnnouncementBranch[], d: number): void {
     );
   }
 }
-
-// Entropy kinds and α: one module, one rule (re-exported here for existing importers).
-export {
-  ALPHA_EXCLUSIVE_MINIMUM,
-  ALPHA_MAXIMUM,
-  ENTROPY_ENUM_NAMES,
-  entropyRequestFrom,
-  resolveEntropyRequest,
-} from './entropy-request.js';

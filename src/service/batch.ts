@@ -2,7 +2,7 @@
 // taken from the nearest point already solved.
 import { ValidationError } from '../problem/errors.js';
 import type { MatrixJson } from '../result/types.js';
-import { ENTROPY_ENUM_NAMES, entropyRequestFrom } from '../problem/validate.js';
+import { ENTROPY_ENUM_NAMES, entropyRequestFrom } from '../problem/entropy-request.js';
 import { buildExample, EXAMPLES } from '../protocols/index.js';
 import type { ParameterGrid__Output } from './generated/renyibound/v1/ParameterGrid.js';
 import type { SolveRequest__Output } from './generated/renyibound/v1/SolveRequest.js';

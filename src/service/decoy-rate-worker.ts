@@ -6,7 +6,7 @@ import { lpSolver } from '../decoy/bounds.js';
 import { readMeasuredCounts } from '../decoy/counts.js';
 import { decoyRate } from '../decoy/request.js';
 import { ValidationError } from '../problem/errors.js';
-import { entropyRequestFrom } from '../problem/validate.js';
+import { entropyRequestFrom } from '../problem/entropy-request.js';
 import type { DecoyWorkerMessage } from './decoy-rate.js';
 import type { DecoyMeasuredCounts__Output } from './generated/renyibound/v1/DecoyMeasuredCounts.js';
 import type { DecoyRateReply } from './generated/renyibound/v1/DecoyRateReply.js';

@@ -8,7 +8,8 @@ import { solve } from '../frank-wolfe/solve.js';
 import { ValidationError } from '../problem/errors.js';
 import { matrixFromJson } from '../problem/json.js';
 import type { EntropyKind } from '../problem/model.js';
-import { entropyRequestFrom, problemFromJson } from '../problem/validate.js';
+import { problemFromJson } from '../problem/validate.js';
+import { entropyRequestFrom } from '../problem/entropy-request.js';
 import { cancelFlagReader } from './cancel-flag.js';
 import { prepareSolve, withoutProblem, type PreparedSolve, type SolveInput } from './prepare.js';
 

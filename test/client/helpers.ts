@@ -4,7 +4,8 @@ import { expect } from 'vitest';
 import type { RemoteBatchItem } from '../../src/client/client.js';
 import { gridPoints } from '../../src/client/sweep.js';
 import { verifyResult } from '../../src/certificate/verify.js';
-import { entropyRequestFrom, problemFromJson } from '../../src/problem/validate.js';
+import { problemFromJson } from '../../src/problem/validate.js';
+import { entropyRequestFrom } from '../../src/problem/entropy-request.js';
 import type { ParameterGrid } from '../../src/service/generated/renyibound/v1/ParameterGrid.js';
 import { binaryEntropy } from '../service/harness.js';
 

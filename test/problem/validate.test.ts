@@ -5,10 +5,10 @@ import {
   MESSAGE_FIELDS,
   ValidationError,
   elementaryHermitianBasis,
-  entropyRequestFrom,
   parseProblemJson,
   problemFromJson,
 } from '../../src/problem/validate.js';
+import { entropyRequestFrom } from '../../src/problem/entropy-request.js';
 import { matrixFromJson, matrixToJson } from '../../src/problem/json.js';
 import { densityOperatorFromJson } from '../../src/problem/state.js';
 import { PROBLEM_PROTO_FILE, PROTO_LOADER_OPTIONS, protoDirectory } from '../../src/problem/proto-options.js';

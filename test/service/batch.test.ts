@@ -3,7 +3,7 @@ import { describe, expect, it } from 'vitest';
 import type { MatrixJson } from '../../src/result/types.js';
 import { expandGrid, expandRequestList, runBatch, type BatchPoint } from '../../src/service/batch.js';
 import { prepareSolve } from '../../src/service/prepare.js';
-import { ENTROPY_ENUM_NAMES } from '../../src/problem/validate.js';
+import { ENTROPY_ENUM_NAMES } from '../../src/problem/entropy-request.js';
 import { buildExample } from '../../src/protocols/index.js';
 import type { ParameterGrid__Output } from '../../src/service/generated/renyibound/v1/ParameterGrid.js';
 import type { DeliveredResult } from '../../src/service/wire.js';

@@ -3,7 +3,8 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { verifyResult } from '../../src/certificate/verify.js';
 import { RedisCacheLayer } from '../../src/cache/redis.js';
-import { entropyRequestFrom, problemFromJson } from '../../src/problem/validate.js';
+import { problemFromJson } from '../../src/problem/validate.js';
+import { entropyRequestFrom } from '../../src/problem/entropy-request.js';
 import { buildExample } from '../../src/protocols/index.js';
 import { solveRemote } from '../../src/client/client.js';
 import { startTestRedis, type TestRedis } from '../cache/redis-server.js';
