@@ -1,4 +1,4 @@
-import { CholeskyDecomposition, Matrix, pseudoInverse } from 'ml-matrix';
+import { CholeskyDecomposition, Matrix, pseudoInverse } from '../linear-algebra/ml-matrix.js';
 import { addScaledInPlace, ComplexMatrix, conjugate, conjugateAdjoint, traceProductReal } from '../linear-algebra/complex-matrix.js';
 import { eigh, eigvalsh } from '../linear-algebra/eigen.js';
 import type { LinearConstraint } from '../problem/model.js';

@@ -1,6 +1,6 @@
 // How far a step may go: the eigenvalue floor of the cone, the room left in interval constraints, and sliding
 // along the intervals a step pushes against.
-import { Matrix, solve as solveLinear } from 'ml-matrix';
+import { Matrix, solve as solveLinear } from '../linear-algebra/ml-matrix.js';
 import {
   addScaledInPlace,
   multiply,

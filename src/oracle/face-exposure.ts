@@ -2,7 +2,7 @@
 // equality multipliers y with Z = Σ y_i (b_i·1 − Γ_i) ⪰ 0 and ker Z ⊇ range(centre), record them in the feasible
 // face (where src/problem/feasible-face.ts re-checks them with one eigendecomposition), and repeat on the smaller
 // face until its analytic centre has full rank (Borwein & Wolkowicz 1981; Permenter & Parrilo 2018).
-import { EigenvalueDecomposition, Matrix } from 'ml-matrix';
+import { EigenvalueDecomposition, Matrix } from '../linear-algebra/ml-matrix.js';
 import { ComplexMatrix, columns, conjugateAdjoint, frobeniusNorm, multiply } from '../linear-algebra/complex-matrix.js';
 import { eigh, eigvalsh } from '../linear-algebra/eigen.js';
 import { FaceExposureError, feasibleFace, restrictToFace, type FaceExposure, type FeasibleFace } from '../problem/feasible-face.js';

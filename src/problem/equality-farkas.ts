@@ -1,6 +1,6 @@
 // Farkas certificates from the equalities alone (kept apart from the test itself, which the verifier loads: this
 // part needs a real eigensolver from ml-matrix and only the solver's set-up calls it).
-import { EigenvalueDecomposition, Matrix } from 'ml-matrix';
+import { EigenvalueDecomposition, Matrix } from '../linear-algebra/ml-matrix.js';
 import { ComplexMatrix, traceProductReal } from '../linear-algebra/complex-matrix.js';
 import { farkasTest } from './farkas.js';
 import type { LinearConstraint } from './model.js';
