@@ -1,6 +1,7 @@
 // Every command module loads its libraries inside its action (`await import()`), so that `--help` and every
 // other command start without paying for the solver, gRPC, SQLite, Redis or the chart libraries. This reads the
-// top-level imports of each src/cli/*.ts and allows only light ones; `npm run bench -- --only cli` measures it.
+// top-level imports of each src/cli/*.ts and allows only light ones; start-up.test.ts checks what a fresh process
+// of each timed command actually loads, and `npm run bench -- --only cli` measures it.
 import { readdirSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
