@@ -1,6 +1,6 @@
 // The finite-size key length under coherent attacks: options, ε split, α and score optimisation, the ledger,
 // the asymptotic (Devetak–Winter) reference and the min-tradeoff export (docs/finite-size.md).
-import type { SolveResult } from '../result/types.js';
+import type { MinTradeoffFunction, SolveResult } from '../result/types.js';
 import type { SolverSettings } from '../frank-wolfe/settings.js';
 import { ValidationError } from '../problem/errors.js';
 import type { Problem } from '../problem/model.js';
@@ -10,7 +10,7 @@ import { localSolver, problemToJson, scoredProblem, type FiniteSizeEntropy, type
 import type { ProblemJson } from '../problem/json.js';
 import { ComplexMatrix, addScaledInPlace, hermitianPart, multiplyAdjointLeft } from '../linear-algebra/complex-matrix.js';
 import { sourceMarginalConstraints } from '../problem/validate.js';
-import { minTradeoffFunction, type MinTradeoffFunction } from './min-tradeoff.js';
+import { minTradeoffOf } from './min-tradeoff.js';
 
 /** Defaults: common practice values (ε_sec 1e−10, ε_com 1e−2, f_EC 1.16). */
 export const KEY_LENGTH_DEFAULTS = Object.freeze({
@@ -240,8 +240,9 @@ export async function minTradeoffScores(
   });
   const tested: Problem = { ...problem, constraints: [...marginal, ...branchConstraints], branches: problem.branches.map((b) => ({ ...b, score: 0 })) };
   const result = await solver(tested, { kind: 'von-neumann' }, settings);
-  if (!result.certificate) return problem.branches.map(() => 0);
-  const coefficients = minTradeoffFunction(tested, result).coefficients.slice(marginal.length);
+  const tradeoff = minTradeoffOf(tested, result);
+  if (!tradeoff) return problem.branches.map(() => 0);
+  const coefficients = tradeoff.coefficients.slice(marginal.length);
   return coefficients.map((c) => c.coefficient);
 }
 
@@ -258,7 +259,7 @@ export async function asymptoticReference(
   return {
     vonNeumannBound: bound,
     ratePerRound: bound === null ? null : bound - leakagePerRound,
-    minTradeoff: result.certificate ? minTradeoffFunction(plain, result) : null,
+    minTradeoff: minTradeoffOf(plain, result),
   };
 }
 

@@ -65,11 +65,7 @@ export function reportToWire(report: KeyLengthReport, requestId: string): KeyLen
   const asymptotic = report.asymptotic;
   if (asymptotic?.ratePerRound !== null && asymptotic?.ratePerRound !== undefined) reply.asymptoticRatePerRound = asymptotic.ratePerRound;
   if (asymptotic?.minTradeoff) {
-    reply.minTradeoff = {
-      constant: asymptotic.minTradeoff.constant,
-      coefficients: asymptotic.minTradeoff.coefficients,
-      validity: asymptotic.minTradeoff.validity,
-    };
+    reply.minTradeoff = asymptotic.minTradeoff;
   }
   return reply;
 }
