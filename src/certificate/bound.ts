@@ -8,7 +8,7 @@ import {
   hermiticityDefect,
   traceProductReal,
 } from '../linear-algebra/complex-matrix.js';
-import { eigvalsh } from '../linear-algebra/eigen.js';
+import { eigh, eigvalsh } from '../linear-algebra/eigen.js';
 import type { Objective, ObjectiveEvaluation, ReferenceBlocks, BranchSupport } from '../objectives/index.js';
 import type { Problem } from '../problem/model.js';
 import { compressToFace, type FeasibleFace } from '../problem/feasible-face.js';
@@ -32,6 +32,11 @@ export interface BoundBreakdown {
   referenceTerm: number;
   /** Floating-point allowance (a conservative estimate, not interval arithmetic). */
   margin: number;
+  /**
+   * The part of the margin for the branch outputs' conditioning: the Weyl charge, or less when the curvature of F on
+   * the smallest eigenvectors of ∇F − Σ yΓ shows that those errors do not reach λ_min (docs/convergence.md).
+   */
+  conditioningCharge: number;
   lowerBound: number;
   /** Σ (y⁺ + y⁻)·(upper − lower)/2: what the statistical tolerance intervals cost the bound. */
   statisticalSlack: number;
@@ -50,6 +55,8 @@ export function linearizationBound(
   reference?: ReferenceBlocks,
   /** F and ∇F at ρ' when the caller already has them (not for sandwiched-up, whose bound needs ∇_τ too). */
   precomputed?: ObjectiveEvaluation,
+  /** The solver's shortcut: skip measuring the curvature when even a zero conditioning charge would not beat this. */
+  curvatureWorthAbove = -Infinity,
 ): BoundBreakdown {
   const n = rho.rows;
   let objectiveValue: number;
@@ -57,12 +64,14 @@ export function linearizationBound(
   let referenceTerm = 0;
   let referenceError = 0;
   let evaluationConditioning = 1;
+  let derivedConditioning: number | undefined;
   if (objective.request.kind === 'sandwiched-up') {
     if (!reference) throw new Error('linearizationBound: sandwiched-up needs reference states τ');
     const joint = objective.evaluateAtReference(rho, reference);
     objectiveValue = joint.value;
     gradient = joint.gradientState;
     evaluationConditioning = joint.conditioning;
+    derivedConditioning = joint.derivedConditioning;
     let smallest = Infinity;
     joint.gradientReference.forEach((blocks) =>
       blocks.forEach((g) => {
@@ -77,6 +86,7 @@ export function linearizationBound(
     objectiveValue = evaluation.value;
     gradient = evaluation.gradient as ComplexMatrix;
     evaluationConditioning = evaluation.conditioning ?? 1;
+    derivedConditioning = evaluation.derivedConditioning;
   }
   const shifted = gradient.clone();
   let dualConstant = 0;
@@ -98,7 +108,8 @@ export function linearizationBound(
     }
     multiplierWeight += (yLower + yUpper) * (frobeniusNorm(constraint.operator) + Math.abs(lower) + Math.abs(upper));
   });
-  const smallestEigenvalue = eigvalsh(shifted)[0];
+  const spectrum = eigh(shifted);
+  const smallestEigenvalue = spectrum.values[0];
   const gradientInnerProduct = eulerInnerProduct(objective, objectiveValue);
 
   // Backward-error scale of each eigendecomposition; the gradient term grows like ‖ρ'‖/λ_min(ρ') because the
@@ -111,11 +122,23 @@ export function linearizationBound(
   const conditioning = Math.max(frobeniusNorm(rho) / Math.max(rhoEigenvalues[0], Number.MIN_VALUE), evaluationConditioning);
   const scale = MARGIN_CONSTANT * n * UNIT_ROUNDOFF;
   const valueError = objective.request.kind === 'von-neumann' ? 0 : Math.abs(objectiveValue);
-  const margin =
-    scale * (valueError + frobeniusNorm(shifted) + multiplierWeight + frobeniusNorm(gradient) + conditioning / Math.LN2) +
-    referenceError;
-  const lowerBound =
-    objectiveValue - gradientInnerProduct + dualConstant + smallestEigenvalue + referenceTerm - margin;
+  const unamplified = scale * (valueError + frobeniusNorm(shifted) + multiplierWeight + frobeniusNorm(gradient)) + referenceError;
+  const weyl = (scale * conditioning) / Math.LN2;
+  // Graded alternative: the matrices other than ρ' and the branch outputs keep their full (Weyl) charge; the
+  // outputs' share is measured where it reaches λ_min.
+  const derived = derivedConditioning === undefined ? conditioning : derivedConditioning;
+  const derivedCharge = (scale * derived) / Math.LN2;
+  let conditioningCharge = weyl;
+  let margin = unamplified + weyl;
+  const base = objectiveValue - gradientInnerProduct + dualConstant + smallestEigenvalue + referenceTerm;
+  if (weyl > derivedCharge + unamplified && base - unamplified - derivedCharge > curvatureWorthAbove) {
+    const graded = derivedCharge + curvatureCharge(objective, rho, reference, spectrum, weyl, scale);
+    if (graded < weyl) {
+      conditioningCharge = graded;
+      margin = unamplified + graded;
+    }
+  }
+  const lowerBound = base - margin;
   return {
     objectiveValue,
     gradientInnerProduct,
@@ -123,9 +146,95 @@ export function linearizationBound(
     smallestEigenvalue,
     referenceTerm,
     margin,
+    conditioningCharge,
     lowerBound,
     statisticalSlack,
   };
+}
+
+/** Largest cluster of smallest eigenvectors of ∇F − Σ yΓ whose curvature is measured (k² difference quotients). */
+const CURVATURE_CLUSTER = 4;
+
+/**
+ * The branch outputs' share of the error of λ_min(S), S = ∇F − Σ yΓ, when it is smaller than the Weyl charge ε
+ * (docs/convergence.md, "Where the conditioning reaches the bound"). W = the k smallest eigenvectors of the
+ * computed S, gap g = σ_k − σ_0. In blocks over (W, W^⊥) with the error E: λ_min(S) ≥ σ_0 − η when
+ * η = a + b²/(g − c + a), with a ≥ ‖E_WW‖ and b, c ≥ ‖E‖ (Schur complement; needs g > c). The errors come from
+ * backward errors Δ_c of the outputs (‖Δ_c‖_F ≤ scale·size_c), so ‖E_WW‖ ≤ √2·scale·Σ_c size_c·‖H_c|_W‖ with
+ * ‖H_c|_W‖ the Frobenius norm of the curvature over an orthonormal Hermitian basis of operators on W.
+ */
+function curvatureCharge(
+  objective: Objective,
+  rho: ComplexMatrix,
+  reference: ReferenceBlocks | undefined,
+  spectrum: { values: Float64Array; vectors: ComplexMatrix },
+  weyl: number,
+  scale: number,
+): number {
+  const { values, vectors } = spectrum;
+  let largest = 0;
+  for (let k = 1; k <= Math.min(values.length - 1, CURVATURE_CLUSTER); k++) if (values[k] - values[0] > weyl) largest = k;
+  if (largest === 0) return weyl;
+  const curvature = objective.outputCurvature(rho, clusterBasis(vectors, largest), reference);
+  if (!curvature) return weyl;
+  let best = weyl;
+  for (let k = 1; k <= largest; k++) {
+    const gap = values[k] - values[0];
+    let within = 0;
+    curvature.sizes.forEach((size, c) => {
+      let squares = 0;
+      for (let l = 0; l < k * k; l++) squares += curvature.norms[l][c] ** 2;
+      within += size * Math.sqrt(squares);
+    });
+    const a = Math.SQRT2 * scale * within;
+    const whole = Math.max(weyl, a);
+    if (!Number.isFinite(a) || gap <= whole) continue;
+    best = Math.min(best, a + (whole * whole) / (gap - whole + a));
+  }
+  return best;
+}
+
+/**
+ * An orthonormal basis (Frobenius) of the Hermitian operators on span{w_0, …, w_{k−1}} (columns of `vectors`),
+ * ordered so that its first j² elements span the operators on the first j vectors.
+ */
+function clusterBasis(vectors: ComplexMatrix, k: number): ComplexMatrix[] {
+  const n = vectors.rows;
+  const outer = (i: number, j: number, weight: number, imaginary: boolean) => {
+    // weight·(w_i w_j† + w_j w_i†), or weight·i(w_i w_j† − w_j w_i†) when imaginary.
+    const m = ComplexMatrix.zeros(n);
+    for (let r = 0; r < n; r++) {
+      for (let s = 0; s < n; s++) {
+        const ar = vectors.re[r * vectors.cols + i], ai = vectors.im[r * vectors.cols + i];
+        const br = vectors.re[s * vectors.cols + j], bi = vectors.im[s * vectors.cols + j];
+        // w_i[r]·conj(w_j[s])
+        const pr = ar * br + ai * bi;
+        const pi = ai * br - ar * bi;
+        if (i === j) {
+          m.re[r * n + s] += weight * pr;
+          m.im[r * n + s] += weight * pi;
+        } else if (!imaginary) {
+          m.re[r * n + s] += weight * pr;
+          m.im[r * n + s] += weight * pi;
+          m.re[s * n + r] += weight * pr;
+          m.im[s * n + r] -= weight * pi;
+        } else {
+          // i·(p − conj-transpose): i·p at (r,s), −i·conj(p) at (s,r)
+          m.re[r * n + s] -= weight * pi;
+          m.im[r * n + s] += weight * pr;
+          m.re[s * n + r] -= weight * pi;
+          m.im[s * n + r] -= weight * pr;
+        }
+      }
+    }
+    return m;
+  };
+  const basis: ComplexMatrix[] = [];
+  for (let j = 0; j < k; j++) {
+    basis.push(outer(j, j, 1, false));
+    for (let i = 0; i < j; i++) basis.push(outer(i, j, Math.SQRT1_2, false), outer(i, j, Math.SQRT1_2, true));
+  }
+  return basis;
 }
 
 /** τ_c on H_c (block diagonal in the key map) → blocks on the branch's pinched support; a keyless branch stores its weight as a 1×1 matrix. */

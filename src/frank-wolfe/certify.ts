@@ -41,6 +41,7 @@ function considerCandidate(
     y.upper,
     pointEvaluation.reference,
     pointEvaluation,
+    state.best === null ? -Infinity : state.best.breakdown.lowerBound,
   );
   if (Number.isFinite(breakdown.lowerBound) && (state.best === null || breakdown.lowerBound > state.best.breakdown.lowerBound)) {
     state.best = {
