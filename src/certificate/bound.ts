@@ -152,91 +152,6 @@ export function linearizationBound(
   };
 }
 
-/** Largest cluster of smallest eigenvectors of ∇F − Σ yΓ whose curvature is measured (k² difference quotients). */
-const CURVATURE_CLUSTER = 4;
-
-/**
- * The branch outputs' share of the error of λ_min(S), S = ∇F − Σ yΓ, when it is smaller than the Weyl charge ε
- * (docs/convergence.md, "Where the conditioning reaches the bound"). W = the k smallest eigenvectors of the
- * computed S, gap g = σ_k − σ_0. In blocks over (W, W^⊥) with the error E: λ_min(S) ≥ σ_0 − η when
- * η = a + b²/(g − c + a), with a ≥ ‖E_WW‖ and b, c ≥ ‖E‖ (Schur complement; needs g > c). The errors come from
- * backward errors Δ_c of the outputs (‖Δ_c‖_F ≤ scale·size_c), so ‖E_WW‖ ≤ √2·scale·Σ_c size_c·‖H_c|_W‖ with
- * ‖H_c|_W‖ the Frobenius norm of the curvature over an orthonormal Hermitian basis of operators on W.
- */
-function curvatureCharge(
-  objective: Objective,
-  rho: ComplexMatrix,
-  reference: ReferenceBlocks | undefined,
-  spectrum: { values: Float64Array; vectors: ComplexMatrix },
-  weyl: number,
-  scale: number,
-): number {
-  const { values, vectors } = spectrum;
-  let largest = 0;
-  for (let k = 1; k <= Math.min(values.length - 1, CURVATURE_CLUSTER); k++) if (values[k] - values[0] > weyl) largest = k;
-  if (largest === 0) return weyl;
-  const curvature = objective.outputCurvature(rho, clusterBasis(vectors, largest), reference);
-  if (!curvature) return weyl;
-  let best = weyl;
-  for (let k = 1; k <= largest; k++) {
-    const gap = values[k] - values[0];
-    let within = 0;
-    curvature.sizes.forEach((size, c) => {
-      let squares = 0;
-      for (let l = 0; l < k * k; l++) squares += curvature.norms[l][c] ** 2;
-      within += size * Math.sqrt(squares);
-    });
-    const a = Math.SQRT2 * scale * within;
-    const whole = Math.max(weyl, a);
-    if (!Number.isFinite(a) || gap <= whole) continue;
-    best = Math.min(best, a + (whole * whole) / (gap - whole + a));
-  }
-  return best;
-}
-
-/**
- * An orthonormal basis (Frobenius) of the Hermitian operators on span{w_0, …, w_{k−1}} (columns of `vectors`),
- * ordered so that its first j² elements span the operators on the first j vectors.
- */
-function clusterBasis(vectors: ComplexMatrix, k: number): ComplexMatrix[] {
-  const n = vectors.rows;
-  const outer = (i: number, j: number, weight: number, imaginary: boolean) => {
-    // weight·(w_i w_j† + w_j w_i†), or weight·i(w_i w_j† − w_j w_i†) when imaginary.
-    const m = ComplexMatrix.zeros(n);
-    for (let r = 0; r < n; r++) {
-      for (let s = 0; s < n; s++) {
-        const ar = vectors.re[r * vectors.cols + i], ai = vectors.im[r * vectors.cols + i];
-        const br = vectors.re[s * vectors.cols + j], bi = vectors.im[s * vectors.cols + j];
-        // w_i[r]·conj(w_j[s])
-        const pr = ar * br + ai * bi;
-        const pi = ai * br - ar * bi;
-        if (i === j) {
-          m.re[r * n + s] += weight * pr;
-          m.im[r * n + s] += weight * pi;
-        } else if (!imaginary) {
-          m.re[r * n + s] += weight * pr;
-          m.im[r * n + s] += weight * pi;
-          m.re[s * n + r] += weight * pr;
-          m.im[s * n + r] -= weight * pi;
-        } else {
-          // i·(p − conj-transpose): i·p at (r,s), −i·conj(p) at (s,r)
-          m.re[r * n + s] -= weight * pi;
-          m.im[r * n + s] += weight * pr;
-          m.re[s * n + r] -= weight * pi;
-          m.im[s * n + r] -= weight * pr;
-        }
-      }
-    }
-    return m;
-  };
-  const basis: ComplexMatrix[] = [];
-  for (let j = 0; j < k; j++) {
-    basis.push(outer(j, j, 1, false));
-    for (let i = 0; i < j; i++) basis.push(outer(i, j, Math.SQRT1_2, false), outer(i, j, Math.SQRT1_2, true));
-  }
-  return basis;
-}
-
 /** τ_c on H_c (block diagonal in the key map) → blocks on the branch's pinched support; a keyless branch stores its weight as a 1×1 matrix. */
 export function referenceToSupport(support: BranchSupport, referenceOnOutput: ComplexMatrix): ComplexMatrix[] {
   if (isKeyless(support)) {
@@ -317,4 +232,98 @@ export function certificateBreakdown(
 export function eulerInnerProduct(objective: Objective, objectiveValue: number): number {
   const request = objective.request;
   return request.kind === 'von-neumann' ? objectiveValue : logCoefficient(request) / Math.LN2;
+}
+
+/** Largest cluster of smallest eigenvectors of ∇F − Σ yΓ whose curvature is measured (k² difference quotients). */
+const CURVATURE_CLUSTER = 4;
+
+/**
+ * The branch outputs' share of the error of λ_min(S), S = ∇F − Σ yΓ, when it is smaller than the Weyl charge ε
+ * (docs/convergence.md, "Where the conditioning reaches the bound"). W = the k smallest eigenvectors of the
+ * computed S, gap g = σ_k − σ_0. In blocks over (W, W^⊥) with the error E: λ_min(S) ≥ σ_0 − η when
+ * η = a + b²/(g − b + a), with a ≥ ‖E_WW‖ and b ≥ ‖E‖ (Schur complement; needs g > b). The errors come from
+ * backward errors Δ_c of the outputs (‖Δ_c‖_F ≤ scale·size_c), so ‖E_WW‖ ≤ √2·scale·Σ_c size_c·‖H_c|_W‖ with
+ * ‖H_c|_W‖ the Frobenius norm of the curvature over an orthonormal Hermitian basis of operators on W. Clusters grow
+ * from k = 1 and stop at the first whose gap term no longer dominates (deterministic, so a verifier repeats it).
+ */
+function curvatureCharge(
+  objective: Objective,
+  rho: ComplexMatrix,
+  reference: ReferenceBlocks | undefined,
+  spectrum: { values: Float64Array; vectors: ComplexMatrix },
+  weyl: number,
+  scale: number,
+): number {
+  const { values, vectors } = spectrum;
+  const clusters = Math.min(values.length - 1, CURVATURE_CLUSTER);
+  let best = weyl;
+  let curvature: ReturnType<Objective['outputCurvature']> | undefined;
+  let squares: number[] = [];
+  for (let k = 1; k <= clusters; k++) {
+    if (curvature === undefined) {
+      // Only worth measuring once some cluster is separated from the rest by more than the Weyl charge.
+      let separated = false;
+      for (let j = k; j <= clusters; j++) separated ||= values[j] - values[0] > weyl;
+      if (!separated) return best;
+      curvature = objective.outputCurvature(rho, reference);
+      if (!curvature) return best;
+      squares = curvature.sizes.map(() => 0);
+    }
+    if (curvature === null) return best;
+    for (const direction of clusterDirections(vectors, k - 1)) {
+      curvature.measure(direction).forEach((norm, c) => (squares[c] += norm * norm));
+    }
+    const gap = values[k] - values[0];
+    let within = 0;
+    curvature.sizes.forEach((size, c) => (within += size * Math.sqrt(squares[c])));
+    const a = Math.SQRT2 * scale * within;
+    if (!Number.isFinite(a)) return best;
+    const whole = Math.max(weyl, a);
+    if (gap <= whole) continue;
+    const second = (whole * whole) / (gap - whole + a);
+    best = Math.min(best, a + second);
+    if (second <= a) return best;
+  }
+  return best;
+}
+
+/**
+ * The elements an orthonormal basis (Frobenius) of the Hermitian operators on span{w_0, …, w_j} adds to one on
+ * span{w_0, …, w_{j−1}} (w_i the columns of `vectors`): w_j w_j†, and (w_i w_j† + w_j w_i†)/√2, i(w_i w_j† − w_j w_i†)/√2
+ * for i < j.
+ */
+function clusterDirections(vectors: ComplexMatrix, j: number): ComplexMatrix[] {
+  const n = vectors.rows;
+  const column = (i: number) => Array.from({ length: n }, (_, r) => [vectors.re[r * vectors.cols + i], vectors.im[r * vectors.cols + i]]);
+  const wj = column(j);
+  const directions: ComplexMatrix[] = [];
+  const diagonal = ComplexMatrix.zeros(n);
+  for (let r = 0; r < n; r++) {
+    for (let s = 0; s < n; s++) {
+      // w_j[r]·conj(w_j[s])
+      diagonal.re[r * n + s] = wj[r][0] * wj[s][0] + wj[r][1] * wj[s][1];
+      diagonal.im[r * n + s] = wj[r][1] * wj[s][0] - wj[r][0] * wj[s][1];
+    }
+  }
+  directions.push(diagonal);
+  for (let i = 0; i < j; i++) {
+    const wi = column(i);
+    const symmetric = ComplexMatrix.zeros(n);
+    const antisymmetric = ComplexMatrix.zeros(n);
+    for (let r = 0; r < n; r++) {
+      for (let s = 0; s < n; s++) {
+        // p = w_i[r]·conj(w_j[s]); the (r, s) entries of p + conj(p at (s, r)) and of i·(p − conj(p at (s, r))).
+        const pr = wi[r][0] * wj[s][0] + wi[r][1] * wj[s][1];
+        const pi = wi[r][1] * wj[s][0] - wi[r][0] * wj[s][1];
+        const qr = wi[s][0] * wj[r][0] + wi[s][1] * wj[r][1];
+        const qi = wi[s][1] * wj[r][0] - wi[s][0] * wj[r][1];
+        symmetric.re[r * n + s] = Math.SQRT1_2 * (pr + qr);
+        symmetric.im[r * n + s] = Math.SQRT1_2 * (pi - qi);
+        antisymmetric.re[r * n + s] = Math.SQRT1_2 * (-pi - qi);
+        antisymmetric.im[r * n + s] = Math.SQRT1_2 * (pr - qr);
+      }
+    }
+    directions.push(symmetric, antisymmetric);
+  }
+  return directions;
 }

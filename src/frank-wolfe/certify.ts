@@ -66,22 +66,31 @@ function certifyNeighbour(setup: SolverSetup, state: SolverState, point: Complex
   }
 }
 
+/** Stop trying neighbours once the best bound is within this share of the requested gap of F at the iterate. */
+const ENOUGH_SHARE = 0.5;
+
+/** The best bound already certifies the request with room to spare: further neighbours only cost evaluations. */
+function certifiedEnough(setup: SolverSetup, state: SolverState): boolean {
+  return state.best !== null && state.evaluation.value - state.best.breakdown.lowerBound <= ENOUGH_SHARE * setup.settings.gapTolerance;
+}
+
 /**
  * Certifies the iterate with multipliers y. Near the boundary of the cone the margin grows like 1/λ_min(ρ'). Any
  * full-rank ρ' gives a valid bound, so a few better-conditioned neighbours are tried as well and the best bound is
  * kept: mixtures (1−ε)x + ε·x₀ with the interior point, and x with its small eigenvalues lifted to a level μ
- * (trace and feasibility not needed).
+ * (trace and feasibility not needed). The search stops early once half the requested gap is certified.
  */
 export function certify(setup: SolverSetup, state: SolverState, y: Multipliers): void {
   const { x } = state;
   considerCandidate(setup, state, x, state.evaluation, y);
   const { values, vectors } = iterateEigen(state);
-  if (values[0] >= TUNING.wellConditionedEigenvalue) return;
+  if (values[0] >= TUNING.wellConditionedEigenvalue || certifiedEnough(setup, state)) return;
   for (const share of TUNING.certificateMixtures) {
     if (share <= values[0]) continue;
     const mixture = scale(x, 1 - share);
     addScaledInPlace(mixture, setup.interiorPoint, share);
     certifyNeighbour(setup, state, mixture);
+    if (certifiedEnough(setup, state)) return;
   }
   // Half-decade steps between the tuned levels: near a boundary optimum the margin (∝ 1/μ) and the linearization
   // loss (∝ μ) cross steeply, and the best μ decides whether a gap of 1e-6 is reachable at all.
@@ -90,6 +99,7 @@ export function certify(setup: SolverSetup, state: SolverState, y: Multipliers):
     if (level <= values[0]) continue;
     const lifted = Float64Array.from(values, (v) => Math.max(v, level) - v);
     certifyNeighbour(setup, state, add(x, hermitianPart(multiply(multiply(vectors, ComplexMatrix.diagonal(lifted)), adjoint(vectors)))));
+    if (certifiedEnough(setup, state)) return;
   }
 }
 

@@ -56,14 +56,15 @@ export interface JointEvaluation {
 }
 
 /**
- * How the gradient's error from the branch outputs reaches given directions (src/certificate/bound.ts): for each
- * Hermitian direction B_l on H and branch c, ‖∂_{X_c}⟨∇F, B_l⟩‖_F (the c-th block of the Hessian of F in the
- * outputs, applied to the outputs' change Σ_j K B_l K†), and per branch the size ‖X_c‖_F + ‖ρ‖_F·Σ_j ‖K_j‖_F² of
- * the outputs' perturbation that one rounding of ρ and of X_c's eigendecomposition stands for.
+ * How the gradient's error from the branch outputs reaches given directions (src/certificate/bound.ts): `measure(B)`
+ * gives for each branch c, for a Hermitian direction B on H, ‖∂_{X_c}⟨∇F, B⟩‖_F (the c-th block of the Hessian of F
+ * in the outputs, applied to the outputs' change Σ_j K B K†, by a forward difference); `sizes` per branch is
+ * ‖X_c‖_F + ‖ρ‖_F·Σ_j ‖K_j‖_F², the outputs' perturbation that one rounding of ρ and of X_c's eigendecomposition
+ * stands for (in units of the backward-error scale).
  */
 export interface OutputCurvature {
-  norms: number[][];
   sizes: number[];
+  measure(direction: ComplexMatrix): number[];
 }
 
 export interface Objective {
@@ -74,7 +75,7 @@ export interface Objective {
   /** Sandwiched-up at a given τ (no inner optimisation); throws for other kinds. */
   evaluateAtReference(rho: ComplexMatrix, reference: ReferenceBlocks): JointEvaluation;
   /** Null when ρ has no positive definite outputs to differentiate at. Sandwiched-up needs τ (held fixed). */
-  outputCurvature(rho: ComplexMatrix, directions: readonly ComplexMatrix[], reference?: ReferenceBlocks): OutputCurvature | null;
+  outputCurvature(rho: ComplexMatrix, reference?: ReferenceBlocks): OutputCurvature | null;
 }
 
 /** Forward-difference step of the curvature, as a share of the smallest output eigenvalue (truncation ∝ this share). */
@@ -278,7 +279,7 @@ class EntropyObjective implements Objective {
     };
   }
 
-  outputCurvature(rho: ComplexMatrix, directions: readonly ComplexMatrix[], reference?: ReferenceBlocks): OutputCurvature | null {
+  outputCurvature(rho: ComplexMatrix, reference?: ReferenceBlocks): OutputCurvature | null {
     if (this.request.kind === 'sandwiched-up' && !reference) throw new Error('outputCurvature: sandwiched-up needs τ');
     const gradientsAt = (states: readonly ComplexMatrix[]) =>
       reference && this.request.kind === 'sandwiched-up'
@@ -294,14 +295,16 @@ class EntropyObjective implements Objective {
     const step = (CURVATURE_STEP_SHARE * floor) / stretch;
     if (!(step > 0 && Number.isFinite(step))) return null;
     const rhoNorm = frobeniusNorm(rho);
-    const norms = directions.map((direction) => {
-      const moved = this.branchStates(direction).map((change, c) => {
-        const out = states[c].clone();
-        addScaledInPlace(out, change, step);
-        return out;
-      });
-      return gradientsAt(moved).map((g, c) => frobeniusNorm(subtract(g, base[c])) / step);
-    });
-    return { norms, sizes: states.map((x, c) => frobeniusNorm(x) + rhoNorm * krausWeights[c]) };
+    return {
+      sizes: states.map((x, c) => frobeniusNorm(x) + rhoNorm * krausWeights[c]),
+      measure: (direction) => {
+        const moved = this.branchStates(direction).map((change, c) => {
+          const out = states[c].clone();
+          addScaledInPlace(out, change, step);
+          return out;
+        });
+        return gradientsAt(moved).map((g, c) => frobeniusNorm(subtract(g, base[c])) / step);
+      },
+    };
   }
 }
