@@ -25,14 +25,21 @@ export function restoreMultipliers(oracleResult: OracleResult, equalityCoefficie
   return { lower, upper };
 }
 
-/** Keeps the linearization at `point` when its bound beats the best so far. */
+/**
+ * Keeps the linearization at `point` when its bound beats the best so far. While iterating, the margin's curvature
+ * (a few extra gradient evaluations) is measured only for a bound that could then certify the requested gap; the
+ * last certification (`thorough`) measures it for any bound that could become the best.
+ */
 function considerCandidate(
   setup: SolverSetup,
   state: SolverState,
   point: ComplexMatrix,
   pointEvaluation: ObjectiveEvaluation,
   y: Multipliers,
+  thorough: boolean,
 ): void {
+  const best = state.best === null ? -Infinity : state.best.breakdown.lowerBound;
+  const worthAbove = thorough ? best : Math.max(best, state.evaluation.value - setup.settings.gapTolerance);
   const breakdown = linearizationBound(
     setup.restricted,
     setup.objective,
@@ -41,7 +48,7 @@ function considerCandidate(
     y.upper,
     pointEvaluation.reference,
     pointEvaluation,
-    state.best === null ? -Infinity : state.best.breakdown.lowerBound,
+    worthAbove,
   );
   if (Number.isFinite(breakdown.lowerBound) && (state.best === null || breakdown.lowerBound > state.best.breakdown.lowerBound)) {
     state.best = {
@@ -55,14 +62,14 @@ function considerCandidate(
 }
 
 /** A neighbour of the iterate needs its own gradient and therefore its own oracle answer. */
-function certifyNeighbour(setup: SolverSetup, state: SolverState, point: ComplexMatrix): void {
+function certifyNeighbour(setup: SolverSetup, state: SolverState, point: ComplexMatrix, thorough: boolean): void {
   setup.clock.checkpoint();
   const e = evaluateSafely(setup.objective, point);
   if (!e) return;
   const split = setup.oracle.stripEqualitySpan(e.gradient);
   const answer = setup.clock.timeOracle(() => setup.oracle.minimize(split.stripped, { relativeAccuracy: state.oracleAccuracy }));
   if (answer.point || answer.status === 'ITERATION_LIMIT') {
-    considerCandidate(setup, state, point, e, restoreMultipliers(answer, split.equalityCoefficients));
+    considerCandidate(setup, state, point, e, restoreMultipliers(answer, split.equalityCoefficients), thorough);
   }
 }
 
@@ -80,16 +87,16 @@ function certifiedEnough(setup: SolverSetup, state: SolverState): boolean {
  * kept: mixtures (1−ε)x + ε·x₀ with the interior point, and x with its small eigenvalues lifted to a level μ
  * (trace and feasibility not needed). The search stops early once half the requested gap is certified.
  */
-export function certify(setup: SolverSetup, state: SolverState, y: Multipliers): void {
+export function certify(setup: SolverSetup, state: SolverState, y: Multipliers, thorough = false): void {
   const { x } = state;
-  considerCandidate(setup, state, x, state.evaluation, y);
+  considerCandidate(setup, state, x, state.evaluation, y, thorough);
   const { values, vectors } = iterateEigen(state);
   if (values[0] >= TUNING.wellConditionedEigenvalue || certifiedEnough(setup, state)) return;
   for (const share of TUNING.certificateMixtures) {
     if (share <= values[0]) continue;
     const mixture = scale(x, 1 - share);
     addScaledInPlace(mixture, setup.interiorPoint, share);
-    certifyNeighbour(setup, state, mixture);
+    certifyNeighbour(setup, state, mixture, thorough);
     if (certifiedEnough(setup, state)) return;
   }
   // Half-decade steps between the tuned levels: near a boundary optimum the margin (∝ 1/μ) and the linearization
@@ -98,7 +105,7 @@ export function certify(setup: SolverSetup, state: SolverState, y: Multipliers):
   for (const level of levels) {
     if (level <= values[0]) continue;
     const lifted = Float64Array.from(values, (v) => Math.max(v, level) - v);
-    certifyNeighbour(setup, state, add(x, hermitianPart(multiply(multiply(vectors, ComplexMatrix.diagonal(lifted)), adjoint(vectors)))));
+    certifyNeighbour(setup, state, add(x, hermitianPart(multiply(multiply(vectors, ComplexMatrix.diagonal(lifted)), adjoint(vectors)))), thorough);
     if (certifiedEnough(setup, state)) return;
   }
 }
@@ -107,5 +114,5 @@ export function certify(setup: SolverSetup, state: SolverState, y: Multipliers):
 export function certifyLastIterate(setup: SolverSetup, state: SolverState): void {
   const split = setup.oracle.stripEqualitySpan(state.evaluation.gradient);
   const answer = setup.clock.timeOracle(() => setup.oracle.minimize(split.stripped, { relativeAccuracy: state.oracleAccuracy }));
-  certify(setup, state, restoreMultipliers(answer, split.equalityCoefficients));
+  certify(setup, state, restoreMultipliers(answer, split.equalityCoefficients), true);
 }
