@@ -57,6 +57,8 @@ export function linearizationBound(
   precomputed?: ObjectiveEvaluation,
   /** The solver's shortcut: skip measuring the curvature when even a zero conditioning charge would not beat this. */
   curvatureWorthAbove = -Infinity,
+  /** Polled before each gradient evaluation of the curvature (the solver's time limit and cancellation). */
+  checkpoint: () => void = () => {},
 ): BoundBreakdown {
   const n = rho.rows;
   let objectiveValue: number;
@@ -132,7 +134,7 @@ export function linearizationBound(
   let margin = unamplified + weyl;
   const base = objectiveValue - gradientInnerProduct + dualConstant + smallestEigenvalue + referenceTerm;
   if (weyl > derivedCharge + unamplified && base - unamplified - derivedCharge > curvatureWorthAbove) {
-    const graded = derivedCharge + curvatureCharge(objective, rho, reference, spectrum, weyl, scale);
+    const graded = derivedCharge + curvatureCharge(objective, rho, reference, spectrum, weyl, scale, checkpoint);
     if (graded < weyl) {
       conditioningCharge = graded;
       margin = unamplified + graded;
@@ -253,6 +255,7 @@ function curvatureCharge(
   spectrum: { values: Float64Array; vectors: ComplexMatrix },
   weyl: number,
   scale: number,
+  checkpoint: () => void,
 ): number {
   const { values, vectors } = spectrum;
   const clusters = Math.min(values.length - 1, CURVATURE_CLUSTER);
@@ -265,12 +268,14 @@ function curvatureCharge(
       let separated = false;
       for (let j = k; j <= clusters; j++) separated ||= values[j] - values[0] > weyl;
       if (!separated) return best;
+      checkpoint();
       curvature = objective.outputCurvature(rho, reference);
       if (!curvature) return best;
       squares = curvature.sizes.map(() => 0);
     }
     if (curvature === null) return best;
     for (const direction of clusterDirections(vectors, k - 1)) {
+      checkpoint();
       curvature.measure(direction).forEach((norm, c) => (squares[c] += norm * norm));
     }
     const gap = values[k] - values[0];

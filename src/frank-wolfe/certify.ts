@@ -49,6 +49,7 @@ function considerCandidate(
     pointEvaluation.reference,
     pointEvaluation,
     worthAbove,
+    setup.clock.checkpoint,
   );
   if (Number.isFinite(breakdown.lowerBound) && (state.best === null || breakdown.lowerBound > state.best.breakdown.lowerBound)) {
     state.best = {
