@@ -23,7 +23,6 @@ import {
   multiplyByLowerAdjointRightHermitian,
   multiplyByLowerLeft,
   multiplyBySymmetricReal,
-  realCholeskyInPlace,
   realCholeskySolveInPlace,
   smallestEigenvalueInPlace,
   smallestEigenvalueInPlaceReal,
@@ -688,10 +687,10 @@ export class InteriorPointSolver {
     for (let k = 0; k < m; k++) largestDiagonal = Math.max(largestDiagonal, M[k * m + k]);
     // Kept so that a failed factorization can be retried with a small diagonal shift.
     this.schurBackup.set(M);
-    if (realCholeskyInPlace(M, m)) return true;
+    if (choleskyInPlaceReal(M, m)) return true;
     M.set(this.schurBackup);
     for (let k = 0; k < m; k++) M[k * m + k] += SCHUR_REGULARIZATION * largestDiagonal;
-    return realCholeskyInPlace(M, m);
+    return choleskyInPlaceReal(M, m);
   }
 
   /**

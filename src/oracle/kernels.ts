@@ -333,27 +333,7 @@ function smallestTridiagonalEigenvalue(
   return lower;
 }
 
-/** In-place real Cholesky of a symmetric positive definite m×m matrix (lower triangle); false if not positive definite. */
-export function realCholeskyInPlace(a: Float64Array, m: number): boolean {
-  for (let j = 0; j < m; j++) {
-    const rowJ = j * m;
-    let pivot = a[rowJ + j];
-    for (let k = 0; k < j; k++) pivot -= a[rowJ + k] * a[rowJ + k];
-    if (!(pivot > 0)) return false;
-    const diagonal = Math.sqrt(pivot);
-    a[rowJ + j] = diagonal;
-    const inverse = 1 / diagonal;
-    for (let i = j + 1; i < m; i++) {
-      const rowI = i * m;
-      let s = a[rowI + j];
-      for (let k = 0; k < j; k++) s -= a[rowI + k] * a[rowJ + k];
-      a[rowI + j] = s * inverse;
-    }
-  }
-  return true;
-}
-
-/** Solves L·L^T·x = b in place (b ← x) with the factor from {@link realCholeskyInPlace}. */
+/** Solves L·L^T·x = b in place (b ← x) with the factor from {@link choleskyInPlaceReal}. */
 export function realCholeskySolveInPlace(l: Float64Array, m: number, b: Float64Array): void {
   for (let i = 0; i < m; i++) {
     let s = b[i];
@@ -637,7 +617,10 @@ export function multiplyByHermitian(
 // Real-arithmetic twins of the kernels above, used when G and every constraint operator are real (then every
 // iterate stays real and the imaginary parts would only multiply zeros): about a quarter of the work.
 
-/** Real symmetric version of {@link choleskyInPlace}. */
+/**
+ * Real symmetric version of {@link choleskyInPlace}: A = L·Lᵀ in the lower triangle, upper triangle zeroed; false if
+ * A is not positive definite. The one real Cholesky of the oracle (cone factors and the Schur complement).
+ */
 export function choleskyInPlaceReal(a: Float64Array, n: number): boolean {
   for (let j = 0; j < n; j++) {
     const rowJ = j * n;
