@@ -839,3 +839,70 @@ export function smallestEigenvalueInPlaceReal(
   if (n >= 2) offDiagonalSquared[n - 2] = a[(n - 1) * n + n - 2] ** 2;
   return smallestTridiagonalEigenvalue(diagonal, offDiagonalSquared, n, relativeTolerance, stopIfAbove);
 }
+
+/** Entries per chunk of the blocked pair sums: a chunk of every vector stays in cache while all pairs use it. */
+const PAIR_SUM_CHUNK = 128;
+
+/**
+ * out[j·count + l] = out[l·count + j] = Σ_t a_j[t]·b_l[t] + sign·a'_j[t]·b'_l[t] for l ≤ j, over `count` vectors of
+ * length `size` stored back to back (a' and b' the imaginary parts, null for real data). Blocked over t so that
+ * each chunk of all vectors is read from cache m/4 times instead of from memory: the Gram part of the Schur
+ * complement (a = b, sign +1: Re⟨Q_j, Q_l⟩) and its tensor-product form (sign −1: Re Σ S_j[t]·T_l[t]).
+ */
+export function blockedPairSums(
+  aRe: Float64Array,
+  aIm: Float64Array | null,
+  bRe: Float64Array,
+  bIm: Float64Array | null,
+  sign: number,
+  count: number,
+  size: number,
+  out: Float64Array,
+): void {
+  out.fill(0, 0, count * count);
+  for (let start = 0; start < size; start += PAIR_SUM_CHUNK) {
+    const end = Math.min(size, start + PAIR_SUM_CHUNK);
+    for (let j = 0; j < count; j++) {
+      const oj = j * size;
+      let l = 0;
+      for (; l + 3 <= j; l += 4) {
+        const o0 = l * size;
+        const o1 = o0 + size;
+        const o2 = o1 + size;
+        const o3 = o2 + size;
+        let s0 = 0;
+        let s1 = 0;
+        let s2 = 0;
+        let s3 = 0;
+        for (let t = start; t < end; t++) {
+          const x = aRe[oj + t];
+          s0 += x * bRe[o0 + t];
+          s1 += x * bRe[o1 + t];
+          s2 += x * bRe[o2 + t];
+          s3 += x * bRe[o3 + t];
+        }
+        if (aIm && bIm) {
+          for (let t = start; t < end; t++) {
+            const x = sign * aIm[oj + t];
+            s0 += x * bIm[o0 + t];
+            s1 += x * bIm[o1 + t];
+            s2 += x * bIm[o2 + t];
+            s3 += x * bIm[o3 + t];
+          }
+        }
+        out[j * count + l] += s0;
+        out[j * count + l + 1] += s1;
+        out[j * count + l + 2] += s2;
+        out[j * count + l + 3] += s3;
+      }
+      for (; l <= j; l++) {
+        const ol = l * size;
+        let sum = 0;
+        for (let t = start; t < end; t++) sum += aRe[oj + t] * bRe[ol + t];
+        if (aIm && bIm) for (let t = start; t < end; t++) sum += sign * aIm[oj + t] * bIm[ol + t];
+        out[j * count + l] += sum;
+      }
+    }
+  }
+  for (let j = 0; j < count; j++) for (let l = 0; l < j; l++) out[l * count + j] = out[j * count + l];
+}
