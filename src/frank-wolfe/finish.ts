@@ -88,6 +88,7 @@ export function assembleResult(setup: SolverSetup, state: SolverState): SolveRes
         ...stored,
         claimedBound: certifiedBound,
         toleranceMargin: claimed.margin,
+        ...(face.exposures.length > 0 ? { faceExposures: face.exposures } : {}),
       };
     }
   }
