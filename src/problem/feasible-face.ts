@@ -173,9 +173,14 @@ function exposedKernel(
   while (count < r && values[count] <= tolerance) count++;
   if (count === r) throw new FaceExposureError(field, 'the combination vanishes on the face (exposes nothing)');
   if (count === 0) throw new FaceExposureError(field, 'the combination is positive definite on the face: no density operator is feasible');
-  // Tr(Zρ) = 0 for feasible ρ; with Z = QΛQ† + E (‖E‖ within the tolerance) and the kernel eigenvalues at most
-  // the tolerance, λ_gap·Tr(P_W ρ) ≤ Σ_W λ_j⟨q_j|ρ|q_j⟩ ≤ 2·tolerance (docs/faces.md, "How far off the face").
-  return { keep: columns(vectors, 0, count), leak: Math.min(1, (2 * tolerance) / values[count]) };
+  // Tr(Zρ) = 0 for feasible ρ. Z as formed is off by at most (terms + 1)·u·scale, the compression to the face and
+  // eigh each add at most c·n·u·‖Ẑ‖_F, the kept kernel eigenvalues are at most their largest modulus; so
+  // λ_W·Tr(P_W ρ) ≤ η for the smallest exposed eigenvalue λ_W (docs/faces.md, "How far off the face").
+  let kernelSize = 0;
+  for (let k = 0; k < count; k++) kernelSize = Math.max(kernelSize, Math.abs(values[k]));
+  const terms = y.filter((v) => v !== 0).length;
+  const eta = kernelSize + 2 * EDGE_CONSTANT * n * UNIT_ROUNDOFF * frobeniusNorm(z) + (terms + 1) * UNIT_ROUNDOFF * scale;
+  return { keep: columns(vectors, 0, count), leak: Math.min(1, eta / values[count]) };
 }
 
 /** The problem seen on the face: Kraus operators K·P, constraint operators P†ΓP (ρ̃ of size r × r). */
