@@ -874,20 +874,24 @@ export function blockedPairSums(
         let s1 = 0;
         let s2 = 0;
         let s3 = 0;
-        for (let t = start; t < end; t++) {
-          const x = aRe[oj + t];
-          s0 += x * bRe[o0 + t];
-          s1 += x * bRe[o1 + t];
-          s2 += x * bRe[o2 + t];
-          s3 += x * bRe[o3 + t];
-        }
         if (aIm && bIm) {
+          // Real and imaginary products in one sum per entry (sign·x is exact): the summation order of the
+          // unblocked Gram, so results do not move with the blocking for d ≤ 11.
           for (let t = start; t < end; t++) {
-            const x = sign * aIm[oj + t];
-            s0 += x * bIm[o0 + t];
-            s1 += x * bIm[o1 + t];
-            s2 += x * bIm[o2 + t];
-            s3 += x * bIm[o3 + t];
+            const x = aRe[oj + t];
+            const xi = sign * aIm[oj + t];
+            s0 += x * bRe[o0 + t] + xi * bIm[o0 + t];
+            s1 += x * bRe[o1 + t] + xi * bIm[o1 + t];
+            s2 += x * bRe[o2 + t] + xi * bIm[o2 + t];
+            s3 += x * bRe[o3 + t] + xi * bIm[o3 + t];
+          }
+        } else {
+          for (let t = start; t < end; t++) {
+            const x = aRe[oj + t];
+            s0 += x * bRe[o0 + t];
+            s1 += x * bRe[o1 + t];
+            s2 += x * bRe[o2 + t];
+            s3 += x * bRe[o3 + t];
           }
         }
         out[j * count + l] += s0;
@@ -898,8 +902,8 @@ export function blockedPairSums(
       for (; l <= j; l++) {
         const ol = l * size;
         let sum = 0;
-        for (let t = start; t < end; t++) sum += aRe[oj + t] * bRe[ol + t];
-        if (aIm && bIm) for (let t = start; t < end; t++) sum += sign * aIm[oj + t] * bIm[ol + t];
+        if (aIm && bIm) for (let t = start; t < end; t++) sum += aRe[oj + t] * bRe[ol + t] + sign * aIm[oj + t] * bIm[ol + t];
+        else for (let t = start; t < end; t++) sum += aRe[oj + t] * bRe[ol + t];
         out[j * count + l] += sum;
       }
     }
