@@ -11,7 +11,7 @@ import {
 import { eigh, eigvalsh } from '../linear-algebra/eigen.js';
 import type { Objective, ObjectiveEvaluation, ReferenceBlocks, BranchSupport } from '../objectives/index.js';
 import type { Problem } from '../problem/model.js';
-import { compressToFace, type FeasibleFace } from '../problem/feasible-face.js';
+import { compressToFace, faceContinuityMargin, type FeasibleFace } from '../problem/feasible-face.js';
 import { matrixFromJson } from '../problem/json.js';
 import type { Certificate } from '../result/types.js';
 import { pinchedBlocks } from '../objectives/spectral-blocks.js';
@@ -214,7 +214,7 @@ export function certificateBreakdown(
   certificate: Pick<Certificate, 'linearizationState' | 'referenceStates' | 'multipliersLower' | 'multipliersUpper'>,
   read: StoredLinearization = readStoredLinearization(face, objective, certificate),
 ): BoundBreakdown {
-  return linearizationBound(
+  const breakdown = linearizationBound(
     restricted,
     objective,
     read.state,
@@ -222,6 +222,10 @@ export function certificateBreakdown(
     certificate.multipliersUpper,
     read.reference,
   );
+  // On an exposed face: the continuity margin for feasible states off the face (docs/faces.md).
+  const faceMargin = faceContinuityMargin(face, restricted, objective.request.kind, certificate.multipliersLower, certificate.multipliersUpper);
+  if (faceMargin === 0) return breakdown;
+  return { ...breakdown, margin: breakdown.margin + faceMargin, lowerBound: breakdown.lowerBound - faceMargin };
 }
 
 /**

@@ -2,13 +2,13 @@
 import { eigvalsh } from '../linear-algebra/eigen.js';
 import { BACKWARD_ERROR_CONSTANT, UNIT_ROUNDOFF } from '../linear-algebra/rounding.js';
 import { createObjective } from '../objectives/index.js';
-import { reduceProblem } from '../problem/inactive-bounds.js';
+import { dropInactiveBounds, reduceProblem } from '../problem/inactive-bounds.js';
+import { FaceExposureError, feasibleFace, restrictToFace, type FeasibleFace } from '../problem/feasible-face.js';
 import { farkasTest } from '../problem/farkas.js';
 import { inputHash } from '../problem/hash.js';
 import { matrixFromJson } from '../problem/json.js';
 import { FEASIBILITY_TOLERANCE, relativeConstraintViolation } from '../problem/violation.js';
 import type { EntropyRequest, Problem } from '../problem/model.js';
-import type { FeasibleFace } from '../problem/feasible-face.js';
 import type { Certificate, FarkasCertificate, SolveResult } from '../result/types.js';
 import { certificateBreakdown, readStoredLinearization, type BoundBreakdown, type StoredLinearization } from './bound.js';
 import { hasMinTradeoff, minTradeoffFromBreakdown, minTradeoffMismatch } from './min-tradeoff.js';
@@ -116,8 +116,14 @@ function checkUpperBound(problem: Problem, request: EntropyRequest, result: Resu
   if (!(violation <= FEASIBILITY_TOLERANCE)) {
     return `finalState violates the constraints by ${violation} (relative to ‖Γ‖_F), above the feasibility tolerance ${FEASIBILITY_TOLERANCE}`;
   }
-  const { face, restricted } = reduceProblem(problem);
-  const recomputed = upperBoundAt(face, restricted, request, result.finalState);
+  let reduced;
+  try {
+    reduced = reduceOnFace(problem, result.certificate?.faceExposures);
+  } catch (error) {
+    if (error instanceof FaceExposureError) return error.message;
+    throw error;
+  }
+  const recomputed = upperBoundAt(reduced.face, reduced.restricted, request, result.finalState);
   if (recomputed === null) return 'F is not finite at finalState';
   if (Math.abs(recomputed - upperBound) > REPRODUCTION_TOLERANCE * (1 + Math.abs(upperBound))) {
     return `upperBound ${upperBound} is not F at finalState (recomputed ${recomputed})`;
@@ -126,6 +132,18 @@ function checkUpperBound(problem: Problem, request: EntropyRequest, result: Resu
     return `CERTIFIED with gap ${gap} above the requested ${result.certificate.settings.gapTolerance}`;
   }
   return null;
+}
+
+/**
+ * The feasible face as the verifier recomputes it: the exact reductions, then the certificate's exposing
+ * directions, each re-checked (FaceExposureError when one is not positive semidefinite or exposes nothing).
+ */
+function reduceOnFace(problem: Problem, exposures: Certificate['faceExposures']): { face: FeasibleFace; restricted: Problem } {
+  if (exposures === undefined || exposures.length === 0) return reduceProblem(problem);
+  if (!Array.isArray(exposures)) throw new FaceExposureError('faceExposures', 'must be a list of exposures');
+  const active = dropInactiveBounds(problem).problem;
+  const face = feasibleFace(active, { exposures });
+  return { face, restricted: restrictToFace(active, face) };
 }
 
 /** Null when the stated min-tradeoff function is the certificate's (or none is stated); otherwise why not. */
@@ -164,7 +182,14 @@ export function verifyCertificate(
     return reject(`reported bound ${reportedBound} differs from the certificate's claimed bound ${claimed}`);
   }
 
-  const { face, restricted } = reduceProblem(problem);
+  let reduced;
+  try {
+    reduced = reduceOnFace(problem, certificate.faceExposures);
+  } catch (error) {
+    if (error instanceof FaceExposureError) return reject(`faceExposures: ${error.message}`);
+    throw error;
+  }
+  const { face, restricted } = reduced;
   const objective = createObjective(restricted, request);
   const references = certificate.referenceStates;
   if (objective.request.kind === 'sandwiched-up' && (!references || references.length !== objective.supports.length)) {

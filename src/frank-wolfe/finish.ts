@@ -90,6 +90,7 @@ export function assembleResult(setup: SolverSetup, state: SolverState): SolveRes
         ...stored,
         claimedBound: certifiedBound,
         toleranceMargin: claimed.margin,
+        ...(face.exposures.length > 0 ? { faceExposures: face.exposures } : {}),
       };
       // From the very breakdown claimed, so the verifier's recomputation reproduces it bit for bit.
       if (hasMinTradeoff(problem, base.entropy)) minTradeoff = minTradeoffFromBreakdown(problem, face, stored, claimed);

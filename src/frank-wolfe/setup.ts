@@ -4,7 +4,7 @@ import { addScaledInPlace, hermitianPart, scale, type ComplexMatrix } from '../l
 import { eigvalsh } from '../linear-algebra/eigen.js';
 import { numericalRank } from '../linear-algebra/support.js';
 import { createObjective, normaliseRequest } from '../objectives/index.js';
-import { LinearOracle } from '../oracle/index.js';
+import { exposeIfRankDeficient, LinearOracle } from '../oracle/index.js';
 import { compressToFace, liftFromFace, type FeasibleFace } from '../problem/feasible-face.js';
 import { farkasTest } from '../problem/farkas.js';
 import { equalityFarkas } from '../problem/equality-farkas.js';
@@ -37,13 +37,20 @@ export function setUp(
   const { checkpoint } = clock;
 
   checkpoint();
-  const { active, face, restricted } = reduceProblem(problem, checkpoint);
+  const reduced = reduceProblem(problem, checkpoint);
+  const { active } = reduced;
+  let { face, restricted } = reduced;
   if (active.infeasibility) return done(infeasibleResult(base, clock, active.infeasibility));
-  const oracle = new LinearOracle(face.dimension, restricted.constraints, {
+  let oracle = new LinearOracle(face.dimension, restricted.constraints, {
     relativeAccuracy: TUNING.initialOracleAccuracy,
     checkpoint,
   });
-  const feasible = clock.timeOracle(() => oracle.findFeasiblePoint());
+  let feasible = clock.timeOracle(() => oracle.findFeasiblePoint());
+  // No full-rank feasible state: restate the problem on the face its exposing direction finds (docs/faces.md).
+  const exposed = clock.timeOracle(() =>
+    exposeIfRankDeficient(active.problem, entropy.kind, feasible, { checkpoint, settings: { relativeAccuracy: TUNING.initialOracleAccuracy } }),
+  );
+  if (exposed) ({ face, restricted, oracle, feasible } = exposed);
   const undecided = (message: string) =>
     done({ ...resultWithoutBound(base, clock, message, 0), status: 'FEASIBILITY_UNDECIDED' });
   if (feasible.status === 'INFEASIBLE' && feasible.infeasibility) {

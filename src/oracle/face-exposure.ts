@@ -5,7 +5,8 @@
 import { EigenvalueDecomposition, Matrix } from '../linear-algebra/ml-matrix.js';
 import { ComplexMatrix, columns, conjugateAdjoint, frobeniusNorm, multiply } from '../linear-algebra/complex-matrix.js';
 import { eigh, eigvalsh } from '../linear-algebra/eigen.js';
-import { FaceExposureError, feasibleFace, restrictToFace, type FaceExposure, type FeasibleFace } from '../problem/feasible-face.js';
+import { FaceExposureError, feasibleFace, liftFromFace, restrictToFace, type FaceExposure, type FeasibleFace } from '../problem/feasible-face.js';
+import { FEASIBILITY_TOLERANCE, relativeConstraintViolation } from '../problem/violation.js';
 import type { LinearConstraint, Problem } from '../problem/model.js';
 import { FACE_EIGENVALUE_RATIO, LinearOracle } from './linear-oracle.js';
 import type { Checkpoint, OracleResult, OracleSettings } from './types.js';
@@ -30,6 +31,8 @@ const GRAM_CUTOFF = NULL_SPACE_RATIO * NULL_SPACE_RATIO;
 export interface ExposedFace {
   /** The feasible face with every accepted exposure recorded (pass `face.exposures` to feasibleFace to recompute it). */
   face: FeasibleFace;
+  /** The problem restated on that face. */
+  restricted: Problem;
   /** The oracle on that face and its feasibility answer, for reuse by the caller. */
   oracle: LinearOracle;
   feasible: OracleResult;
@@ -54,7 +57,7 @@ export function exposeFeasibleFace(problem: Problem, options: ExposeOptions = {}
       checkpoint,
       ...(face.exposures.length > 0 ? { impliedEqualityTolerance: EXPOSED_FACE_CONSISTENCY } : {}),
     });
-    return { face, oracle, feasible: oracle.findFeasiblePoint() };
+    return { face, restricted, oracle, feasible: oracle.findFeasiblePoint() };
   };
   let current = onFace(feasibleFace(problem, { checkpoint }));
   for (let step = 0; step < MAX_EXPOSURE_STEPS; step++) {
@@ -74,6 +77,33 @@ export function exposeFeasibleFace(problem: Problem, options: ExposeOptions = {}
     current = onFace(next);
   }
   return current;
+}
+
+/**
+ * The solver's entry: when the most interior feasible point found is rank deficient, the face exposed in one step
+ * with a finite leak and a full-rank analytic centre on it (the only case docs/faces.md derives a continuity margin
+ * for, and only for von Neumann); null otherwise, and the caller keeps its face.
+ */
+export function exposeIfRankDeficient(
+  problem: Problem,
+  kind: string,
+  feasible: OracleResult,
+  options: ExposeOptions = {},
+): ExposedFace | null {
+  if (kind !== 'von-neumann' || feasible.status === 'INFEASIBLE' || !feasible.point) return null;
+  // A run that failed on the missing interior (NUMERICAL_ERROR, ITERATION_LIMIT) still shows the face in its point.
+  const values = eigvalsh(feasible.point);
+  const n = values.length;
+  if (feasible.status === 'OPTIMAL' && values[0] > FACE_EIGENVALUE_RATIO * values[n - 1]) return null;
+  const exposed = exposeFeasibleFace(problem, options);
+  const { face, feasible: onFace } = exposed;
+  if (face.exposures.length !== 1 || !Number.isFinite(face.leak ?? Infinity)) return null;
+  if (onFace.status !== 'OPTIMAL' || !onFace.point) return null;
+  const inner = eigvalsh(onFace.point);
+  if (!(inner[0] > FACE_EIGENVALUE_RATIO * inner[inner.length - 1])) return null;
+  // Restated equalities agree on the face only to about √u: its centre must still meet the original constraints,
+  // or the face would yield neither a feasible final state nor a trustworthy infeasibility verdict.
+  return relativeConstraintViolation(problem, liftFromFace(face, onFace.point)) <= FEASIBILITY_TOLERANCE ? exposed : null;
 }
 
 /**

@@ -12,4 +12,4 @@ export {
   type OracleSettings,
   type OracleStatus,
 } from './types.js';
-export { exposeFeasibleFace, exposingMultipliers, type ExposedFace, type ExposeOptions } from './face-exposure.js';
+export { exposeFeasibleFace, exposeIfRankDeficient, exposingMultipliers, type ExposedFace, type ExposeOptions } from './face-exposure.js';

@@ -7,6 +7,7 @@
 // so a two-sided interval costs one row, not two. Infeasible start; all buffers allocated once per problem; real
 // data run on real-arithmetic kernels.
 import {
+  blockedPairSums,
   choleskyInPlace,
   choleskyInPlaceReal,
   hermitianInner,
@@ -23,7 +24,6 @@ import {
   multiplyByLowerAdjointRightHermitian,
   multiplyByLowerLeft,
   multiplyBySymmetricReal,
-  realCholeskyInPlace,
   realCholeskySolveInPlace,
   smallestEigenvalueInPlace,
   smallestEigenvalueInPlaceReal,
@@ -35,6 +35,7 @@ import {
   TridiagonalWorkspace,
   type SparseOperator,
 } from './kernels.js';
+import { applyTensorLeft, type TensorFactors, type TensorRows } from './tensor-rows.js';
 
 /** Fraction of the distance to the cone boundary taken by a step, before the adaptive increase (SDPT3 practice). */
 const BASE_STEP_FRACTION = 0.9;
@@ -72,6 +73,8 @@ export interface InteriorPointRows {
   boxRhs: Float64Array;
   boxFirst: Int32Array;
   boxSecond: Int32Array;
+  /** The rows as combinations of tensor products, when every operator behind them is one (cheaper Schur complement). */
+  tensor?: TensorRows;
 }
 
 export type InteriorPointStatus = 'CONVERGED' | 'STALLED' | 'INFEASIBLE' | 'ITERATION_LIMIT' | 'NUMERICAL_ERROR';
@@ -173,6 +176,14 @@ export class InteriorPointSolver {
   primalStart: { xRe: Float64Array; xIm: Float64Array; slack: Float64Array } | null = null;
   /** Every constraint operator is real. */
   private readonly rowsReal: boolean;
+  /** Tensor-product structure used for the Schur complement (null: dense products), chosen by estimated cost. */
+  private readonly tensor: TensorRows | null;
+  private readonly tensorFactors: TensorFactors[] = [];
+  /** (O_j·Z⁻¹)ᵀ per tensor operator, and M in the operator basis (p×p) and C·M (m×p). */
+  private readonly tensorTransposedRe: Float64Array;
+  private readonly tensorTransposedIm: Float64Array;
+  private readonly operatorSchur: Float64Array;
+  private readonly halfSchur: Float64Array;
   /** The current objective is real too: all iterates stay real and the real kernels run. */
   private realMode = false;
   /** A complex run may have left imaginary parts in the work buffers; cleared before the next real run. */
@@ -222,6 +233,18 @@ export class InteriorPointSolver {
     this.schurRe = new Float64Array(this.m * size);
     this.schurIm = new Float64Array(this.m * size);
     this.schur = new Float64Array(this.m * this.m);
+    this.tensor = rows.tensor && rows.tensor.leftRe.length === this.m && tensorIsCheaper(n, this.m, rows.tensor, rows.im.every((im) => im.every((x) => x === 0))) ? rows.tensor : null;
+    const operatorCount = this.tensor ? this.tensor.leftRe.length : 0;
+    if (this.tensor) {
+      const t = this.tensor;
+      for (let j = 0; j < operatorCount; j++) {
+        this.tensorFactors.push({ leftRe: t.leftRe[j], leftIm: t.leftIm[j], rightRe: t.rightRe[j], rightIm: t.rightIm[j] });
+      }
+    }
+    this.tensorTransposedRe = new Float64Array(operatorCount * size);
+    this.tensorTransposedIm = new Float64Array(operatorCount * size);
+    this.operatorSchur = new Float64Array(operatorCount * operatorCount);
+    this.halfSchur = new Float64Array(this.m * operatorCount);
     this.schurViewsRe = Array.from({ length: this.m }, (_, k) => this.schurRe.subarray(k * size, (k + 1) * size));
     this.sparseRows = rows.re.map((re, k) => {
       let count = 0;
@@ -259,6 +282,10 @@ export class InteriorPointSolver {
     for (let j = 0; j < s; j++) if (rows.slackRow[j] >= 0) this.slackOfRow[rows.slackRow[j]] = j;
     this.residualHistory = new Float64Array(STALL_WINDOW);
     this.rowsReal = rows.im.every((im) => im.every((x) => x === 0));
+  }
+
+  get usesTensorRows(): boolean {
+    return this.tensor !== null;
   }
 
   /** Sets the objective C (Hermitian, copied) and records its Frobenius norm. */
@@ -513,44 +540,7 @@ export class InteriorPointSolver {
       else transposedProductWithLowerReal(rows.re[k], this.tmp2Re, n, this.tmpRe);
       lowerTimesTransposedReal(this.uzRe, this.tmpRe, n, this.schurViewsRe[k]);
     }
-    const M = this.schur;
-    const q = this.schurRe;
-    for (let i = 0; i < m; i++) {
-      const offsetI = i * size;
-      let k = 0;
-      for (; k + 3 <= i; k += 4) {
-        const o0 = k * size;
-        const o1 = o0 + size;
-        const o2 = o1 + size;
-        const o3 = o2 + size;
-        let s0 = 0;
-        let s1 = 0;
-        let s2 = 0;
-        let s3 = 0;
-        for (let t = 0; t < size; t++) {
-          const a = q[offsetI + t];
-          s0 += a * q[o0 + t];
-          s1 += a * q[o1 + t];
-          s2 += a * q[o2 + t];
-          s3 += a * q[o3 + t];
-        }
-        M[i * m + k] = s0;
-        M[k * m + i] = s0;
-        M[i * m + k + 1] = s1;
-        M[(k + 1) * m + i] = s1;
-        M[i * m + k + 2] = s2;
-        M[(k + 2) * m + i] = s2;
-        M[i * m + k + 3] = s3;
-        M[(k + 3) * m + i] = s3;
-      }
-      for (; k <= i; k++) {
-        const offsetK = k * size;
-        let sum = 0;
-        for (let t = 0; t < size; t++) sum += q[offsetI + t] * q[offsetK + t];
-        M[i * m + k] = sum;
-        M[k * m + i] = sum;
-      }
-    }
+    blockedPairSums(this.schurRe, null, this.schurRe, null, 1, m, size, this.schur);
     return this.finishSchur();
   }
 
@@ -598,6 +588,7 @@ export class InteriorPointSolver {
   private assembleSchur(): boolean {
     const { n, m, rows } = this;
     const size = n * n;
+    if (this.tensor) return this.assembleSchurTensor(this.tensor);
     transposeInto(this.lxRe, this.lxIm, n, this.tmp2Re, this.tmp2Im);
     if (this.realMode) return this.assembleSchurReal();
     for (let k = 0; k < m; k++) {
@@ -621,46 +612,58 @@ export class InteriorPointSolver {
         this.schurViewsIm[k],
       );
     }
-    const M = this.schur;
-    const qRe = this.schurRe;
-    const qIm = this.schurIm;
-    // Gram matrix of the Q_k as real vectors (re and im interleaved by storage), four columns per sweep so each
-    // entry of Q_i is loaded once per four products.
-    for (let i = 0; i < m; i++) {
-      const offsetI = i * size;
-      let k = 0;
-      for (; k + 3 <= i; k += 4) {
-        const o0 = k * size;
-        const o1 = o0 + size;
-        const o2 = o1 + size;
-        const o3 = o2 + size;
-        let s0 = 0;
-        let s1 = 0;
-        let s2 = 0;
-        let s3 = 0;
-        for (let t = 0; t < size; t++) {
-          const ar = qRe[offsetI + t];
-          const ai = qIm[offsetI + t];
-          s0 += ar * qRe[o0 + t] + ai * qIm[o0 + t];
-          s1 += ar * qRe[o1 + t] + ai * qIm[o1 + t];
-          s2 += ar * qRe[o2 + t] + ai * qIm[o2 + t];
-          s3 += ar * qRe[o3 + t] + ai * qIm[o3 + t];
+    blockedPairSums(this.schurRe, this.schurIm, this.schurRe, this.schurIm, 1, m, size, this.schur);
+    return this.finishSchur();
+  }
+
+  /**
+   * {@link assembleSchur} from tensor-product operators O_j = P_j ⊗ Q_j (SDPA-style formula, Fujisawa, Kojima &
+   * Nakata 1997): M^O_jl = Re Tr(O_j X O_l Z⁻¹) = Re Σ_ab (O_j X)_ab (O_l Z⁻¹)_ba, then M = C·M^O·Cᵀ for the rows
+   * k = Σ_j C_kj O_j. Each O·Y costs n²(d_A + d_B) complex products; real iterates simply carry zero imaginary parts.
+   */
+  private assembleSchurTensor(tensor: TensorRows): boolean {
+    const { n, m } = this;
+    const size = n * n;
+    const a = tensor.dimensionA;
+    const b = tensor.dimensionB;
+    const p = this.tensorFactors.length;
+    const tRe = this.tensorTransposedRe;
+    const tIm = this.tensorTransposedIm;
+    // (O_l Z⁻¹)ᵀ for every l.
+    for (let l = 0; l < p; l++) {
+      applyTensorLeft(this.tensorFactors[l], a, b, this.zInvRe, this.zInvIm, this.tmpRe, this.tmpIm, this.tmp2Re, this.tmp2Im);
+      const offset = l * size;
+      for (let i = 0; i < n; i++) {
+        for (let c = 0; c < n; c++) {
+          tRe[offset + c * n + i] = this.tmp2Re[i * n + c];
+          tIm[offset + c * n + i] = this.tmp2Im[i * n + c];
         }
-        M[i * m + k] = s0;
-        M[k * m + i] = s0;
-        M[i * m + k + 1] = s1;
-        M[(k + 1) * m + i] = s1;
-        M[i * m + k + 2] = s2;
-        M[(k + 2) * m + i] = s2;
-        M[i * m + k + 3] = s3;
-        M[(k + 3) * m + i] = s3;
       }
-      for (; k <= i; k++) {
-        const offsetK = k * size;
+    }
+    // O_j·X for every j (in the dense path's Q buffers), then all pairs at once.
+    for (let j = 0; j < p; j++) {
+      applyTensorLeft(this.tensorFactors[j], a, b, this.xRe, this.xIm, this.tmpRe, this.tmpIm, this.schurViewsRe[j], this.schurViewsIm[j]);
+    }
+    const basis = this.operatorSchur;
+    blockedPairSums(this.schurRe, this.schurIm, tRe, tIm, -1, p, size, basis);
+    // M = C·M^O·Cᵀ.
+    const combination = tensor.combination;
+    const half = this.halfSchur;
+    half.fill(0);
+    for (let k = 0; k < m; k++) {
+      for (let j = 0; j < p; j++) {
+        const c = combination[k * p + j];
+        if (c === 0) continue;
+        for (let l = 0; l < p; l++) half[k * p + l] += c * basis[j * p + l];
+      }
+    }
+    const M = this.schur;
+    for (let k = 0; k < m; k++) {
+      for (let i = 0; i <= k; i++) {
         let sum = 0;
-        for (let t = 0; t < size; t++) sum += qRe[offsetI + t] * qRe[offsetK + t] + qIm[offsetI + t] * qIm[offsetK + t];
-        M[i * m + k] = sum;
+        for (let l = 0; l < p; l++) sum += half[k * p + l] * combination[i * p + l];
         M[k * m + i] = sum;
+        M[i * m + k] = sum;
       }
     }
     return this.finishSchur();
@@ -688,10 +691,10 @@ export class InteriorPointSolver {
     for (let k = 0; k < m; k++) largestDiagonal = Math.max(largestDiagonal, M[k * m + k]);
     // Kept so that a failed factorization can be retried with a small diagonal shift.
     this.schurBackup.set(M);
-    if (realCholeskyInPlace(M, m)) return true;
+    if (choleskyInPlaceReal(M, m)) return true;
     M.set(this.schurBackup);
     for (let k = 0; k < m; k++) M[k * m + k] += SCHUR_REGULARIZATION * largestDiagonal;
-    return realCholeskyInPlace(M, m);
+    return choleskyInPlaceReal(M, m);
   }
 
   /**
@@ -827,4 +830,16 @@ export class InteriorPointSolver {
     const lambda = smallestEigenvalueInPlace(this.tmp2Re, this.tmp2Im, n, this.tridiagonal, STEP_EIGENVALUE_TOLERANCE, 0);
     return lambda >= 0 ? Infinity : -1 / lambda;
   }
+}
+
+/**
+ * Whether the tensor-product Schur complement costs fewer real multiply–adds than the dense one: dense 4·m·n³ + m²n²
+ * (complex; m·n³ + m²n²/2 for real rows), tensor 8·p·n²(d_A + d_B) + p²n² + m·p·(m + p).
+ */
+function tensorIsCheaper(n: number, m: number, tensor: TensorRows, realRows: boolean): boolean {
+  const p = tensor.leftRe.length;
+  const n2 = n * n;
+  const dense = realRows ? m * n2 * n + (m * m * n2) / 2 : 4 * m * n2 * n + m * m * n2;
+  const structured = 8 * p * n2 * (tensor.dimensionA + tensor.dimensionB) + p * p * n2 + m * p * (m + p);
+  return structured < dense;
 }

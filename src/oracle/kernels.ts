@@ -333,27 +333,7 @@ function smallestTridiagonalEigenvalue(
   return lower;
 }
 
-/** In-place real Cholesky of a symmetric positive definite m×m matrix (lower triangle); false if not positive definite. */
-export function realCholeskyInPlace(a: Float64Array, m: number): boolean {
-  for (let j = 0; j < m; j++) {
-    const rowJ = j * m;
-    let pivot = a[rowJ + j];
-    for (let k = 0; k < j; k++) pivot -= a[rowJ + k] * a[rowJ + k];
-    if (!(pivot > 0)) return false;
-    const diagonal = Math.sqrt(pivot);
-    a[rowJ + j] = diagonal;
-    const inverse = 1 / diagonal;
-    for (let i = j + 1; i < m; i++) {
-      const rowI = i * m;
-      let s = a[rowI + j];
-      for (let k = 0; k < j; k++) s -= a[rowI + k] * a[rowJ + k];
-      a[rowI + j] = s * inverse;
-    }
-  }
-  return true;
-}
-
-/** Solves L·L^T·x = b in place (b ← x) with the factor from {@link realCholeskyInPlace}. */
+/** Solves L·L^T·x = b in place (b ← x) with the factor from {@link choleskyInPlaceReal}. */
 export function realCholeskySolveInPlace(l: Float64Array, m: number, b: Float64Array): void {
   for (let i = 0; i < m; i++) {
     let s = b[i];
@@ -637,7 +617,10 @@ export function multiplyByHermitian(
 // Real-arithmetic twins of the kernels above, used when G and every constraint operator are real (then every
 // iterate stays real and the imaginary parts would only multiply zeros): about a quarter of the work.
 
-/** Real symmetric version of {@link choleskyInPlace}. */
+/**
+ * Real symmetric version of {@link choleskyInPlace}: A = L·Lᵀ in the lower triangle, upper triangle zeroed; false if
+ * A is not positive definite. The one real Cholesky of the oracle (cone factors and the Schur complement).
+ */
 export function choleskyInPlaceReal(a: Float64Array, n: number): boolean {
   for (let j = 0; j < n; j++) {
     const rowJ = j * n;
@@ -855,4 +838,75 @@ export function smallestEigenvalueInPlaceReal(
   for (let i = 0; i < n; i++) diagonal[i] = a[i * n + i];
   if (n >= 2) offDiagonalSquared[n - 2] = a[(n - 1) * n + n - 2] ** 2;
   return smallestTridiagonalEigenvalue(diagonal, offDiagonalSquared, n, relativeTolerance, stopIfAbove);
+}
+
+/** Entries per chunk of the blocked pair sums: a chunk of every vector stays in cache while all pairs use it. */
+const PAIR_SUM_CHUNK = 128;
+
+/**
+ * out[j·count + l] = out[l·count + j] = Σ_t a_j[t]·b_l[t] + sign·a'_j[t]·b'_l[t] for l ≤ j, over `count` vectors of
+ * length `size` stored back to back (a' and b' the imaginary parts, null for real data). Blocked over t so that
+ * each chunk of all vectors is read from cache m/4 times instead of from memory: the Gram part of the Schur
+ * complement (a = b, sign +1: Re⟨Q_j, Q_l⟩) and its tensor-product form (sign −1: Re Σ S_j[t]·T_l[t]).
+ */
+export function blockedPairSums(
+  aRe: Float64Array,
+  aIm: Float64Array | null,
+  bRe: Float64Array,
+  bIm: Float64Array | null,
+  sign: number,
+  count: number,
+  size: number,
+  out: Float64Array,
+): void {
+  out.fill(0, 0, count * count);
+  for (let start = 0; start < size; start += PAIR_SUM_CHUNK) {
+    const end = Math.min(size, start + PAIR_SUM_CHUNK);
+    for (let j = 0; j < count; j++) {
+      const oj = j * size;
+      let l = 0;
+      for (; l + 3 <= j; l += 4) {
+        const o0 = l * size;
+        const o1 = o0 + size;
+        const o2 = o1 + size;
+        const o3 = o2 + size;
+        let s0 = 0;
+        let s1 = 0;
+        let s2 = 0;
+        let s3 = 0;
+        if (aIm && bIm) {
+          // Real and imaginary products in one sum per entry (sign·x is exact): the summation order of the
+          // unblocked Gram, so results do not move with the blocking for d ≤ 11.
+          for (let t = start; t < end; t++) {
+            const x = aRe[oj + t];
+            const xi = sign * aIm[oj + t];
+            s0 += x * bRe[o0 + t] + xi * bIm[o0 + t];
+            s1 += x * bRe[o1 + t] + xi * bIm[o1 + t];
+            s2 += x * bRe[o2 + t] + xi * bIm[o2 + t];
+            s3 += x * bRe[o3 + t] + xi * bIm[o3 + t];
+          }
+        } else {
+          for (let t = start; t < end; t++) {
+            const x = aRe[oj + t];
+            s0 += x * bRe[o0 + t];
+            s1 += x * bRe[o1 + t];
+            s2 += x * bRe[o2 + t];
+            s3 += x * bRe[o3 + t];
+          }
+        }
+        out[j * count + l] += s0;
+        out[j * count + l + 1] += s1;
+        out[j * count + l + 2] += s2;
+        out[j * count + l + 3] += s3;
+      }
+      for (; l <= j; l++) {
+        const ol = l * size;
+        let sum = 0;
+        if (aIm && bIm) for (let t = start; t < end; t++) sum += aRe[oj + t] * bRe[ol + t] + sign * aIm[oj + t] * bIm[ol + t];
+        else for (let t = start; t < end; t++) sum += aRe[oj + t] * bRe[ol + t];
+        out[j * count + l] += sum;
+      }
+    }
+  }
+  for (let j = 0; j < count; j++) for (let l = 0; l < j; l++) out[l * count + j] = out[j * count + l];
 }

@@ -5,6 +5,7 @@ import { eigh, eigvalsh } from '../linear-algebra/eigen.js';
 import { EqualitySpan, DEPENDENCE_TOLERANCE } from './equality-span.js';
 import { InteriorPointSolver, type InteriorPointRows, type InteriorPointStatus } from './interior-point.js';
 import { hermitianInner } from './kernels.js';
+import { combinationRebuildsRows, commonTensorFactors, type TensorRows } from './tensor-rows.js';
 import {
   checkHermitian,
   DEFAULT_ORACLE_SETTINGS,
@@ -235,6 +236,9 @@ export class LinearOracle {
       boxSecond: Int32Array.from(boxSecond),
     };
     checkpoint?.();
+    const tensor = options?.tensorStructure === false ? undefined : this.tensorRows(rows);
+    if (tensor) rows.tensor = tensor;
+    checkpoint?.();
     this.solver = new InteriorPointSolver(n, rows);
 
     // Inconsistent data found while preprocessing: report the first certificate that verifies.
@@ -257,6 +261,50 @@ export class LinearOracle {
         break;
       }
     }
+  }
+
+  /**
+   * The interior-point rows as combinations of the identity, the independent equality operators and the interval
+   * operators, when all of them are tensor products under one factorization d = d_A·d_B (undefined otherwise).
+   */
+  private tensorRows(rows: InteriorPointRows): TensorRows | undefined {
+    const n = this.dimension;
+    const m = rows.re.length;
+    const identity: { re: Float64Array; im: Float64Array } = { re: new Float64Array(n * n), im: new Float64Array(n * n) };
+    for (let i = 0; i < n; i++) identity.re[i * n + i] = 1;
+    const operators = [identity];
+    const sourceColumns = this.span.sourceIndex.length;
+    for (let j = 1; j < sourceColumns; j++) {
+      const i = this.span.sourceIndex[j];
+      operators.push({ re: this.operatorRe[i], im: this.operatorIm[i] });
+    }
+    for (const row of this.intervalRows) operators.push({ re: this.operatorRe[row.constraintIndex], im: this.operatorIm[row.constraintIndex] });
+    const p = operators.length;
+    const common = commonTensorFactors(operators, n);
+    if (!common) return undefined;
+    const combination = new Float64Array(m * p);
+    this.span.transform.forEach((tk, k) => tk.forEach((c, j) => (combination[k * p + j] = c)));
+    this.intervalRows.forEach((row, r) => {
+      const k = this.span.size + r;
+      const inverse = 1 / row.scale;
+      combination[k * p + sourceColumns + r] = inverse;
+      row.projection.forEach((c, q) => this.span.transform[q].forEach((t, j) => (combination[k * p + j] -= c * t * inverse)));
+    });
+    if (!combinationRebuildsRows(operators, combination, rows.re, rows.im)) return undefined;
+    return {
+      dimensionA: common.a,
+      dimensionB: common.b,
+      leftRe: common.factors.map((f) => f.leftRe),
+      leftIm: common.factors.map((f) => f.leftIm),
+      rightRe: common.factors.map((f) => f.rightRe),
+      rightIm: common.factors.map((f) => f.rightIm),
+      combination,
+    };
+  }
+
+  /** How the interior-point method assembles its Schur complement: from tensor-product factors or dense products. */
+  get schurAssembly(): 'tensor' | 'dense' {
+    return this.solver.usesTensorRows ? 'tensor' : 'dense';
   }
 
   /** min ⟨G, σ⟩ over S = {σ ⪰ 0, Tr σ = 1, lower ≤ Tr(Γσ) ≤ upper}. G Hermitian d×d. */

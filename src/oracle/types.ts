@@ -32,6 +32,11 @@ export interface OracleOptions extends Partial<OracleSettings> {
    * about √u only (the square-root sensitivity of facial reduction).
    */
   impliedEqualityTolerance?: number;
+  /**
+   * Assemble the Schur complement from tensor-product factors when every operator is some P ⊗ Q under one
+   * factorization of d and that is cheaper (default true); false forces the dense products (benchmarks, tests).
+   */
+  tensorStructure?: boolean;
 }
 
 /** Per-call options of `minimize`: settings for this call and a checkpoint (overrides the constructor's). */

@@ -46,6 +46,14 @@ export interface FeasibleFace {
   reasons: string[];
   /** The exposures applied after the exact reductions (empty when none were given). */
   exposures: FaceExposure[];
+  /**
+   * ε with Tr((1 − PP†)ρ) ≤ ε for every feasible ρ: the exposed kernel is exact only up to rounding, so a feasible
+   * state may carry this much weight off the face (docs/faces.md). 0 without exposures; Infinity after more than
+   * one exposure (a second one is checked on the face only, which bounds the leak only to the fourth root).
+   */
+  leak?: number;
+  /** ‖Γ_i‖_F on H_A ⊗ H_B per constraint, recorded with exposures (the continuity margin pays for each). */
+  constraintNorms?: number[];
 }
 
 export interface FeasibleFaceOptions {
@@ -107,20 +115,34 @@ export function feasibleFace(problem: Problem, options: FeasibleFaceOptions = {}
     }
   }
   const exposures = options.exposures ?? [];
+  let leak = 0;
   exposures.forEach((exposure, k) => {
     checkpoint?.();
-    const keep = exposedKernel(problem, isometry, exposure, `exposures[${k}]`);
-    isometry = isometry ? multiply(isometry, keep) : keep;
-    reasons.push(`exposing direction ${k} (a positive semidefinite combination of equalities) confines ρ to a face of dimension ${keep.cols}`);
+    const exposed = exposedKernel(problem, isometry, exposure, `exposures[${k}]`);
+    isometry = isometry ? multiply(isometry, exposed.keep) : exposed.keep;
+    leak = k === 0 ? exposed.leak : Infinity;
+    reasons.push(`exposing direction ${k} (a positive semidefinite combination of equalities) confines ρ to a face of dimension ${exposed.keep.cols}`);
   });
-  return { isometry, dimension: isometry ? isometry.cols : d, reasons, exposures: exposures.map((e) => ({ multipliers: [...e.multipliers] })) };
+  return {
+    isometry,
+    dimension: isometry ? isometry.cols : d,
+    reasons,
+    exposures: exposures.map((e) => ({ multipliers: [...e.multipliers] })),
+    leak,
+    ...(exposures.length > 0 ? { constraintNorms: problem.constraints.map((c) => frobeniusNorm(c.operator)) } : {}),
+  };
 }
 
 /**
  * Z = Σ y_i (b_i·1 − Γ_i) on the current face P (P†ZP), checked positive semidefinite to rounding, and its
  * kernel: eigenvalues within the rounding level of Σ|y_i|(‖Γ_i‖_F + |b_i|·√n) count as zero.
  */
-function exposedKernel(problem: Problem, isometry: ComplexMatrix | null, exposure: FaceExposure, field: string): ComplexMatrix {
+function exposedKernel(
+  problem: Problem,
+  isometry: ComplexMatrix | null,
+  exposure: FaceExposure,
+  field: string,
+): { keep: ComplexMatrix; leak: number } {
   const m = problem.constraints.length;
   const y = exposure?.multipliers;
   if (!Array.isArray(y) || y.length !== m || !y.every((v) => typeof v === 'number' && Number.isFinite(v))) {
@@ -151,7 +173,14 @@ function exposedKernel(problem: Problem, isometry: ComplexMatrix | null, exposur
   while (count < r && values[count] <= tolerance) count++;
   if (count === r) throw new FaceExposureError(field, 'the combination vanishes on the face (exposes nothing)');
   if (count === 0) throw new FaceExposureError(field, 'the combination is positive definite on the face: no density operator is feasible');
-  return columns(vectors, 0, count);
+  // Tr(Zρ) = 0 for feasible ρ. Z as formed is off by at most (terms + 1)·u·scale, the compression to the face and
+  // eigh each add at most c·n·u·‖Ẑ‖_F, the kept kernel eigenvalues are at most their largest modulus; so
+  // λ_W·Tr(P_W ρ) ≤ η for the smallest exposed eigenvalue λ_W (docs/faces.md, "How far off the face").
+  let kernelSize = 0;
+  for (let k = 0; k < count; k++) kernelSize = Math.max(kernelSize, Math.abs(values[k]));
+  const terms = y.filter((v) => v !== 0).length;
+  const eta = kernelSize + 2 * EDGE_CONSTANT * n * UNIT_ROUNDOFF * frobeniusNorm(z) + (terms + 1) * UNIT_ROUNDOFF * scale;
+  return { keep: columns(vectors, 0, count), leak: Math.min(1, eta / values[count]) };
 }
 
 /** The problem seen on the face: Kraus operators K·P, constraint operators P†ΓP (ρ̃ of size r × r). */
@@ -181,3 +210,42 @@ export function compressToFace(face: FeasibleFace, rho: ComplexMatrix): ComplexM
   return face.isometry ? conjugateAdjoint(face.isometry, rho) : rho;
 }
 
+
+/** Binary entropy in bits. */
+function binaryEntropy(p: number): number {
+  return p <= 0 || p >= 1 ? 0 : -p * Math.log2(p) - (1 - p) * Math.log2(1 - p);
+}
+
+/**
+ * What a linearization bound computed on an exposed face gives up for feasible states that leave the face
+ * (docs/faces.md, "The continuity margin"): with t = √ε + ε/2 ≥ ½‖ρ − ρ̃‖₁ (gentle measurement) for ρ̃ the
+ * normalised compression of a feasible ρ onto the face,
+ *   Σ_i (y⁺_i + y⁻_i)·‖Γ_i‖_F·2t            (ρ̃ meets each constraint only to ‖Γ_i‖_∞·‖ρ − ρ̃‖₁)
+ *   + 2·(t·log₂(D − 1) + h(t))              (Fannes–Audenaert, for H(ω) and H(Z(ω)) of ω = ⊕_c X_c ⊕ rest)
+ *   + 2t·max_c |f(c)|                       (the scores, linear in the branch weights).
+ * 0 on a face without exposures; Infinity where no margin is derived (Rényi kinds, several exposures, t too large).
+ */
+export function faceContinuityMargin(
+  face: FeasibleFace,
+  restricted: Problem,
+  kind: string,
+  multipliersLower: ArrayLike<number>,
+  multipliersUpper: ArrayLike<number>,
+): number {
+  const leak = face.leak ?? 0;
+  if (face.exposures.length === 0 || leak === 0) return 0;
+  const norms = face.constraintNorms;
+  if (kind !== 'von-neumann' || !Number.isFinite(leak) || !norms) return Infinity;
+  const t = Math.sqrt(leak) + leak / 2;
+  // D: the dimension of ω = ⊕_c K_c ρ K_c† ⊕ Tr((1 − Σ K†K)ρ), which ρ ↦ ω maps trace-preservingly.
+  let outputs = 1;
+  let largestScore = 0;
+  for (const branch of restricted.branches) {
+    outputs += branch.krausOperators[0]?.rows ?? 0;
+    largestScore = Math.max(largestScore, Math.abs(branch.score));
+  }
+  if (!(t <= 1 - 1 / outputs)) return Infinity;
+  let constraintShift = 0;
+  for (let i = 0; i < norms.length; i++) constraintShift += (multipliersLower[i] + multipliersUpper[i]) * norms[i];
+  return constraintShift * 2 * t + 2 * (t * Math.log2(Math.max(outputs - 1, 1)) + binaryEntropy(t)) + 2 * t * largestScore;
+}

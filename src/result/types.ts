@@ -37,6 +37,12 @@ export interface Certificate {
   /** The bound claimed: recomputed value minus margin must not fall below it. */
   claimedBound: number;
   toleranceMargin: number;
+  /**
+   * Exposing directions that confine every feasible ρ to a face with no full-rank state elsewhere (signed
+   * multipliers per constraint, nonzero on equalities only); verify re-checks them and recomputes the face and its
+   * continuity margin (docs/faces.md). Absent when the exact reductions suffice.
+   */
+  faceExposures?: { multipliers: number[] }[];
 }
 
 /** The stored proof that no density operator meets the constraints (renyibound.v1.InfeasibilityCertificate). */

@@ -115,6 +115,7 @@ function certificateToWire(certificate: Certificate): WireCertificate {
     toleranceMargin: certificate.toleranceMargin,
     solverVersion: certificate.solverVersion,
     settings: settingsToWire(certificate.settings),
+    faceExposures: (certificate.faceExposures ?? []).map((e) => ({ multipliers: e.multipliers })),
   };
 }
 
@@ -132,6 +133,7 @@ function certificateFromWire(wire: Certificate__Output): Certificate {
     settings: { gapTolerance: wire.settings?.gapTolerance ?? 0, maxIterations: wire.settings?.maxIterations ?? 0 },
   };
   if (wire.referenceStates.length > 0) certificate.referenceStates = wire.referenceStates.map(matrixFromWire);
+  if (wire.faceExposures.length > 0) certificate.faceExposures = wire.faceExposures.map((e) => ({ multipliers: [...e.multipliers] }));
   return certificate;
 }
 

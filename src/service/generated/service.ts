@@ -20,6 +20,7 @@ import type { DecoySweepPoint as _renyibound_v1_DecoySweepPoint, DecoySweepPoint
 import type { EpsilonSplit as _renyibound_v1_EpsilonSplit, EpsilonSplit__Output as _renyibound_v1_EpsilonSplit__Output } from './renyibound/v1/EpsilonSplit.js';
 import type { ExampleInfo as _renyibound_v1_ExampleInfo, ExampleInfo__Output as _renyibound_v1_ExampleInfo__Output } from './renyibound/v1/ExampleInfo.js';
 import type { ExampleParameterInfo as _renyibound_v1_ExampleParameterInfo, ExampleParameterInfo__Output as _renyibound_v1_ExampleParameterInfo__Output } from './renyibound/v1/ExampleParameterInfo.js';
+import type { FaceExposure as _renyibound_v1_FaceExposure, FaceExposure__Output as _renyibound_v1_FaceExposure__Output } from './renyibound/v1/FaceExposure.js';
 import type { HonestStatistics as _renyibound_v1_HonestStatistics, HonestStatistics__Output as _renyibound_v1_HonestStatistics__Output } from './renyibound/v1/HonestStatistics.js';
 import type { InfeasibilityCertificate as _renyibound_v1_InfeasibilityCertificate, InfeasibilityCertificate__Output as _renyibound_v1_InfeasibilityCertificate__Output } from './renyibound/v1/InfeasibilityCertificate.js';
 import type { KeyLengthProgress as _renyibound_v1_KeyLengthProgress, KeyLengthProgress__Output as _renyibound_v1_KeyLengthProgress__Output } from './renyibound/v1/KeyLengthProgress.js';
@@ -73,6 +74,7 @@ export interface ProtoGrpcType {
       EpsilonSplit: MessageTypeDefinition<_renyibound_v1_EpsilonSplit, _renyibound_v1_EpsilonSplit__Output>
       ExampleInfo: MessageTypeDefinition<_renyibound_v1_ExampleInfo, _renyibound_v1_ExampleInfo__Output>
       ExampleParameterInfo: MessageTypeDefinition<_renyibound_v1_ExampleParameterInfo, _renyibound_v1_ExampleParameterInfo__Output>
+      FaceExposure: MessageTypeDefinition<_renyibound_v1_FaceExposure, _renyibound_v1_FaceExposure__Output>
       HonestStatistics: MessageTypeDefinition<_renyibound_v1_HonestStatistics, _renyibound_v1_HonestStatistics__Output>
       InfeasibilityCertificate: MessageTypeDefinition<_renyibound_v1_InfeasibilityCertificate, _renyibound_v1_InfeasibilityCertificate__Output>
       KeyLengthProgress: MessageTypeDefinition<_renyibound_v1_KeyLengthProgress, _renyibound_v1_KeyLengthProgress__Output>

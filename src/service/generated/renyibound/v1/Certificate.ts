@@ -3,6 +3,7 @@
 import type { EntropyKind as _renyibound_v1_EntropyKind, EntropyKind__Output as _renyibound_v1_EntropyKind__Output } from '../../renyibound/v1/EntropyKind.js';
 import type { Matrix as _renyibound_v1_Matrix, Matrix__Output as _renyibound_v1_Matrix__Output } from '../../renyibound/v1/Matrix.js';
 import type { SolverSettings as _renyibound_v1_SolverSettings, SolverSettings__Output as _renyibound_v1_SolverSettings__Output } from '../../renyibound/v1/SolverSettings.js';
+import type { FaceExposure as _renyibound_v1_FaceExposure, FaceExposure__Output as _renyibound_v1_FaceExposure__Output } from '../../renyibound/v1/FaceExposure.js';
 
 export interface Certificate {
   'inputHash'?: (string);
@@ -16,6 +17,7 @@ export interface Certificate {
   'toleranceMargin'?: (number | string);
   'solverVersion'?: (string);
   'settings'?: (_renyibound_v1_SolverSettings | null);
+  'faceExposures'?: (_renyibound_v1_FaceExposure)[];
   '_alpha'?: "alpha";
 }
 
@@ -31,5 +33,6 @@ export interface Certificate__Output {
   'toleranceMargin': (number);
   'solverVersion': (string);
   'settings': (_renyibound_v1_SolverSettings__Output | null);
+  'faceExposures': (_renyibound_v1_FaceExposure__Output)[];
   '_alpha'?: "alpha";
 }

@@ -1,0 +1,116 @@
+// Solving on an exposed face (docs/faces.md): the leak bound ε, the continuity margin (Fannes–Audenaert against
+// entropies from mathjs eigenvalues), and certificates whose faceExposures verify re-checks.
+import { describe, expect, it } from 'vitest';
+import { randomModel } from '../../src/bench/random-models.js';
+import { verifyResult } from '../../src/certificate/verify.js';
+import { solve } from '../../src/frank-wolfe/solve.js';
+import { ComplexMatrix, traceProductReal } from '../../src/linear-algebra/complex-matrix.js';
+import { createObjective } from '../../src/objectives/index.js';
+import { faceContinuityMargin, feasibleFace, type FeasibleFace } from '../../src/problem/feasible-face.js';
+import type { Problem } from '../../src/problem/model.js';
+import { referenceEigenvalues } from './reference.js';
+
+/** Von Neumann entropy in bits from mathjs eigenvalues (reference.ts). */
+function entropyBits(rho: ComplexMatrix): number {
+  return referenceEigenvalues(rho).reduce((s, x) => (x > 1e-300 ? s - x * Math.log2(x) : s), 0);
+}
+
+/** Keeps the diagonal blocks of the key projectors {0..k−1}, {k..n−1} (the pinching Z). */
+function pinch(rho: ComplexMatrix, k: number): ComplexMatrix {
+  const n = rho.rows;
+  const out = new ComplexMatrix(n, n);
+  for (let i = 0; i < n; i++) {
+    for (let j = 0; j < n; j++) {
+      if (i < k === j < k) {
+        out.re[i * n + j] = rho.re[i * n + j];
+        out.im[i * n + j] = rho.im[i * n + j];
+      }
+    }
+  }
+  return out;
+}
+
+/** A face with a given leak on C^4 (isometry onto the first three basis vectors) and one 4-dimensional branch. */
+function syntheticFace(leak: number): { face: FeasibleFace; problem: Problem } {
+  const isometry = new ComplexMatrix(4, 3);
+  for (let i = 0; i < 3; i++) isometry.re[i * 3 + i] = 1;
+  const face: FeasibleFace = { isometry, dimension: 3, reasons: [], exposures: [{ multipliers: [1] }], leak, constraintNorms: [2] };
+  const problem = {
+    dimensionA: 2,
+    dimensionB: 2,
+    constraints: [],
+    branches: [{ label: 'b', krausOperators: [ComplexMatrix.identity(4)], keyProjectors: [], score: 0 }],
+  } as unknown as Problem;
+  return { face, problem };
+}
+
+describe('continuity margin on an exposed face', () => {
+  it('bounds the change of H(Z(ρ)) − H(ρ) when a pure state tilts off the face by weight ε (mathjs entropies)', () => {
+    const leak = 1e-6;
+    const { face, problem } = syntheticFace(leak);
+    // With zero multipliers only the Fannes–Audenaert part remains: 2·(t·log2(D − 1) + h(t)), D = 4 + 1.
+    const margin = faceContinuityMargin(face, problem, 'von-neumann', [0], [0]);
+    const t = Math.sqrt(leak) + leak / 2;
+    const h = -t * Math.log2(t) - (1 - t) * Math.log2(1 - t);
+    expect(margin).toBeCloseTo(2 * (t * Math.log2(4) + h), 15);
+    // ψ = √(1 − ε)·(|0⟩ + |3⟩... on the face: |0⟩+|2⟩)/√2 + √ε·|3⟩ (|3⟩ off the face); compare with its compression.
+    const psi = [Math.sqrt((1 - leak) / 2), 0, Math.sqrt((1 - leak) / 2), Math.sqrt(leak)];
+    const tilted = new ComplexMatrix(4, 4);
+    for (let i = 0; i < 4; i++) for (let j = 0; j < 4; j++) tilted.re[i * 4 + j] = psi[i] * psi[j];
+    const compressed = new ComplexMatrix(4, 4);
+    for (const [i, j] of [[0, 0], [0, 2], [2, 0], [2, 2]]) compressed.re[i * 4 + j] = 0.5;
+    // D(ρ‖Z(ρ)) = H(Z(ρ)) − H(ρ) (the key-rate identity of Coles et al. 2016, one branch, no scores).
+    const objective = (rho: ComplexMatrix) => entropyBits(pinch(rho, 2)) - entropyBits(rho);
+    const change = Math.abs(objective(tilted) - objective(compressed));
+    expect(change).toBeGreaterThan(0);
+    expect(change).toBeLessThanOrEqual(margin);
+  });
+
+  it('charges the constraint shift Σ(y⁺ + y⁻)‖Γ‖_F·2t, is 0 without exposures and Infinity where nothing is derived', () => {
+    const { face, problem } = syntheticFace(1e-10);
+    const t = 1e-5 + 0.5e-10;
+    const base = faceContinuityMargin(face, problem, 'von-neumann', [0], [0]);
+    expect(faceContinuityMargin(face, problem, 'von-neumann', [3], [0]) - base).toBeCloseTo(3 * 2 * 2 * t, 15);
+    expect(faceContinuityMargin({ ...face, exposures: [], leak: 0 }, problem, 'von-neumann', [3], [0])).toBe(0);
+    expect(faceContinuityMargin(face, problem, 'petz-up', [0], [0])).toBe(Infinity);
+    expect(faceContinuityMargin({ ...face, leak: Infinity }, problem, 'von-neumann', [0], [0])).toBe(Infinity);
+  });
+});
+
+describe('solving a model with no full-rank feasible state (von Neumann)', () => {
+  // d = 8, seed 23: ±1e-3 tables from a rank-4 state plus equalities pinning ρ to its support.
+  const model = randomModel(8, 23);
+  const request = { kind: 'von-neumann' as const };
+  const result = solve(model.problem, request, { gapTolerance: 1e-6, timeLimitMs: 20000 });
+
+  it('ends with a bound from the exposed face, recorded in the certificate, which verify accepts', () => {
+    expect(result.status).not.toBe('NUMERICAL_ERROR');
+    expect(result.certificate?.faceExposures?.length).toBe(1);
+    const report = verifyResult(model.problem, request, result);
+    expect(report.valid, report.reason).toBe(true);
+    // The bound holds at the generating state (feasible by construction) and the face is its support's dimension.
+    const atTruth = createObjective(model.problem, request).evaluate(model.truth).value;
+    expect(result.certifiedLowerBound as number).toBeLessThanOrEqual(atTruth + 1e-9);
+    const face = feasibleFace(model.problem, { exposures: result.certificate!.faceExposures });
+    expect(face.dimension).toBe(model.traits.truthRank);
+    expect(face.leak).toBeGreaterThan(0);
+    expect(face.leak).toBeLessThan(1e-9);
+    // The truth meets every constraint it generated: Tr(Γ·truth) within each interval (a direct check).
+    for (const c of model.problem.constraints) {
+      const value = traceProductReal(c.operator, model.truth);
+      expect(value).toBeGreaterThanOrEqual(c.lower - 1e-9);
+      expect(value).toBeLessThanOrEqual(c.upper + 1e-9);
+    }
+  });
+
+  it('verify rejects a tampered exposure and a certificate that drops it', () => {
+    const certificate = result.certificate!;
+    const flipped = { ...certificate, faceExposures: certificate.faceExposures!.map((e) => ({ multipliers: e.multipliers.map((y) => -y) })) };
+    const tampered = verifyResult(model.problem, request, { ...result, certificate: flipped });
+    expect(tampered.valid).toBe(false);
+    expect(tampered.reason).toMatch(/faceExposures/);
+    const { faceExposures: _dropped, ...without } = certificate;
+    const dropped = verifyResult(model.problem, request, { ...result, certificate: without });
+    expect(dropped.valid).toBe(false);
+  });
+});
