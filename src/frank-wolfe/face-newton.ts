@@ -23,6 +23,14 @@ export interface FaceEvaluation {
 export interface FaceNewtonOptions {
   /** Eigenvalues below this share of the largest are treated as off the face (kept fixed). */
   faceShare: number;
+  /**
+   * A spectral gap — consecutive eigenvalues at least this factor apart, the lower one below `gapShare` of the
+   * largest — marks the eigenvalues under it as heading to zero: the face is the span above the gap, and the part
+   * below is squeezed to `squeezeLevel` (kept full rank, so F and its gradient stay finite).
+   */
+  gapRatio: number;
+  gapShare: number;
+  squeezeLevel: number;
   /** Largest number of real tangent coordinates for which the Hessian is formed (2 evaluations each). */
   maxTangentDimension: number;
   /** Smallest eigenvalue an accepted point may have. */
@@ -33,6 +41,9 @@ export interface FaceNewtonOptions {
 
 export const DEFAULT_FACE_NEWTON: Readonly<FaceNewtonOptions> = Object.freeze({
   faceShare: 1e-6,
+  gapRatio: 10,
+  gapShare: 1e-3,
+  squeezeLevel: 1e-10,
   maxTangentDimension: 144,
   eigenvalueFloor: 1e-9,
   backtracks: 30,
@@ -63,6 +74,46 @@ export function faceNewtonStep<E extends FaceEvaluation>(
   const largest = values[n - 1];
   let first = 0;
   while (first < n && values[first] < options.faceShare * largest) first++;
+  const gap = spectralGap(values, options);
+  // Below a spectral gap: try the face above it with the part below squeezed, then the face as it is.
+  if (gap > first) {
+    const squeezed = faceNewtonOnFace(x, current, constraints, held, evaluate, options, values, vectors, gap, true);
+    if (squeezed) return squeezed;
+  }
+  return faceNewtonOnFace(x, current, constraints, held, evaluate, options, values, vectors, first, false);
+}
+
+/** The index of the first eigenvalue above the widest spectral gap (see FaceNewtonOptions.gapRatio), 0 if none. */
+export function spectralGap(values: ArrayLike<number>, options: Pick<FaceNewtonOptions, 'gapRatio' | 'gapShare'>): number {
+  const n = values.length;
+  const largest = values[n - 1];
+  let best = 0;
+  let widest = options.gapRatio;
+  for (let i = 1; i < n; i++) {
+    const below = Math.max(values[i - 1], 1e-300);
+    if (values[i - 1] > options.gapShare * largest) break;
+    const ratio = values[i] / below;
+    if (ratio >= widest) {
+      widest = ratio;
+      best = i;
+    }
+  }
+  return best;
+}
+
+function faceNewtonOnFace<E extends FaceEvaluation>(
+  x: ComplexMatrix,
+  current: E,
+  constraints: readonly LinearConstraint[],
+  held: readonly HeldSide[],
+  evaluate: (state: ComplexMatrix) => E | null,
+  options: FaceNewtonOptions,
+  values: Float64Array,
+  vectors: ComplexMatrix,
+  first: number,
+  squeeze: boolean,
+): FaceNewtonStep<E> | null {
+  const n = values.length;
   const r = n - first;
   // The face has r² real coordinates less one per held row: too many for a formed Hessian, give up at once.
   const heldRows = 1 + constraints.filter((c, i) => c.lower === c.upper || held[i] !== null).length;
@@ -83,16 +134,35 @@ export function faceNewtonStep<E extends FaceEvaluation>(
   };
 
   // Held rows (trace, equalities, held bounds) and how far x is from meeting them.
+  // The part below the gap, squeezed to a level at which it costs F almost nothing (x·log x → 0).
+  const base = x.clone();
+  if (squeeze) {
+    for (let j = 0; j < first; j++) {
+      const drop = values[j] - options.squeezeLevel;
+      if (!(drop > 0)) continue;
+      for (let a = 0; a < n; a++) {
+        for (let b = 0; b < n; b++) {
+          // −drop·v_j·v_j†
+          const ar = vectors.re[a * n + j];
+          const ai = vectors.im[a * n + j];
+          const br = vectors.re[b * n + j];
+          const bi = vectors.im[b * n + j];
+          base.re[a * n + b] -= drop * (ar * br + ai * bi);
+          base.im[a * n + b] -= drop * (ai * br - ar * bi);
+        }
+      }
+    }
+  }
   const rows: Float64Array[] = [];
   const residuals: number[] = [];
   const identity = ComplexMatrix.identity(n);
   rows.push(coordinates(identity));
-  residuals.push(1 - traceProductReal(identity, x));
+  residuals.push(1 - traceProductReal(identity, base));
   constraints.forEach((c, i) => {
     const target = c.lower === c.upper ? c.lower : held[i] === 'lower' ? c.lower : held[i] === 'upper' ? c.upper : null;
     if (target === null) return;
     rows.push(coordinates(c.operator));
-    residuals.push(target - traceProductReal(c.operator, x));
+    residuals.push(target - traceProductReal(c.operator, base));
   });
   const m = basis.length;
   const split = rowSpaceAndTangent(rows, m);
@@ -101,8 +171,10 @@ export function faceNewtonStep<E extends FaceEvaluation>(
   if (k === 0 || k > options.maxTangentDimension) return null;
   const correction = toFace(solveCorrection(residuals));
 
-  const start = x.clone();
+  const start = base;
   addScaledInPlace(start, correction, 1);
+  // A face too small for the held rows meets them only in the least-squares sense: not a face of the feasible set.
+  if (!meetsHeldRows(constraints, held, start)) return null;
   const atStart = evaluate(start);
   if (!atStart) return null;
   const directions = tangent.map((t) => toFace(t));
@@ -134,11 +206,13 @@ export function faceNewtonStep<E extends FaceEvaluation>(
   directions.forEach((d, j) => addScaledInPlace(direction, d, coefficients[j]));
 
   // Backtrack until F is below both the current and the corrected point, inside the cone and every interval.
-  const reference = Math.min(current.value, atStart.value);
+  // A squeezed face starts above F(x) by the cost of the squeeze: only the end point must beat F(x).
+  const reference = squeeze ? current.value : Math.min(current.value, atStart.value);
+  const floor = squeeze ? 0.5 * options.squeezeLevel : Math.min(options.eigenvalueFloor, values[0]);
   for (let t = 1, tries = 0; tries <= options.backtracks; tries++, t /= 2) {
     const candidate = start.clone();
     addScaledInPlace(candidate, direction, t);
-    if (!meetsIntervals(constraints, candidate) || eigvalsh(candidate)[0] < Math.min(options.eigenvalueFloor, values[0])) continue;
+    if (!meetsIntervals(constraints, candidate) || eigvalsh(candidate)[0] < floor) continue;
     const e = evaluate(candidate);
     if (e && e.value < reference) return { point: candidate, evaluation: e, decrement };
   }
@@ -236,6 +310,21 @@ function dampedNewton(hessian: Matrix, gradient: Float64Array): { step: Float64A
   return null;
 }
 
+/** Trace 1 and every equality and held side met up to rounding. */
+function meetsHeldRows(constraints: readonly LinearConstraint[], held: readonly HeldSide[], state: ComplexMatrix): boolean {
+  const close = (value: number, target: number, size: number) => Math.abs(value - target) <= 1e-11 * (1 + size);
+  let trace = 0;
+  for (let i = 0; i < state.rows; i++) trace += state.re[i * state.cols + i];
+  if (!close(trace, 1, 1)) return false;
+  return constraints.every((c, i) => {
+    const target = c.lower === c.upper ? c.lower : held[i] === 'lower' ? c.lower : held[i] === 'upper' ? c.upper : null;
+    if (target === null) return true;
+    let size = 0;
+    for (let t = 0; t < c.operator.re.length; t++) size = Math.max(size, Math.abs(c.operator.re[t]), Math.abs(c.operator.im[t]));
+    return close(traceProductReal(c.operator, state), target, size);
+  });
+}
+
 function meetsIntervals(constraints: readonly LinearConstraint[], state: ComplexMatrix): boolean {
   return constraints.every((c) => {
     if (c.lower === c.upper) return true;
@@ -250,6 +339,10 @@ function meetsIntervals(constraints: readonly LinearConstraint[], state: Complex
 export const FACE_NEWTON_SCHEDULE = Object.freeze({
   /** Not before this many oracle calls: the examples certify in one to four iterations without it. */
   firstOracleCall: 6,
+  /** Newton steps taken in a row on one face before the oracle is consulted… */
+  stepsInARow: 6,
+  /** …unless the Newton decrement (twice the predicted decrease) falls below this share of the requested gap. */
+  converged: 0.01,
   /** Face-Newton steps may use at most this many objective evaluations per solver iteration so far. */
   evaluationsPerIteration: 20,
   /** A step lowering F by less than this share of the estimated gap does not pay; the next waits… */
