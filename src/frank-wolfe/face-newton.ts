@@ -37,6 +37,10 @@ export interface FaceNewtonOptions {
   eigenvalueFloor: number;
   /** Halvings of the Newton step tried before giving up. */
   backtracks: number;
+  /** Newton steps taken with one Hessian… */
+  stepsInARow: number;
+  /** …stopping early once the Newton decrement (twice the predicted decrease) is below this. */
+  stopDecrement: number;
 }
 
 export const DEFAULT_FACE_NEWTON: Readonly<FaceNewtonOptions> = Object.freeze({
@@ -47,6 +51,8 @@ export const DEFAULT_FACE_NEWTON: Readonly<FaceNewtonOptions> = Object.freeze({
   maxTangentDimension: 144,
   eigenvalueFloor: 1e-9,
   backtracks: 30,
+  stepsInARow: 8,
+  stopDecrement: 1e-9,
 });
 
 export interface FaceNewtonStep<E extends FaceEvaluation> {
@@ -199,25 +205,41 @@ function faceNewtonOnFace<E extends FaceEvaluation>(
   }
   const symmetric = new Matrix(k, k);
   for (let i = 0; i < k; i++) for (let j = 0; j < k; j++) symmetric.set(i, j, (hessian.get(i, j) + hessian.get(j, i)) / 2);
-  const newton = dampedNewton(symmetric, gradient);
+  const newton = dampedNewton(symmetric);
   if (newton === null) return null;
-  const { step: coefficients, decrement } = newton;
-  const direction = ComplexMatrix.zeros(n);
-  directions.forEach((d, j) => addScaledInPlace(direction, d, coefficients[j]));
 
   // Backtrack until F is below both the current and the corrected point, inside the cone and every interval.
   // A squeezed face starts above F(x) by the cost of the squeeze: only the end point must beat F(x).
-  const reference = squeeze ? current.value : Math.min(current.value, atStart.value);
   const floor = squeeze ? 0.5 * options.squeezeLevel : Math.min(options.eigenvalueFloor, values[0]);
-  for (let t = 1, tries = 0; tries <= options.backtracks; tries++, t /= 2) {
-    const candidate = start.clone();
-    addScaledInPlace(candidate, direction, t);
-    if (!meetsIntervals(constraints, candidate) || eigvalsh(candidate)[0] < floor) continue;
-    const e = evaluate(candidate);
-    if (e && e.value < reference) return { point: candidate, evaluation: e, decrement };
+  const backtrack = (from: ComplexMatrix, coefficients: Float64Array, reference: number) => {
+    const direction = ComplexMatrix.zeros(n);
+    directions.forEach((d, j) => addScaledInPlace(direction, d, coefficients[j]));
+    for (let t = 1, tries = 0; tries <= options.backtracks; tries++, t /= 2) {
+      const candidate = from.clone();
+      addScaledInPlace(candidate, direction, t);
+      if (!meetsIntervals(constraints, candidate) || eigvalsh(candidate)[0] < floor) continue;
+      const e = evaluate(candidate);
+      if (e && e.value < reference) return { point: candidate, evaluation: e };
+    }
+    return null;
+  };
+  let step = newton.solve(gradient);
+  let best: FaceNewtonStep<E> | null = null;
+  let at = backtrack(start, step.coefficients, squeeze ? current.value : Math.min(current.value, atStart.value));
+  // Further steps with the same Hessian (the face and its tangent directions do not change along it): each costs
+  // one gradient, and they converge fast near the face optimum.
+  for (let taken = 1; at !== null; taken++) {
+    best = { point: at.point, evaluation: at.evaluation, decrement: step.decrement };
+    if (taken >= options.stepsInARow || step.decrement <= options.stopDecrement) break;
+    const g = at.evaluation.gradient;
+    step = newton.solve(Float64Array.from(directions, (d) => traceProductReal(g, d)));
+    if (!(step.decrement > 0)) break;
+    best.decrement = step.decrement;
+    at = backtrack(at.point, step.coefficients, at.evaluation.value);
   }
+  if (best) return best;
   if (atStart.value < current.value && meetsIntervals(constraints, start) && eigvalsh(start)[0] > 0) {
-    return { point: start, evaluation: atStart, decrement };
+    return { point: start, evaluation: atStart, decrement: step.decrement };
   }
   return null;
 }
@@ -291,9 +313,9 @@ function rowSpaceAndTangent(
   return { tangent, correction };
 }
 
-/** −H⁻¹g with a Levenberg shift when H is not positive definite; null when no shift makes it so. */
-function dampedNewton(hessian: Matrix, gradient: Float64Array): { step: Float64Array; decrement: number } | null {
-  const k = gradient.length;
+/** Solves H·s = −g with a Levenberg shift when H is not positive definite; null when no shift makes it so. */
+function dampedNewton(hessian: Matrix): { solve: (gradient: Float64Array) => { coefficients: Float64Array; decrement: number } } | null {
+  const k = hessian.rows;
   let scale = 0;
   for (let i = 0; i < k; i++) scale = Math.max(scale, Math.abs(hessian.get(i, i)));
   for (let shift = 0, attempt = 0; attempt < 12; attempt++, shift = shift === 0 ? 1e-10 * (scale || 1) : shift * 100) {
@@ -301,11 +323,15 @@ function dampedNewton(hessian: Matrix, gradient: Float64Array): { step: Float64A
     for (let i = 0; i < k; i++) shifted.set(i, i, shifted.get(i, i) + shift);
     const cholesky = new CholeskyDecomposition(shifted);
     if (!cholesky.isPositiveDefinite()) continue;
-    const solution = cholesky.solve(Matrix.columnVector(Array.from(gradient)));
-    const step = Float64Array.from({ length: k }, (_, i) => -solution.get(i, 0));
-    let decrement = 0;
-    for (let i = 0; i < k; i++) decrement -= step[i] * gradient[i];
-    return { step, decrement };
+    return {
+      solve: (gradient) => {
+        const solution = cholesky.solve(Matrix.columnVector(Array.from(gradient)));
+        const coefficients = Float64Array.from({ length: k }, (_, i) => -solution.get(i, 0));
+        let decrement = 0;
+        for (let i = 0; i < k; i++) decrement -= coefficients[i] * gradient[i];
+        return { coefficients, decrement };
+      },
+    };
   }
   return null;
 }
@@ -339,9 +365,7 @@ function meetsIntervals(constraints: readonly LinearConstraint[], state: Complex
 export const FACE_NEWTON_SCHEDULE = Object.freeze({
   /** Not before this many oracle calls: the examples certify in one to four iterations without it. */
   firstOracleCall: 6,
-  /** Newton steps taken in a row on one face before the oracle is consulted… */
-  stepsInARow: 6,
-  /** …unless the Newton decrement (twice the predicted decrease) falls below this share of the requested gap. */
+  /** Newton steps on one face stop once the decrement is below this share of the requested gap. */
   converged: 0.01,
   /** Face-Newton steps may use at most this many objective evaluations per solver iteration so far. */
   evaluationsPerIteration: 20,

@@ -13,7 +13,7 @@ import type { LinearOracle, OracleResult } from '../oracle/index.js';
 import type { NoProgressCause, StopLimit } from '../result/types.js';
 import { trivialLowerBound } from '../certificate/trivial-bound.js';
 import { certify, restoreMultipliers } from './certify.js';
-import { faceNewtonStep, FACE_NEWTON_SCHEDULE, heldIntervalSides } from './face-newton.js';
+import { DEFAULT_FACE_NEWTON, faceNewtonStep, FACE_NEWTON_SCHEDULE, heldIntervalSides } from './face-newton.js';
 import { derivativeLineSearch } from './line-search.js';
 import { TUNING } from './settings.js';
 import { alongActiveIntervals, stepToEigenvalueFloor, stepToIntervalBounds } from './step-limits.js';
@@ -113,6 +113,8 @@ export function iterate(setup: SolverSetup, state: SolverState): IterationOutcom
   return 'continue';
 }
 
+/** The zero-entropy test waits for this many oracle calls: by then Frank–Wolfe's gap estimate excludes most problems. */
+const ZERO_ENTROPY_FIRST_ORACLE_CALL = 2;
 /** Mixing shares ε toward the current iterate that keep a zero-entropy state strictly inside the cone. */
 const ZERO_ENTROPY_MIXTURES = [1e-10, 1e-8, 1e-6, 1e-4] as const;
 /** F must stay this far above the trivial bound at the new iterate, so that rounding cannot put it below. */
@@ -124,7 +126,7 @@ const ABOVE_ROUNDING = 1e-12;
  * knows the key (zero-entropy.ts). Found, the iterate jumps next to it: (1−ε)·ρ₀ + ε·x is feasible and full rank.
  */
 function zeroEntropyMove(setup: SolverSetup, state: SolverState): boolean {
-  if (state.zeroEntropyTried || state.oracleCalls < FACE_NEWTON_SCHEDULE.firstOracleCall) return false;
+  if (state.zeroEntropyTried || state.oracleCalls < ZERO_ENTROPY_FIRST_ORACLE_CALL) return false;
   const trivial = trivialLowerBound(setup.problem);
   const tolerance = setup.settings.gapTolerance;
   if (bestLowerBound(state) > trivial + tolerance || state.evaluation.value - state.lastEstimatedGap > trivial + tolerance) return false;
@@ -167,16 +169,10 @@ function faceNewtonMove(setup: SolverSetup, state: SolverState, multipliers: Mul
     return evaluateSafely(setup.objective, point);
   };
   const before = state.evaluation.value;
-  let moved = faceNewtonStep(state.x, state.evaluation, setup.restricted.constraints, held, evaluate);
-  // Newton converges quadratically on the right face: a few steps in a row reach its optimum, which the oracle
-  // then certifies (or Frank–Wolfe leaves, when the face was wrong).
-  for (let step = 1; moved && step < FACE_NEWTON_SCHEDULE.stepsInARow; step++) {
-    if (moved.decrement <= FACE_NEWTON_SCHEDULE.converged * setup.settings.gapTolerance) break;
-    setup.clock.checkpoint();
-    const next = faceNewtonStep(moved.point, moved.evaluation, setup.restricted.constraints, held, evaluate);
-    if (!next) break;
-    moved = next;
-  }
+  // Several Newton steps in a row reach the face's optimum, which the oracle then certifies (or Frank–Wolfe
+  // leaves, when the face was wrong); they stop once the predicted decrease is far below the requested gap.
+  const options = { ...DEFAULT_FACE_NEWTON, stopDecrement: FACE_NEWTON_SCHEDULE.converged * setup.settings.gapTolerance };
+  const moved = faceNewtonStep(state.x, state.evaluation, setup.restricted.constraints, held, evaluate, options);
   const decrease = moved ? before - moved.evaluation.value : 0;
   if (!moved || decrease < FACE_NEWTON_SCHEDULE.payoff * state.lastEstimatedGap) {
     // Each unpaid attempt doubles the wait (an optimum on the cone's boundary gains little from the face).
