@@ -122,12 +122,37 @@ function addInPlace(target: Matrix, a: Matrix): void {
 }
 
 /**
+ * Constraints the feasibility problem may have: its interior-point cost grows like their number squared times d³
+ * (measured: 226 constraints at d = 16 take about 1 s), so larger instances are not tried.
+ */
+export const ZERO_ENTROPY_MAX_CONSTRAINTS = 400;
+
+/** How many equalities zeroEntropyConstraints would return, without building them. */
+export function zeroEntropyConstraintCount(problem: Problem): number {
+  const highest = problem.branches.reduce((m, b) => Math.max(m, b.score), -Infinity);
+  return problem.branches.reduce((total, branch) => {
+    if (branch.score < highest) return total + 1;
+    const ranks = branch.keyProjectors.map((p) => Math.round(realTrace(p)));
+    let pairs = 0;
+    for (let a = 0; a < ranks.length; a++) for (let b = a + 1; b < ranks.length; b++) pairs += ranks[a] * ranks[b];
+    return total + 2 * pairs;
+  }, 0);
+}
+
+function realTrace(m: Matrix): number {
+  let t = 0;
+  for (let i = 0; i < m.rows; i++) t += m.re[i * m.cols + i];
+  return t;
+}
+
+/**
  * A feasible state of `problem` meeting the zero-entropy equalities (the analytic centre of that set, from the
  * oracle's feasibility run), or null when there is none or the run does not decide.
  */
 export function zeroEntropyState(problem: Problem, dimension: number, checkpoint?: Checkpoint): ComplexMatrix | null {
+  const count = zeroEntropyConstraintCount(problem);
+  if (count === 0 || count + problem.constraints.length > ZERO_ENTROPY_MAX_CONSTRAINTS) return null;
   const extra = zeroEntropyConstraints(problem, dimension);
-  if (extra.length === 0) return null;
   const oracle = new LinearOracle(dimension, [...problem.constraints, ...extra], { relativeAccuracy: 1e-9, checkpoint });
   const found = oracle.findFeasiblePoint();
   return found.status === 'OPTIMAL' && found.point ? hermitianPart(found.point) : null;
