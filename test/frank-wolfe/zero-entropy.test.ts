@@ -8,15 +8,10 @@ import { zeroEntropyConstraints, zeroEntropyState } from '../../src/frank-wolfe/
 import { conjugate, frobeniusNorm, multiply, traceProductReal } from '../../src/linear-algebra/complex-matrix.js';
 import { eigvalsh } from '../../src/linear-algebra/eigen.js';
 import { createObjective } from '../../src/objectives/index.js';
-import type { EntropyRequest } from '../../src/problem/model.js';
 import { reduceProblem } from '../../src/problem/inactive-bounds.js';
+import { KINDS_AT_ONE_AND_A_HALF } from './helpers.js';
 
-const KINDS: EntropyRequest[] = [
-  { kind: 'von-neumann' },
-  { kind: 'petz-up', alpha: 1.5 },
-  { kind: 'petz-down', alpha: 1.5 },
-  { kind: 'sandwiched-up', alpha: 1.5 },
-];
+const KINDS = KINDS_AT_ONE_AND_A_HALF;
 
 describe('the zero-entropy test (docs/convergence.md, "Optima at the trivial bound")', () => {
   // d = 8, seed 2 of the random suite: one branch, a full table of equalities; the key can be known to the eavesdropper.
