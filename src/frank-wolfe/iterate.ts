@@ -131,7 +131,7 @@ function zeroEntropyMove(setup: SolverSetup, state: SolverState): boolean {
   const tolerance = setup.settings.gapTolerance;
   if (bestLowerBound(state) > trivial + tolerance || state.evaluation.value - state.lastEstimatedGap > trivial + tolerance) return false;
   state.zeroEntropyTried = true;
-  const found = zeroEntropyState(setup.restricted, setup.face.dimension, setup.clock.checkpoint);
+  const found = setup.clock.timeOracle(() => zeroEntropyState(setup.restricted, setup.face.dimension, setup.clock.checkpoint));
   if (found === null) return false;
   let chosen: { point: ComplexMatrix; evaluation: NonNullable<ReturnType<typeof evaluateSafely>> } | null = null;
   for (const share of ZERO_ENTROPY_MIXTURES) {
