@@ -23,19 +23,36 @@ export interface FaceEvaluation {
 export interface FaceNewtonOptions {
   /** Eigenvalues below this share of the largest are treated as off the face (kept fixed). */
   faceShare: number;
+  /**
+   * A spectral gap — consecutive eigenvalues at least this factor apart, the lower one below `gapShare` of the
+   * largest — marks the eigenvalues under it as heading to zero: the face is the span above the gap, and the part
+   * below is squeezed to `squeezeLevel` (kept full rank, so F and its gradient stay finite).
+   */
+  gapRatio: number;
+  gapShare: number;
+  squeezeLevel: number;
   /** Largest number of real tangent coordinates for which the Hessian is formed (2 evaluations each). */
   maxTangentDimension: number;
   /** Smallest eigenvalue an accepted point may have. */
   eigenvalueFloor: number;
   /** Halvings of the Newton step tried before giving up. */
   backtracks: number;
+  /** Newton steps taken with one Hessian… */
+  stepsInARow: number;
+  /** …stopping early once the Newton decrement (twice the predicted decrease) is below this. */
+  stopDecrement: number;
 }
 
 export const DEFAULT_FACE_NEWTON: Readonly<FaceNewtonOptions> = Object.freeze({
   faceShare: 1e-6,
+  gapRatio: 10,
+  gapShare: 1e-3,
+  squeezeLevel: 1e-10,
   maxTangentDimension: 144,
   eigenvalueFloor: 1e-9,
   backtracks: 30,
+  stepsInARow: 8,
+  stopDecrement: 1e-9,
 });
 
 export interface FaceNewtonStep<E extends FaceEvaluation> {
@@ -63,6 +80,46 @@ export function faceNewtonStep<E extends FaceEvaluation>(
   const largest = values[n - 1];
   let first = 0;
   while (first < n && values[first] < options.faceShare * largest) first++;
+  const gap = spectralGap(values, options);
+  // Below a spectral gap: try the face above it with the part below squeezed, then the face as it is.
+  if (gap > first) {
+    const squeezed = faceNewtonOnFace(x, current, constraints, held, evaluate, options, values, vectors, gap, true);
+    if (squeezed) return squeezed;
+  }
+  return faceNewtonOnFace(x, current, constraints, held, evaluate, options, values, vectors, first, false);
+}
+
+/** The index of the first eigenvalue above the widest spectral gap (see FaceNewtonOptions.gapRatio), 0 if none. */
+export function spectralGap(values: ArrayLike<number>, options: Pick<FaceNewtonOptions, 'gapRatio' | 'gapShare'>): number {
+  const n = values.length;
+  const largest = values[n - 1];
+  let best = 0;
+  let widest = options.gapRatio;
+  for (let i = 1; i < n; i++) {
+    const below = Math.max(values[i - 1], 1e-300);
+    if (values[i - 1] > options.gapShare * largest) break;
+    const ratio = values[i] / below;
+    if (ratio >= widest) {
+      widest = ratio;
+      best = i;
+    }
+  }
+  return best;
+}
+
+function faceNewtonOnFace<E extends FaceEvaluation>(
+  x: ComplexMatrix,
+  current: E,
+  constraints: readonly LinearConstraint[],
+  held: readonly HeldSide[],
+  evaluate: (state: ComplexMatrix) => E | null,
+  options: FaceNewtonOptions,
+  values: Float64Array,
+  vectors: ComplexMatrix,
+  first: number,
+  squeeze: boolean,
+): FaceNewtonStep<E> | null {
+  const n = values.length;
   const r = n - first;
   // The face has r² real coordinates less one per held row: too many for a formed Hessian, give up at once.
   const heldRows = 1 + constraints.filter((c, i) => c.lower === c.upper || held[i] !== null).length;
@@ -83,16 +140,35 @@ export function faceNewtonStep<E extends FaceEvaluation>(
   };
 
   // Held rows (trace, equalities, held bounds) and how far x is from meeting them.
+  // The part below the gap, squeezed to a level at which it costs F almost nothing (x·log x → 0).
+  const base = x.clone();
+  if (squeeze) {
+    for (let j = 0; j < first; j++) {
+      const drop = values[j] - options.squeezeLevel;
+      if (!(drop > 0)) continue;
+      for (let a = 0; a < n; a++) {
+        for (let b = 0; b < n; b++) {
+          // −drop·v_j·v_j†
+          const ar = vectors.re[a * n + j];
+          const ai = vectors.im[a * n + j];
+          const br = vectors.re[b * n + j];
+          const bi = vectors.im[b * n + j];
+          base.re[a * n + b] -= drop * (ar * br + ai * bi);
+          base.im[a * n + b] -= drop * (ai * br - ar * bi);
+        }
+      }
+    }
+  }
   const rows: Float64Array[] = [];
   const residuals: number[] = [];
   const identity = ComplexMatrix.identity(n);
   rows.push(coordinates(identity));
-  residuals.push(1 - traceProductReal(identity, x));
+  residuals.push(1 - traceProductReal(identity, base));
   constraints.forEach((c, i) => {
     const target = c.lower === c.upper ? c.lower : held[i] === 'lower' ? c.lower : held[i] === 'upper' ? c.upper : null;
     if (target === null) return;
     rows.push(coordinates(c.operator));
-    residuals.push(target - traceProductReal(c.operator, x));
+    residuals.push(target - traceProductReal(c.operator, base));
   });
   const m = basis.length;
   const split = rowSpaceAndTangent(rows, m);
@@ -101,8 +177,10 @@ export function faceNewtonStep<E extends FaceEvaluation>(
   if (k === 0 || k > options.maxTangentDimension) return null;
   const correction = toFace(solveCorrection(residuals));
 
-  const start = x.clone();
+  const start = base;
   addScaledInPlace(start, correction, 1);
+  // A face too small for the held rows meets them only in the least-squares sense: not a face of the feasible set.
+  if (!meetsHeldRows(constraints, held, start)) return null;
   const atStart = evaluate(start);
   if (!atStart) return null;
   const directions = tangent.map((t) => toFace(t));
@@ -127,23 +205,41 @@ export function faceNewtonStep<E extends FaceEvaluation>(
   }
   const symmetric = new Matrix(k, k);
   for (let i = 0; i < k; i++) for (let j = 0; j < k; j++) symmetric.set(i, j, (hessian.get(i, j) + hessian.get(j, i)) / 2);
-  const newton = dampedNewton(symmetric, gradient);
+  const newton = dampedNewton(symmetric);
   if (newton === null) return null;
-  const { step: coefficients, decrement } = newton;
-  const direction = ComplexMatrix.zeros(n);
-  directions.forEach((d, j) => addScaledInPlace(direction, d, coefficients[j]));
 
   // Backtrack until F is below both the current and the corrected point, inside the cone and every interval.
-  const reference = Math.min(current.value, atStart.value);
-  for (let t = 1, tries = 0; tries <= options.backtracks; tries++, t /= 2) {
-    const candidate = start.clone();
-    addScaledInPlace(candidate, direction, t);
-    if (!meetsIntervals(constraints, candidate) || eigvalsh(candidate)[0] < Math.min(options.eigenvalueFloor, values[0])) continue;
-    const e = evaluate(candidate);
-    if (e && e.value < reference) return { point: candidate, evaluation: e, decrement };
+  // A squeezed face starts above F(x) by the cost of the squeeze: only the end point must beat F(x).
+  const floor = squeeze ? 0.5 * options.squeezeLevel : Math.min(options.eigenvalueFloor, values[0]);
+  const backtrack = (from: ComplexMatrix, coefficients: Float64Array, reference: number) => {
+    const direction = ComplexMatrix.zeros(n);
+    directions.forEach((d, j) => addScaledInPlace(direction, d, coefficients[j]));
+    for (let t = 1, tries = 0; tries <= options.backtracks; tries++, t /= 2) {
+      const candidate = from.clone();
+      addScaledInPlace(candidate, direction, t);
+      if (!meetsIntervals(constraints, candidate) || eigvalsh(candidate)[0] < floor) continue;
+      const e = evaluate(candidate);
+      if (e && e.value < reference) return { point: candidate, evaluation: e };
+    }
+    return null;
+  };
+  let step = newton.solve(gradient);
+  let best: FaceNewtonStep<E> | null = null;
+  let at = backtrack(start, step.coefficients, squeeze ? current.value : Math.min(current.value, atStart.value));
+  // Further steps with the same Hessian (the face and its tangent directions do not change along it): each costs
+  // one gradient, and they converge fast near the face optimum.
+  for (let taken = 1; at !== null; taken++) {
+    best = { point: at.point, evaluation: at.evaluation, decrement: step.decrement };
+    if (taken >= options.stepsInARow || step.decrement <= options.stopDecrement) break;
+    const g = at.evaluation.gradient;
+    step = newton.solve(Float64Array.from(directions, (d) => traceProductReal(g, d)));
+    if (!(step.decrement > 0)) break;
+    best.decrement = step.decrement;
+    at = backtrack(at.point, step.coefficients, at.evaluation.value);
   }
+  if (best) return best;
   if (atStart.value < current.value && meetsIntervals(constraints, start) && eigvalsh(start)[0] > 0) {
-    return { point: start, evaluation: atStart, decrement };
+    return { point: start, evaluation: atStart, decrement: step.decrement };
   }
   return null;
 }
@@ -217,9 +313,9 @@ function rowSpaceAndTangent(
   return { tangent, correction };
 }
 
-/** −H⁻¹g with a Levenberg shift when H is not positive definite; null when no shift makes it so. */
-function dampedNewton(hessian: Matrix, gradient: Float64Array): { step: Float64Array; decrement: number } | null {
-  const k = gradient.length;
+/** Solves H·s = −g with a Levenberg shift when H is not positive definite; null when no shift makes it so. */
+function dampedNewton(hessian: Matrix): { solve: (gradient: Float64Array) => { coefficients: Float64Array; decrement: number } } | null {
+  const k = hessian.rows;
   let scale = 0;
   for (let i = 0; i < k; i++) scale = Math.max(scale, Math.abs(hessian.get(i, i)));
   for (let shift = 0, attempt = 0; attempt < 12; attempt++, shift = shift === 0 ? 1e-10 * (scale || 1) : shift * 100) {
@@ -227,13 +323,32 @@ function dampedNewton(hessian: Matrix, gradient: Float64Array): { step: Float64A
     for (let i = 0; i < k; i++) shifted.set(i, i, shifted.get(i, i) + shift);
     const cholesky = new CholeskyDecomposition(shifted);
     if (!cholesky.isPositiveDefinite()) continue;
-    const solution = cholesky.solve(Matrix.columnVector(Array.from(gradient)));
-    const step = Float64Array.from({ length: k }, (_, i) => -solution.get(i, 0));
-    let decrement = 0;
-    for (let i = 0; i < k; i++) decrement -= step[i] * gradient[i];
-    return { step, decrement };
+    return {
+      solve: (gradient) => {
+        const solution = cholesky.solve(Matrix.columnVector(Array.from(gradient)));
+        const coefficients = Float64Array.from({ length: k }, (_, i) => -solution.get(i, 0));
+        let decrement = 0;
+        for (let i = 0; i < k; i++) decrement -= coefficients[i] * gradient[i];
+        return { coefficients, decrement };
+      },
+    };
   }
   return null;
+}
+
+/** Trace 1 and every equality and held side met up to rounding. */
+function meetsHeldRows(constraints: readonly LinearConstraint[], held: readonly HeldSide[], state: ComplexMatrix): boolean {
+  const close = (value: number, target: number, size: number) => Math.abs(value - target) <= 1e-11 * (1 + size);
+  let trace = 0;
+  for (let i = 0; i < state.rows; i++) trace += state.re[i * state.cols + i];
+  if (!close(trace, 1, 1)) return false;
+  return constraints.every((c, i) => {
+    const target = c.lower === c.upper ? c.lower : held[i] === 'lower' ? c.lower : held[i] === 'upper' ? c.upper : null;
+    if (target === null) return true;
+    let size = 0;
+    for (let t = 0; t < c.operator.re.length; t++) size = Math.max(size, Math.abs(c.operator.re[t]), Math.abs(c.operator.im[t]));
+    return close(traceProductReal(c.operator, state), target, size);
+  });
 }
 
 function meetsIntervals(constraints: readonly LinearConstraint[], state: ComplexMatrix): boolean {
@@ -250,6 +365,8 @@ function meetsIntervals(constraints: readonly LinearConstraint[], state: Complex
 export const FACE_NEWTON_SCHEDULE = Object.freeze({
   /** Not before this many oracle calls: the examples certify in one to four iterations without it. */
   firstOracleCall: 6,
+  /** Newton steps on one face stop once the decrement is below this share of the requested gap. */
+  converged: 0.01,
   /** Face-Newton steps may use at most this many objective evaluations per solver iteration so far. */
   evaluationsPerIteration: 20,
   /** A step lowering F by less than this share of the estimated gap does not pay; the next waits… */

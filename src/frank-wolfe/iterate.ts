@@ -3,6 +3,7 @@
 import {
   addScaledInPlace,
   hermitianPart,
+  scale,
   subtract,
   traceProductReal,
   type ComplexMatrix,
@@ -10,12 +11,22 @@ import {
 import type { ObjectiveEvaluation } from '../objectives/index.js';
 import type { LinearOracle, OracleResult } from '../oracle/index.js';
 import type { NoProgressCause, StopLimit } from '../result/types.js';
+import { trivialLowerBound } from '../certificate/trivial-bound.js';
 import { certify, restoreMultipliers } from './certify.js';
-import { faceNewtonStep, FACE_NEWTON_SCHEDULE, heldIntervalSides } from './face-newton.js';
+import { DEFAULT_FACE_NEWTON, faceNewtonStep, FACE_NEWTON_SCHEDULE, heldIntervalSides } from './face-newton.js';
 import { derivativeLineSearch } from './line-search.js';
 import { TUNING } from './settings.js';
 import { alongActiveIntervals, stepToEigenvalueFloor, stepToIntervalBounds } from './step-limits.js';
-import { bestLowerBound, evaluateSafely, iterateEigen, type Multipliers, type SolverSetup, type SolverState } from './state.js';
+import {
+  bestLowerBound,
+  evaluateSafely,
+  iterateEigen,
+  reportedLowerBound,
+  type Multipliers,
+  type SolverSetup,
+  type SolverState,
+} from './state.js';
+import { zeroEntropyState } from './zero-entropy.js';
 
 /** What an iteration asks of the loop: go on, stop (certified), or end without a bound (the reason). */
 export type IterationOutcome = 'continue' | 'stop' | { failure: string };
@@ -63,6 +74,9 @@ export function noProgressCause(gapTolerance: number, state: SolverState): NoPro
 }
 
 export function iterate(setup: SolverSetup, state: SolverState): IterationOutcome {
+  // At the trivial bound a certificate already on record suffices: the result reports the trivial bound.
+  const aboveLower = state.evaluation.value - reportedLowerBound(setup, state);
+  if (state.best !== null && aboveLower >= 0 && aboveLower <= setup.settings.gapTolerance) return 'stop';
   const split = setup.oracle.stripEqualitySpan(state.evaluation.gradient);
   state.iterations++;
   // Quasi-Newton pair from the last move, in the tangent space of the equalities.
@@ -82,7 +96,7 @@ export function iterate(setup: SolverSetup, state: SolverState): IterationOutcom
     const consulted = consultOracle(setup, state, split);
     if (consulted === 'stop' || 'failure' in consulted) return consulted;
     answer = consulted.answer;
-    if (faceNewtonMove(setup, state, consulted.multipliers)) return 'continue';
+    if (zeroEntropyMove(setup, state) || faceNewtonMove(setup, state, consulted.multipliers)) return 'continue';
   }
 
   if (tryQuasiNewton && quasiNewtonStep(setup, state, split)) return 'continue';
@@ -93,10 +107,50 @@ export function iterate(setup: SolverSetup, state: SolverState): IterationOutcom
     const consulted = consultOracle(setup, state, split);
     if (consulted === 'stop' || 'failure' in consulted) return consulted;
     answer = consulted.answer;
-    if (faceNewtonMove(setup, state, consulted.multipliers)) return 'continue';
+    if (zeroEntropyMove(setup, state) || faceNewtonMove(setup, state, consulted.multipliers)) return 'continue';
   }
   pairwiseStep(setup, state, answer.point as ComplexMatrix);
   return 'continue';
+}
+
+/** The zero-entropy test waits for this many oracle calls: by then Frank–Wolfe's gap estimate excludes most problems. */
+const ZERO_ENTROPY_FIRST_ORACLE_CALL = 2;
+/** Mixing shares ε toward the current iterate that keep a zero-entropy state strictly inside the cone. */
+const ZERO_ENTROPY_MIXTURES = [1e-10, 1e-8, 1e-6, 1e-4] as const;
+/** F must stay this far above the trivial bound at the new iterate, so that rounding cannot put it below. */
+const ABOVE_ROUNDING = 1e-12;
+
+/**
+ * Once Frank–Wolfe has run a few oracle calls and neither the certified bound nor its own gap estimate rules out
+ * the trivial bound as the minimum, one semidefinite feasibility problem looks for a state where the eavesdropper
+ * knows the key (zero-entropy.ts). Found, the iterate jumps next to it: (1−ε)·ρ₀ + ε·x is feasible and full rank.
+ */
+function zeroEntropyMove(setup: SolverSetup, state: SolverState): boolean {
+  if (state.zeroEntropyTried || state.oracleCalls < ZERO_ENTROPY_FIRST_ORACLE_CALL) return false;
+  const trivial = trivialLowerBound(setup.problem);
+  const tolerance = setup.settings.gapTolerance;
+  if (bestLowerBound(state) > trivial + tolerance || state.evaluation.value - state.lastEstimatedGap > trivial + tolerance) return false;
+  state.zeroEntropyTried = true;
+  const found = setup.clock.timeOracle(() => zeroEntropyState(setup.restricted, setup.face.dimension, setup.clock.checkpoint));
+  if (found === null) return false;
+  let chosen: { point: ComplexMatrix; evaluation: NonNullable<ReturnType<typeof evaluateSafely>> } | null = null;
+  for (const share of ZERO_ENTROPY_MIXTURES) {
+    const point = scale(found, 1 - share);
+    addScaledInPlace(point, state.x, share);
+    const e = evaluateSafely(setup.objective, point);
+    if (!e || e.value < trivial + ABOVE_ROUNDING) continue;
+    if (e.value < (chosen?.evaluation.value ?? state.evaluation.value)) chosen = { point, evaluation: e };
+    if (chosen && chosen.evaluation.value - trivial <= 0.1 * tolerance) break;
+  }
+  if (chosen === null) return false;
+  state.x = chosen.point;
+  state.evaluation = chosen.evaluation;
+  state.atoms.reset(state.x);
+  state.quasiNewton.reset();
+  state.previous = null;
+  state.lastDecrease = 0;
+  state.afterFrankWolfe = true;
+  return true;
 }
 
 /**
@@ -110,11 +164,16 @@ function faceNewtonMove(setup: SolverSetup, state: SolverState, multipliers: Mul
   // (counted, not timed, so that a run is reproducible from its input).
   if (state.faceNewtonEvaluations > FACE_NEWTON_SCHEDULE.evaluationsPerIteration * state.iterations) return false;
   const held = heldIntervalSides(setup.restricted.constraints, state.x, multipliers);
-  const moved = faceNewtonStep(state.x, state.evaluation, setup.restricted.constraints, held, (point) => {
+  const evaluate = (point: ComplexMatrix) => {
     state.faceNewtonEvaluations++;
     return evaluateSafely(setup.objective, point);
-  });
-  const decrease = moved ? state.evaluation.value - moved.evaluation.value : 0;
+  };
+  const before = state.evaluation.value;
+  // Several Newton steps in a row reach the face's optimum, which the oracle then certifies (or Frank–Wolfe
+  // leaves, when the face was wrong); they stop once the predicted decrease is far below the requested gap.
+  const options = { ...DEFAULT_FACE_NEWTON, stopDecrement: FACE_NEWTON_SCHEDULE.converged * setup.settings.gapTolerance };
+  const moved = faceNewtonStep(state.x, state.evaluation, setup.restricted.constraints, held, evaluate, options);
+  const decrease = moved ? before - moved.evaluation.value : 0;
   if (!moved || decrease < FACE_NEWTON_SCHEDULE.payoff * state.lastEstimatedGap) {
     // Each unpaid attempt doubles the wait (an optimum on the cone's boundary gains little from the face).
     state.faceNewtonRetryAt = state.oracleCalls + FACE_NEWTON_SCHEDULE.retryAfterOracleCalls * 2 ** state.faceNewtonMisses;
@@ -223,10 +282,10 @@ function consultOracle(
   if (
     estimatedGap <= TUNING.certifyShare * settings.gapTolerance ||
     state.oracleCalls % TUNING.certifyEvery === 0 ||
-    upper - bestLowerBound(state) <= settings.gapTolerance
+    upper - reportedLowerBound(setup, state) <= settings.gapTolerance
   ) {
     certify(setup, state, multipliers);
-    if (state.best && upper - state.best.breakdown.lowerBound <= settings.gapTolerance) return 'stop';
+    if (state.best && upper - reportedLowerBound(setup, state) <= settings.gapTolerance) return 'stop';
   }
   state.oracleCalls++;
   // Tighten the oracle when the estimated gap stalls (its rounding then dominates the step).

@@ -7,6 +7,7 @@ import type { FeasibleFace } from '../problem/feasible-face.js';
 import type { EntropyRequest, Problem } from '../problem/model.js';
 import type { NoProgressCause, SolveResult, StopLimit } from '../result/types.js';
 import type { BoundBreakdown } from '../certificate/bound.js';
+import { trivialLowerBound } from '../certificate/trivial-bound.js';
 import type { ActiveSet } from './active-set.js';
 import type { TangentQuasiNewton } from './quasi-newton.js';
 import type { SolveControl, SolverSettings } from './settings.js';
@@ -126,6 +127,8 @@ export interface SolverState {
   noProgressCause: NoProgressCause | undefined;
   /** Objective evaluations spent in face-Newton steps so far. */
   faceNewtonEvaluations: number;
+  /** Whether the zero-entropy test has run (it runs at most once). */
+  zeroEntropyTried?: boolean;
   /** The iterate's eigendecomposition, computed at most once per iterate. */
   eigenOf: { state: ComplexMatrix; eigen: HermitianEigen } | null;
 }
@@ -139,6 +142,14 @@ export function iterateEigen(state: SolverState): HermitianEigen {
 /** The best certified lower bound so far (−∞ before the first certificate). */
 export function bestLowerBound(state: SolverState): number {
   return state.best ? state.best.breakdown.lowerBound : -Infinity;
+}
+
+/**
+ * The lower bound the result will report: the best certificate's, raised to the trivial bound (which holds for every
+ * state, src/certificate/trivial-bound.ts) — a run whose iterate is within the gap of the trivial bound is done.
+ */
+export function reportedLowerBound(setup: SolverSetup, state: SolverState): number {
+  return Math.max(bestLowerBound(state), trivialLowerBound(setup.problem));
 }
 
 /**
