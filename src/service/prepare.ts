@@ -11,6 +11,7 @@ import type { EntropyRequest, Problem } from '../problem/model.js';
 import { densityOperatorFromJson } from '../problem/state.js';
 import { resolveEntropyRequest } from '../problem/entropy-request.js';
 import { parseProblemJson } from '../problem/validate.js';
+import { problemFromClone } from '../problem/transfer.js';
 
 /**
  * A request that passed validation: everything the worker, the cache and the log line need. Plain data, so that
@@ -28,6 +29,8 @@ export interface PreparedSolve {
   settings: SolverSettings;
   inputHash: string;
   warmStart?: MatrixJson;
+  /** Epoch milliseconds (Date.now()) from which the time limit counts: when the server began reading the request. */
+  acceptedAt?: number;
 }
 
 /** What a request says before validation; `entropy` and `alpha` override the problem's own fields. */
@@ -63,14 +66,33 @@ export function checkSettings(settings: Partial<SolverSettings>): SolverSettings
   }
 }
 
-/** Validates one request; throws ValidationError with a field path relative to the request message. */
-export function prepareSolve(input: SolveInput): PreparedSolve & { problem: Problem } {
+/** Thrown by a request's checkpoint when the client's deadline passes while the request is being read. */
+export class ClientDeadlinePassed extends Error {
+  constructor() {
+    super('the client deadline passed while the request was being validated');
+    this.name = 'ClientDeadlinePassed';
+  }
+}
+
+/** A validation checkpoint for a call with this deadline (epoch ms; none when the client set no deadline). */
+export function clientDeadlineCheckpoint(deadline: number): (() => void) | undefined {
+  if (!Number.isFinite(deadline)) return undefined;
+  return () => {
+    if (Date.now() > deadline) throw new ClientDeadlinePassed();
+  };
+}
+
+/**
+ * Validates one request; throws ValidationError with a field path relative to the request message. `checkpoint`
+ * is polled between the parts of the problem and inside its large products (it throws to abort).
+ */
+export function prepareSolve(input: SolveInput, checkpoint?: () => void): PreparedSolve & { problem: Problem } {
   if (input.problemJson === undefined || input.problemJson === null) {
     throw new ValidationError('problem', 'is required');
   }
   let parsed: ReturnType<typeof parseProblemJson>;
   try {
-    parsed = parseProblemJson(input.problemJson);
+    parsed = parseProblemJson(input.problemJson, { checkpoint });
   } catch (error) {
     problemField(error);
   }
@@ -92,16 +114,21 @@ export function prepareSolve(input: SolveInput): PreparedSolve & { problem: Prob
   return prepared;
 }
 
-/** The validated problem of a prepared request, read again from its JSON when it was prepared on another thread. */
+/** The validated problem of a prepared request (read again from its JSON only when it was not kept). */
 export function problemOf(prepared: PreparedSolve): Problem {
   prepared.problem ??= parseProblemJson(prepared.problemJson).problem;
   return prepared.problem;
 }
 
-/** The plain-data part of a prepared request (what crosses the thread boundary). */
+/** The plain-data part of a prepared request (what a client keeps of the points it sends). */
 export function withoutProblem(prepared: PreparedSolve): PreparedSolve {
   const { problem: _problem, ...rest } = prepared;
   return rest;
+}
+
+/** A prepared request received from another thread: its problem's matrices rewrapped, nothing validated again. */
+export function preparedFromClone(prepared: PreparedSolve): PreparedSolve {
+  return prepared.problem === undefined ? prepared : { ...prepared, problem: problemFromClone(prepared.problem) };
 }
 
 /** Prepared requests remembered for repeats (validation and hashing cost milliseconds on larger problems). */

@@ -25,7 +25,7 @@ import type { SolveRequest__Output } from './generated/renyibound/v1/SolveReques
 import type { VerifyReply } from './generated/renyibound/v1/VerifyReply.js';
 import type { VerifyRequest__Output } from './generated/renyibound/v1/VerifyRequest.js';
 import { listExamples } from './list-examples.js';
-import { PreparedRequestMemo, prepareSolve } from './prepare.js';
+import { clientDeadlineCheckpoint, PreparedRequestMemo, prepareSolve } from './prepare.js';
 import { loadServiceDefinition, loadServicePackage, SERVICE_NAME } from './proto.js';
 import { SolveCoordinator } from './solve-coordinator.js';
 import type { WorkerReply, WorkerTask } from './solve-worker.js';
@@ -73,6 +73,12 @@ export const DEFAULT_DRAIN_TIMEOUT_MS = 60_000;
 const SHUTDOWN_ABORT_REASON = 'server shutting down';
 /** After cancelling what is left, connections are closed if calls still have not finished by then. */
 const FORCE_SHUTDOWN_AFTER_CANCEL_MS = 15_000;
+
+/** A call's deadline in epoch milliseconds (Infinity when the client set none). */
+function deadlineOf(call: grpc.ServerUnaryCall<unknown, unknown> | grpc.ServerWritableStream<unknown, unknown>): number {
+  const deadline = call.getDeadline();
+  return deadline instanceof Date ? deadline.getTime() : deadline;
+}
 
 function bindAddress(host: string, port: number): string {
   return host.includes(':') && !host.startsWith('[') ? `[${host}]:${port}` : `${host}:${port}`;
@@ -209,8 +215,7 @@ export class RenyiBoundServer {
     const controller = new AbortController();
     const abort = () => controller.abort();
     call.on('cancelled', abort);
-    const deadline = call.getDeadline();
-    const milliseconds = deadline instanceof Date ? deadline.getTime() - Date.now() : deadline - Date.now();
+    const milliseconds = deadlineOf(call) - Date.now();
     const timer = Number.isFinite(milliseconds) ? setTimeout(abort, Math.max(0, milliseconds)) : undefined;
     registry.add(controller);
     return {
@@ -239,9 +244,12 @@ export class RenyiBoundServer {
     call: grpc.ServerUnaryCall<SolveRequest__Output, SolveReply>,
     callback: grpc.sendUnaryData<SolveReply>,
   ): Promise<void> {
+    // The time limit counts from here; validation stops at the client's deadline (a solve polls it as cancellation).
+    const acceptedAt = Date.now();
     let prepared;
     try {
-      prepared = this.preparedRequests.prepare(call.request, () => prepareSolve(solveInputFromWire(call.request)));
+      const checkpoint = clientDeadlineCheckpoint(deadlineOf(call));
+      prepared = { ...this.preparedRequests.prepare(call.request, () => prepareSolve(solveInputFromWire(call.request), checkpoint)), acceptedAt };
     } catch (error) {
       callback(toServiceError(error));
       return;

@@ -5,7 +5,7 @@ import type { SolveResult } from '../result/types.js';
 import type { ResultCache, ResultCheck } from '../cache/result-cache.js';
 import { ValidationError } from '../problem/errors.js';
 import { createCancelFlag, raiseCancelFlag } from './cancel-flag.js';
-import { problemOf, type PreparedSolve, type SolveInput } from './prepare.js';
+import { preparedFromClone, problemOf, type PreparedSolve, type SolveInput } from './prepare.js';
 import type { Verification, WorkerReply, WorkerTask } from './solve-worker.js';
 import type { SolverPool } from './solver-pool.js';
 import type { DeliveredResult } from './wire.js';
@@ -49,10 +49,11 @@ export class SolveCoordinator {
 
   /** Validates and hashes a request on a pool thread (batch points); bad input throws ValidationError. */
   async prepare(input: SolveInput): Promise<PreparedSolve> {
+    const acceptedAt = Date.now();
     const reply = await this.pool.run({ kind: 'prepare', input }, true);
     if (reply.kind === 'invalid') throw new ValidationError(reply.field, reply.reason);
     if (reply.kind !== 'prepared') throw new Error(`unexpected worker reply ${reply.kind}`);
-    return reply.prepared;
+    return { ...preparedFromClone(reply.prepared), acceptedAt };
   }
 
   async solve(prepared: PreparedSolve, context: SolveContext = {}): Promise<DeliveredResult> {
@@ -93,7 +94,8 @@ export class SolveCoordinator {
     const cancelFlag = createCancelFlag();
     const task: WorkerTask = {
       kind: 'solve',
-      problemJson: prepared.problemJson,
+      problem: problemOf(prepared),
+      acceptedAt: prepared.acceptedAt ?? Date.now(),
       entropy: prepared.request.kind,
       alpha: prepared.request.alpha,
       settings: prepared.settings,

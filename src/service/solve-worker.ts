@@ -1,17 +1,18 @@
 // Runs inside a pool thread. Two kinds of task: preparing a request (validation and input hash, the costly
 // part of reading a problem) and solving one, after which the result's certificate is verified right there, so
-// that the event loop only moves data.
+// that the event loop only moves data. The validated problem crosses threads as a structured clone, never
+// validated twice; a solve gets what is left of its time limit, counted from when the request was accepted.
 import { verifyResult } from '../certificate/verify.js';
 import type { MatrixJson, SolveResult } from '../result/types.js';
 import type { SolverSettings } from '../frank-wolfe/settings.js';
 import { solve } from '../frank-wolfe/solve.js';
 import { ValidationError } from '../problem/errors.js';
 import { matrixFromJson } from '../problem/json.js';
-import type { EntropyKind } from '../problem/model.js';
-import { problemFromJson } from '../problem/validate.js';
+import type { EntropyKind, Problem } from '../problem/model.js';
+import { problemFromClone } from '../problem/transfer.js';
 import { entropyRequestFrom } from '../problem/entropy-request.js';
 import { cancelFlagReader } from './cancel-flag.js';
-import { prepareSolve, withoutProblem, type PreparedSolve, type SolveInput } from './prepare.js';
+import { prepareSolve, type PreparedSolve, type SolveInput } from './prepare.js';
 
 /** Validate and hash one request. */
 export interface PrepareTask {
@@ -23,7 +24,10 @@ export interface PrepareTask {
 /** Solve one prepared request and verify the certificate it produced. */
 export interface SolveTask {
   kind: 'solve';
-  problemJson: unknown;
+  /** The validated problem (a structured clone: matrices arrive as plain records). */
+  problem: Problem;
+  /** Epoch milliseconds from which settings.timeLimitMs counts. */
+  acceptedAt: number;
   entropy: EntropyKind;
   alpha?: number;
   settings: SolverSettings;
@@ -46,7 +50,7 @@ export type WorkerReply =
 
 function prepare(task: PrepareTask): WorkerReply {
   try {
-    return { kind: 'prepared', prepared: withoutProblem(prepareSolve(task.input)) };
+    return { kind: 'prepared', prepared: prepareSolve(task.input) };
   } catch (error) {
     // Error classes do not survive the thread boundary; the field path does.
     if (error instanceof ValidationError) return { kind: 'invalid', field: error.field, reason: error.reason };
@@ -55,10 +59,11 @@ function prepare(task: PrepareTask): WorkerReply {
 }
 
 function solveAndVerify(task: SolveTask): WorkerReply {
-  // The problem was validated already; reading it again rebuilds the matrices as ComplexMatrix.
-  const problem = problemFromJson(task.problemJson);
+  const problem = problemFromClone(task.problem);
   const request = entropyRequestFrom(task.entropy, task.alpha);
-  const result = solve(problem, request, task.settings, {
+  // Validation and the wait for this thread already used part of the limit.
+  const timeLimitMs = Math.max(0, task.settings.timeLimitMs - (Date.now() - task.acceptedAt));
+  const result = solve(problem, request, { ...task.settings, timeLimitMs }, {
     isCancelled: cancelFlagReader(task.cancelFlag),
     warmStart: task.warmStart === undefined ? undefined : matrixFromJson(task.warmStart, 'warmStart'),
   });
