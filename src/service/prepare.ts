@@ -2,7 +2,7 @@
 import { createHash } from 'node:crypto';
 import { LRUCache } from 'lru-cache';
 import type { MatrixJson } from '../result/types.js';
-import { resolveSolverSettings, SettingsError, type SolverSettings } from '../frank-wolfe/settings.js';
+import { DEFAULT_SETTINGS, resolveSolverSettings, SettingsError, type SolverSettings } from '../frank-wolfe/settings.js';
 import { SOLVER_VERSION } from '../certificate/version.js';
 import { ValidationError } from '../problem/errors.js';
 import { inputHash } from '../problem/hash.js';
@@ -66,19 +66,24 @@ export function checkSettings(settings: Partial<SolverSettings>): SolverSettings
   }
 }
 
-/** Thrown by a request's checkpoint when the client's deadline passes while the request is being read. */
-export class ClientDeadlinePassed extends Error {
-  constructor() {
-    super('the client deadline passed while the request was being validated');
-    this.name = 'ClientDeadlinePassed';
+/** Thrown by a request's checkpoint when its time limit or the client's deadline passes during validation. */
+export class ValidationStopped extends Error {
+  constructor(reason: string) {
+    super(`${reason} passed while the request was being validated: no bound (a bound needs a validated problem)`);
+    this.name = 'ValidationStopped';
   }
 }
 
-/** A validation checkpoint for a call with this deadline (epoch ms; none when the client set no deadline). */
-export function clientDeadlineCheckpoint(deadline: number): (() => void) | undefined {
-  if (!Number.isFinite(deadline)) return undefined;
+/**
+ * The checkpoint validation polls: the request's time limit, counted from `acceptedAt` (epoch ms), and the
+ * client's deadline (epoch ms, Infinity for none).
+ */
+export function validationCheckpoint(acceptedAt: number, settings: Partial<SolverSettings> | undefined, deadline: number): () => void {
+  const limitMs = typeof settings?.timeLimitMs === 'number' && settings.timeLimitMs > 0 ? settings.timeLimitMs : DEFAULT_SETTINGS.timeLimitMs;
   return () => {
-    if (Date.now() > deadline) throw new ClientDeadlinePassed();
+    const now = Date.now();
+    if (now - acceptedAt > limitMs) throw new ValidationStopped(`the time limit (settings.timeLimitMs = ${limitMs})`);
+    if (now > deadline) throw new ValidationStopped('the client deadline');
   };
 }
 

@@ -15,7 +15,7 @@ import { ValidationError } from '../problem/errors.js';
 import { expandGrid, expandRequestList, runBatch, solveInputFromWire, type BatchPoint } from './batch.js';
 import { decoyRateHandler } from './decoy-rate.js';
 import { toServiceError } from './errors.js';
-import { guardRequests, malformedReason } from './guarded-service.js';
+import { guardRequests, malformedReason, receivedAt } from './guarded-service.js';
 import { DEFAULT_MAX_MESSAGE_BYTES, TRANSPORT_CAP_FACTOR } from './message-size.js';
 import type { BatchItem } from './generated/renyibound/v1/BatchItem.js';
 import type { BatchRequest__Output } from './generated/renyibound/v1/BatchRequest.js';
@@ -25,13 +25,13 @@ import type { SolveRequest__Output } from './generated/renyibound/v1/SolveReques
 import type { VerifyReply } from './generated/renyibound/v1/VerifyReply.js';
 import type { VerifyRequest__Output } from './generated/renyibound/v1/VerifyRequest.js';
 import { listExamples } from './list-examples.js';
-import { clientDeadlineCheckpoint, PreparedRequestMemo, prepareSolve } from './prepare.js';
+import { PreparedRequestMemo, prepareSolve, validationCheckpoint } from './prepare.js';
 import { loadServiceDefinition, loadServicePackage, SERVICE_NAME } from './proto.js';
 import { SolveCoordinator } from './solve-coordinator.js';
 import type { WorkerReply, WorkerTask } from './solve-worker.js';
 import { QueueFullError, SolverPool } from './solver-pool.js';
 import { checkExposure, exposureWarning, serveHealthOnly, serverCredentials, serverOptions, type ServerSecurity } from './security.js';
-import { entropyKindFromWire, resultFromWire, resultToWire, wireToJson } from './wire.js';
+import { entropyKindFromWire, resultFromWire, resultToWire, settingsFromWire, wireToJson } from './wire.js';
 import { handleKeyLength } from './key-length.js';
 
 export interface ServerOptions {
@@ -244,11 +244,11 @@ export class RenyiBoundServer {
     call: grpc.ServerUnaryCall<SolveRequest__Output, SolveReply>,
     callback: grpc.sendUnaryData<SolveReply>,
   ): Promise<void> {
-    // The time limit counts from here; validation stops at the client's deadline (a solve polls it as cancellation).
-    const acceptedAt = Date.now();
+    // The time limit counts from the start of decoding; validation polls it and the client's deadline.
+    const acceptedAt = receivedAt(call.request) ?? Date.now();
     let prepared;
     try {
-      const checkpoint = clientDeadlineCheckpoint(deadlineOf(call));
+      const checkpoint = validationCheckpoint(acceptedAt, settingsFromWire(call.request.settings), deadlineOf(call));
       prepared = { ...this.preparedRequests.prepare(call.request, () => prepareSolve(solveInputFromWire(call.request), checkpoint)), acceptedAt };
     } catch (error) {
       callback(toServiceError(error));

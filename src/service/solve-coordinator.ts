@@ -1,6 +1,9 @@
 // One straight path per request: cache lookup → (shared) solve on the pool → verified store → log line.
 import type { Logger } from 'pino';
 import { verifyResult } from '../certificate/verify.js';
+import { interruptedBeforeStart } from '../frank-wolfe/finish.js';
+import { RunClock } from '../frank-wolfe/state.js';
+import { normaliseRequest } from '../objectives/index.js';
 import type { SolveResult } from '../result/types.js';
 import type { ResultCache, ResultCheck } from '../cache/result-cache.js';
 import { ValidationError } from '../problem/errors.js';
@@ -36,6 +39,14 @@ export function checkFor(prepared: PreparedSolve): ResultCheck {
     if (result.inputHash !== prepared.inputHash) return { valid: false, reason: 'result answers another input hash' };
     return verifyResult(problemOf(prepared), prepared.request, result);
   };
+}
+
+/** The result of a request whose time limit passed before its solve could start: the trivial bound. */
+function limitPassedWhileReading(prepared: PreparedSolve): SolveResult {
+  const entropy = normaliseRequest(prepared.request);
+  const base = { entropy: entropy.kind, alpha: entropy.kind === 'von-neumann' ? null : entropy.alpha, inputHash: prepared.inputHash };
+  const result = interruptedBeforeStart(base, new RunClock(0, undefined), problemOf(prepared), 'time');
+  return { ...result, message: 'the time limit passed while the request was being read and validated' };
 }
 
 export class SolveCoordinator {
@@ -105,6 +116,8 @@ export class SolveCoordinator {
     const entry: InFlightSolve = { cancelFlag, waiters: 1, promise: Promise.resolve(undefined as unknown as SolveResult) };
     entry.promise = (async () => {
       try {
+        // Reading the request used up the limit: the trivial bound is all there is, and needs no thread.
+        if (Date.now() - task.acceptedAt >= task.settings.timeLimitMs) return limitPassedWhileReading(prepared);
         const reply = await this.pool.run(task, context.admitted ?? false);
         if (reply.kind !== 'solved') throw new Error(`unexpected worker reply ${reply.kind}`);
         const { result, verification } = reply;
@@ -143,6 +156,7 @@ export class SolveCoordinator {
         gap: result.gap,
         certifiedLowerBound: result.certifiedLowerBound,
         seconds: (performance.now() - started) / 1000,
+        secondsSinceAccepted: prepared.acceptedAt === undefined ? undefined : (Date.now() - prepared.acceptedAt) / 1000,
         solverSeconds: result.seconds,
         fromCache,
         sharedSolve: shared || undefined,

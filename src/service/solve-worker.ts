@@ -61,8 +61,8 @@ function prepare(task: PrepareTask): WorkerReply {
 function solveAndVerify(task: SolveTask): WorkerReply {
   const problem = problemFromClone(task.problem);
   const request = entropyRequestFrom(task.entropy, task.alpha);
-  // Validation and the wait for this thread already used part of the limit.
-  const timeLimitMs = Math.max(0, task.settings.timeLimitMs - (Date.now() - task.acceptedAt));
+  // Validation and the wait for this thread already used part of the limit (1 ms left still yields the trivial bound).
+  const timeLimitMs = Math.max(1, task.settings.timeLimitMs - (Date.now() - task.acceptedAt));
   const result = solve(problem, request, { ...task.settings, timeLimitMs }, {
     isCancelled: cancelFlagReader(task.cancelFlag),
     warmStart: task.warmStart === undefined ? undefined : matrixFromJson(task.warmStart, 'warmStart'),
