@@ -1,12 +1,11 @@
-// One straight path per request: cache lookup → (shared) solve on the pool → reply and log line → verification on
-// the pool → verified store (verifying after the reply keeps it out of every deadline).
+// One straight path per request: cache lookup → (shared) solve on the pool → verified store → log line.
 import type { Logger } from 'pino';
 import { verifyResult } from '../certificate/verify.js';
 import { interruptedBeforeStart } from '../frank-wolfe/finish.js';
 import { RunClock } from '../frank-wolfe/state.js';
 import { normaliseRequest } from '../objectives/index.js';
 import type { SolveResult } from '../result/types.js';
-import { isCacheable, type ResultCache, type ResultCheck } from '../cache/result-cache.js';
+import type { ResultCache, ResultCheck } from '../cache/result-cache.js';
 import { ValidationError } from '../problem/errors.js';
 import { createCancelFlag, raiseCancelFlag } from './cancel-flag.js';
 import { preparedFromClone, problemOf, type PreparedSolve, type SolveInput } from './prepare.js';
@@ -16,12 +15,7 @@ import type { DeliveredResult } from './wire.js';
 
 /** A solve in progress that identical requests join instead of starting their own. */
 interface InFlightSolve {
-  /** The solver's answer (delivered at once; verification for the cache follows). */
   promise: Promise<SolveResult>;
-  /** Set once answered: the result is being verified and stored. */
-  answered: boolean;
-  /** Settles after the verified store (or when nothing is stored); the entry leaves the in-flight map then. */
-  stored: Promise<void>;
   cancelFlag: SharedArrayBuffer;
   /** Requests still waiting for it; the solve is cancelled when the last one goes away. */
   waiters: number;
@@ -75,9 +69,6 @@ export class SolveCoordinator {
 
   async solve(prepared: PreparedSolve, context: SolveContext = {}): Promise<DeliveredResult> {
     const started = performance.now();
-    // An identical solve that has answered and is being verified: its store decides whether this is a cache hit.
-    const settling = this.inFlight.get(prepared.inputHash);
-    if (settling?.answered) await settling.stored;
     const cached = await this.cache.lookup(prepared.inputHash, checkFor(prepared));
     if (cached !== undefined) {
       this.logSolve(prepared, cached, true, started, context);
@@ -122,49 +113,26 @@ export class SolveCoordinator {
       warmStart: prepared.warmStart,
       cancelFlag,
     };
-    const entry: InFlightSolve = {
-      cancelFlag,
-      waiters: 1,
-      answered: false,
-      promise: Promise.resolve(undefined as unknown as SolveResult),
-      stored: Promise.resolve(),
-    };
+    const entry: InFlightSolve = { cancelFlag, waiters: 1, promise: Promise.resolve(undefined as unknown as SolveResult) };
     entry.promise = (async () => {
-      // Reading the request used up the limit: the trivial bound is all there is, and needs no thread.
-      if (Date.now() - task.acceptedAt >= task.settings.timeLimitMs) return limitPassedWhileReading(prepared);
-      const reply = await this.pool.run(task, context.admitted ?? false);
-      if (reply.kind !== 'solved') throw new Error(`unexpected worker reply ${reply.kind}`);
-      if (reply.result.inputHash !== prepared.inputHash) {
-        this.logger.error({ inputHash: prepared.inputHash, solverHash: reply.result.inputHash }, 'solver and service disagree on the input hash');
-      }
-      return reply.result;
-    })();
-    entry.stored = entry.promise
-      .then(
-        (result) => {
-          entry.answered = true;
-          return this.storeVerified(prepared, result);
-        },
-        () => {},
-      )
-      .finally(() => {
+      try {
+        // Reading the request used up the limit: the trivial bound is all there is, and needs no thread.
+        if (Date.now() - task.acceptedAt >= task.settings.timeLimitMs) return limitPassedWhileReading(prepared);
+        const reply = await this.pool.run(task, context.admitted ?? false);
+        if (reply.kind !== 'solved') throw new Error(`unexpected worker reply ${reply.kind}`);
+        const { result, verification } = reply;
+        if (result.inputHash !== prepared.inputHash) {
+          this.logger.error({ inputHash: prepared.inputHash, solverHash: result.inputHash }, 'solver and service disagree on the input hash');
+        }
+        // The worker ran the independent verifier on this result; only a verified certificate is stored.
+        await this.cache.store(prepared.inputHash, result, (): Verification => verification);
+        return result;
+      } finally {
         if (this.inFlight.get(prepared.inputHash) === entry) this.inFlight.delete(prepared.inputHash);
-      });
+      }
+    })();
     this.inFlight.set(prepared.inputHash, entry);
     return entry;
-  }
-
-  /** Verifies a fresh result on a pool thread (after its reply went out) and stores it only if it verifies. */
-  private async storeVerified(prepared: PreparedSolve, result: SolveResult): Promise<void> {
-    if (!isCacheable(result) || result.inputHash !== prepared.inputHash) return;
-    try {
-      const task: WorkerTask = { kind: 'verify', problem: problemOf(prepared), entropy: prepared.request.kind, alpha: prepared.request.alpha, result };
-      const reply = await this.pool.run(task, true);
-      if (reply.kind !== 'verified') throw new Error(`unexpected worker reply ${reply.kind}`);
-      await this.cache.store(prepared.inputHash, result, (): Verification => reply.verification);
-    } catch (error) {
-      this.logger.warn({ event: 'cache', inputHash: prepared.inputHash, reason: (error as Error).message }, 'result not stored: verification failed to run');
-    }
   }
 
   private logSolve(

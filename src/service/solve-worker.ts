@@ -1,6 +1,6 @@
-// Runs inside a pool thread. Three kinds of task: preparing a request (validation and input hash, the costly
-// part of reading a problem), solving one, and verifying a result before it is cached (a task of its own, run
-// after the reply, so that a deadline is never stretched by the verifier); the event loop only moves data. The validated problem crosses threads as a structured clone, never
+// Runs inside a pool thread. Two kinds of task: preparing a request (validation and input hash, the costly
+// part of reading a problem) and solving one, after which the result's certificate is verified right there, so
+// that the event loop only moves data. The validated problem crosses threads as a structured clone, never
 // validated twice; a solve gets what is left of its time limit, counted from when the request was accepted.
 import { verifyResult } from '../certificate/verify.js';
 import type { MatrixJson, SolveResult } from '../result/types.js';
@@ -21,7 +21,7 @@ export interface PrepareTask {
   cancelFlag?: undefined;
 }
 
-/** Solve one prepared request. */
+/** Solve one prepared request and verify the certificate it produced. */
 export interface SolveTask {
   kind: 'solve';
   /** The validated problem (a structured clone: matrices arrive as plain records). */
@@ -35,17 +35,7 @@ export interface SolveTask {
   cancelFlag: SharedArrayBuffer;
 }
 
-/** Verify a result before it is cached (after the reply went out, so verifying never delays an answer). */
-export interface VerifyTask {
-  kind: 'verify';
-  problem: Problem;
-  entropy: EntropyKind;
-  alpha?: number;
-  result: SolveResult;
-  cancelFlag?: undefined;
-}
-
-export type WorkerTask = PrepareTask | SolveTask | VerifyTask;
+export type WorkerTask = PrepareTask | SolveTask;
 
 /** The independent verifier's verdict on a fresh result (results without a certificate are simply not valid). */
 export interface Verification {
@@ -56,8 +46,7 @@ export interface Verification {
 export type WorkerReply =
   | { kind: 'prepared'; prepared: PreparedSolve }
   | { kind: 'invalid'; field: string; reason: string }
-  | { kind: 'solved'; result: SolveResult }
-  | { kind: 'verified'; verification: Verification };
+  | { kind: 'solved'; result: SolveResult; verification: Verification };
 
 function prepare(task: PrepareTask): WorkerReply {
   try {
@@ -69,7 +58,7 @@ function prepare(task: PrepareTask): WorkerReply {
   }
 }
 
-function solveTask(task: SolveTask): WorkerReply {
+function solveAndVerify(task: SolveTask): WorkerReply {
   const problem = problemFromClone(task.problem);
   const request = entropyRequestFrom(task.entropy, task.alpha);
   // Validation and the wait for this thread already used part of the limit (1 ms left still yields the trivial bound).
@@ -78,17 +67,10 @@ function solveTask(task: SolveTask): WorkerReply {
     isCancelled: cancelFlagReader(task.cancelFlag),
     warmStart: task.warmStart === undefined ? undefined : matrixFromJson(task.warmStart, 'warmStart'),
   });
-  return { kind: 'solved', result };
-}
-
-function verifyTask(task: VerifyTask): WorkerReply {
-  const { result } = task;
-  if (result.certificate === null) return { kind: 'verified', verification: { valid: false, reason: 'no certificate' } };
-  const report = verifyResult(problemFromClone(task.problem), entropyRequestFrom(task.entropy, task.alpha), result);
-  return { kind: 'verified', verification: { valid: report.valid, reason: report.reason } };
+  const verification = result.certificate === null ? { valid: false, reason: 'no certificate' } : verifyResult(problem, request, result);
+  return { kind: 'solved', result, verification: { valid: verification.valid, reason: verification.reason } };
 }
 
 export default function runWorkerTask(task: WorkerTask): WorkerReply {
-  if (task.kind === 'prepare') return prepare(task);
-  return task.kind === 'solve' ? solveTask(task) : verifyTask(task);
+  return task.kind === 'prepare' ? prepare(task) : solveAndVerify(task);
 }
