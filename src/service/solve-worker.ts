@@ -2,6 +2,7 @@
 // part of reading a problem) and solving one, after which the result's certificate is verified right there, so
 // that the event loop only moves data. The validated problem crosses threads as a structured clone, never
 // validated twice; a solve gets what is left of its time limit, counted from when the request was accepted.
+import { isCacheable } from '../cache/result-cache.js';
 import { verifyResult } from '../certificate/verify.js';
 import type { MatrixJson, SolveResult } from '../result/types.js';
 import type { SolverSettings } from '../frank-wolfe/settings.js';
@@ -21,7 +22,7 @@ export interface PrepareTask {
   cancelFlag?: undefined;
 }
 
-/** Solve one prepared request and verify the certificate it produced. */
+/** Solve one prepared request and verify the result when the cache would keep it. */
 export interface SolveTask {
   kind: 'solve';
   /** The validated problem (a structured clone: matrices arrive as plain records). */
@@ -67,7 +68,9 @@ function solveAndVerify(task: SolveTask): WorkerReply {
     isCancelled: cancelFlagReader(task.cancelFlag),
     warmStart: task.warmStart === undefined ? undefined : matrixFromJson(task.warmStart, 'warmStart'),
   });
-  const verification = result.certificate === null ? { valid: false, reason: 'no certificate' } : verifyResult(problem, request, result);
+  // Only a result the cache would keep is verified: results stopped by a time limit or a cancellation never are,
+  // so the verifier never runs after a deadline.
+  const verification = isCacheable(result) ? verifyResult(problem, request, result) : { valid: false, reason: 'not cacheable' };
   return { kind: 'solved', result, verification: { valid: verification.valid, reason: verification.reason } };
 }
 
