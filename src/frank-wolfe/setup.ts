@@ -20,7 +20,10 @@ import { TangentQuasiNewton } from './quasi-newton.js';
 import { resolveSolverSettings, TUNING, type SolveControl, type SolverSettings } from './settings.js';
 import { evaluateSafely, type ResultBase, type RunClock, type SolverSetup, type SolverState } from './state.js';
 
-export type SetUpOutcome = { ready: true; setup: SolverSetup; state: SolverState } | { ready: false; result: SolveResult };
+/** `evaluationMs`: what one objective evaluation (with gradient) cost at the start, to budget the result's assembly. */
+export type SetUpOutcome =
+  | { ready: true; setup: SolverSetup; state: SolverState; evaluationMs: number }
+  | { ready: false; result: SolveResult };
 
 /** Set-up of a run; SolveInterrupted thrown by a checkpoint is caught by the caller. */
 export function setUp(
@@ -89,7 +92,9 @@ export function setUp(
   const objective = createObjective(restricted, entropy);
   const x = startingPoint(oracle, restricted, face, interiorPoint, control.warmStart);
   checkpoint();
+  const evaluationStart = clock.elapsedMs();
   const evaluation = evaluateSafely(objective, x);
+  const evaluationMs = clock.elapsedMs() - evaluationStart;
   if (!evaluation) {
     const rank = numericalRank(interiorPoint);
     const message =
@@ -140,7 +145,7 @@ export function setUp(
     faceNewtonEvaluations: 0,
     eigenOf: null,
   };
-  return { ready: true, setup, state };
+  return { ready: true, setup, state, evaluationMs };
 }
 
 /** The fields every result repeats (also for results of runs interrupted during set-up). */

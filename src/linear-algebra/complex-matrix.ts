@@ -1,4 +1,5 @@
 // Dense complex matrices stored row-major as two Float64Arrays (real and imaginary parts).
+import { pollAtOrder } from './interruption.js';
 
 export class ComplexMatrix {
   readonly rows: number;
@@ -193,6 +194,7 @@ function addScaledRowFour(
 /** C = A·B. */
 export function multiply(a: ComplexMatrix, b: ComplexMatrix): ComplexMatrix {
   if (a.cols !== b.rows) throw new RangeError(`multiply: ${a.rows}x${a.cols} times ${b.rows}x${b.cols}`);
+  pollAtOrder(Math.max(a.rows, a.cols, b.rows, b.cols));
   const n = a.rows;
   const m = b.cols;
   const p = a.cols;
@@ -254,6 +256,7 @@ export function multiply(a: ComplexMatrix, b: ComplexMatrix): ComplexMatrix {
 /** C = A·B†. */
 export function multiplyAdjointRight(a: ComplexMatrix, b: ComplexMatrix): ComplexMatrix {
   if (a.cols !== b.cols) throw new RangeError(`multiplyAdjointRight: ${a.rows}x${a.cols} times (${b.rows}x${b.cols})†`);
+  pollAtOrder(Math.max(a.rows, a.cols, b.rows, b.cols));
   const n = a.rows;
   const m = b.rows;
   const p = a.cols;
@@ -314,6 +317,7 @@ export function multiplyAdjointRight(a: ComplexMatrix, b: ComplexMatrix): Comple
 /** C = A†·B. */
 export function multiplyAdjointLeft(a: ComplexMatrix, b: ComplexMatrix): ComplexMatrix {
   if (a.rows !== b.rows) throw new RangeError(`multiplyAdjointLeft: (${a.rows}x${a.cols})† times ${b.rows}x${b.cols}`);
+  pollAtOrder(Math.max(a.rows, a.cols, b.rows, b.cols));
   const n = a.cols;
   const m = b.cols;
   const p = a.rows;

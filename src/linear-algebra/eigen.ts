@@ -1,6 +1,7 @@
 // The Hermitian eigensolver: Householder tridiagonalisation + implicit QL. The slower reference methods it is
 // compared with (cyclic Jacobi, ml-matrix on the real embedding) live in src/bench/reference-eigensolvers.ts.
 import { ComplexMatrix } from './complex-matrix.js';
+import { pollAtOrder, STAGES_PER_POLL } from './interruption.js';
 import { BACKWARD_ERROR_CONSTANT, UNIT_ROUNDOFF } from './rounding.js';
 
 /** Eigendecomposition A = V·diag(values)·V† of a Hermitian matrix; values ascending, eigenvectors in columns. */
@@ -135,6 +136,7 @@ function tridiagonalise(input: ComplexMatrix, scale: number): Tridiagonal {
     workIm[row + i] = 0;
   }
   for (let k = 0; k + 2 < n; k++) {
+    if (k % STAGES_PER_POLL === 0) pollAtOrder(n);
     const k1 = k + 1;
     // x = column k below the diagonal; the reflector maps it onto a multiple of e_{k+1}.
     const alphaRe = workRe[k1 * n + k];
@@ -357,6 +359,7 @@ function tridiagonalQL(
   for (let i = 0; i < n; i++) normT = Math.max(normT, Math.abs(d[i]) + Math.abs(e[i]) + (i > 0 ? Math.abs(e[i - 1]) : 0));
   const absoluteFloor = eps * normT;
   for (let l = 0; l < n; l++) {
+    if (l % STAGES_PER_POLL === 0) pollAtOrder(n);
     let iterations = 0;
     for (;;) {
       let m = l;
@@ -525,6 +528,7 @@ export function eighHouseholder(input: ComplexMatrix): HermitianEigen {
   const w3Re = back[6];
   const w3Im = back[7];
   for (let jj = 0; jj < n; jj += 4) {
+    if (jj % STAGES_PER_POLL === 0) pollAtOrder(n);
     const count = Math.min(4, n - jj);
     // Missing vectors of the last group repeat the first one; their results are not stored.
     const z0 = order[jj];

@@ -2,6 +2,7 @@
 // (Daleckii–Krein formula).
 import { adjoint, ComplexMatrix, multiply, multiplyAdjointLeft, multiplyAdjointRight } from './complex-matrix.js';
 import { eigh, type HermitianEigen } from './eigen.js';
+import { pollAtOrder } from './interruption.js';
 import { UNIT_ROUNDOFF } from './rounding.js';
 import { zeroEigenvalueTolerance } from './support.js';
 
@@ -126,6 +127,7 @@ function isExactlyHermitian(h: ComplexMatrix): boolean {
 function lowerTimesAdjoint(x: ComplexMatrix, y: ComplexMatrix): ComplexMatrix {
   const n = x.rows;
   const p = x.cols;
+  pollAtOrder(Math.max(n, p));
   const out = new ComplexMatrix(n, n);
   const or = out.re;
   const oi = out.im;

@@ -36,6 +36,7 @@ import {
   type SparseOperator,
 } from './kernels.js';
 import { applyTensorLeft, type TensorFactors, type TensorRows } from './tensor-rows.js';
+import { pollAtOrder } from '../linear-algebra/interruption.js';
 
 /** Fraction of the distance to the cone boundary taken by a step, before the adaptive increase (SDPT3 practice). */
 const BASE_STEP_FRACTION = 0.9;
@@ -526,6 +527,7 @@ export class InteriorPointSolver {
     outRe: Float64Array,
     outIm: Float64Array,
   ): void {
+    pollAtOrder(this.n);
     if (this.realMode) multiplyBySymmetricReal(aRe, bRe, this.n, outRe);
     else multiplyByHermitian(aRe, aIm, bRe, bIm, this.n, outRe, outIm);
   }
@@ -535,6 +537,7 @@ export class InteriorPointSolver {
     const { n, m, rows } = this;
     const size = n * n;
     for (let k = 0; k < m; k++) {
+      pollAtOrder(n);
       const sparse = this.sparseRows[k];
       if (sparse) transposedSparseProductWithLowerReal(sparse, this.lxRe, n, this.tmpRe);
       else transposedProductWithLowerReal(rows.re[k], this.tmp2Re, n, this.tmpRe);
@@ -592,6 +595,7 @@ export class InteriorPointSolver {
     transposeInto(this.lxRe, this.lxIm, n, this.tmp2Re, this.tmp2Im);
     if (this.realMode) return this.assembleSchurReal();
     for (let k = 0; k < m; k++) {
+      pollAtOrder(n);
       const sparse = this.sparseRows[k];
       if (sparse) {
         transposedSparseProductWithLower(sparse, this.lxRe, this.lxIm, n, this.tmpRe, this.tmpIm);
@@ -631,6 +635,7 @@ export class InteriorPointSolver {
     const tIm = this.tensorTransposedIm;
     // (O_l Z⁻¹)ᵀ for every l.
     for (let l = 0; l < p; l++) {
+      pollAtOrder(n);
       applyTensorLeft(this.tensorFactors[l], a, b, this.zInvRe, this.zInvIm, this.tmpRe, this.tmpIm, this.tmp2Re, this.tmp2Im);
       const offset = l * size;
       for (let i = 0; i < n; i++) {
@@ -642,6 +647,7 @@ export class InteriorPointSolver {
     }
     // O_j·X for every j (in the dense path's Q buffers), then all pairs at once.
     for (let j = 0; j < p; j++) {
+      pollAtOrder(n);
       applyTensorLeft(this.tensorFactors[j], a, b, this.xRe, this.xIm, this.tmpRe, this.tmpIm, this.schurViewsRe[j], this.schurViewsIm[j]);
     }
     const basis = this.operatorSchur;
@@ -819,6 +825,7 @@ export class InteriorPointSolver {
   /** With U = L⁻¹ for the current factor L of the cone variable: −1/λ_min(U·D·U†), or Infinity when λ_min ≥ 0. */
   private coneStep(uRe: Float64Array, uIm: Float64Array, dRe: Float64Array, dIm: Float64Array): number {
     const n = this.n;
+    pollAtOrder(n);
     if (this.realMode) {
       lowerCongruenceSymmetricReal(uRe, dRe, n, this.tmpRe, this.tmp2Re);
       const lambdaReal = smallestEigenvalueInPlaceReal(this.tmp2Re, n, this.tridiagonal, STEP_EIGENVALUE_TOLERANCE, 0);

@@ -7,6 +7,7 @@ import {
   multiplyAdjointLeft,
 } from '../linear-algebra/complex-matrix.js';
 import { eigvalsh } from '../linear-algebra/eigen.js';
+import { whilePolling } from '../linear-algebra/interruption.js';
 import { type AnnouncementBranch, type EntropyRequest, type LinearConstraint, type Problem } from './model.js';
 import { ValidationError } from './errors.js';
 import { entropyRequestFrom, isUnspecifiedEntropy } from './entropy-request.js';
@@ -27,7 +28,7 @@ export { ValidationError } from './errors.js';
 export interface ValidationLimits {
   /** Largest joint dimension dimensionA·dimensionB and branch output dimension accepted (default 256). */
   maxDimension?: number;
-  /** Called between constraints, observations and branches (large problems take a while); throws to abort. */
+  /** Called between constraints, observations and branches and inside their large products; throws to abort. */
   checkpoint?: () => void;
 }
 
@@ -75,6 +76,11 @@ export function problemFromJson(json: unknown, limits: ValidationLimits = {}): P
  * explicit constraints, source marginal, observations). Operators are stored as their exact Hermitian parts.
  */
 export function parseProblemJson(json: unknown, limits: ValidationLimits = {}): ParsedProblem {
+  // The products and eigendecompositions of the checks poll it too (a branch at d = 256 takes about a second).
+  return whilePolling(limits.checkpoint, () => parseProblem(json, limits));
+}
+
+function parseProblem(json: unknown, limits: ValidationLimits): ParsedProblem {
   const maxDimension = limits.maxDimension ?? DEFAULT_MAX_DIMENSION;
   if (json === null || typeof json !== 'object' || Array.isArray(json)) {
     throw new ValidationError('problem', 'must be a JSON object');

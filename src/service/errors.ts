@@ -1,6 +1,7 @@
 // How failures become gRPC statuses: the code says who is at fault, the message names the field.
 import * as grpc from '@grpc/grpc-js';
 import { ValidationError } from '../problem/errors.js';
+import { ValidationStopped } from './prepare.js';
 import { QueueFullError, WorkerLostError } from './solver-pool.js';
 
 /** Trailing-metadata key carrying the offending field path of an INVALID_ARGUMENT. */
@@ -14,5 +15,6 @@ export function toServiceError(error: unknown): Partial<grpc.StatusObject> {
   }
   if (error instanceof QueueFullError) return { code: grpc.status.RESOURCE_EXHAUSTED, details: error.message };
   if (error instanceof WorkerLostError) return { code: grpc.status.UNAVAILABLE, details: error.message };
+  if (error instanceof ValidationStopped) return { code: grpc.status.DEADLINE_EXCEEDED, details: error.message };
   return { code: grpc.status.INTERNAL, details: error instanceof Error ? error.message : String(error) };
 }

@@ -2,7 +2,7 @@
 import { createHash } from 'node:crypto';
 import { LRUCache } from 'lru-cache';
 import type { MatrixJson } from '../result/types.js';
-import { resolveSolverSettings, SettingsError, type SolverSettings } from '../frank-wolfe/settings.js';
+import { DEFAULT_SETTINGS, resolveSolverSettings, SettingsError, type SolverSettings } from '../frank-wolfe/settings.js';
 import { SOLVER_VERSION } from '../certificate/version.js';
 import { ValidationError } from '../problem/errors.js';
 import { inputHash } from '../problem/hash.js';
@@ -11,6 +11,8 @@ import type { EntropyRequest, Problem } from '../problem/model.js';
 import { densityOperatorFromJson } from '../problem/state.js';
 import { resolveEntropyRequest } from '../problem/entropy-request.js';
 import { parseProblemJson } from '../problem/validate.js';
+import { problemFromClone } from '../problem/transfer.js';
+import { requestFingerprint } from './guarded-service.js';
 
 /**
  * A request that passed validation: everything the worker, the cache and the log line need. Plain data, so that
@@ -28,6 +30,8 @@ export interface PreparedSolve {
   settings: SolverSettings;
   inputHash: string;
   warmStart?: MatrixJson;
+  /** Epoch milliseconds (Date.now()) from which the time limit counts: when the server began reading the request. */
+  acceptedAt?: number;
 }
 
 /** What a request says before validation; `entropy` and `alpha` override the problem's own fields. */
@@ -63,14 +67,38 @@ export function checkSettings(settings: Partial<SolverSettings>): SolverSettings
   }
 }
 
-/** Validates one request; throws ValidationError with a field path relative to the request message. */
-export function prepareSolve(input: SolveInput): PreparedSolve & { problem: Problem } {
+/** Thrown by a request's checkpoint when its time limit or the client's deadline passes during validation. */
+export class ValidationStopped extends Error {
+  constructor(reason: string) {
+    super(`${reason} passed while the request was being validated: no bound (a bound needs a validated problem)`);
+    this.name = 'ValidationStopped';
+  }
+}
+
+/**
+ * The checkpoint validation polls: the request's time limit, counted from `acceptedAt` (epoch ms), and the
+ * client's deadline (epoch ms, Infinity for none).
+ */
+export function validationCheckpoint(acceptedAt: number, settings: Partial<SolverSettings> | undefined, deadline: number): () => void {
+  const limitMs = typeof settings?.timeLimitMs === 'number' && settings.timeLimitMs > 0 ? settings.timeLimitMs : DEFAULT_SETTINGS.timeLimitMs;
+  return () => {
+    const now = Date.now();
+    if (now - acceptedAt > limitMs) throw new ValidationStopped(`the time limit (settings.timeLimitMs = ${limitMs})`);
+    if (now > deadline) throw new ValidationStopped('the client deadline');
+  };
+}
+
+/**
+ * Validates one request; throws ValidationError with a field path relative to the request message. `checkpoint`
+ * is polled between the parts of the problem and inside its large products (it throws to abort).
+ */
+export function prepareSolve(input: SolveInput, checkpoint?: () => void): PreparedSolve & { problem: Problem } {
   if (input.problemJson === undefined || input.problemJson === null) {
     throw new ValidationError('problem', 'is required');
   }
   let parsed: ReturnType<typeof parseProblemJson>;
   try {
-    parsed = parseProblemJson(input.problemJson);
+    parsed = parseProblemJson(input.problemJson, { checkpoint });
   } catch (error) {
     problemField(error);
   }
@@ -92,23 +120,28 @@ export function prepareSolve(input: SolveInput): PreparedSolve & { problem: Prob
   return prepared;
 }
 
-/** The validated problem of a prepared request, read again from its JSON when it was prepared on another thread. */
+/** The validated problem of a prepared request (read again from its JSON only when it was not kept). */
 export function problemOf(prepared: PreparedSolve): Problem {
   prepared.problem ??= parseProblemJson(prepared.problemJson).problem;
   return prepared.problem;
 }
 
-/** The plain-data part of a prepared request (what crosses the thread boundary). */
+/** The plain-data part of a prepared request (what a client keeps of the points it sends). */
 export function withoutProblem(prepared: PreparedSolve): PreparedSolve {
   const { problem: _problem, ...rest } = prepared;
   return rest;
+}
+
+/** A prepared request received from another thread: its problem's matrices rewrapped, nothing validated again. */
+export function preparedFromClone(prepared: PreparedSolve): PreparedSolve {
+  return prepared.problem === undefined ? prepared : { ...prepared, problem: problemFromClone(prepared.problem) };
 }
 
 /** Prepared requests remembered for repeats (validation and hashing cost milliseconds on larger problems). */
 export const PREPARED_MEMO_ENTRIES = 512;
 
 /**
- * Remembers the outcome of prepareSolve by a SHA-256 fingerprint of the decoded request message: the same
+ * Remembers the outcome of prepareSolve by a SHA-256 fingerprint of the request (its bytes, from the decoder): the same
  * message always validates and hashes the same way, so a repeat (the usual cache hit) is answered without
  * re-reading the problem. Failures are not remembered. Callers get a shallow copy they may change.
  */
@@ -116,8 +149,10 @@ export class PreparedRequestMemo {
   private readonly entries = new LRUCache<string, PreparedSolve>({ max: PREPARED_MEMO_ENTRIES });
 
   prepare(message: { requestId?: string }, prepare: () => PreparedSolve): PreparedSolve {
-    // The request id is free text that does not change the answer.
-    const fingerprint = createHash('sha256').update(JSON.stringify({ ...message, requestId: '' })).digest('hex');
+    // The request id is free text that does not change the answer; the decoder's fingerprint of the bytes leaves
+    // it out too and is much cheaper than stringifying the message.
+    const fingerprint =
+      requestFingerprint(message) ?? createHash('sha256').update(JSON.stringify({ ...message, requestId: '' })).digest('hex');
     let prepared = this.entries.get(fingerprint);
     if (prepared === undefined) {
       prepared = prepare();

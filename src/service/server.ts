@@ -15,7 +15,7 @@ import { ValidationError } from '../problem/errors.js';
 import { expandGrid, expandRequestList, runBatch, solveInputFromWire, type BatchPoint } from './batch.js';
 import { decoyRateHandler } from './decoy-rate.js';
 import { toServiceError } from './errors.js';
-import { guardRequests, malformedReason } from './guarded-service.js';
+import { guardRequests, malformedReason, receivedAt } from './guarded-service.js';
 import { DEFAULT_MAX_MESSAGE_BYTES, TRANSPORT_CAP_FACTOR } from './message-size.js';
 import type { BatchItem } from './generated/renyibound/v1/BatchItem.js';
 import type { BatchRequest__Output } from './generated/renyibound/v1/BatchRequest.js';
@@ -25,13 +25,13 @@ import type { SolveRequest__Output } from './generated/renyibound/v1/SolveReques
 import type { VerifyReply } from './generated/renyibound/v1/VerifyReply.js';
 import type { VerifyRequest__Output } from './generated/renyibound/v1/VerifyRequest.js';
 import { listExamples } from './list-examples.js';
-import { PreparedRequestMemo, prepareSolve } from './prepare.js';
+import { PreparedRequestMemo, prepareSolve, validationCheckpoint } from './prepare.js';
 import { loadServiceDefinition, loadServicePackage, SERVICE_NAME } from './proto.js';
 import { SolveCoordinator } from './solve-coordinator.js';
 import type { WorkerReply, WorkerTask } from './solve-worker.js';
 import { QueueFullError, SolverPool } from './solver-pool.js';
 import { checkExposure, exposureWarning, serveHealthOnly, serverCredentials, serverOptions, type ServerSecurity } from './security.js';
-import { entropyKindFromWire, resultFromWire, resultToWire, wireToJson } from './wire.js';
+import { entropyKindFromWire, resultFromWire, resultToWire, settingsFromWire, wireToJson } from './wire.js';
 import { handleKeyLength, handleKeyLengthStream } from './key-length.js';
 
 export interface ServerOptions {
@@ -73,6 +73,12 @@ export const DEFAULT_DRAIN_TIMEOUT_MS = 60_000;
 const SHUTDOWN_ABORT_REASON = 'server shutting down';
 /** After cancelling what is left, connections are closed if calls still have not finished by then. */
 const FORCE_SHUTDOWN_AFTER_CANCEL_MS = 15_000;
+
+/** A call's deadline in epoch milliseconds (Infinity when the client set none). */
+function deadlineOf(call: grpc.ServerUnaryCall<unknown, unknown> | grpc.ServerWritableStream<unknown, unknown>): number {
+  const deadline = call.getDeadline();
+  return deadline instanceof Date ? deadline.getTime() : deadline;
+}
 
 function bindAddress(host: string, port: number): string {
   return host.includes(':') && !host.startsWith('[') ? `[${host}]:${port}` : `${host}:${port}`;
@@ -209,8 +215,7 @@ export class RenyiBoundServer {
     const controller = new AbortController();
     const abort = () => controller.abort();
     call.on('cancelled', abort);
-    const deadline = call.getDeadline();
-    const milliseconds = deadline instanceof Date ? deadline.getTime() - Date.now() : deadline - Date.now();
+    const milliseconds = deadlineOf(call) - Date.now();
     const timer = Number.isFinite(milliseconds) ? setTimeout(abort, Math.max(0, milliseconds)) : undefined;
     registry.add(controller);
     return {
@@ -240,9 +245,12 @@ export class RenyiBoundServer {
     call: grpc.ServerUnaryCall<SolveRequest__Output, SolveReply>,
     callback: grpc.sendUnaryData<SolveReply>,
   ): Promise<void> {
+    // The time limit counts from the start of decoding; validation polls it and the client's deadline.
+    const acceptedAt = receivedAt(call.request) ?? Date.now();
     let prepared;
     try {
-      prepared = this.preparedRequests.prepare(call.request, () => prepareSolve(solveInputFromWire(call.request)));
+      const checkpoint = validationCheckpoint(acceptedAt, settingsFromWire(call.request.settings), deadlineOf(call));
+      prepared = { ...this.preparedRequests.prepare(call.request, () => prepareSolve(solveInputFromWire(call.request), checkpoint)), acceptedAt };
     } catch (error) {
       callback(toServiceError(error));
       return;

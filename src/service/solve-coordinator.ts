@@ -1,11 +1,14 @@
 // One straight path per request: cache lookup → (shared) solve on the pool → verified store → log line.
 import type { Logger } from 'pino';
 import { verifyResult } from '../certificate/verify.js';
+import { interruptedBeforeStart } from '../frank-wolfe/finish.js';
+import { RunClock } from '../frank-wolfe/state.js';
+import { normaliseRequest } from '../objectives/index.js';
 import type { SolveResult } from '../result/types.js';
 import type { ResultCache, ResultCheck } from '../cache/result-cache.js';
 import { ValidationError } from '../problem/errors.js';
 import { createCancelFlag, raiseCancelFlag } from './cancel-flag.js';
-import { problemOf, type PreparedSolve, type SolveInput } from './prepare.js';
+import { preparedFromClone, problemOf, type PreparedSolve, type SolveInput } from './prepare.js';
 import type { Verification, WorkerReply, WorkerTask } from './solve-worker.js';
 import type { SolverPool } from './solver-pool.js';
 import type { DeliveredResult } from './wire.js';
@@ -38,6 +41,14 @@ export function checkFor(prepared: PreparedSolve): ResultCheck {
   };
 }
 
+/** The result of a request whose time limit passed before its solve could start: the trivial bound. */
+function limitPassedWhileReading(prepared: PreparedSolve): SolveResult {
+  const entropy = normaliseRequest(prepared.request);
+  const base = { entropy: entropy.kind, alpha: entropy.kind === 'von-neumann' ? null : entropy.alpha, inputHash: prepared.inputHash };
+  const result = interruptedBeforeStart(base, new RunClock(0, undefined), problemOf(prepared), 'time');
+  return { ...result, message: 'the time limit passed while the request was being read and validated' };
+}
+
 export class SolveCoordinator {
   private readonly inFlight = new Map<string, InFlightSolve>();
 
@@ -49,10 +60,11 @@ export class SolveCoordinator {
 
   /** Validates and hashes a request on a pool thread (batch points); bad input throws ValidationError. */
   async prepare(input: SolveInput): Promise<PreparedSolve> {
+    const acceptedAt = Date.now();
     const reply = await this.pool.run({ kind: 'prepare', input }, true);
     if (reply.kind === 'invalid') throw new ValidationError(reply.field, reply.reason);
     if (reply.kind !== 'prepared') throw new Error(`unexpected worker reply ${reply.kind}`);
-    return reply.prepared;
+    return { ...preparedFromClone(reply.prepared), acceptedAt };
   }
 
   async solve(prepared: PreparedSolve, context: SolveContext = {}): Promise<DeliveredResult> {
@@ -93,7 +105,8 @@ export class SolveCoordinator {
     const cancelFlag = createCancelFlag();
     const task: WorkerTask = {
       kind: 'solve',
-      problemJson: prepared.problemJson,
+      problem: problemOf(prepared),
+      acceptedAt: prepared.acceptedAt ?? Date.now(),
       entropy: prepared.request.kind,
       alpha: prepared.request.alpha,
       settings: prepared.settings,
@@ -103,6 +116,8 @@ export class SolveCoordinator {
     const entry: InFlightSolve = { cancelFlag, waiters: 1, promise: Promise.resolve(undefined as unknown as SolveResult) };
     entry.promise = (async () => {
       try {
+        // Reading the request used up the limit: the trivial bound is all there is, and needs no thread.
+        if (Date.now() - task.acceptedAt >= task.settings.timeLimitMs) return limitPassedWhileReading(prepared);
         const reply = await this.pool.run(task, context.admitted ?? false);
         if (reply.kind !== 'solved') throw new Error(`unexpected worker reply ${reply.kind}`);
         const { result, verification } = reply;
@@ -141,6 +156,7 @@ export class SolveCoordinator {
         gap: result.gap,
         certifiedLowerBound: result.certifiedLowerBound,
         seconds: (performance.now() - started) / 1000,
+        secondsSinceAccepted: prepared.acceptedAt === undefined ? undefined : (Date.now() - prepared.acceptedAt) / 1000,
         solverSeconds: result.seconds,
         fromCache,
         sharedSolve: shared || undefined,
