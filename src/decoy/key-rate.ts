@@ -8,7 +8,8 @@ import type { EntropyRequest } from '../problem/model.js';
 import { problemFromJson } from '../problem/validate.js';
 import { BASES, basisBounds, DEFAULT_CUTOFF, type Basis, type BasisBounds, type IntensityObservation } from './bounds.js';
 import { binaryEntropy, expectedGain, photonYield, type ChannelParameters } from './channel.js';
-import { singlePhotonProblem } from './single-photon.js';
+import { singlePhotonProblem, yieldScale } from './single-photon.js';
+import type { ProblemJson } from '../problem/json.js';
 
 /** The protocol as run: intensities, basis choice, error-correction efficiency. */
 export interface DecoyProtocol {
@@ -42,9 +43,16 @@ export interface DecoyRateResult {
   singlePhotonErrorUpper: number;
   /** P(n = 1 | μ) = μe^{−μ}. */
   singlePhotonFraction: number;
-  /** Certified single-photon entropy per single-photon pulse, and the solver's full result. */
+  /** Certified single-photon entropy per single-photon pulse: singlePhotonScale × singlePhoton.certifiedLowerBound. */
   singlePhotonBound: number | null;
+  /** The solver's full result for singlePhotonProblem (whose yields are divided by singlePhotonScale). */
   singlePhoton: SolveResult;
+  /** The single-photon problem as solved (protobuf JSON): `renyi-bound verify` re-checks the certificate against it. */
+  singlePhotonProblem: ProblemJson;
+  /** Power of two s: the problem's yields are the decoy bounds divided by s (1 for the Rényi kinds; docs/decoy.md). */
+  singlePhotonScale: number;
+  /** The gains the LP bounds were computed from, per basis (simulated from the channel, or observed). */
+  observations: Record<Basis, IntensityObservation[]>;
   /** analyticSinglePhoton(): the von Neumann value by Shor–Preskill / GLLP, for comparison only. */
   analyticSinglePhotonBound: number;
   /** p_Z²·Q_μ·f·h(E_μ) in the Z basis. */
@@ -73,8 +81,11 @@ export function analyseDecoy(
   const entropy = options.entropy ?? { kind: 'von-neumann' };
   const bases = { Z: basisBounds(highs, 'Z', observations.Z, cutoff), X: basisBounds(highs, 'X', observations.X, cutoff) };
   const pz = protocol.zBasisProbability;
-  const keyWeight = pz * pz * bases.Z.yieldLower;
-  const problem = problemFromJson(singlePhotonProblem(bases, pz));
+  // The von Neumann problem is solved with its yields magnified to order one (exact; docs/decoy.md, "Scaling").
+  const scale = entropy.kind === 'von-neumann' ? yieldScale(bases) : 1;
+  const keyWeight = (pz * pz * bases.Z.yieldLower) / scale;
+  const problemJson = singlePhotonProblem(bases, pz, scale);
+  const problem = problemFromJson(problemJson);
   const settings: Partial<SolverSettings> = {
     gapTolerance: Math.min(1, Math.max(1e-12, DEFAULT_RELATIVE_GAP * keyWeight)),
     timeLimitMs: DEFAULT_SINGLE_PHOTON_TIME_LIMIT_MS,
@@ -84,7 +95,8 @@ export function analyseDecoy(
   const signalRow = signalObservation(protocol, observations);
   const { leakage, errorRate: signalErrorRate } = leakageOf(protocol, signalRow);
   const singlePhotonFraction = protocol.signal * Math.exp(-protocol.signal);
-  const bound = singlePhoton.certifiedLowerBound;
+  // s is a power of two, so the product is exact.
+  const bound = singlePhoton.certifiedLowerBound === null ? null : scale * singlePhoton.certifiedLowerBound;
   return {
     ratePerPulse: bound === null ? null : singlePhotonFraction * bound - leakage,
     singlePhotonYieldLower: bases.Z.yieldLower,
@@ -92,6 +104,9 @@ export function analyseDecoy(
     singlePhotonFraction,
     singlePhotonBound: bound,
     singlePhoton,
+    singlePhotonProblem: problemJson,
+    singlePhotonScale: scale,
+    observations,
     analyticSinglePhotonBound: analyticSinglePhoton(bases, pz),
     leakage,
     signalGain: signalRow.gain,

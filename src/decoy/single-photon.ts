@@ -38,11 +38,30 @@ function errorOperator(basis: Basis): ComplexMatrix {
 }
 
 /**
- * The problem: ρ_AB with ρ_A fixed by the source, Tr[(P_b ⊗ Π_click)ρ] ∈ p_b·[Y₁ᴸ, Y₁ᵁ] and
- * Tr[(error_b)ρ] ∈ p_b·[(e₁Y₁)ᴸ, (e₁Y₁)ᵁ] in both bases; key branch "Z sent, Z measured, click".
- * Its value is the entropy per single-photon pulse (the key-branch probability p_Z²Y₁ included).
+ * The power of two s ≤ 1 by which the von Neumann problem's yields and error yields are divided, so that the
+ * click block of the optimum has trace in (1/4, 1/2] instead of ≈ Y₁ (docs/decoy.md, "Scaling of the single-photon
+ * problem"). Exact: every feasible click block σ of trace ≤ 1/2 has σ_A ≤ ρ_A, and the von Neumann objective
+ * depends on the click block alone and is homogeneous of degree one, so min(scaled) = min(original)/s.
  */
-export function singlePhotonProblem(bounds: Record<Basis, BasisBounds>, zBasisProbability: number): ProblemJson {
+export function yieldScale(bounds: Record<Basis, BasisBounds>): number {
+  const largestYield = Math.max(bounds.Z.yieldUpper, bounds.X.yieldUpper);
+  if (!(largestYield > 0)) return 1;
+  let scale = 2 ** Math.ceil(Math.log2(2 * largestYield));
+  while (scale < 2 * largestYield) scale *= 2; // log2 may round down just above a power of two
+  return Math.min(1, scale);
+}
+
+/**
+ * The problem: ρ_AB with ρ_A fixed by the source, Tr[(P_b ⊗ Π_click)ρ] ∈ p_b·[Y₁ᴸ, Y₁ᵁ]/s and
+ * Tr[(error_b)ρ] ∈ p_b·[(e₁Y₁)ᴸ, (e₁Y₁)ᵁ]/s in both bases; key branch "Z sent, Z measured, click".
+ * With s = 1 its value is the entropy per single-photon pulse (the key-branch probability p_Z²Y₁ included); with
+ * a scale s from yieldScale (von Neumann only) s times its value is. s must be a power of two (exact division).
+ */
+export function singlePhotonProblem(bounds: Record<Basis, BasisBounds>, zBasisProbability: number, scale = 1): ProblemJson {
+  if (!(scale > 0 && scale <= 1 && Number.isInteger(Math.log2(scale)))) throw new RangeError(`yield scale must be a power of two in (0, 1] (got ${scale})`);
+  if (scale < 1 && 2 * Math.max(bounds.Z.yieldUpper, bounds.X.yieldUpper) > scale) {
+    throw new RangeError(`yield scale ${scale} is below twice the largest single-photon yield: the scaled problem would not be exact`);
+  }
   const sending = sendingProbabilities(zBasisProbability);
   const basisProbability: Record<Basis, number> = { Z: sending[0] + sending[1], X: sending[2] + sending[3] };
   const constraints: LinearConstraintJson[] = [];
@@ -53,14 +72,14 @@ export function singlePhotonProblem(bounds: Record<Basis, BasisBounds>, zBasisPr
     constraints.push({
       label: `single-photon yield, basis ${basis}`,
       operator: matrixToJson(detectionOperator(basis)),
-      lower: p * b.yieldLower,
-      upper: p * b.yieldUpper,
+      lower: (p * b.yieldLower) / scale,
+      upper: (p * b.yieldUpper) / scale,
     });
     constraints.push({
       label: `single-photon error yield, basis ${basis}`,
       operator: matrixToJson(errorOperator(basis)),
-      lower: p * b.errorYieldLower,
-      upper: p * b.errorYieldUpper,
+      lower: (p * b.errorYieldLower) / scale,
+      upper: (p * b.errorYieldUpper) / scale,
     });
   }
   // Source marginal, Bob's qubit + vacuum and the key/no-key branches are those of the lossy single-photon
@@ -75,6 +94,8 @@ export function singlePhotonProblem(bounds: Record<Basis, BasisBounds>, zBasisPr
     sourceMarginal,
     constraints,
     branches,
-    description: `decoy-state BB84 single-photon rounds, Z-basis probability ${zBasisProbability}; value per single-photon pulse`,
+    description:
+      `decoy-state BB84 single-photon rounds, Z-basis probability ${zBasisProbability}; ` +
+      (scale === 1 ? 'value per single-photon pulse' : `yields divided by ${scale}: ${scale} × value per single-photon pulse (von Neumann)`),
   };
 }
