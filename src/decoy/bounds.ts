@@ -1,8 +1,7 @@
 // Single-photon yield and error-yield intervals in each basis from the observed gains, each end an LP certified
 // by its dual (docs/decoy.md, "Photon-number LP").
 import highsLoader, { type Highs } from 'highs';
-import { UNIT_ROUNDOFF } from '../linear-algebra/rounding.js';
-import { certifiedLpBound, photonLp, type CertifiedLpBound } from './photon-lp.js';
+import { certifiedLpBound, errorRateUpper, photonLp, type CertifiedLpBound } from './photon-lp.js';
 
 export type Basis = 'Z' | 'X';
 export const BASES: readonly Basis[] = ['Z', 'X'];
@@ -65,11 +64,6 @@ export function basisBounds(highs: Highs, basis: Basis, observations: readonly I
     errorRateUpper: errorRateUpper(errorYieldUpper, yieldLower),
     certificates,
   };
-}
-
-/** e₁ ≤ (e₁Y₁)ᵁ / Y₁ᴸ, rounded upward (the quotient's rounding is covered by the factor 1 + 4u), capped at 1. */
-export function errorRateUpper(errorYieldUpper: number, yieldLower: number): number {
-  return yieldLower > 0 ? Math.min(1, (errorYieldUpper / yieldLower) * (1 + 4 * UNIT_ROUNDOFF)) : 1;
 }
 
 let loading: Promise<Highs> | undefined;

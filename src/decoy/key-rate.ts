@@ -8,6 +8,7 @@ import type { EntropyRequest } from '../problem/model.js';
 import { problemFromJson } from '../problem/validate.js';
 import { BASES, basisBounds, DEFAULT_CUTOFF, type Basis, type BasisBounds, type IntensityObservation } from './bounds.js';
 import { binaryEntropy, expectedGain, photonYield, type ChannelParameters } from './channel.js';
+import { analyticSinglePhoton, leakageOf, ratePerPulse, signalObservation, singlePhotonFraction } from './rate-terms.js';
 import { singlePhotonProblem, yieldScale } from './single-photon.js';
 import type { ProblemJson } from '../problem/json.js';
 
@@ -94,14 +95,14 @@ export function analyseDecoy(
   const singlePhoton = solve(problem, entropy, settings);
   const signalRow = signalObservation(protocol, observations);
   const { leakage, errorRate: signalErrorRate } = leakageOf(protocol, signalRow);
-  const singlePhotonFraction = protocol.signal * Math.exp(-protocol.signal);
+  const fraction = singlePhotonFraction(protocol.signal);
   // s is a power of two, so the product is exact.
   const bound = singlePhoton.certifiedLowerBound === null ? null : scale * singlePhoton.certifiedLowerBound;
   return {
-    ratePerPulse: bound === null ? null : singlePhotonFraction * bound - leakage,
+    ratePerPulse: bound === null ? null : ratePerPulse(fraction, bound, leakage),
     singlePhotonYieldLower: bases.Z.yieldLower,
     singlePhotonErrorUpper: bases.X.errorRateUpper,
-    singlePhotonFraction,
+    singlePhotonFraction: fraction,
     singlePhotonBound: bound,
     singlePhoton,
     singlePhotonProblem: problemJson,
@@ -118,35 +119,11 @@ export function analyseDecoy(
   };
 }
 
-/**
- * p_Z²·Y·(1 − h(e)) with Y = max(Y₁ᴸ_Z, Y₁ᴸ_X) (the source fixes one single-photon yield for both bases) and
- * e = (e₁Y₁)ᵁ_X / Y: the von Neumann value of the single-photon problem by Shor–Preskill / GLLP.
- */
-export function analyticSinglePhoton(bases: Record<Basis, BasisBounds>, zBasisProbability: number): number {
-  const y = Math.max(bases.Z.yieldLower, bases.X.yieldLower);
-  if (y <= 0) return 0;
-  const e = Math.min(0.5, bases.X.errorYieldUpper / y);
-  return zBasisProbability * zBasisProbability * y * (1 - binaryEntropy(e));
-}
-
-/** Leakage p_Z²·Q_μ·f·h(E_μ) of the Z-basis signal detections. */
-function leakageOf(protocol: DecoyProtocol, signalRow: IntensityObservation): { leakage: number; errorRate: number } {
-  const errorRate = signalRow.gain > 0 ? signalRow.errorGain / signalRow.gain : 0;
-  const pz = protocol.zBasisProbability;
-  return { leakage: pz * pz * signalRow.gain * protocol.ecEfficiency * binaryEntropy(errorRate), errorRate };
-}
-
-function signalObservation(protocol: DecoyProtocol, observations: Record<Basis, IntensityObservation[]>): IntensityObservation {
-  const row = observations.Z.find((o) => o.intensity === protocol.signal);
-  if (row === undefined) throw new RangeError(`no Z-basis observation at the signal intensity ${protocol.signal}`);
-  return row;
-}
-
 /** The rate with the analytic single-photon term (von Neumann): fast, for sweeps and uncertainty bands. */
 export function analyticRate(highs: Highs, protocol: DecoyProtocol, observations: Record<Basis, IntensityObservation[]>, cutoff = DEFAULT_CUTOFF): number {
   const bases = { Z: basisBounds(highs, 'Z', observations.Z, cutoff), X: basisBounds(highs, 'X', observations.X, cutoff) };
   const { leakage } = leakageOf(protocol, signalObservation(protocol, observations));
-  return protocol.signal * Math.exp(-protocol.signal) * analyticSinglePhoton(bases, protocol.zBasisProbability) - leakage;
+  return ratePerPulse(singlePhotonFraction(protocol.signal), analyticSinglePhoton(bases, protocol.zBasisProbability), leakage);
 }
 
 /** The infinite-decoy limit: the true Y₁ and e₁ of the channel in place of their bounds (Lo, Ma, Chen 2005). */
@@ -155,7 +132,7 @@ export function infiniteDecoyRate(channel: ChannelParameters, protocol: DecoyPro
   const pz = protocol.zBasisProbability;
   const single = pz * pz * y1 * (1 - binaryEntropy(Math.min(0.5, errorYield / y1)));
   const { leakage } = leakageOf(protocol, { intensity: protocol.signal, ...expectedGain(channel, protocol.signal) });
-  return protocol.signal * Math.exp(-protocol.signal) * single - leakage;
+  return ratePerPulse(singlePhotonFraction(protocol.signal), single, leakage);
 }
 
-export { BASES };
+export { BASES, analyticSinglePhoton };

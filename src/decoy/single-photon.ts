@@ -43,7 +43,7 @@ function errorOperator(basis: Basis): ComplexMatrix {
  * problem"). Exact: every feasible click block σ of trace ≤ 1/2 has σ_A ≤ ρ_A, and the von Neumann objective
  * depends on the click block alone and is homogeneous of degree one, so min(scaled) = min(original)/s.
  */
-export function yieldScale(bounds: Record<Basis, BasisBounds>): number {
+export function yieldScale(bounds: Record<Basis, Pick<BasisBounds, 'yieldUpper'>>): number {
   const largestYield = Math.max(bounds.Z.yieldUpper, bounds.X.yieldUpper);
   if (!(largestYield > 0)) return 1;
   let scale = 2 ** Math.ceil(Math.log2(2 * largestYield));
@@ -57,7 +57,7 @@ export function yieldScale(bounds: Record<Basis, BasisBounds>): number {
  * With s = 1 its value is the entropy per single-photon pulse (the key-branch probability p_Z²Y₁ included); with
  * a scale s from yieldScale (von Neumann only) s times its value is. s must be a power of two (exact division).
  */
-export function singlePhotonProblem(bounds: Record<Basis, BasisBounds>, zBasisProbability: number, scale = 1): ProblemJson {
+export function singlePhotonProblem(bounds: Record<Basis, Omit<BasisBounds, 'certificates'>>, zBasisProbability: number, scale = 1): ProblemJson {
   if (!(scale > 0 && scale <= 1 && Number.isInteger(Math.log2(scale)))) throw new RangeError(`yield scale must be a power of two in (0, 1] (got ${scale})`);
   if (scale < 1 && 2 * Math.max(bounds.Z.yieldUpper, bounds.X.yieldUpper) > scale) {
     throw new RangeError(`yield scale ${scale} is below twice the largest single-photon yield: the scaled problem would not be exact`);
