@@ -84,7 +84,9 @@ export function analyseDecoy(
   const pz = protocol.zBasisProbability;
   // The von Neumann problem is solved with its yields magnified to order one (exact; docs/decoy.md, "Scaling").
   const scale = entropy.kind === 'von-neumann' ? yieldScale(bases) : 1;
-  const keyWeight = (pz * pz * bases.Z.yieldLower) / scale;
+  // The gap is asked relative to the key-branch weight; with no single-photon detection certified (Y₁ᴸ = 0, the
+  // bound is then 0) relative to its largest possible value, since 1e-12 absolute would only run into the limits.
+  const keyWeight = (pz * pz * (bases.Z.yieldLower > 0 ? bases.Z.yieldLower : bases.Z.yieldUpper)) / scale;
   const problemJson = singlePhotonProblem(bases, pz, scale);
   const problem = problemFromJson(problemJson);
   const settings: Partial<SolverSettings> = {

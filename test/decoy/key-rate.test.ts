@@ -1,5 +1,6 @@
 // Decoy-state key rate (docs/decoy.md): the published reach with the Gobby–Yuan–Shields channel, the numerical
 // single-photon bound against Shor–Preskill's 1 − h(e₁), and monotonicity in the decoy set.
+import fc from 'fast-check';
 import { beforeAll, describe, expect, it } from 'vitest';
 import type { Highs } from 'highs';
 import { lpSolver } from '../../src/decoy/bounds.js';
@@ -108,4 +109,60 @@ describe('more decoys never lower the rate (Lo, Ma, Chen 2005: extra constraints
       expect(rates.at(-1)!).toBeLessThanOrEqual(infiniteDecoyRate(channel, protocolWith(0.48, [])) + 1e-15);
     });
   }
+});
+
+describe('more decoys never lower the rate: seeded property over links, signals, decoy sets and supersets (Lo, Ma, Chen 2005)', () => {
+  /** Intensities on a 0.01 grid up to 0.6 (0 is the vacuum decoy); the first k form the set, all of them the superset. */
+  const decoyPool = fc.uniqueArray(fc.integer({ min: 0, max: 60 }).map((k) => k / 100), { minLength: 2, maxLength: 5 });
+  const link = fc.record({
+    distanceKm: fc.integer({ min: 0, max: 150 }),
+    signal: fc.integer({ min: 20, max: 90 }).map((k) => k / 100),
+    zBasisProbability: fc.constantFrom(0.5, 0.7, 0.9),
+    subsetSize: fc.integer({ min: 1, max: 4 }),
+    pool: decoyPool,
+  });
+  const split = ({ signal, pool, subsetSize }: { signal: number; pool: number[]; subsetSize: number }) => {
+    const superset = pool.filter((x) => x !== signal);
+    return { subset: superset.slice(0, Math.min(subsetSize, superset.length - 1)), superset };
+  };
+
+  it('analytic single-photon term: rate(superset) ≥ rate(subset) (each LP of the superset has the subset\'s rows and more)', () => {
+    fc.assert(
+      fc.property(link, (l) => {
+        const { subset, superset } = split(l);
+        fc.pre(subset.length >= 1);
+        const channel = { distanceKm: l.distanceKm, ...GYS };
+        const rate = (decoys: number[]) => {
+          const p = protocolWith(l.signal, decoys, l.zBasisProbability);
+          return analyticRate(highs, p, simulatedObservations(channel, p));
+        };
+        expect(rate(superset)).toBeGreaterThanOrEqual(rate(subset));
+      }),
+      { numRuns: 100, seed: 20261202 },
+    );
+  }, 120_000);
+
+  it('certified single-photon bound: rate(superset) + μe^{−μ}·(its upper − lower bound) ≥ rate(subset), since B_subset ≤ min_subset ≤ min_superset ≤ upper_superset', () => {
+    fc.assert(
+      fc.property(link, (l) => {
+        const { subset, superset } = split(l);
+        fc.pre(subset.length >= 1);
+        const channel = { distanceKm: l.distanceKm, ...GYS };
+        const analyse = (decoys: number[]) => {
+          const p = protocolWith(l.signal, decoys, l.zBasisProbability);
+          return analyseDecoy(highs, p, simulatedObservations(channel, p), { settings: { timeLimitMs: 3000 } });
+        };
+        const small = analyse(subset);
+        const large = analyse(superset);
+        expect(small.ratePerPulse).not.toBeNull();
+        expect(large.ratePerPulse).not.toBeNull();
+        // Upper end for the superset's minimum: F at the solver's final state, or (when the bound is the trivial 0
+        // and no upper bound is stated) the Shor–Preskill value p_Z²·Y₁ᴸ(1 − h(e₁ᵁ)), which a state attains.
+        const upper = large.singlePhoton.upperBound !== null ? large.singlePhotonScale * large.singlePhoton.upperBound : large.analyticSinglePhotonBound;
+        expect(small.singlePhotonBound!).toBeLessThanOrEqual(upper);
+        expect(large.ratePerPulse! + large.singlePhotonFraction * (upper - large.singlePhotonBound!)).toBeGreaterThanOrEqual(small.ratePerPulse!);
+      }),
+      { numRuns: 12, seed: 20261203 },
+    );
+  }, 300_000);
 });
