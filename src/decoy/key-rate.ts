@@ -82,7 +82,7 @@ export function analyseDecoy(
   const entropy = options.entropy ?? { kind: 'von-neumann' };
   const bases = { Z: basisBounds(highs, 'Z', observations.Z, cutoff), X: basisBounds(highs, 'X', observations.X, cutoff) };
   const pz = protocol.zBasisProbability;
-  // The von Neumann problem is solved with its yields magnified to order one (exact; docs/decoy.md, "Scaling").
+  // The von Neumann problem is solved with its yields magnified to order one (exact; docs/decoy.md, "Scaling of the single-photon problem").
   const scale = entropy.kind === 'von-neumann' ? yieldScale(bases) : 1;
   // The gap is asked relative to the key-branch weight; with no single-photon detection certified (Y₁ᴸ = 0, the
   // bound is then 0) relative to its largest possible value, since 1e-12 absolute would only run into the limits.
