@@ -9,7 +9,7 @@ import { problemFromJson } from '../problem/validate.js';
 import { BASES, basisBounds, DEFAULT_CUTOFF, type Basis, type BasisBounds, type IntensityObservation } from './bounds.js';
 import { binaryEntropy, expectedGain, photonYield, type ChannelParameters } from './channel.js';
 import { analyticSinglePhoton, leakageOf, ratePerPulse, signalObservation, singlePhotonFraction } from './rate-terms.js';
-import { singlePhotonProblem, yieldScale } from './single-photon.js';
+import { scalesExactly, singlePhotonProblem, unscaledBound, yieldScale } from './single-photon.js';
 import type { ProblemJson } from '../problem/json.js';
 
 /** The protocol as run: intensities, basis choice, error-correction efficiency. */
@@ -44,13 +44,15 @@ export interface DecoyRateResult {
   singlePhotonErrorUpper: number;
   /** P(n = 1 | μ) = μe^{−μ}. */
   singlePhotonFraction: number;
-  /** Certified single-photon entropy per single-photon pulse: singlePhotonScale × singlePhoton.certifiedLowerBound. */
+  /** Certified single-photon entropy per single-photon pulse: singlePhoton.certifiedLowerBound mapped back from the scaled problem. */
   singlePhotonBound: number | null;
+  /** The solver's upper bound mapped back the same way (F at a feasible state: the minimum lies in between). */
+  singlePhotonUpperBound: number | null;
   /** The solver's full result for singlePhotonProblem (whose yields are divided by singlePhotonScale). */
   singlePhoton: SolveResult;
   /** The single-photon problem as solved (protobuf JSON): `renyi-bound verify` re-checks the certificate against it. */
   singlePhotonProblem: ProblemJson;
-  /** Power of two s: the problem's yields are the decoy bounds divided by s (1 for the Rényi kinds; docs/decoy.md). */
+  /** Power of two s: the problem's yields are the decoy bounds divided by s (1 for sandwiched-up; docs/decoy.md). */
   singlePhotonScale: number;
   /** The gains the LP bounds were computed from, per basis (simulated from the channel, or observed). */
   observations: Record<Basis, IntensityObservation[]>;
@@ -82,8 +84,8 @@ export function analyseDecoy(
   const entropy = options.entropy ?? { kind: 'von-neumann' };
   const bases = { Z: basisBounds(highs, 'Z', observations.Z, cutoff), X: basisBounds(highs, 'X', observations.X, cutoff) };
   const pz = protocol.zBasisProbability;
-  // The von Neumann problem is solved with its yields magnified to order one (exact; docs/decoy.md, "Scaling of the single-photon problem").
-  const scale = entropy.kind === 'von-neumann' ? yieldScale(bases) : 1;
+  // The problem is solved with its yields magnified to order one (exact; docs/decoy.md, "Scaling of the single-photon problem").
+  const scale = scalesExactly(entropy) ? yieldScale(bases) : 1;
   // The gap is asked relative to the key-branch weight; with no single-photon detection certified (Y₁ᴸ = 0, the
   // bound is then 0) relative to its largest possible value, since 1e-12 absolute would only run into the limits.
   const keyWeight = (pz * pz * (bases.Z.yieldLower > 0 ? bases.Z.yieldLower : bases.Z.yieldUpper)) / scale;
@@ -98,8 +100,7 @@ export function analyseDecoy(
   const signalRow = signalObservation(protocol, observations);
   const { leakage, errorRate: signalErrorRate } = leakageOf(protocol, signalRow);
   const fraction = singlePhotonFraction(protocol.signal);
-  // s is a power of two, so the product is exact.
-  const bound = singlePhoton.certifiedLowerBound === null ? null : scale * singlePhoton.certifiedLowerBound;
+  const bound = singlePhoton.certifiedLowerBound === null ? null : unscaledBound(entropy, singlePhoton.certifiedLowerBound, scale);
   return {
     ratePerPulse: bound === null ? null : ratePerPulse(fraction, bound, leakage),
     singlePhotonYieldLower: bases.Z.yieldLower,
@@ -107,6 +108,7 @@ export function analyseDecoy(
     singlePhotonFraction: fraction,
     singlePhotonBound: bound,
     singlePhoton,
+    singlePhotonUpperBound: singlePhoton.upperBound === null ? null : unscaledBound(entropy, singlePhoton.upperBound, scale, 'upper'),
     singlePhotonProblem: problemJson,
     singlePhotonScale: scale,
     observations,

@@ -13,7 +13,7 @@ import { BASES, type Basis, type BasisBounds, type IntensityObservation } from '
 import { expectedGain, type ChannelParameters } from './channel.js';
 import { errorRateUpper, photonLp, weakDualityBound, type CertifiedLpBound } from './photon-lp.js';
 import { analyticSinglePhoton, leakageOf, ratePerPulse, signalObservation, singlePhotonFraction, type RateProtocol } from './rate-terms.js';
-import { singlePhotonProblem } from './single-photon.js';
+import { scalesExactly, singlePhotonProblem, unscaledBound } from './single-photon.js';
 
 export interface DecoyVerificationReport {
   valid: boolean;
@@ -148,8 +148,8 @@ function verifySinglePhoton(answer: Record<string, unknown>, bases: Record<Basis
     throw new Invalid(`singlePhoton.entropy: ${(error as Error).message}`);
   }
   const scale = numberAt(answer.singlePhotonScale, 'singlePhotonScale');
-  // The scaled problem is exact only for von Neumann (docs/decoy.md, "Scaling of the single-photon problem").
-  if (scale !== 1 && request.kind !== 'von-neumann') throw new Invalid(`singlePhotonScale: must be 1 for ${request.kind} (got ${scale})`);
+  // Only some kinds map back exactly (docs/decoy.md, "Scaling of the single-photon problem").
+  if (scale !== 1 && !scalesExactly(request)) throw new Invalid(`singlePhotonScale: must be 1 for ${request.kind} (got ${scale})`);
   let problemJson;
   try {
     problemJson = singlePhotonProblem(bases, zBasisProbability, scale);
@@ -168,8 +168,7 @@ function verifySinglePhoton(answer: Record<string, unknown>, bases: Record<Basis
       throw new Invalid('singlePhotonProblem: is not the single-photon problem of the stated decoy intervals');
     }
   }
-  // s is a power of two: the product is exact.
-  const bound = scale * report.certifiedLowerBound;
+  const bound = unscaledBound(request, report.certifiedLowerBound, scale);
   expectImplied('singlePhotonBound', numberAt(answer.singlePhotonBound, 'singlePhotonBound'), bound, 'lower');
   return bound;
 }

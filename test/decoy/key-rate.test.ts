@@ -86,6 +86,33 @@ describe('numerical single-photon bound = p_Z²·Y₁ᴸ·(1 − h(e₁ᵁ)) (Sh
     expect(unscaled.certifiedLowerBound!).toBeLessThanOrEqual(s * result.singlePhoton.upperBound!);
   }, 60_000);
 
+  it('Petz kinds (α = 1.5) at 100 km: CERTIFIED on the scaled problem, H̄↓ ≤ H̄↑ ≤ 1 − h(e₁ᵁ) per weight (ordering of the kinds, Tomamichel 2016)', () => {
+    const p = protocolWith(0.48, [0.1, 0]);
+    const obs = simulatedObservations({ distanceKm: 100, ...GYS }, p);
+    const up = analyseDecoy(highs, p, obs, { entropy: { kind: 'petz-up', alpha: 1.5 } });
+    const down = analyseDecoy(highs, p, obs, { entropy: { kind: 'petz-down', alpha: 1.5 } });
+    for (const r of [up, down]) {
+      expect(r.singlePhoton.status).toBe('CERTIFIED');
+      expect(r.singlePhotonScale).toBeLessThan(1);
+      expect(r.singlePhotonBound!).toBeGreaterThan(0);
+      expect(r.singlePhotonUpperBound! - r.singlePhotonBound!).toBeLessThan(1e-6 * r.singlePhotonBound!);
+    }
+    expect(down.singlePhotonBound!).toBeLessThanOrEqual(up.singlePhotonUpperBound!);
+    expect(up.singlePhotonBound!).toBeLessThanOrEqual(up.analyticSinglePhotonBound);
+  }, 120_000);
+
+  for (const kind of ['petz-up', 'petz-down'] as const) {
+    it(`${kind} α = 1.5 at 25 km: the scaled problem mapped back by c·log₂(1 + s(2^{v/c} − 1)) agrees with the unscaled problem within both intervals`, () => {
+      const p = protocolWith(0.48, [0.1, 0]);
+      const entropy = { kind, alpha: 1.5 };
+      const scaled = analyseDecoy(highs, p, simulatedObservations({ distanceKm: 25, ...GYS }, p), { entropy });
+      const unscaled = solve(problemFromJson(singlePhotonProblem(scaled.bases, 0.5, 1)), entropy, { gapTolerance: 1e-9, timeLimitMs: 20_000 });
+      expect(unscaled.gap!).toBeLessThan(1e-5 * unscaled.certifiedLowerBound!);
+      expect(scaled.singlePhotonBound!).toBeLessThanOrEqual(unscaled.upperBound!);
+      expect(unscaled.certifiedLowerBound!).toBeLessThanOrEqual(scaled.singlePhotonUpperBound!);
+    }, 120_000);
+  }
+
   it('a Rényi kind (Petz, α = 1.5) gives a certified bound below von Neumann (ordering of the kinds, Tomamichel 2016)', () => {
     const p = protocolWith(0.48, [0.1, 0], 0.8);
     const obs = simulatedObservations({ distanceKm: 0, ...GYS }, p);
@@ -158,7 +185,7 @@ describe('more decoys never lower the rate: seeded property over links, signals,
         expect(large.ratePerPulse).not.toBeNull();
         // Upper end for the superset's minimum: F at the solver's final state, or (when the bound is the trivial 0
         // and no upper bound is stated) the Shor–Preskill value p_Z²·Y₁ᴸ(1 − h(e₁ᵁ)), which a state attains.
-        const upper = large.singlePhoton.upperBound !== null ? large.singlePhotonScale * large.singlePhoton.upperBound : large.analyticSinglePhotonBound;
+        const upper = large.singlePhotonUpperBound ?? large.analyticSinglePhotonBound;
         expect(small.singlePhotonBound!).toBeLessThanOrEqual(upper);
         expect(large.ratePerPulse! + large.singlePhotonFraction * (upper - large.singlePhotonBound!)).toBeGreaterThanOrEqual(small.ratePerPulse!);
       }),

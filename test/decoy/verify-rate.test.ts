@@ -44,13 +44,15 @@ describe('verify a decoy-rate answer', () => {
     expect(report.reason).toMatch(/^verified/);
   }, 60_000);
 
-  it('a Rényi answer (Petz, α = 1.5, unscaled problem) verifies; a scale on it is refused', () => {
-    const answer = asFile(decoyRate(highs, { channel: { distanceKm: 0, ...GYS }, protocol: { ...PROTOCOL, zBasisProbability: 0.8 }, entropy: { kind: 'petz-up', alpha: 1.5 } }));
-    expect(answer.singlePhotonScale).toBe(1);
-    expect(verifyDecoyRate(answer).valid).toBe(true);
-    const scaled = copy(answer);
-    scaled.singlePhotonScale = 0.5;
-    expect(verifyDecoyRate(scaled).reason).toMatch(/^singlePhotonScale: must be 1 for petz-up/);
+  it('a Rényi answer (Petz-up, α = 1.5, 50 km, scaled problem) verifies; a scale is refused for sandwiched-up, which has no exact map back', () => {
+    const answer = asFile(decoyRate(highs, { channel: { distanceKm: 50, ...GYS }, protocol: PROTOCOL, entropy: { kind: 'petz-up', alpha: 1.5 } }));
+    expect(answer.singlePhotonScale).toBeLessThan(1);
+    const report = verifyDecoyRate(answer);
+    expect(report.reason).toMatch(/^verified/);
+    expect(report.recomputed!.singlePhotonBound).toBe(answer.singlePhotonBound);
+    const renamed = copy(answer);
+    renamed.singlePhoton.entropy = 'sandwiched-up';
+    expect(verifyDecoyRate(renamed).reason).toMatch(/^singlePhotonScale: must be 1 for sandwiched-up/);
   }, 60_000);
 
   const tampering: [string, (a: Answer) => void, RegExp][] = [
