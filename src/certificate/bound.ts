@@ -8,7 +8,7 @@ import {
   hermiticityDefect,
   traceProductReal,
 } from '../linear-algebra/complex-matrix.js';
-import { eigvalsh } from '../linear-algebra/eigen.js';
+import { eigh, eigvalsh } from '../linear-algebra/eigen.js';
 import type { Objective, ObjectiveEvaluation, ReferenceBlocks, BranchSupport } from '../objectives/index.js';
 import type { Problem } from '../problem/model.js';
 import { compressToFace, type FeasibleFace } from '../problem/feasible-face.js';
@@ -32,6 +32,11 @@ export interface BoundBreakdown {
   referenceTerm: number;
   /** Floating-point allowance (a conservative estimate, not interval arithmetic). */
   margin: number;
+  /**
+   * The part of the margin for the branch outputs' conditioning: the Weyl charge, or less when the curvature of F on
+   * the smallest eigenvectors of ∇F − Σ yΓ shows that those errors do not reach λ_min (docs/convergence.md).
+   */
+  conditioningCharge: number;
   lowerBound: number;
   /** Σ (y⁺ + y⁻)·(upper − lower)/2: what the statistical tolerance intervals cost the bound. */
   statisticalSlack: number;
@@ -50,6 +55,10 @@ export function linearizationBound(
   reference?: ReferenceBlocks,
   /** F and ∇F at ρ' when the caller already has them (not for sandwiched-up, whose bound needs ∇_τ too). */
   precomputed?: ObjectiveEvaluation,
+  /** The solver's shortcut: skip measuring the curvature when even a zero conditioning charge would not beat this. */
+  curvatureWorthAbove = -Infinity,
+  /** Polled before each gradient evaluation of the curvature (the solver's time limit and cancellation). */
+  checkpoint: () => void = () => {},
 ): BoundBreakdown {
   const n = rho.rows;
   let objectiveValue: number;
@@ -57,12 +66,14 @@ export function linearizationBound(
   let referenceTerm = 0;
   let referenceError = 0;
   let evaluationConditioning = 1;
+  let derivedConditioning: number | undefined;
   if (objective.request.kind === 'sandwiched-up') {
     if (!reference) throw new Error('linearizationBound: sandwiched-up needs reference states τ');
     const joint = objective.evaluateAtReference(rho, reference);
     objectiveValue = joint.value;
     gradient = joint.gradientState;
     evaluationConditioning = joint.conditioning;
+    derivedConditioning = joint.derivedConditioning;
     let smallest = Infinity;
     joint.gradientReference.forEach((blocks) =>
       blocks.forEach((g) => {
@@ -77,6 +88,7 @@ export function linearizationBound(
     objectiveValue = evaluation.value;
     gradient = evaluation.gradient as ComplexMatrix;
     evaluationConditioning = evaluation.conditioning ?? 1;
+    derivedConditioning = evaluation.derivedConditioning;
   }
   const shifted = gradient.clone();
   let dualConstant = 0;
@@ -98,7 +110,8 @@ export function linearizationBound(
     }
     multiplierWeight += (yLower + yUpper) * (frobeniusNorm(constraint.operator) + Math.abs(lower) + Math.abs(upper));
   });
-  const smallestEigenvalue = eigvalsh(shifted)[0];
+  const spectrum = eigh(shifted);
+  const smallestEigenvalue = spectrum.values[0];
   const gradientInnerProduct = eulerInnerProduct(objective, objectiveValue);
 
   // Backward-error scale of each eigendecomposition; the gradient term grows like ‖ρ'‖/λ_min(ρ') because the
@@ -111,11 +124,23 @@ export function linearizationBound(
   const conditioning = Math.max(frobeniusNorm(rho) / Math.max(rhoEigenvalues[0], Number.MIN_VALUE), evaluationConditioning);
   const scale = MARGIN_CONSTANT * n * UNIT_ROUNDOFF;
   const valueError = objective.request.kind === 'von-neumann' ? 0 : Math.abs(objectiveValue);
-  const margin =
-    scale * (valueError + frobeniusNorm(shifted) + multiplierWeight + frobeniusNorm(gradient) + conditioning / Math.LN2) +
-    referenceError;
-  const lowerBound =
-    objectiveValue - gradientInnerProduct + dualConstant + smallestEigenvalue + referenceTerm - margin;
+  const unamplified = scale * (valueError + frobeniusNorm(shifted) + multiplierWeight + frobeniusNorm(gradient)) + referenceError;
+  const weyl = (scale * conditioning) / Math.LN2;
+  // Graded alternative: the matrices other than ρ' and the branch outputs keep their full (Weyl) charge; the
+  // outputs' share is measured where it reaches λ_min.
+  const derived = derivedConditioning === undefined ? conditioning : derivedConditioning;
+  const derivedCharge = (scale * derived) / Math.LN2;
+  let conditioningCharge = weyl;
+  let margin = unamplified + weyl;
+  const base = objectiveValue - gradientInnerProduct + dualConstant + smallestEigenvalue + referenceTerm;
+  if (weyl > derivedCharge + unamplified && base - unamplified - derivedCharge > curvatureWorthAbove) {
+    const graded = derivedCharge + curvatureCharge(objective, rho, reference, spectrum, weyl, scale, checkpoint);
+    if (graded < weyl) {
+      conditioningCharge = graded;
+      margin = unamplified + graded;
+    }
+  }
+  const lowerBound = base - margin;
   return {
     objectiveValue,
     gradientInnerProduct,
@@ -123,6 +148,7 @@ export function linearizationBound(
     smallestEigenvalue,
     referenceTerm,
     margin,
+    conditioningCharge,
     lowerBound,
     statisticalSlack,
   };
@@ -208,4 +234,101 @@ export function certificateBreakdown(
 export function eulerInnerProduct(objective: Objective, objectiveValue: number): number {
   const request = objective.request;
   return request.kind === 'von-neumann' ? objectiveValue : logCoefficient(request) / Math.LN2;
+}
+
+/** Largest cluster of smallest eigenvectors of ∇F − Σ yΓ whose curvature is measured (k² difference quotients). */
+const CURVATURE_CLUSTER = 4;
+
+/**
+ * The branch outputs' share of the error of λ_min(S), S = ∇F − Σ yΓ, when it is smaller than the Weyl charge ε
+ * (docs/convergence.md, "Where the conditioning reaches the bound"). W = the k smallest eigenvectors of the
+ * computed S, gap g = σ_k − σ_0. In blocks over (W, W^⊥) with the error E: λ_min(S) ≥ σ_0 − η when
+ * η = a + b²/(g − b + a), with a ≥ ‖E_WW‖ and b ≥ ‖E‖ (Schur complement; needs g > b). The errors come from
+ * backward errors Δ_c of the outputs (‖Δ_c‖_F ≤ scale·size_c), so ‖E_WW‖ ≤ √2·scale·Σ_c size_c·‖H_c|_W‖ with
+ * ‖H_c|_W‖ the Frobenius norm of the curvature over an orthonormal Hermitian basis of operators on W. Clusters grow
+ * from k = 1 and stop at the first whose gap term no longer dominates (deterministic, so a verifier repeats it).
+ */
+function curvatureCharge(
+  objective: Objective,
+  rho: ComplexMatrix,
+  reference: ReferenceBlocks | undefined,
+  spectrum: { values: Float64Array; vectors: ComplexMatrix },
+  weyl: number,
+  scale: number,
+  checkpoint: () => void,
+): number {
+  const { values, vectors } = spectrum;
+  const clusters = Math.min(values.length - 1, CURVATURE_CLUSTER);
+  let best = weyl;
+  let curvature: ReturnType<Objective['outputCurvature']> | undefined;
+  let squares: number[] = [];
+  for (let k = 1; k <= clusters; k++) {
+    if (curvature === undefined) {
+      // Only worth measuring once some cluster is separated from the rest by more than the Weyl charge.
+      let separated = false;
+      for (let j = k; j <= clusters; j++) separated ||= values[j] - values[0] > weyl;
+      if (!separated) return best;
+      checkpoint();
+      curvature = objective.outputCurvature(rho, reference);
+      if (!curvature) return best;
+      squares = curvature.sizes.map(() => 0);
+    }
+    if (curvature === null) return best;
+    for (const direction of clusterDirections(vectors, k - 1)) {
+      checkpoint();
+      curvature.measure(direction).forEach((norm, c) => (squares[c] += norm * norm));
+    }
+    const gap = values[k] - values[0];
+    let within = 0;
+    curvature.sizes.forEach((size, c) => (within += size * Math.sqrt(squares[c])));
+    const a = Math.SQRT2 * scale * within;
+    if (!Number.isFinite(a)) return best;
+    const whole = Math.max(weyl, a);
+    if (gap <= whole) continue;
+    const second = (whole * whole) / (gap - whole + a);
+    best = Math.min(best, a + second);
+    if (second <= a) return best;
+  }
+  return best;
+}
+
+/**
+ * The elements an orthonormal basis (Frobenius) of the Hermitian operators on span{w_0, …, w_j} adds to one on
+ * span{w_0, …, w_{j−1}} (w_i the columns of `vectors`): w_j w_j†, and (w_i w_j† + w_j w_i†)/√2, i(w_i w_j† − w_j w_i†)/√2
+ * for i < j.
+ */
+function clusterDirections(vectors: ComplexMatrix, j: number): ComplexMatrix[] {
+  const n = vectors.rows;
+  const column = (i: number) => Array.from({ length: n }, (_, r) => [vectors.re[r * vectors.cols + i], vectors.im[r * vectors.cols + i]]);
+  const wj = column(j);
+  const directions: ComplexMatrix[] = [];
+  const diagonal = ComplexMatrix.zeros(n);
+  for (let r = 0; r < n; r++) {
+    for (let s = 0; s < n; s++) {
+      // w_j[r]·conj(w_j[s])
+      diagonal.re[r * n + s] = wj[r][0] * wj[s][0] + wj[r][1] * wj[s][1];
+      diagonal.im[r * n + s] = wj[r][1] * wj[s][0] - wj[r][0] * wj[s][1];
+    }
+  }
+  directions.push(diagonal);
+  for (let i = 0; i < j; i++) {
+    const wi = column(i);
+    const symmetric = ComplexMatrix.zeros(n);
+    const antisymmetric = ComplexMatrix.zeros(n);
+    for (let r = 0; r < n; r++) {
+      for (let s = 0; s < n; s++) {
+        // p = w_i[r]·conj(w_j[s]); the (r, s) entries of p + conj(p at (s, r)) and of i·(p − conj(p at (s, r))).
+        const pr = wi[r][0] * wj[s][0] + wi[r][1] * wj[s][1];
+        const pi = wi[r][1] * wj[s][0] - wi[r][0] * wj[s][1];
+        const qr = wi[s][0] * wj[r][0] + wi[s][1] * wj[r][1];
+        const qi = wi[s][1] * wj[r][0] - wi[s][0] * wj[r][1];
+        symmetric.re[r * n + s] = Math.SQRT1_2 * (pr + qr);
+        symmetric.im[r * n + s] = Math.SQRT1_2 * (pi - qi);
+        antisymmetric.re[r * n + s] = Math.SQRT1_2 * (-pi - qi);
+        antisymmetric.im[r * n + s] = Math.SQRT1_2 * (pr - qr);
+      }
+    }
+    directions.push(symmetric, antisymmetric);
+  }
+  return directions;
 }

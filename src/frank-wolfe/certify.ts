@@ -25,14 +25,21 @@ export function restoreMultipliers(oracleResult: OracleResult, equalityCoefficie
   return { lower, upper };
 }
 
-/** Keeps the linearization at `point` when its bound beats the best so far. */
+/**
+ * Keeps the linearization at `point` when its bound beats the best so far. While iterating, the margin's curvature
+ * (a few extra gradient evaluations) is measured only for a bound that could then certify the requested gap; the
+ * last certification (`thorough`) measures it for any bound that could become the best.
+ */
 function considerCandidate(
   setup: SolverSetup,
   state: SolverState,
   point: ComplexMatrix,
   pointEvaluation: ObjectiveEvaluation,
   y: Multipliers,
+  thorough: boolean,
 ): void {
+  const best = state.best === null ? -Infinity : state.best.breakdown.lowerBound;
+  const worthAbove = thorough ? best : Math.max(best, state.evaluation.value - setup.settings.gapTolerance);
   const breakdown = linearizationBound(
     setup.restricted,
     setup.objective,
@@ -41,6 +48,8 @@ function considerCandidate(
     y.upper,
     pointEvaluation.reference,
     pointEvaluation,
+    worthAbove,
+    setup.clock.checkpoint,
   );
   if (Number.isFinite(breakdown.lowerBound) && (state.best === null || breakdown.lowerBound > state.best.breakdown.lowerBound)) {
     state.best = {
@@ -54,33 +63,42 @@ function considerCandidate(
 }
 
 /** A neighbour of the iterate needs its own gradient and therefore its own oracle answer. */
-function certifyNeighbour(setup: SolverSetup, state: SolverState, point: ComplexMatrix): void {
+function certifyNeighbour(setup: SolverSetup, state: SolverState, point: ComplexMatrix, thorough: boolean): void {
   setup.clock.checkpoint();
   const e = evaluateSafely(setup.objective, point);
   if (!e) return;
   const split = setup.oracle.stripEqualitySpan(e.gradient);
   const answer = setup.clock.timeOracle(() => setup.oracle.minimize(split.stripped, { relativeAccuracy: state.oracleAccuracy }));
   if (answer.point || answer.status === 'ITERATION_LIMIT') {
-    considerCandidate(setup, state, point, e, restoreMultipliers(answer, split.equalityCoefficients));
+    considerCandidate(setup, state, point, e, restoreMultipliers(answer, split.equalityCoefficients), thorough);
   }
+}
+
+/** Stop trying neighbours once the best bound is within this share of the requested gap of F at the iterate. */
+const ENOUGH_SHARE = 0.5;
+
+/** The best bound already certifies the request with room to spare: further neighbours only cost evaluations. */
+function certifiedEnough(setup: SolverSetup, state: SolverState): boolean {
+  return state.best !== null && state.evaluation.value - state.best.breakdown.lowerBound <= ENOUGH_SHARE * setup.settings.gapTolerance;
 }
 
 /**
  * Certifies the iterate with multipliers y. Near the boundary of the cone the margin grows like 1/λ_min(ρ'). Any
  * full-rank ρ' gives a valid bound, so a few better-conditioned neighbours are tried as well and the best bound is
  * kept: mixtures (1−ε)x + ε·x₀ with the interior point, and x with its small eigenvalues lifted to a level μ
- * (trace and feasibility not needed).
+ * (trace and feasibility not needed). The search stops early once half the requested gap is certified.
  */
-export function certify(setup: SolverSetup, state: SolverState, y: Multipliers): void {
+export function certify(setup: SolverSetup, state: SolverState, y: Multipliers, thorough = false): void {
   const { x } = state;
-  considerCandidate(setup, state, x, state.evaluation, y);
+  considerCandidate(setup, state, x, state.evaluation, y, thorough);
   const { values, vectors } = iterateEigen(state);
-  if (values[0] >= TUNING.wellConditionedEigenvalue) return;
+  if (values[0] >= TUNING.wellConditionedEigenvalue || certifiedEnough(setup, state)) return;
   for (const share of TUNING.certificateMixtures) {
     if (share <= values[0]) continue;
     const mixture = scale(x, 1 - share);
     addScaledInPlace(mixture, setup.interiorPoint, share);
-    certifyNeighbour(setup, state, mixture);
+    certifyNeighbour(setup, state, mixture, thorough);
+    if (certifiedEnough(setup, state)) return;
   }
   // Half-decade steps between the tuned levels: near a boundary optimum the margin (∝ 1/μ) and the linearization
   // loss (∝ μ) cross steeply, and the best μ decides whether a gap of 1e-6 is reachable at all.
@@ -88,7 +106,8 @@ export function certify(setup: SolverSetup, state: SolverState, y: Multipliers):
   for (const level of levels) {
     if (level <= values[0]) continue;
     const lifted = Float64Array.from(values, (v) => Math.max(v, level) - v);
-    certifyNeighbour(setup, state, add(x, hermitianPart(multiply(multiply(vectors, ComplexMatrix.diagonal(lifted)), adjoint(vectors)))));
+    certifyNeighbour(setup, state, add(x, hermitianPart(multiply(multiply(vectors, ComplexMatrix.diagonal(lifted)), adjoint(vectors)))), thorough);
+    if (certifiedEnough(setup, state)) return;
   }
 }
 
@@ -96,5 +115,5 @@ export function certify(setup: SolverSetup, state: SolverState, y: Multipliers):
 export function certifyLastIterate(setup: SolverSetup, state: SolverState): void {
   const split = setup.oracle.stripEqualitySpan(state.evaluation.gradient);
   const answer = setup.clock.timeOracle(() => setup.oracle.minimize(split.stripped, { relativeAccuracy: state.oracleAccuracy }));
-  certify(setup, state, restoreMultipliers(answer, split.equalityCoefficients));
+  certify(setup, state, restoreMultipliers(answer, split.equalityCoefficients), true);
 }

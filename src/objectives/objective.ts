@@ -1,4 +1,14 @@
-import { addScaledInPlace, ComplexMatrix, conjugate, conjugateAdjoint, hermitianPart, multiply, scale } from '../linear-algebra/complex-matrix.js';
+import {
+  addScaledInPlace,
+  ComplexMatrix,
+  conjugate,
+  conjugateAdjoint,
+  frobeniusNorm,
+  hermitianPart,
+  multiply,
+  scale,
+  subtract,
+} from '../linear-algebra/complex-matrix.js';
 import { supportDecomposition } from '../linear-algebra/support.js';
 import type { EntropyRequest, Problem } from '../problem/model.js';
 import { branchSupport, type BranchSupport } from './branch-supports.js';
@@ -11,7 +21,7 @@ import {
   type ReferenceBlocks,
   type ReferenceSettings,
 } from './sandwiched-up.js';
-import { readConditioning, resetConditioning } from './spectral-blocks.js';
+import { readConditioning, readDerivedConditioning, readOutputFloor, resetConditioning } from './spectral-blocks.js';
 import { relativeEntropyToPinched } from './von-neumann.js';
 
 export interface ObjectiveEvaluation {
@@ -24,6 +34,8 @@ export interface ObjectiveEvaluation {
   innerGap?: number;
   /** Largest ‖A‖_F/λ_min(A) over the positive matrices whose functions were taken (for the certificate margin). */
   conditioning?: number;
+  /** The same without the branch outputs X_c, whose errors the margin follows through the curvature of F. */
+  derivedConditioning?: number;
 }
 
 export interface EvaluateOptions {
@@ -40,6 +52,19 @@ export interface JointEvaluation {
   gradientReference: ComplexMatrix[][];
   /** As in ObjectiveEvaluation. */
   conditioning: number;
+  derivedConditioning: number;
+}
+
+/**
+ * How the gradient's error from the branch outputs reaches given directions (src/certificate/bound.ts): `measure(B)`
+ * gives for each branch c, for a Hermitian direction B on H, ‖∂_{X_c}⟨∇F, B⟩‖_F (the c-th block of the Hessian of F
+ * in the outputs, applied to the outputs' change Σ_j K B K†, by a forward difference); `sizes` per branch is
+ * ‖X_c‖_F + ‖ρ‖_F·Σ_j ‖K_j‖_F², the outputs' perturbation that one rounding of ρ and of X_c's eigendecomposition
+ * stands for (in units of the backward-error scale).
+ */
+export interface OutputCurvature {
+  sizes: number[];
+  measure(direction: ComplexMatrix): number[];
 }
 
 export interface Objective {
@@ -49,7 +74,12 @@ export interface Objective {
   evaluate(rho: ComplexMatrix, options?: EvaluateOptions): ObjectiveEvaluation;
   /** Sandwiched-up at a given τ (no inner optimisation); throws for other kinds. */
   evaluateAtReference(rho: ComplexMatrix, reference: ReferenceBlocks): JointEvaluation;
+  /** Null when ρ has no positive definite outputs to differentiate at. Sandwiched-up needs τ (held fixed). */
+  outputCurvature(rho: ComplexMatrix, reference?: ReferenceBlocks): OutputCurvature | null;
 }
+
+/** Forward-difference step of the curvature, as a share of the smallest output eigenvalue (truncation ∝ this share). */
+const CURVATURE_STEP_SHARE = 1e-3;
 
 /** Branch weight w_c = 2^{((α−1)/α)f(c)} (Petz-down: 2^{(α−1)f(c)}) so a constant score k shifts every kind by −k. */
 export function branchWeight(request: Required<EntropyRequest>, score: number): number {
@@ -133,7 +163,7 @@ class EntropyObjective implements Objective {
   evaluate(rho: ComplexMatrix, options: EvaluateOptions = {}): ObjectiveEvaluation {
     resetConditioning();
     const evaluation = this.evaluateTracked(rho, options);
-    return { ...evaluation, conditioning: readConditioning() };
+    return { ...evaluation, conditioning: readConditioning(), derivedConditioning: readDerivedConditioning() };
   }
 
   private evaluateTracked(rho: ComplexMatrix, options: EvaluateOptions): ObjectiveEvaluation {
@@ -147,37 +177,12 @@ class EntropyObjective implements Objective {
     const withGradient = options.withGradient ?? true;
     const states = this.branchStates(rho);
     const { kind, alpha } = this.request;
-    const ln2 = Math.LN2;
-
-    if (kind === 'von-neumann') {
-      let value = 0;
-      const gradients: ComplexMatrix[] = [];
-      this.supports.forEach((support, c) => {
-        const term = relativeEntropyToPinched(states[c], support, withGradient);
-        let branchTrace = 0;
-        for (let i = 0; i < support.dimension; i++) branchTrace += states[c].re[i * support.dimension + i];
-        value += term.value / ln2 - support.score * branchTrace;
-        if (term.gradient) {
-          const g = scale(term.gradient, 1 / ln2);
-          for (let i = 0; i < support.dimension; i++) g.re[i * support.dimension + i] -= support.score;
-          gradients.push(g);
-        }
-      });
-      return { value, gradient: withGradient ? this.pullBack(gradients) : null };
+    if (kind !== 'sandwiched-up') {
+      const { value, gradients } = this.fromOutputs(states, withGradient);
+      return { value, gradient: gradients ? this.pullBack(gradients) : null };
     }
-
     const coefficient = logCoefficient(this.request);
-    if (kind === 'petz-up' || kind === 'petz-down') {
-      const quasi = kind === 'petz-up' ? petzUpQuasiEntropy : petzDownQuasiEntropy;
-      const terms = this.supports.map((support, c) => quasi(states[c], support, alpha, withGradient));
-      const total = terms.reduce((s, t, c) => s + this.weights[c] * t.value, 0);
-      const value = coefficient * Math.log2(total);
-      if (!withGradient) return { value, gradient: null };
-      const factor = coefficient / (total * ln2);
-      const gradients = terms.map((t, c) => scale(t.gradient as ComplexMatrix, factor * this.weights[c]));
-      return { value, gradient: this.pullBack(gradients) };
-    }
-
+    const ln2 = Math.LN2;
     const beta = sandwichedOrder(alpha);
     const weighted = states.map((x, c) => scale(x, this.weights[c]));
     const optimum = optimalReference(weighted, this.supports, beta, this.referenceSettings, this.lastReference);
@@ -212,11 +217,42 @@ class EntropyObjective implements Objective {
     return { ...reduced, gradient: null };
   }
 
-  evaluateAtReference(rho: ComplexMatrix, reference: ReferenceBlocks): JointEvaluation {
-    if (this.request.kind !== 'sandwiched-up') throw new Error('evaluateAtReference: only for sandwiched-up');
+  /** F and ∂F/∂X_c (before the pull-back) from the branch outputs, for von Neumann and the Petz kinds. */
+  private fromOutputs(states: readonly ComplexMatrix[], withGradient: boolean): { value: number; gradients: ComplexMatrix[] | null } {
+    const { kind, alpha } = this.request;
+    const ln2 = Math.LN2;
+    if (kind === 'von-neumann') {
+      let value = 0;
+      const gradients: ComplexMatrix[] = [];
+      this.supports.forEach((support, c) => {
+        const term = relativeEntropyToPinched(states[c], support, withGradient);
+        let branchTrace = 0;
+        for (let i = 0; i < support.dimension; i++) branchTrace += states[c].re[i * support.dimension + i];
+        value += term.value / ln2 - support.score * branchTrace;
+        if (term.gradient) {
+          const g = scale(term.gradient, 1 / ln2);
+          for (let i = 0; i < support.dimension; i++) g.re[i * support.dimension + i] -= support.score;
+          gradients.push(g);
+        }
+      });
+      return { value, gradients: withGradient ? gradients : null };
+    }
+    const coefficient = logCoefficient(this.request);
+    const quasi = kind === 'petz-up' ? petzUpQuasiEntropy : petzDownQuasiEntropy;
+    const terms = this.supports.map((support, c) => quasi(states[c], support, alpha, withGradient));
+    const total = terms.reduce((s, t, c) => s + this.weights[c] * t.value, 0);
+    const value = coefficient * Math.log2(total);
+    if (!withGradient) return { value, gradients: null };
+    const factor = coefficient / (total * ln2);
+    return { value, gradients: terms.map((t, c) => scale(t.gradient as ComplexMatrix, factor * this.weights[c])) };
+  }
+
+  /** Sandwiched-up at fixed τ: F, ∂F/∂X_c before the pull-back, and ∇_τ F per branch and key block. */
+  private fromOutputsAtReference(
+    states: readonly ComplexMatrix[],
+    reference: ReferenceBlocks,
+  ): { value: number; gradients: ComplexMatrix[]; gradientReference: ComplexMatrix[][] } {
     const beta = sandwichedOrder(this.request.alpha);
-    resetConditioning();
-    const states = this.branchStates(rho);
     const terms = this.supports.map((support, c) =>
       sandwichedBranchTerm(scale(states[c], this.weights[c]), support, reference[c], beta),
     );
@@ -225,10 +261,50 @@ class EntropyObjective implements Objective {
     const factor = coefficient / (total * Math.LN2);
     return {
       value: coefficient * Math.log2(total),
-      gradientState: this.pullBack(terms.map((t, c) => scale(t.gradientState, factor * this.weights[c]))),
+      gradients: terms.map((t, c) => scale(t.gradientState, factor * this.weights[c])),
       gradientReference: terms.map((t) => t.gradientReference.map((g) => scale(g, factor))),
+    };
+  }
+
+  evaluateAtReference(rho: ComplexMatrix, reference: ReferenceBlocks): JointEvaluation {
+    if (this.request.kind !== 'sandwiched-up') throw new Error('evaluateAtReference: only for sandwiched-up');
+    resetConditioning();
+    const joint = this.fromOutputsAtReference(this.branchStates(rho), reference);
+    return {
+      value: joint.value,
+      gradientState: this.pullBack(joint.gradients),
+      gradientReference: joint.gradientReference,
       conditioning: readConditioning(),
+      derivedConditioning: readDerivedConditioning(),
+    };
+  }
+
+  outputCurvature(rho: ComplexMatrix, reference?: ReferenceBlocks): OutputCurvature | null {
+    if (this.request.kind === 'sandwiched-up' && !reference) throw new Error('outputCurvature: sandwiched-up needs τ');
+    const gradientsAt = (states: readonly ComplexMatrix[]) =>
+      reference && this.request.kind === 'sandwiched-up'
+        ? this.fromOutputsAtReference(states, reference).gradients
+        : (this.fromOutputs(states, true).gradients as ComplexMatrix[]);
+    resetConditioning();
+    const states = this.branchStates(rho);
+    const base = gradientsAt(states);
+    const floor = readOutputFloor();
+    const krausWeights = this.supports.map((s) => s.krausOperators.reduce((w, k) => w + frobeniusNorm(k) ** 2, 0));
+    // A step that keeps every output positive definite: ‖Σ_j K B K†‖ ≤ Σ_j ‖K_j‖_F² for ‖B‖_F = 1 (τ weights scale X_c).
+    const stretch = Math.max(1, ...krausWeights) * Math.max(1, ...this.weights);
+    const step = (CURVATURE_STEP_SHARE * floor) / stretch;
+    if (!(step > 0 && Number.isFinite(step))) return null;
+    const rhoNorm = frobeniusNorm(rho);
+    return {
+      sizes: states.map((x, c) => frobeniusNorm(x) + rhoNorm * krausWeights[c]),
+      measure: (direction) => {
+        const moved = this.branchStates(direction).map((change, c) => {
+          const out = states[c].clone();
+          addScaledInPlace(out, change, step);
+          return out;
+        });
+        return gradientsAt(moved).map((g, c) => frobeniusNorm(subtract(g, base[c])) / step);
+      },
     };
   }
 }
-

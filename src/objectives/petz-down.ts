@@ -30,7 +30,7 @@ export function petzDownQuasiEntropy(
   const { blockSizes: sizes, blockOffsets: offsets, outputRange: range } = support;
   const blockEigs = eigenBlocks(pinchedBlocks(x, sizes, offsets));
   const pinchedPower = blockSpectralFunction(blockEigs, (t) => Math.max(t, 0) ** (1 - beta));
-  const xe = positiveEigen(range === null ? x : compress(range, x));
+  const xe = positiveEigen(range === null ? x : compress(range, x), 'output');
   const statePowerReduced = spectralFunction(xe, (t) => Math.max(t, 0) ** beta);
   const pinchedPowerReduced = range === null ? pinchedPower : compress(range, pinchedPower);
   const value = traceProductReal(statePowerReduced, pinchedPowerReduced);

@@ -19,27 +19,47 @@ export { powerFunction } from '../linear-algebra/matrix-functions.js';
 /**
  * Conditioning ledger: the largest ‖A‖_F/λ_min(A) over the positive matrices whose spectral functions an
  * evaluation takes. A backward error of size u·‖A‖ moves a log or a negative power by about u·‖A‖/λ_min, so the
- * certificate margin scales with this number (src/certificate/bound.ts). Evaluations run one at a time per thread.
+ * certificate margin scales with this number (src/certificate/bound.ts). The branch outputs X_c are kept apart
+ * (`output`): where their errors reach the bound is measured by the curvature of F instead (docs/convergence.md).
+ * Evaluations run one at a time per thread.
  */
-let ledger = 1;
+let derivedLedger = 1;
+let outputLedger = 1;
+/** The smallest eigenvalue of a branch output met (the finite-difference step of the curvature scales with it). */
+let outputFloor = Infinity;
 
 export function resetConditioning(): void {
-  ledger = 1;
+  derivedLedger = 1;
+  outputLedger = 1;
+  outputFloor = Infinity;
 }
 
+/** Every matrix met, branch outputs included. */
 export function readConditioning(): number {
-  return ledger;
+  return Math.max(derivedLedger, outputLedger);
 }
 
-/** eigh of a positive semidefinite matrix, recording its conditioning in the ledger. */
-export function positiveEigen(a: ComplexMatrix): HermitianEigen {
+/** Every matrix met except the branch outputs X_c (the pinched blocks, τ, square-root factors). */
+export function readDerivedConditioning(): number {
+  return derivedLedger;
+}
+
+export function readOutputFloor(): number {
+  return outputFloor;
+}
+
+/** eigh of a positive semidefinite matrix, recording its conditioning in the ledger (`output`: a branch output X_c). */
+export function positiveEigen(a: ComplexMatrix, role: 'output' | 'derived' = 'derived'): HermitianEigen {
   const e = eigh(a);
   const n = e.values.length;
   if (n > 0) {
     let norm = 0;
     for (let i = 0; i < n; i++) norm += e.values[i] * e.values[i];
     const ratio = Math.sqrt(norm) / Math.max(e.values[0], Number.MIN_VALUE);
-    if (ratio > ledger) ledger = ratio;
+    if (role === 'output') {
+      outputLedger = Math.max(outputLedger, ratio);
+      outputFloor = Math.min(outputFloor, e.values[0]);
+    } else derivedLedger = Math.max(derivedLedger, ratio);
   }
   return e;
 }
@@ -115,7 +135,7 @@ export function sandwichedPower(
     // M = G·G† with G = Y^s·V·Λ^{1/2} (X = V·Λ·V†): the spectrum of M comes from G's singular values, which one-sided
     // Jacobi gets to high relative accuracy, instead of from the formed product, whose small eigenvalues carry an
     // absolute error u·‖M‖ (so M's conditioning, about κ(X)·κ(Y)^{2s}, never enters the margin; docs/convergence.md).
-    const xe = positiveEigen(x);
+    const xe = positiveEigen(x, 'output');
     const { left, singularValues } = oneSidedJacobi(multiply(multiply(ys, xe.vectors), diagonalRoot(xe.values)));
     const squares = Float64Array.from(singularValues, (t) => t * t);
     const quasiEntropy = traceFunction(squares, (t) => (t > 0 ? t ** gamma : 0));
@@ -124,7 +144,7 @@ export function sandwichedPower(
     const powerOfM = spectralFunction(me, (t) => (t > 0 ? t ** gamma : 0));
     return { quasiEntropy, weight, powerOfM };
   }
-  const xe = positiveEigen(compress(outputRange, x));
+  const xe = positiveEigen(compress(outputRange, x), 'output');
   const factor = multiply(multiply(ys, outputRange), spectralFunction(xe, (t) => Math.sqrt(Math.max(t, 0))));
   const ne = positiveEigen(multiplyAdjointLeft(factor, factor));
   const quasiEntropy = traceFunction(ne.values, (t) => (t > 0 ? t ** gamma : 0));

@@ -29,7 +29,7 @@ export function relativeEntropyToPinched(
   let pinchedPart = 0;
   for (const e of blockEigs) pinchedPart += traceFunction(e.values, entropyFunction.value);
   const range = support.outputRange;
-  const xe = positiveEigen(range === null ? x : compress(range, x));
+  const xe = positiveEigen(range === null ? x : compress(range, x), 'output');
   const statePart = traceFunction(xe.values, entropyFunction.value);
   const value = statePart - pinchedPart;
   if (!withGradient) return { value, gradient: null };
