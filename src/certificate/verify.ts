@@ -8,8 +8,10 @@ import { inputHash } from '../problem/hash.js';
 import { matrixFromJson } from '../problem/json.js';
 import { FEASIBILITY_TOLERANCE, relativeConstraintViolation } from '../problem/violation.js';
 import type { EntropyRequest, Problem } from '../problem/model.js';
+import type { FeasibleFace } from '../problem/feasible-face.js';
 import type { Certificate, FarkasCertificate, SolveResult } from '../result/types.js';
-import { certificateBreakdown, readStoredLinearization, type StoredLinearization } from './bound.js';
+import { certificateBreakdown, readStoredLinearization, type BoundBreakdown, type StoredLinearization } from './bound.js';
+import { hasMinTradeoff, minTradeoffFromBreakdown, minTradeoffMismatch } from './min-tradeoff.js';
 import { trivialLowerBound } from './trivial-bound.js';
 import { upperBoundAt } from './upper-bound.js';
 import { SOLVER_VERSION } from './version.js';
@@ -38,7 +40,7 @@ export type ResultClaims = Pick<SolveResult, 'certificate' | 'certifiedLowerBoun
   Partial<
     Pick<
       SolveResult,
-      'status' | 'upperBound' | 'gap' | 'finalState' | 'trivialBoundUsed' | 'relativeConstraintViolation' | 'infeasibility'
+      'status' | 'upperBound' | 'gap' | 'finalState' | 'trivialBoundUsed' | 'relativeConstraintViolation' | 'infeasibility' | 'minTradeoff'
     >
   >;
 
@@ -51,6 +53,7 @@ export const REPRODUCTION_TOLERANCE = 1e-12;
  * feasibility, the gap, and the status those numbers allow. INFEASIBLE results get their Farkas certificate checked.
  */
 export function verifyResult(problem: Problem, request: EntropyRequest, result: ResultClaims): VerificationReport {
+  if (result.minTradeoff !== undefined && !result.certificate) return reject('a min-tradeoff function is stated without the certificate it comes from');
   if (result.status === 'INFEASIBLE') {
     if (!result.infeasibility) return reject('an INFEASIBLE result must carry its Farkas certificate (infeasibility)');
     return verifyInfeasibility(problem, result.infeasibility);
@@ -67,6 +70,8 @@ export function verifyResult(problem: Problem, request: EntropyRequest, result: 
     if (result.certificate) {
       const certified = verifyCertificate(problem, request, result.certificate, null);
       if (!certified.valid) return certified;
+      const tradeoff = checkMinTradeoff(problem, request, result, certified);
+      if (tradeoff !== null) return reject(tradeoff);
       if (result.certificate.claimedBound >= floor) {
         return reject(`the certificate's bound ${result.certificate.claimedBound} is not below the trivial bound ${floor}: it should be reported`);
       }
@@ -76,8 +81,11 @@ export function verifyResult(problem: Problem, request: EntropyRequest, result: 
     report = { valid: true, certifiedLowerBound: floor, reason: 'trivial bound verified' };
   } else {
     if (!result.certificate) return reject('the result carries no certificate');
-    report = verifyCertificate(problem, request, result.certificate, lower);
-    if (!report.valid) return report;
+    const certified = verifyCertificate(problem, request, result.certificate, lower);
+    if (!certified.valid) return certified;
+    const tradeoff = checkMinTradeoff(problem, request, result, certified);
+    if (tradeoff !== null) return reject(tradeoff, certified.certifiedLowerBound);
+    report = { valid: true, certifiedLowerBound: certified.certifiedLowerBound, reason: certified.reason };
     if (lower < floor) return reject(`the bound ${lower} is below the trivial bound ${floor}, which holds for every state`);
   }
   const upper = checkUpperBound(problem, request, result, lower);
@@ -120,12 +128,26 @@ function checkUpperBound(problem: Problem, request: EntropyRequest, result: Resu
   return null;
 }
 
+/** Null when the stated min-tradeoff function is the certificate's (or none is stated); otherwise why not. */
+function checkMinTradeoff(problem: Problem, request: EntropyRequest, result: ResultClaims, certified: CertificateReport): string | null {
+  const stated = result.minTradeoff;
+  if (stated === undefined) return null;
+  if (!hasMinTradeoff(problem, request.kind) || !certified.breakdown || !certified.face || !result.certificate) {
+    return 'a min-tradeoff function is stated, but only von Neumann certificates of a problem with constraints give one';
+  }
+  const recomputed = minTradeoffFromBreakdown(problem, certified.face, result.certificate, certified.breakdown);
+  return minTradeoffMismatch(stated, recomputed, REPRODUCTION_TOLERANCE);
+}
+
+/** A certificate's verdict; a valid one also carries the recomputed breakdown and face (the min-tradeoff check reuses them). */
+export type CertificateReport = VerificationReport & { breakdown?: BoundBreakdown; face?: FeasibleFace };
+
 export function verifyCertificate(
   problem: Problem,
   request: EntropyRequest,
   certificate: Certificate,
   reportedBound: number | null = certificate.claimedBound,
-): VerificationReport {
+): CertificateReport {
   if (certificate.solverVersion !== SOLVER_VERSION) {
     return reject(`certificate from solver version ${certificate.solverVersion}, this verifier is ${SOLVER_VERSION}`);
   }
@@ -165,7 +187,7 @@ export function verifyCertificate(
   if (breakdown.lowerBound < claimed) {
     return reject(`recomputed bound ${breakdown.lowerBound} is below the claimed ${claimed}`, breakdown.lowerBound);
   }
-  return { valid: true, certifiedLowerBound: breakdown.lowerBound, reason: 'certificate verified' };
+  return { valid: true, certifiedLowerBound: breakdown.lowerBound, reason: 'certificate verified', breakdown, face };
 }
 
 /**

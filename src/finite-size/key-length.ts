@@ -1,6 +1,6 @@
 // The finite-size key length under coherent attacks: options, ε split, α and score optimisation, the ledger,
 // the asymptotic (Devetak–Winter) reference and the min-tradeoff export (docs/finite-size.md).
-import type { SolveResult } from '../result/types.js';
+import type { MinTradeoffFunction, SolveResult } from '../result/types.js';
 import type { SolverSettings } from '../frank-wolfe/settings.js';
 import { ValidationError } from '../problem/errors.js';
 import type { Problem } from '../problem/model.js';
@@ -10,7 +10,7 @@ import { localSolver, problemToJson, scoredProblem, type FiniteSizeEntropy, type
 import type { ProblemJson } from '../problem/json.js';
 import { ComplexMatrix, addScaledInPlace, hermitianPart, multiplyAdjointLeft } from '../linear-algebra/complex-matrix.js';
 import { sourceMarginalConstraints } from '../problem/validate.js';
-import { minTradeoffFunction, type MinTradeoffFunction } from './min-tradeoff.js';
+import { minTradeoffOf } from './min-tradeoff.js';
 
 /** Defaults: common practice values (ε_sec 1e−10, ε_com 1e−2, f_EC 1.16). */
 export const KEY_LENGTH_DEFAULTS = Object.freeze({
@@ -43,7 +43,20 @@ export interface KeyLengthOptions {
   initialScores?: number[];
   /** Skip the von Neumann reference solve (the sweep does it once per channel point). */
   withoutAsymptotic?: boolean;
+  /** After each finished score ascent (one α). */
   onProgress?: (progress: SearchProgress) => void;
+  /** After every single-round solve, with the phase of the search it belongs to. */
+  onSolve?: (solved: SolveProgress) => void;
+}
+
+/** The search phases, in order: starting scores (von Neumann), the α search, the Devetak–Winter reference. */
+export type SearchPhase = 'starting-scores' | 'alpha-search' | 'asymptotic-reference';
+
+export interface SolveProgress {
+  phase: SearchPhase;
+  /** Rényi order of the solve, null for von Neumann. */
+  alpha: number | null;
+  result: SolveResult;
 }
 
 export interface VariableLengthRule {
@@ -142,6 +155,15 @@ export async function keyLength(
 ): Promise<KeyLengthReport> {
   const started = performance.now();
   const epsilons = splitEpsilons(options);
+  const { onSolve } = options;
+  const inPhase = (phase: SearchPhase): SingleRoundSolver =>
+    onSolve === undefined
+      ? solver
+      : async (p, request, s, warmStart) => {
+          const result = await solver(p, request, s, warmStart);
+          onSolve({ phase, alpha: request.alpha ?? null, result });
+          return result;
+        };
   const { honest, efficiency, entropy, errorCorrectionBits } = checkedInputs(problem, options);
   const settings: Partial<SolverSettings> = {
     gapTolerance: options.gapTolerance ?? KEY_LENGTH_DEFAULTS.gapTolerance,
@@ -160,7 +182,7 @@ export async function keyLength(
     honest: honest.branchProbabilities,
     fixedCost,
     settings,
-    solver,
+    solver: inPhase('alpha-search'),
     onProgress: options.onProgress,
   };
   const state: SearchState = { solves: 0 };
@@ -168,7 +190,7 @@ export async function keyLength(
     options.initialScores ??
     (problem.branches.some((b) => b.score !== 0)
       ? problem.branches.map((b) => b.score)
-      : await minTradeoffScores(problem, honest.branchProbabilities, solver, settings));
+      : await minTradeoffScores(problem, honest.branchProbabilities, inPhase('starting-scores'), settings));
   const best =
     options.alpha === undefined
       ? await searchAlpha(context, state, initialScores)
@@ -214,7 +236,7 @@ export async function keyLength(
       keyLengthAtHonestMean: Math.max(0, Math.floor(options.rounds * best.window.meanScore + intercept)),
     };
   }
-  if (!options.withoutAsymptotic) report.asymptotic = await asymptoticReference(problem, errorCorrectionBits / options.rounds, solver, settings);
+  if (!options.withoutAsymptotic) report.asymptotic = await asymptoticReference(problem, errorCorrectionBits / options.rounds, inPhase('asymptotic-reference'), settings);
   report.search.seconds = (performance.now() - started) / 1000;
   return report;
 }
@@ -240,8 +262,9 @@ export async function minTradeoffScores(
   });
   const tested: Problem = { ...problem, constraints: [...marginal, ...branchConstraints], branches: problem.branches.map((b) => ({ ...b, score: 0 })) };
   const result = await solver(tested, { kind: 'von-neumann' }, settings);
-  if (!result.certificate) return problem.branches.map(() => 0);
-  const coefficients = minTradeoffFunction(tested, result).coefficients.slice(marginal.length);
+  const tradeoff = minTradeoffOf(tested, result);
+  if (!tradeoff) return problem.branches.map(() => 0);
+  const coefficients = tradeoff.coefficients.slice(marginal.length);
   return coefficients.map((c) => c.coefficient);
 }
 
@@ -258,7 +281,7 @@ export async function asymptoticReference(
   return {
     vonNeumannBound: bound,
     ratePerRound: bound === null ? null : bound - leakagePerRound,
-    minTradeoff: result.certificate ? minTradeoffFunction(plain, result) : null,
+    minTradeoff: minTradeoffOf(plain, result),
   };
 }
 

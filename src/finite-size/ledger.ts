@@ -70,7 +70,7 @@ function fixedTerms(input: Omit<LedgerInput, 'scoreSum'>): LedgerTerm[] {
     {
       name: 'constant',
       bits: 2,
-      source: 'prefactor 2^{2/α−1} of Dupuis’ bound with the ½‖·‖₁ convention (derived here, docs/finite-size.md)',
+      source: 'prefactor 2^{2/α−1} of Dupuis’ bound (from memory; checked against exact hashing) with the ½‖·‖₁ convention (derived here, docs/finite-size.md §3, §8)',
     },
   ];
 }

@@ -11,6 +11,8 @@ import { singleRoundValue, tiltedBranchWeights, scoredProblem, type FiniteSizeEn
 export const MIN_ALPHA_EXCESS = 1e-4;
 const MAX_ASCENT_STEPS = 30;
 const MAX_STEP_TRIALS = 5;
+/** Iterations of a trial point's first solve: its upper bound already rejects most losing steps. */
+const TRIAL_ITERATIONS = 8;
 
 export interface SearchContext {
   problem: Problem;
@@ -53,12 +55,35 @@ async function evaluate(
   alpha: number,
   scores: number[],
   warmStart: ComplexMatrix | undefined,
+  settings: Partial<SolverSettings> = context.settings,
 ): Promise<ScorePoint> {
   state.solves++;
-  const single = await singleRoundValue(context.problem, context.kind, alpha, scores, context.settings, context.solver, warmStart, false);
+  const single = await singleRoundValue(context.problem, context.kind, alpha, scores, settings, context.solver, warmStart, false);
   const window = acceptanceWindow(context.honest, scores, context.rounds, context.epsilonCompleteness);
   const value = single.bound === null ? -Infinity : single.bound + window.minimumScoreSum / context.rounds;
   return { alpha, scores, single, window, value };
+}
+
+/**
+ * A trial point of the ascent, which is kept only if its certified value exceeds `threshold`: a short solve first,
+ * whose upper bound (F at a feasible state bounds h^f_α from above) rejects a losing step for certain; only an
+ * undecided trial is solved to the full settings, warm-started where the short solve ended.
+ */
+async function evaluateTrial(
+  context: SearchContext,
+  state: SearchState,
+  alpha: number,
+  scores: number[],
+  warmStart: ComplexMatrix | undefined,
+  threshold: number,
+): Promise<ScorePoint> {
+  const cap = context.settings.maxIterations;
+  if (cap === undefined || cap <= TRIAL_ITERATIONS) return evaluate(context, state, alpha, scores, warmStart);
+  const quick = await evaluate(context, state, alpha, scores, warmStart, { ...context.settings, maxIterations: TRIAL_ITERATIONS });
+  const upper = quick.single.result.upperBound;
+  if (quick.single.result.status === 'CERTIFIED') return quick;
+  if (upper !== null && upper + quick.window.minimumScoreSum / context.rounds <= threshold) return quick;
+  return evaluate(context, state, alpha, scores, quick.single.finalState ?? warmStart);
 }
 
 /** ∂(value)/∂f = r − q: tilted honest distribution of the window minus tilted branch weights at the optimal state. */
@@ -99,8 +124,9 @@ export async function ascendScores(
     let step = 1;
     for (let trial = 0; trial < MAX_STEP_TRIALS; trial++, step /= 4) {
       const scores = current.scores.map((f, c) => f + step * direction[c]);
-      const candidate = await evaluate(context, state, alpha, scores, current.single.finalState);
-      if (candidate.value > current.value + 1e-4 * step * slope) {
+      const threshold = current.value + 1e-4 * step * slope;
+      const candidate = await evaluateTrial(context, state, alpha, scores, current.single.finalState, threshold);
+      if (candidate.value > threshold) {
         accepted = candidate;
         break;
       }

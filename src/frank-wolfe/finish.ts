@@ -4,10 +4,11 @@ import { matrixFromJson, matrixToJson } from '../problem/json.js';
 import type { Problem } from '../problem/model.js';
 import { constraintViolations, FEASIBILITY_TOLERANCE } from '../problem/violation.js';
 import { certificateBreakdown, referenceFromSupport } from '../certificate/bound.js';
+import { hasMinTradeoff, minTradeoffFromBreakdown } from '../certificate/min-tradeoff.js';
 import { trivialLowerBound } from '../certificate/trivial-bound.js';
 import { upperBoundAt } from '../certificate/upper-bound.js';
 import { SOLVER_VERSION } from '../certificate/version.js';
-import type { Certificate, SolveResult } from '../result/types.js';
+import type { Certificate, MinTradeoffFunction, SolveResult } from '../result/types.js';
 import type { CertifiedPoint, ResultBase, RunClock, SolverSetup, SolverState } from './state.js';
 
 /** A result without a bound (the status is overridden for infeasible data and early cancellation). */
@@ -64,6 +65,7 @@ export function assembleResult(setup: SolverSetup, state: SolverState): SolveRes
   let certifiedBound = -Infinity;
   let margin: number | null = null;
   let statisticalSlack: number | null = null;
+  let minTradeoff: MinTradeoffFunction | undefined;
   if (state.best !== null) {
     const certified: CertifiedPoint = state.best;
     const stored = {
@@ -89,6 +91,8 @@ export function assembleResult(setup: SolverSetup, state: SolverState): SolveRes
         claimedBound: certifiedBound,
         toleranceMargin: claimed.margin,
       };
+      // From the very breakdown claimed, so the verifier's recomputation reproduces it bit for bit.
+      if (hasMinTradeoff(problem, base.entropy)) minTradeoff = minTradeoffFromBreakdown(problem, face, stored, claimed);
     }
   }
   // Without a certificate only a limit leaves a result with a bound (the trivial one); anything else failed.
@@ -151,6 +155,7 @@ export function assembleResult(setup: SolverSetup, state: SolverState): SolveRes
     oracleSeconds: clock.oracleSeconds,
     certificate,
     finalState,
+    minTradeoff,
   };
 }
 

@@ -49,6 +49,21 @@ export interface FarkasCertificate {
   dominantConstraints: string[];
 }
 
+/**
+ * g(s) = constant + Σ_i coefficient_i·s_i ≤ F(σ) for every state σ on the certificate's face, s_i = Tr(Γ_i σ):
+ * the affine function of a von Neumann certificate, a min-tradeoff function in the statistics (docs/finite-size.md).
+ */
+export interface MinTradeoffFunction {
+  /** In bits per round; the floating-point allowance for any |s_i| ≤ ‖Γ_i‖_F is already subtracted. */
+  constant: number;
+  /** One per constraint, in the problem's order (observations expanded). */
+  coefficients: { label: string; coefficient: number }[];
+  /** min of g over the constraint intervals (g at the solved statistics when they are equalities). */
+  minimumOverIntervals: number;
+  /** Where g is a valid lower bound, and on what. */
+  validity: string;
+}
+
 export interface SolveResult {
   status: SolveStatus;
   limit?: StopLimit;
@@ -81,4 +96,6 @@ export interface SolveResult {
   infeasibility?: FarkasCertificate;
   /** The final iterate (for warm starts); upperBound is F here when it meets the constraints. */
   finalState?: MatrixJson;
+  /** Von Neumann results with constraints and a certificate: the certificate's affine function of the statistics. */
+  minTradeoff?: MinTradeoffFunction;
 }

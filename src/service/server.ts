@@ -33,7 +33,7 @@ import type { WorkerReply, WorkerTask } from './solve-worker.js';
 import { QueueFullError, SolverPool } from './solver-pool.js';
 import { checkExposure, exposureWarning, serveHealthOnly, serverCredentials, serverOptions, type ServerSecurity } from './security.js';
 import { entropyKindFromWire, resultFromWire, resultToWire, wireToJson } from './wire.js';
-import { handleKeyLength } from './key-length.js';
+import { handleKeyLength, handleKeyLengthStream } from './key-length.js';
 
 export interface ServerOptions {
   /** Interface to bind; loopback unless told otherwise. */
@@ -231,6 +231,7 @@ export class RenyiBoundServer {
       Verify: (call, callback) => this.verify(call, callback),
       ListExamples: listExamples,
       KeyLength: (call, callback) => void handleKeyLength(call, callback, this.coordinator),
+      KeyLengthStream: (call) => void handleKeyLengthStream(call, this.coordinator),
       DecoyRate: decoyRateHandler(),
       VerifyDecoyRate: verifyDecoyRateHandler,
     };

@@ -171,6 +171,7 @@ export function resultToWire(result: SolveResult, fromCache: boolean): WireSolve
     trivialBound: result.trivialBound ?? 0,
     trivialBoundUsed: result.trivialBoundUsed ?? false,
     notes: result.notes ?? [],
+    minTradeoff: result.minTradeoff ?? null,
   };
 }
 
@@ -211,5 +212,6 @@ export function resultFromWire(wire: SolveResult__Output): DeliveredResult {
     result.trivialBoundUsed = wire.trivialBoundUsed;
   }
   if (wire.notes.length > 0) result.notes = [...wire.notes];
+  if (wire.minTradeoff !== null) result.minTradeoff = { ...wire.minTradeoff, coefficients: wire.minTradeoff.coefficients.map((c) => ({ ...c })) };
   return result;
 }

@@ -22,8 +22,10 @@ import type { ExampleInfo as _renyibound_v1_ExampleInfo, ExampleInfo__Output as 
 import type { ExampleParameterInfo as _renyibound_v1_ExampleParameterInfo, ExampleParameterInfo__Output as _renyibound_v1_ExampleParameterInfo__Output } from './renyibound/v1/ExampleParameterInfo.js';
 import type { HonestStatistics as _renyibound_v1_HonestStatistics, HonestStatistics__Output as _renyibound_v1_HonestStatistics__Output } from './renyibound/v1/HonestStatistics.js';
 import type { InfeasibilityCertificate as _renyibound_v1_InfeasibilityCertificate, InfeasibilityCertificate__Output as _renyibound_v1_InfeasibilityCertificate__Output } from './renyibound/v1/InfeasibilityCertificate.js';
+import type { KeyLengthProgress as _renyibound_v1_KeyLengthProgress, KeyLengthProgress__Output as _renyibound_v1_KeyLengthProgress__Output } from './renyibound/v1/KeyLengthProgress.js';
 import type { KeyLengthReply as _renyibound_v1_KeyLengthReply, KeyLengthReply__Output as _renyibound_v1_KeyLengthReply__Output } from './renyibound/v1/KeyLengthReply.js';
 import type { KeyLengthRequest as _renyibound_v1_KeyLengthRequest, KeyLengthRequest__Output as _renyibound_v1_KeyLengthRequest__Output } from './renyibound/v1/KeyLengthRequest.js';
+import type { KeyLengthStreamItem as _renyibound_v1_KeyLengthStreamItem, KeyLengthStreamItem__Output as _renyibound_v1_KeyLengthStreamItem__Output } from './renyibound/v1/KeyLengthStreamItem.js';
 import type { KeyLengthTerm as _renyibound_v1_KeyLengthTerm, KeyLengthTerm__Output as _renyibound_v1_KeyLengthTerm__Output } from './renyibound/v1/KeyLengthTerm.js';
 import type { LinearConstraint as _renyibound_v1_LinearConstraint, LinearConstraint__Output as _renyibound_v1_LinearConstraint__Output } from './renyibound/v1/LinearConstraint.js';
 import type { ListExamplesReply as _renyibound_v1_ListExamplesReply, ListExamplesReply__Output as _renyibound_v1_ListExamplesReply__Output } from './renyibound/v1/ListExamplesReply.js';
@@ -75,8 +77,10 @@ export interface ProtoGrpcType {
       ExampleParameterInfo: MessageTypeDefinition<_renyibound_v1_ExampleParameterInfo, _renyibound_v1_ExampleParameterInfo__Output>
       HonestStatistics: MessageTypeDefinition<_renyibound_v1_HonestStatistics, _renyibound_v1_HonestStatistics__Output>
       InfeasibilityCertificate: MessageTypeDefinition<_renyibound_v1_InfeasibilityCertificate, _renyibound_v1_InfeasibilityCertificate__Output>
+      KeyLengthProgress: MessageTypeDefinition<_renyibound_v1_KeyLengthProgress, _renyibound_v1_KeyLengthProgress__Output>
       KeyLengthReply: MessageTypeDefinition<_renyibound_v1_KeyLengthReply, _renyibound_v1_KeyLengthReply__Output>
       KeyLengthRequest: MessageTypeDefinition<_renyibound_v1_KeyLengthRequest, _renyibound_v1_KeyLengthRequest__Output>
+      KeyLengthStreamItem: MessageTypeDefinition<_renyibound_v1_KeyLengthStreamItem, _renyibound_v1_KeyLengthStreamItem__Output>
       KeyLengthTerm: MessageTypeDefinition<_renyibound_v1_KeyLengthTerm, _renyibound_v1_KeyLengthTerm__Output>
       LinearConstraint: MessageTypeDefinition<_renyibound_v1_LinearConstraint, _renyibound_v1_LinearConstraint__Output>
       ListExamplesReply: MessageTypeDefinition<_renyibound_v1_ListExamplesReply, _renyibound_v1_ListExamplesReply__Output>

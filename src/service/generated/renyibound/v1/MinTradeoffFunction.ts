@@ -1,4 +1,4 @@
-// Original file: proto/renyibound/v1/key_length.proto
+// Original file: proto/renyibound/v1/problem.proto
 
 
 export interface _renyibound_v1_MinTradeoffFunction_Coefficient {
@@ -15,10 +15,12 @@ export interface MinTradeoffFunction {
   'constant'?: (number | string);
   'coefficients'?: (_renyibound_v1_MinTradeoffFunction_Coefficient)[];
   'validity'?: (string);
+  'minimumOverIntervals'?: (number | string);
 }
 
 export interface MinTradeoffFunction__Output {
   'constant': (number);
   'coefficients': (_renyibound_v1_MinTradeoffFunction_Coefficient__Output)[];
   'validity': (string);
+  'minimumOverIntervals': (number);
 }

@@ -8,6 +8,7 @@ import type { DecoyRateReply as _renyibound_v1_DecoyRateReply, DecoyRateReply__O
 import type { DecoyRateRequest as _renyibound_v1_DecoyRateRequest, DecoyRateRequest__Output as _renyibound_v1_DecoyRateRequest__Output } from '../../renyibound/v1/DecoyRateRequest.js';
 import type { KeyLengthReply as _renyibound_v1_KeyLengthReply, KeyLengthReply__Output as _renyibound_v1_KeyLengthReply__Output } from '../../renyibound/v1/KeyLengthReply.js';
 import type { KeyLengthRequest as _renyibound_v1_KeyLengthRequest, KeyLengthRequest__Output as _renyibound_v1_KeyLengthRequest__Output } from '../../renyibound/v1/KeyLengthRequest.js';
+import type { KeyLengthStreamItem as _renyibound_v1_KeyLengthStreamItem, KeyLengthStreamItem__Output as _renyibound_v1_KeyLengthStreamItem__Output } from '../../renyibound/v1/KeyLengthStreamItem.js';
 import type { ListExamplesReply as _renyibound_v1_ListExamplesReply, ListExamplesReply__Output as _renyibound_v1_ListExamplesReply__Output } from '../../renyibound/v1/ListExamplesReply.js';
 import type { ListExamplesRequest as _renyibound_v1_ListExamplesRequest, ListExamplesRequest__Output as _renyibound_v1_ListExamplesRequest__Output } from '../../renyibound/v1/ListExamplesRequest.js';
 import type { SolveReply as _renyibound_v1_SolveReply, SolveReply__Output as _renyibound_v1_SolveReply__Output } from '../../renyibound/v1/SolveReply.js';
@@ -35,6 +36,11 @@ export interface RenyiBoundClient extends grpc.Client {
   keyLength(argument: _renyibound_v1_KeyLengthRequest, metadata: grpc.Metadata, callback: grpc.requestCallback<_renyibound_v1_KeyLengthReply__Output>): grpc.ClientUnaryCall;
   keyLength(argument: _renyibound_v1_KeyLengthRequest, options: grpc.CallOptions, callback: grpc.requestCallback<_renyibound_v1_KeyLengthReply__Output>): grpc.ClientUnaryCall;
   keyLength(argument: _renyibound_v1_KeyLengthRequest, callback: grpc.requestCallback<_renyibound_v1_KeyLengthReply__Output>): grpc.ClientUnaryCall;
+  
+  KeyLengthStream(argument: _renyibound_v1_KeyLengthRequest, metadata: grpc.Metadata, options?: grpc.CallOptions): grpc.ClientReadableStream<_renyibound_v1_KeyLengthStreamItem__Output>;
+  KeyLengthStream(argument: _renyibound_v1_KeyLengthRequest, options?: grpc.CallOptions): grpc.ClientReadableStream<_renyibound_v1_KeyLengthStreamItem__Output>;
+  keyLengthStream(argument: _renyibound_v1_KeyLengthRequest, metadata: grpc.Metadata, options?: grpc.CallOptions): grpc.ClientReadableStream<_renyibound_v1_KeyLengthStreamItem__Output>;
+  keyLengthStream(argument: _renyibound_v1_KeyLengthRequest, options?: grpc.CallOptions): grpc.ClientReadableStream<_renyibound_v1_KeyLengthStreamItem__Output>;
   
   ListExamples(argument: _renyibound_v1_ListExamplesRequest, metadata: grpc.Metadata, options: grpc.CallOptions, callback: grpc.requestCallback<_renyibound_v1_ListExamplesReply__Output>): grpc.ClientUnaryCall;
   ListExamples(argument: _renyibound_v1_ListExamplesRequest, metadata: grpc.Metadata, callback: grpc.requestCallback<_renyibound_v1_ListExamplesReply__Output>): grpc.ClientUnaryCall;
@@ -84,6 +90,8 @@ export interface RenyiBoundHandlers extends grpc.UntypedServiceImplementation {
   
   KeyLength: grpc.handleUnaryCall<_renyibound_v1_KeyLengthRequest__Output, _renyibound_v1_KeyLengthReply>;
   
+  KeyLengthStream: grpc.handleServerStreamingCall<_renyibound_v1_KeyLengthRequest__Output, _renyibound_v1_KeyLengthStreamItem>;
+  
   ListExamples: grpc.handleUnaryCall<_renyibound_v1_ListExamplesRequest__Output, _renyibound_v1_ListExamplesReply>;
   
   Solve: grpc.handleUnaryCall<_renyibound_v1_SolveRequest__Output, _renyibound_v1_SolveReply>;
@@ -99,6 +107,7 @@ export interface RenyiBoundHandlers extends grpc.UntypedServiceImplementation {
 export interface RenyiBoundDefinition extends grpc.ServiceDefinition {
   DecoyRate: MethodDefinition<_renyibound_v1_DecoyRateRequest, _renyibound_v1_DecoyRateReply, _renyibound_v1_DecoyRateRequest__Output, _renyibound_v1_DecoyRateReply__Output>
   KeyLength: MethodDefinition<_renyibound_v1_KeyLengthRequest, _renyibound_v1_KeyLengthReply, _renyibound_v1_KeyLengthRequest__Output, _renyibound_v1_KeyLengthReply__Output>
+  KeyLengthStream: MethodDefinition<_renyibound_v1_KeyLengthRequest, _renyibound_v1_KeyLengthStreamItem, _renyibound_v1_KeyLengthRequest__Output, _renyibound_v1_KeyLengthStreamItem__Output>
   ListExamples: MethodDefinition<_renyibound_v1_ListExamplesRequest, _renyibound_v1_ListExamplesReply, _renyibound_v1_ListExamplesRequest__Output, _renyibound_v1_ListExamplesReply__Output>
   Solve: MethodDefinition<_renyibound_v1_SolveRequest, _renyibound_v1_SolveReply, _renyibound_v1_SolveRequest__Output, _renyibound_v1_SolveReply__Output>
   SolveBatch: MethodDefinition<_renyibound_v1_BatchRequest, _renyibound_v1_BatchItem, _renyibound_v1_BatchRequest__Output, _renyibound_v1_BatchItem__Output>

@@ -7,6 +7,7 @@ import type { Certificate as _renyibound_v1_Certificate, Certificate__Output as 
 import type { InfeasibilityCertificate as _renyibound_v1_InfeasibilityCertificate, InfeasibilityCertificate__Output as _renyibound_v1_InfeasibilityCertificate__Output } from '../../renyibound/v1/InfeasibilityCertificate.js';
 import type { Matrix as _renyibound_v1_Matrix, Matrix__Output as _renyibound_v1_Matrix__Output } from '../../renyibound/v1/Matrix.js';
 import type { NoProgressCause as _renyibound_v1_NoProgressCause, NoProgressCause__Output as _renyibound_v1_NoProgressCause__Output } from '../../renyibound/v1/NoProgressCause.js';
+import type { MinTradeoffFunction as _renyibound_v1_MinTradeoffFunction, MinTradeoffFunction__Output as _renyibound_v1_MinTradeoffFunction__Output } from '../../renyibound/v1/MinTradeoffFunction.js';
 
 export interface SolveResult {
   'status'?: (_renyibound_v1_SolveStatus);
@@ -34,6 +35,7 @@ export interface SolveResult {
   'trivialBoundUsed'?: (boolean);
   'notes'?: (string)[];
   'noProgressCause'?: (_renyibound_v1_NoProgressCause);
+  'minTradeoff'?: (_renyibound_v1_MinTradeoffFunction | null);
   '_alpha'?: "alpha";
   '_certifiedLowerBound'?: "certifiedLowerBound";
   '_upperBound'?: "upperBound";
@@ -70,6 +72,7 @@ export interface SolveResult__Output {
   'trivialBoundUsed': (boolean);
   'notes': (string)[];
   'noProgressCause': (_renyibound_v1_NoProgressCause__Output);
+  'minTradeoff': (_renyibound_v1_MinTradeoffFunction__Output | null);
   '_alpha'?: "alpha";
   '_certifiedLowerBound'?: "certifiedLowerBound";
   '_upperBound'?: "upperBound";
