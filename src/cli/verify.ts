@@ -12,12 +12,12 @@ import { addClientSecurityOptions, type SecurityCommandOptions } from './securit
 export function register(program: Command): void {
   addClientSecurityOptions(program
     .command('verify')
-    .description('re-check the certificate of a solve result against its problem')
-    .argument('<result>', 'result JSON as printed by solve, or - for standard input')
-    .requiredOption('--problem <problem.json>', 'the problem the result claims to bound')
+    .description('re-check the certificate of a solve result against its problem, or a decoy-rate answer on its own')
+    .argument('<result>', 'result JSON as printed by solve (or by decoy-rate), or - for standard input')
+    .option('--problem <problem.json>', 'the problem the result claims to bound (not for a decoy-rate answer)')
     .option('--server <servers>', `re-check on running renyi-bound server(s) instead of here: ${SERVER_OPTION_HELP}`))
     .action(
-      withInputErrors(async (resultSource: string, options: { problem: string; server?: string } & SecurityCommandOptions) => {
+      withInputErrors(async (resultSource: string, options: { problem?: string; server?: string } & SecurityCommandOptions) => {
         const { verifyResult } = await import('../certificate/verify.js');
         const { problemFromJson } = await import('../problem/validate.js');
         const { entropyRequestFrom } = await import('../problem/entropy-request.js');
@@ -30,6 +30,14 @@ export function register(program: Command): void {
               'then verify result.json --problem with the problem file',
           );
         }
+        // A decoy-rate answer carries its LP certificates and its single-photon problem (docs/decoy.md).
+        if ('singlePhoton' in result && options.problem === undefined && options.server === undefined) {
+          const report = (await import('../decoy/verify-rate.js')).verifyDecoyRate(result);
+          printJson(report);
+          process.exitCode = report.valid ? 0 : 1;
+          return;
+        }
+        if (options.problem === undefined) throw new ValidationError('problem', 'is required to verify a solve result (--problem <problem.json>)');
         const problemJson = readJsonInput(options.problem, 'problem');
         if (options.server !== undefined) {
           printJson(await verifyOnServer(serversOption(options.server), problemJson, result as SolveResult, options));

@@ -1,7 +1,7 @@
 // Single-photon yield and error-yield intervals in each basis from the observed gains, each end an LP certified
 // by its dual (docs/decoy.md, "Photon-number LP").
 import highsLoader, { type Highs } from 'highs';
-import { certifiedLpBound, photonLp, type CertifiedLpBound } from './photon-lp.js';
+import { certifiedLpBound, errorRateUpper, photonLp, type CertifiedLpBound } from './photon-lp.js';
 
 export type Basis = 'Z' | 'X';
 export const BASES: readonly Basis[] = ['Z', 'X'];
@@ -61,7 +61,7 @@ export function basisBounds(highs: Highs, basis: Basis, observations: readonly I
     yieldUpper,
     errorYieldLower,
     errorYieldUpper,
-    errorRateUpper: yieldLower > 0 ? Math.min(1, errorYieldUpper / yieldLower) : 1,
+    errorRateUpper: errorRateUpper(errorYieldUpper, yieldLower),
     certificates,
   };
 }

@@ -8,7 +8,9 @@ import type { EntropyRequest } from '../problem/model.js';
 import { problemFromJson } from '../problem/validate.js';
 import { BASES, basisBounds, DEFAULT_CUTOFF, type Basis, type BasisBounds, type IntensityObservation } from './bounds.js';
 import { binaryEntropy, expectedGain, photonYield, type ChannelParameters } from './channel.js';
-import { singlePhotonProblem } from './single-photon.js';
+import { analyticSinglePhoton, leakageOf, ratePerPulse, signalObservation, singlePhotonFraction } from './rate-terms.js';
+import { scalesExactly, singlePhotonProblem, unscaledBound, yieldScale } from './single-photon.js';
+import type { ProblemJson } from '../problem/json.js';
 
 /** The protocol as run: intensities, basis choice, error-correction efficiency. */
 export interface DecoyProtocol {
@@ -42,9 +44,18 @@ export interface DecoyRateResult {
   singlePhotonErrorUpper: number;
   /** P(n = 1 | μ) = μe^{−μ}. */
   singlePhotonFraction: number;
-  /** Certified single-photon entropy per single-photon pulse, and the solver's full result. */
+  /** Certified single-photon entropy per single-photon pulse: singlePhoton.certifiedLowerBound mapped back from the scaled problem. */
   singlePhotonBound: number | null;
+  /** The solver's upper bound mapped back the same way (F at a feasible state: the minimum lies in between). */
+  singlePhotonUpperBound: number | null;
+  /** The solver's full result for singlePhotonProblem (whose yields are divided by singlePhotonScale). */
   singlePhoton: SolveResult;
+  /** The single-photon problem as solved (protobuf JSON): `renyi-bound verify` re-checks the certificate against it. */
+  singlePhotonProblem: ProblemJson;
+  /** Power of two s: the problem's yields are the decoy bounds divided by s (1 for sandwiched-up; docs/decoy.md). */
+  singlePhotonScale: number;
+  /** The gains the LP bounds were computed from, per basis (simulated from the channel, or observed). */
+  observations: Record<Basis, IntensityObservation[]>;
   /** analyticSinglePhoton(): the von Neumann value by Shor–Preskill / GLLP, for comparison only. */
   analyticSinglePhotonBound: number;
   /** p_Z²·Q_μ·f·h(E_μ) in the Z basis. */
@@ -73,8 +84,13 @@ export function analyseDecoy(
   const entropy = options.entropy ?? { kind: 'von-neumann' };
   const bases = { Z: basisBounds(highs, 'Z', observations.Z, cutoff), X: basisBounds(highs, 'X', observations.X, cutoff) };
   const pz = protocol.zBasisProbability;
-  const keyWeight = pz * pz * bases.Z.yieldLower;
-  const problem = problemFromJson(singlePhotonProblem(bases, pz));
+  // The problem is solved with its yields magnified to order one (exact; docs/decoy.md, "Scaling of the single-photon problem").
+  const scale = scalesExactly(entropy) ? yieldScale(bases) : 1;
+  // The gap is asked relative to the key-branch weight; with no single-photon detection certified (Y₁ᴸ = 0, the
+  // bound is then 0) relative to its largest possible value, since 1e-12 absolute would only run into the limits.
+  const keyWeight = (pz * pz * (bases.Z.yieldLower > 0 ? bases.Z.yieldLower : bases.Z.yieldUpper)) / scale;
+  const problemJson = singlePhotonProblem(bases, pz, scale);
+  const problem = problemFromJson(problemJson);
   const settings: Partial<SolverSettings> = {
     gapTolerance: Math.min(1, Math.max(1e-12, DEFAULT_RELATIVE_GAP * keyWeight)),
     timeLimitMs: DEFAULT_SINGLE_PHOTON_TIME_LIMIT_MS,
@@ -83,15 +99,19 @@ export function analyseDecoy(
   const singlePhoton = solve(problem, entropy, settings);
   const signalRow = signalObservation(protocol, observations);
   const { leakage, errorRate: signalErrorRate } = leakageOf(protocol, signalRow);
-  const singlePhotonFraction = protocol.signal * Math.exp(-protocol.signal);
-  const bound = singlePhoton.certifiedLowerBound;
+  const fraction = singlePhotonFraction(protocol.signal);
+  const bound = singlePhoton.certifiedLowerBound === null ? null : unscaledBound(entropy, singlePhoton.certifiedLowerBound, scale);
   return {
-    ratePerPulse: bound === null ? null : singlePhotonFraction * bound - leakage,
+    ratePerPulse: bound === null ? null : ratePerPulse(fraction, bound, leakage),
     singlePhotonYieldLower: bases.Z.yieldLower,
     singlePhotonErrorUpper: bases.X.errorRateUpper,
-    singlePhotonFraction,
+    singlePhotonFraction: fraction,
     singlePhotonBound: bound,
     singlePhoton,
+    singlePhotonUpperBound: singlePhoton.upperBound === null ? null : unscaledBound(entropy, singlePhoton.upperBound, scale, 'upper'),
+    singlePhotonProblem: problemJson,
+    singlePhotonScale: scale,
+    observations,
     analyticSinglePhotonBound: analyticSinglePhoton(bases, pz),
     leakage,
     signalGain: signalRow.gain,
@@ -103,35 +123,11 @@ export function analyseDecoy(
   };
 }
 
-/**
- * p_Z²·Y·(1 − h(e)) with Y = max(Y₁ᴸ_Z, Y₁ᴸ_X) (the source fixes one single-photon yield for both bases) and
- * e = (e₁Y₁)ᵁ_X / Y: the von Neumann value of the single-photon problem by Shor–Preskill / GLLP.
- */
-export function analyticSinglePhoton(bases: Record<Basis, BasisBounds>, zBasisProbability: number): number {
-  const y = Math.max(bases.Z.yieldLower, bases.X.yieldLower);
-  if (y <= 0) return 0;
-  const e = Math.min(0.5, bases.X.errorYieldUpper / y);
-  return zBasisProbability * zBasisProbability * y * (1 - binaryEntropy(e));
-}
-
-/** Leakage p_Z²·Q_μ·f·h(E_μ) of the Z-basis signal detections. */
-function leakageOf(protocol: DecoyProtocol, signalRow: IntensityObservation): { leakage: number; errorRate: number } {
-  const errorRate = signalRow.gain > 0 ? signalRow.errorGain / signalRow.gain : 0;
-  const pz = protocol.zBasisProbability;
-  return { leakage: pz * pz * signalRow.gain * protocol.ecEfficiency * binaryEntropy(errorRate), errorRate };
-}
-
-function signalObservation(protocol: DecoyProtocol, observations: Record<Basis, IntensityObservation[]>): IntensityObservation {
-  const row = observations.Z.find((o) => o.intensity === protocol.signal);
-  if (row === undefined) throw new RangeError(`no Z-basis observation at the signal intensity ${protocol.signal}`);
-  return row;
-}
-
 /** The rate with the analytic single-photon term (von Neumann): fast, for sweeps and uncertainty bands. */
 export function analyticRate(highs: Highs, protocol: DecoyProtocol, observations: Record<Basis, IntensityObservation[]>, cutoff = DEFAULT_CUTOFF): number {
   const bases = { Z: basisBounds(highs, 'Z', observations.Z, cutoff), X: basisBounds(highs, 'X', observations.X, cutoff) };
   const { leakage } = leakageOf(protocol, signalObservation(protocol, observations));
-  return protocol.signal * Math.exp(-protocol.signal) * analyticSinglePhoton(bases, protocol.zBasisProbability) - leakage;
+  return ratePerPulse(singlePhotonFraction(protocol.signal), analyticSinglePhoton(bases, protocol.zBasisProbability), leakage);
 }
 
 /** The infinite-decoy limit: the true Y₁ and e₁ of the channel in place of their bounds (Lo, Ma, Chen 2005). */
@@ -140,7 +136,7 @@ export function infiniteDecoyRate(channel: ChannelParameters, protocol: DecoyPro
   const pz = protocol.zBasisProbability;
   const single = pz * pz * y1 * (1 - binaryEntropy(Math.min(0.5, errorYield / y1)));
   const { leakage } = leakageOf(protocol, { intensity: protocol.signal, ...expectedGain(channel, protocol.signal) });
-  return protocol.signal * Math.exp(-protocol.signal) * single - leakage;
+  return ratePerPulse(singlePhotonFraction(protocol.signal), single, leakage);
 }
 
-export { BASES };
+export { BASES, analyticSinglePhoton };

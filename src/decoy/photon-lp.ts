@@ -153,3 +153,8 @@ export function certifiedLpBound(highs: Highs, lp: PhotonLp): CertifiedLpBound {
     margin,
   };
 }
+
+/** e₁ ≤ (e₁Y₁)ᵁ / Y₁ᴸ, rounded upward (the quotient's rounding is covered by the factor 1 + 4u), capped at 1. */
+export function errorRateUpper(errorYieldUpper: number, yieldLower: number): number {
+  return yieldLower > 0 ? Math.min(1, (errorYieldUpper / yieldLower) * (1 + 4 * UNIT_ROUNDOFF)) : 1;
+}

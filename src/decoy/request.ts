@@ -8,7 +8,6 @@ import { checkChannel, type ChannelParameters } from './channel.js';
 import { observedGains, type MeasuredCounts } from './counts.js';
 import { fitChannel, type ChannelFit } from './fit.js';
 import { analyseDecoy, simulatedObservations, type DecoyProtocol, type DecoyRateResult } from './key-rate.js';
-import { singlePhotonProblem } from './single-photon.js';
 import { sweepDistance, type SweepPoint } from './sweep.js';
 
 export const CAUTION =
@@ -38,8 +37,6 @@ export interface DecoyRateAnswer extends Partial<DecoyRateResult> {
   session?: { index: number; label: string; distanceKm: number };
   fit?: ChannelFit;
   sweep?: SweepPoint[];
-  /** The single-photon problem as protobuf JSON, so `renyi-bound verify` can re-check the certificate. */
-  singlePhotonProblem?: unknown;
   caution: string;
 }
 
@@ -62,10 +59,6 @@ export function checkProtocol(protocol: DecoyProtocol, names = { signal: 'signal
     throw new ValidationError(names.zBasisProbability, `must lie in (0, 1) (got ${protocol.zBasisProbability})`);
   }
   if (!(protocol.ecEfficiency >= 1 && protocol.ecEfficiency <= 10)) throw new ValidationError(names.ecEfficiency, `must lie in [1, 10] (got ${protocol.ecEfficiency})`);
-}
-
-function pointAnswer(result: DecoyRateResult, protocol: DecoyProtocol): Partial<DecoyRateAnswer> {
-  return { ...result, singlePhotonProblem: singlePhotonProblem(result.bases, protocol.zBasisProbability) };
 }
 
 export function decoyRate(highs: Highs, request: DecoyRateRequest): DecoyRateAnswer {
@@ -94,7 +87,7 @@ export function decoyRate(highs: Highs, request: DecoyRateRequest): DecoyRateAns
       source: 'counts',
       protocol,
       session: { index, label: session.label, distanceKm: session.distanceKm },
-      ...pointAnswer(result, protocol),
+      ...result,
       caution: CAUTION,
     };
   }
@@ -106,5 +99,5 @@ export function decoyRate(highs: Highs, request: DecoyRateRequest): DecoyRateAns
     return { source: 'channel', channel: request.channel, protocol: request.protocol, sweep, caution: CAUTION };
   }
   const result = analyseDecoy(highs, request.protocol, simulatedObservations(request.channel, request.protocol), options);
-  return { source: 'channel', channel: request.channel, protocol: request.protocol, ...pointAnswer(result, request.protocol), caution: CAUTION };
+  return { source: 'channel', channel: request.channel, protocol: request.protocol, ...result, caution: CAUTION };
 }

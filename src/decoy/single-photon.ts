@@ -7,6 +7,8 @@ import { SENT_STATES, sendingProbabilities } from '../protocols/bb84-prepare-mea
 import { buildExample } from '../protocols/index.js';
 import { projectorOnto } from '../protocols/operators.js';
 import type { Basis, BasisBounds } from './bounds.js';
+import type { EntropyRequest } from '../problem/model.js';
+import { UNIT_ROUNDOFF } from '../linear-algebra/rounding.js';
 
 /** Alice's register entries of a basis: |0⟩,|1⟩ for Z and |+⟩,|−⟩ for X. */
 const REGISTER: Record<Basis, readonly [number, number]> = { Z: [0, 1], X: [2, 3] };
@@ -38,11 +40,56 @@ function errorOperator(basis: Basis): ComplexMatrix {
 }
 
 /**
- * The problem: ρ_AB with ρ_A fixed by the source, Tr[(P_b ⊗ Π_click)ρ] ∈ p_b·[Y₁ᴸ, Y₁ᵁ] and
- * Tr[(error_b)ρ] ∈ p_b·[(e₁Y₁)ᴸ, (e₁Y₁)ᵁ] in both bases; key branch "Z sent, Z measured, click".
- * Its value is the entropy per single-photon pulse (the key-branch probability p_Z²Y₁ included).
+ * The power of two s ≤ 1 by which the problem's yields and error yields are divided, so that the click block of the
+ * optimum has trace in (1/4, 1/2] instead of ≈ Y₁ (docs/decoy.md, "Scaling of the single-photon problem"). Exact:
+ * every feasible click block σ of trace ≤ 1/2 has σ_A ≤ ρ_A, and the objective depends on the click block alone
+ * (see unscaledBound for how the value maps back).
  */
-export function singlePhotonProblem(bounds: Record<Basis, BasisBounds>, zBasisProbability: number): ProblemJson {
+export function yieldScale(bounds: Record<Basis, Pick<BasisBounds, 'yieldUpper'>>): number {
+  const largestYield = Math.max(bounds.Z.yieldUpper, bounds.X.yieldUpper);
+  if (!(largestYield > 0)) return 1;
+  let scale = 2 ** Math.ceil(Math.log2(2 * largestYield));
+  while (scale < 2 * largestYield) scale *= 2; // log2 may round down just above a power of two
+  return Math.min(1, scale);
+}
+
+/** Kinds whose value on the original problem follows exactly from the scaled one (the sandwiched-up kind does not). */
+export function scalesExactly(request: EntropyRequest): boolean {
+  return request.kind === 'von-neumann' || request.kind === 'petz-up' || request.kind === 'petz-down';
+}
+
+/** Relative allowance for the few roundings of the Petz transform in unscaledBound (its condition number is ≈ 1). */
+const TRANSFORM_ROUNDINGS = 64;
+
+/**
+ * A lower (or upper) bound v on the scaled problem's minimum → one on the original problem's (docs/decoy.md,
+ * "Scaling"). von Neumann is homogeneous: s·v, exact for a power of two. The Petz kinds are c·log₂ S with c < 0
+ * (c = α/(1−α) up, 1/(1−α) down) and S = Q_key(σ) + Tr(no-key output) = Q_key(σ) + 1 − T_key(σ), both terms
+ * homogeneous in the click block σ, so S_original = 1 + s·(S_scaled − 1): the map v ↦ c·log₂(1 + s(2^{v/c} − 1)) is
+ * increasing and sends the scaled minimum to the original one. Its roundings are paid by a relative allowance.
+ */
+export function unscaledBound(request: EntropyRequest, value: number, scale: number, side: 'lower' | 'upper' = 'lower'): number {
+  if (scale === 1) return value;
+  if (request.kind === 'von-neumann') return scale * value;
+  if (!scalesExactly(request)) throw new RangeError(`${request.kind} has no exact scaling`);
+  const alpha = request.alpha as number;
+  const c = request.kind === 'petz-up' ? alpha / (1 - alpha) : 1 / (1 - alpha);
+  const mapped = (c * Math.log1p(scale * Math.expm1((value / c) * Math.LN2))) / Math.LN2;
+  const allowance = TRANSFORM_ROUNDINGS * UNIT_ROUNDOFF * Math.abs(mapped);
+  return side === 'lower' ? mapped - allowance : mapped + allowance;
+}
+
+/**
+ * The problem: ρ_AB with ρ_A fixed by the source, Tr[(P_b ⊗ Π_click)ρ] ∈ p_b·[Y₁ᴸ, Y₁ᵁ]/s and
+ * Tr[(error_b)ρ] ∈ p_b·[(e₁Y₁)ᴸ, (e₁Y₁)ᵁ]/s in both bases; key branch "Z sent, Z measured, click".
+ * With s = 1 its value is the entropy per single-photon pulse (the key-branch probability p_Z²Y₁ included); with
+ * a scale s from yieldScale, unscaledBound maps its value back. s must be a power of two (exact division).
+ */
+export function singlePhotonProblem(bounds: Record<Basis, Omit<BasisBounds, 'certificates'>>, zBasisProbability: number, scale = 1): ProblemJson {
+  if (!(scale > 0 && scale <= 1 && Number.isInteger(Math.log2(scale)))) throw new RangeError(`yield scale must be a power of two in (0, 1] (got ${scale})`);
+  if (scale < 1 && 2 * Math.max(bounds.Z.yieldUpper, bounds.X.yieldUpper) > scale) {
+    throw new RangeError(`yield scale ${scale} is below twice the largest single-photon yield: the scaled problem would not be exact`);
+  }
   const sending = sendingProbabilities(zBasisProbability);
   const basisProbability: Record<Basis, number> = { Z: sending[0] + sending[1], X: sending[2] + sending[3] };
   const constraints: LinearConstraintJson[] = [];
@@ -53,14 +100,14 @@ export function singlePhotonProblem(bounds: Record<Basis, BasisBounds>, zBasisPr
     constraints.push({
       label: `single-photon yield, basis ${basis}`,
       operator: matrixToJson(detectionOperator(basis)),
-      lower: p * b.yieldLower,
-      upper: p * b.yieldUpper,
+      lower: (p * b.yieldLower) / scale,
+      upper: (p * b.yieldUpper) / scale,
     });
     constraints.push({
       label: `single-photon error yield, basis ${basis}`,
       operator: matrixToJson(errorOperator(basis)),
-      lower: p * b.errorYieldLower,
-      upper: p * b.errorYieldUpper,
+      lower: (p * b.errorYieldLower) / scale,
+      upper: (p * b.errorYieldUpper) / scale,
     });
   }
   // Source marginal, Bob's qubit + vacuum and the key/no-key branches are those of the lossy single-photon
@@ -75,6 +122,8 @@ export function singlePhotonProblem(bounds: Record<Basis, BasisBounds>, zBasisPr
     sourceMarginal,
     constraints,
     branches,
-    description: `decoy-state BB84 single-photon rounds, Z-basis probability ${zBasisProbability}; value per single-photon pulse`,
+    description:
+      `decoy-state BB84 single-photon rounds, Z-basis probability ${zBasisProbability}; ` +
+      (scale === 1 ? 'value per single-photon pulse' : `yields divided by ${scale} (the value maps back to the single-photon pulse exactly)`),
   };
 }

@@ -14,6 +14,7 @@ import { verifyInfeasibility, verifyResult } from '../certificate/verify.js';
 import { ValidationError } from '../problem/errors.js';
 import { expandGrid, expandRequestList, runBatch, solveInputFromWire, type BatchPoint } from './batch.js';
 import { decoyRateHandler } from './decoy-rate.js';
+import { verifyDecoyRateHandler } from './decoy-rate-verify.js';
 import { toServiceError } from './errors.js';
 import { guardRequests, malformedReason, receivedAt } from './guarded-service.js';
 import { DEFAULT_MAX_MESSAGE_BYTES, TRANSPORT_CAP_FACTOR } from './message-size.js';
@@ -237,6 +238,7 @@ export class RenyiBoundServer {
       KeyLength: (call, callback) => void handleKeyLength(call, callback, this.coordinator),
       KeyLengthStream: (call) => void handleKeyLengthStream(call, this.coordinator),
       DecoyRate: decoyRateHandler(),
+      VerifyDecoyRate: verifyDecoyRateHandler,
     };
     return refuseMalformed(handlers);
   }

@@ -10,8 +10,8 @@ import { packageRoot } from '../../src/problem/proto-options.js';
 
 const root = packageRoot();
 const dir = mkdtempSync(join(tmpdir(), 'renyi-bound-decoy-'));
-function run(args: string[]) {
-  const r = spawnSync(process.execPath, ['--import', 'tsx', join(root, 'src/cli/main.ts'), 'decoy-rate', ...args], { cwd: root, encoding: 'utf8' });
+function run(args: string[], command = 'decoy-rate') {
+  const r = spawnSync(process.execPath, ['--import', 'tsx', join(root, 'src/cli/main.ts'), command, ...args], { cwd: root, encoding: 'utf8' });
   return { status: r.status, stdout: r.stdout, stderr: r.stderr };
 }
 
@@ -29,6 +29,23 @@ describe('decoy-rate', () => {
     expect(answer.singlePhoton.certifiedLowerBound).toBeGreaterThan(0);
     expect(answer.singlePhoton.certificate).not.toBeNull();
     expect(answer.caution).toMatch(/not a security claim/);
+  }, 120_000);
+
+  it('an answer saved to a file verifies with `verify <file>`; a tampered rate is invalid, exit 1, with the reason', () => {
+    const { status, stdout } = run(['--distance-km', '75']);
+    expect(status).toBe(0);
+    const answer = JSON.parse(stdout) as { ratePerPulse: number; singlePhoton: { status: string } };
+    expect(answer.singlePhoton.status).toBe('CERTIFIED');
+    const file = join(dir, 'answer-75km.json');
+    writeFileSync(file, stdout);
+    const good = run([file], 'verify');
+    expect(good.stderr).toBe('');
+    expect(good.status).toBe(0);
+    expect(JSON.parse(good.stdout)).toMatchObject({ valid: true });
+    writeFileSync(file, JSON.stringify({ ...answer, ratePerPulse: answer.ratePerPulse * 1.01 }));
+    const bad = run([file], 'verify');
+    expect(bad.status).toBe(1);
+    expect(JSON.parse(bad.stdout)).toMatchObject({ valid: false, reason: expect.stringMatching(/^ratePerPulse: states/) });
   }, 120_000);
 
   it('--fit with --sweep-distance and --plot writes an SVG with a log axis and prints the fit', () => {

@@ -5,7 +5,7 @@ import type { Highs } from 'highs';
 import { ComplexMatrix } from '../../src/linear-algebra/complex-matrix.js';
 import { basisBounds, lpSolver } from '../../src/decoy/bounds.js';
 import { expectedGain, photonYield } from '../../src/decoy/channel.js';
-import { singlePhotonProblem } from '../../src/decoy/single-photon.js';
+import { singlePhotonProblem, yieldScale } from '../../src/decoy/single-photon.js';
 import { maxConstraintViolation } from '../../src/problem/violation.js';
 import { problemFromJson } from '../../src/problem/validate.js';
 
@@ -49,6 +49,13 @@ beforeAll(async () => {
 });
 
 describe('single-photon problem', () => {
+  it('refuses a yield scale that is not a power of two, or too small for the scaled problem to be exact', () => {
+    const rows = [0.48, 0.1, 0].map((intensity) => ({ intensity, ...expectedGain({ distanceKm: 50, ...GYS }, intensity) }));
+    const bounds = { Z: basisBounds(highs, 'Z', rows), X: basisBounds(highs, 'X', rows) };
+    expect(() => singlePhotonProblem(bounds, 0.5, 0.3)).toThrow(/power of two/);
+    expect(() => singlePhotonProblem(bounds, 0.5, yieldScale(bounds) / 2)).toThrow(/not be exact/);
+  });
+
   for (const [distanceKm, pz] of [
     [0, 0.5],
     [60, 0.7],
@@ -62,6 +69,12 @@ describe('single-photon problem', () => {
       const problem = problemFromJson(singlePhotonProblem(bounds, pz));
       const rho = trueState(pz, truth.yield, truth.errorYield / truth.yield);
       expect(maxConstraintViolation(problem, rho)).toBeLessThan(1e-12);
+      // The scaled problem (yields divided by s) holds the same channel with its click probability divided by s.
+      const s = yieldScale(bounds);
+      expect(s).toBeGreaterThanOrEqual(2 * Math.max(bounds.Z.yieldUpper, bounds.X.yieldUpper));
+      expect(s).toBeLessThan(4 * Math.max(bounds.Z.yieldUpper, bounds.X.yieldUpper));
+      const scaled = problemFromJson(singlePhotonProblem(bounds, pz, s));
+      expect(maxConstraintViolation(scaled, trueState(pz, truth.yield / s, truth.errorYield / truth.yield))).toBeLessThan(1e-12);
     });
   }
 });

@@ -45,6 +45,8 @@ import type { SolveRequestList as _renyibound_v1_SolveRequestList, SolveRequestL
 import type { SolveResult as _renyibound_v1_SolveResult, SolveResult__Output as _renyibound_v1_SolveResult__Output } from './renyibound/v1/SolveResult.js';
 import type { SolverSettings as _renyibound_v1_SolverSettings, SolverSettings__Output as _renyibound_v1_SolverSettings__Output } from './renyibound/v1/SolverSettings.js';
 import type { VariableLengthRule as _renyibound_v1_VariableLengthRule, VariableLengthRule__Output as _renyibound_v1_VariableLengthRule__Output } from './renyibound/v1/VariableLengthRule.js';
+import type { VerifyDecoyRateReply as _renyibound_v1_VerifyDecoyRateReply, VerifyDecoyRateReply__Output as _renyibound_v1_VerifyDecoyRateReply__Output } from './renyibound/v1/VerifyDecoyRateReply.js';
+import type { VerifyDecoyRateRequest as _renyibound_v1_VerifyDecoyRateRequest, VerifyDecoyRateRequest__Output as _renyibound_v1_VerifyDecoyRateRequest__Output } from './renyibound/v1/VerifyDecoyRateRequest.js';
 import type { VerifyReply as _renyibound_v1_VerifyReply, VerifyReply__Output as _renyibound_v1_VerifyReply__Output } from './renyibound/v1/VerifyReply.js';
 import type { VerifyRequest as _renyibound_v1_VerifyRequest, VerifyRequest__Output as _renyibound_v1_VerifyRequest__Output } from './renyibound/v1/VerifyRequest.js';
 
@@ -102,6 +104,8 @@ export interface ProtoGrpcType {
       SolverSettings: MessageTypeDefinition<_renyibound_v1_SolverSettings, _renyibound_v1_SolverSettings__Output>
       StopLimit: EnumTypeDefinition
       VariableLengthRule: MessageTypeDefinition<_renyibound_v1_VariableLengthRule, _renyibound_v1_VariableLengthRule__Output>
+      VerifyDecoyRateReply: MessageTypeDefinition<_renyibound_v1_VerifyDecoyRateReply, _renyibound_v1_VerifyDecoyRateReply__Output>
+      VerifyDecoyRateRequest: MessageTypeDefinition<_renyibound_v1_VerifyDecoyRateRequest, _renyibound_v1_VerifyDecoyRateRequest__Output>
       VerifyReply: MessageTypeDefinition<_renyibound_v1_VerifyReply, _renyibound_v1_VerifyReply__Output>
       VerifyRequest: MessageTypeDefinition<_renyibound_v1_VerifyRequest, _renyibound_v1_VerifyRequest__Output>
     }

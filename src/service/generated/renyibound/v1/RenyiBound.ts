@@ -13,6 +13,8 @@ import type { ListExamplesReply as _renyibound_v1_ListExamplesReply, ListExample
 import type { ListExamplesRequest as _renyibound_v1_ListExamplesRequest, ListExamplesRequest__Output as _renyibound_v1_ListExamplesRequest__Output } from '../../renyibound/v1/ListExamplesRequest.js';
 import type { SolveReply as _renyibound_v1_SolveReply, SolveReply__Output as _renyibound_v1_SolveReply__Output } from '../../renyibound/v1/SolveReply.js';
 import type { SolveRequest as _renyibound_v1_SolveRequest, SolveRequest__Output as _renyibound_v1_SolveRequest__Output } from '../../renyibound/v1/SolveRequest.js';
+import type { VerifyDecoyRateReply as _renyibound_v1_VerifyDecoyRateReply, VerifyDecoyRateReply__Output as _renyibound_v1_VerifyDecoyRateReply__Output } from '../../renyibound/v1/VerifyDecoyRateReply.js';
+import type { VerifyDecoyRateRequest as _renyibound_v1_VerifyDecoyRateRequest, VerifyDecoyRateRequest__Output as _renyibound_v1_VerifyDecoyRateRequest__Output } from '../../renyibound/v1/VerifyDecoyRateRequest.js';
 import type { VerifyReply as _renyibound_v1_VerifyReply, VerifyReply__Output as _renyibound_v1_VerifyReply__Output } from '../../renyibound/v1/VerifyReply.js';
 import type { VerifyRequest as _renyibound_v1_VerifyRequest, VerifyRequest__Output as _renyibound_v1_VerifyRequest__Output } from '../../renyibound/v1/VerifyRequest.js';
 
@@ -72,6 +74,15 @@ export interface RenyiBoundClient extends grpc.Client {
   verify(argument: _renyibound_v1_VerifyRequest, options: grpc.CallOptions, callback: grpc.requestCallback<_renyibound_v1_VerifyReply__Output>): grpc.ClientUnaryCall;
   verify(argument: _renyibound_v1_VerifyRequest, callback: grpc.requestCallback<_renyibound_v1_VerifyReply__Output>): grpc.ClientUnaryCall;
   
+  VerifyDecoyRate(argument: _renyibound_v1_VerifyDecoyRateRequest, metadata: grpc.Metadata, options: grpc.CallOptions, callback: grpc.requestCallback<_renyibound_v1_VerifyDecoyRateReply__Output>): grpc.ClientUnaryCall;
+  VerifyDecoyRate(argument: _renyibound_v1_VerifyDecoyRateRequest, metadata: grpc.Metadata, callback: grpc.requestCallback<_renyibound_v1_VerifyDecoyRateReply__Output>): grpc.ClientUnaryCall;
+  VerifyDecoyRate(argument: _renyibound_v1_VerifyDecoyRateRequest, options: grpc.CallOptions, callback: grpc.requestCallback<_renyibound_v1_VerifyDecoyRateReply__Output>): grpc.ClientUnaryCall;
+  VerifyDecoyRate(argument: _renyibound_v1_VerifyDecoyRateRequest, callback: grpc.requestCallback<_renyibound_v1_VerifyDecoyRateReply__Output>): grpc.ClientUnaryCall;
+  verifyDecoyRate(argument: _renyibound_v1_VerifyDecoyRateRequest, metadata: grpc.Metadata, options: grpc.CallOptions, callback: grpc.requestCallback<_renyibound_v1_VerifyDecoyRateReply__Output>): grpc.ClientUnaryCall;
+  verifyDecoyRate(argument: _renyibound_v1_VerifyDecoyRateRequest, metadata: grpc.Metadata, callback: grpc.requestCallback<_renyibound_v1_VerifyDecoyRateReply__Output>): grpc.ClientUnaryCall;
+  verifyDecoyRate(argument: _renyibound_v1_VerifyDecoyRateRequest, options: grpc.CallOptions, callback: grpc.requestCallback<_renyibound_v1_VerifyDecoyRateReply__Output>): grpc.ClientUnaryCall;
+  verifyDecoyRate(argument: _renyibound_v1_VerifyDecoyRateRequest, callback: grpc.requestCallback<_renyibound_v1_VerifyDecoyRateReply__Output>): grpc.ClientUnaryCall;
+  
 }
 
 export interface RenyiBoundHandlers extends grpc.UntypedServiceImplementation {
@@ -89,6 +100,8 @@ export interface RenyiBoundHandlers extends grpc.UntypedServiceImplementation {
   
   Verify: grpc.handleUnaryCall<_renyibound_v1_VerifyRequest__Output, _renyibound_v1_VerifyReply>;
   
+  VerifyDecoyRate: grpc.handleUnaryCall<_renyibound_v1_VerifyDecoyRateRequest__Output, _renyibound_v1_VerifyDecoyRateReply>;
+  
 }
 
 export interface RenyiBoundDefinition extends grpc.ServiceDefinition {
@@ -99,4 +112,5 @@ export interface RenyiBoundDefinition extends grpc.ServiceDefinition {
   Solve: MethodDefinition<_renyibound_v1_SolveRequest, _renyibound_v1_SolveReply, _renyibound_v1_SolveRequest__Output, _renyibound_v1_SolveReply__Output>
   SolveBatch: MethodDefinition<_renyibound_v1_BatchRequest, _renyibound_v1_BatchItem, _renyibound_v1_BatchRequest__Output, _renyibound_v1_BatchItem__Output>
   Verify: MethodDefinition<_renyibound_v1_VerifyRequest, _renyibound_v1_VerifyReply, _renyibound_v1_VerifyRequest__Output, _renyibound_v1_VerifyReply__Output>
+  VerifyDecoyRate: MethodDefinition<_renyibound_v1_VerifyDecoyRateRequest, _renyibound_v1_VerifyDecoyRateReply, _renyibound_v1_VerifyDecoyRateRequest__Output, _renyibound_v1_VerifyDecoyRateReply__Output>
 }
