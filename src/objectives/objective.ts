@@ -16,6 +16,7 @@ import { petzDownQuasiEntropy } from './petz-down.js';
 import { petzUpQuasiEntropy } from './petz-up.js';
 import {
   DEFAULT_REFERENCE_SETTINGS,
+  referenceSettingsFor,
   optimalReference,
   sandwichedBranchTerm,
   type ReferenceBlocks,
@@ -116,9 +117,10 @@ export function normaliseRequest(request: EntropyRequest): Required<EntropyReque
 export function createObjective(
   problem: Problem,
   request: EntropyRequest,
-  referenceSettings: ReferenceSettings = DEFAULT_REFERENCE_SETTINGS,
+  referenceSettings?: ReferenceSettings,
 ): Objective {
-  return new EntropyObjective(problem, normaliseRequest(request), referenceSettings);
+  const normalised = normaliseRequest(request);
+  return new EntropyObjective(problem, normalised, referenceSettings ?? referenceSettingsFor(normalised.alpha));
 }
 
 class EntropyObjective implements Objective {

@@ -102,6 +102,16 @@ const STAGNATION_WINDOW = 30;
 
 export const DEFAULT_REFERENCE_SETTINGS: ReferenceSettings = { relativeTolerance: 1e-10, maxIterations: 2000 };
 
+/**
+ * The inner tolerance for Rényi order α: its error reaches F multiplied by (2α−1)/((α−1)·ln 2), so below α = 1.5 the
+ * tolerance shrinks with (α−1)/(2α−1) to keep F's share of it at the α = 1.5 level (≈ 6e-10; docs/convergence.md).
+ */
+export function referenceSettingsFor(alpha: number): ReferenceSettings {
+  const amplificationAt15 = 0.5 / 2;
+  const share = Math.min(1, (alpha - 1) / (2 * alpha - 1) / amplificationAt15);
+  return { ...DEFAULT_REFERENCE_SETTINGS, relativeTolerance: DEFAULT_REFERENCE_SETTINGS.relativeTolerance * share };
+}
+
 /** Σ_c ⟨∇_τ Q_c, τ_c⟩ and the largest eigenvalue over all blocks of ∇_τ Q. */
 export function referenceGradientSummary(
   terms: readonly SandwichedBranchTerm[],

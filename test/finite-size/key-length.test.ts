@@ -90,10 +90,9 @@ describe('finite-size key length, entangled BB84 with testing', () => {
     const vonNeumann = 1 - binaryEntropy(0.05); // Shor–Preskill
     const constant = Math.log2(1 + 2 * 2) ** 2;
     for (const alpha of [1.001, 1.01, 1.05]) {
-      // The check needs a valid bound, not a tight one: gap 1e-7 is far below (α−1)·log²5 at every α here. At 1e-9
-      // the α = 1.001 solve runs to its iteration limit: the inner τ maximisation's relative gap (1e-10) times
-      // |c|/(Q·ln 2) ≈ 1445 holds the certificate 3.8e-9 below F (docs/finite-size.md §9).
-      const result = solve(plain, { kind: 'sandwiched-up', alpha }, { gapTolerance: 1e-7 });
+      // Gap 1e-9: the inner τ tolerance shrinks with (α−1)/(2α−1) (docs/finite-size.md §9), so α = 1.001 certifies.
+      const result = solve(plain, { kind: 'sandwiched-up', alpha }, { gapTolerance: 1e-9 });
+      expect(result.status).toBe('CERTIFIED');
       const upper = result.upperBound!;
       expect(upper).toBeLessThanOrEqual(vonNeumann + 1e-7); // H̃↑_α ≤ H for α > 1 (Tomamichel 2016, ch. 5)
       expect(vonNeumann - result.certifiedLowerBound!).toBeLessThanOrEqual((alpha - 1) * constant);
