@@ -55,30 +55,9 @@ export function eighJacobi(input: ComplexMatrix): HermitianEigen {
         const t = (theta >= 0 ? 1 : -1) / (Math.abs(theta) + Math.sqrt(theta * theta + 1));
         const c = 1 / Math.sqrt(t * t + 1);
         const s = t * c;
-        // Columns: A·J with J = [[c, s], [-s·ū, c·ū]].
-        for (let k = 0; k < n; k++) {
-          const kpR = ar[k * n + p];
-          const kpI = ai[k * n + p];
-          const kqR = ar[k * n + q];
-          const kqI = ai[k * n + q];
-          // kq·ū
-          const wR = kqR * ur + kqI * ui;
-          const wI = kqI * ur - kqR * ui;
-          ar[k * n + p] = c * kpR - s * wR;
-          ai[k * n + p] = c * kpI - s * wI;
-          ar[k * n + q] = s * kpR + c * wR;
-          ai[k * n + q] = s * kpI + c * wI;
-          const vpR = vr[k * n + p];
-          const vpI = vi[k * n + p];
-          const vqR = vr[k * n + q];
-          const vqI = vi[k * n + q];
-          const zR = vqR * ur + vqI * ui;
-          const zI = vqI * ur - vqR * ui;
-          vr[k * n + p] = c * vpR - s * zR;
-          vi[k * n + p] = c * vpI - s * zI;
-          vr[k * n + q] = s * vpR + c * zR;
-          vi[k * n + q] = s * vpI + c * zI;
-        }
+        // Columns: A·J and V·J with J = [[c, s], [-s·ū, c·ū]].
+        rotateColumns(ar, ai, n, p, q, c, s, ur, ui);
+        rotateColumns(vr, vi, n, p, q, c, s, ur, ui);
         // Rows: J†·(A·J); row p ← c·row_p − s·u·row_q, row q ← s·row_p + c·u·row_q.
         for (let k = 0; k < n; k++) {
           const pkR = ar[p * n + k];
@@ -321,3 +300,19 @@ function rayleighQuotient(a: ComplexMatrix, xr: Float64Array, xi: Float64Array):
   return s;
 }
 
+/** Columns p, q of an n×n matrix times J = [[c, s], [-s·ū, c·ū]] (the cyclic Jacobi reference's column step). */
+function rotateColumns(re: Float64Array, im: Float64Array, n: number, p: number, q: number, c: number, s: number, ur: number, ui: number): void {
+  for (let k = 0; k < n; k++) {
+    const kpR = re[k * n + p];
+    const kpI = im[k * n + p];
+    const kqR = re[k * n + q];
+    const kqI = im[k * n + q];
+    // kq·ū
+    const wR = kqR * ur + kqI * ui;
+    const wI = kqI * ur - kqR * ui;
+    re[k * n + p] = c * kpR - s * wR;
+    im[k * n + p] = c * kpI - s * wI;
+    re[k * n + q] = s * kpR + c * wR;
+    im[k * n + q] = s * kpI + c * wI;
+  }
+}

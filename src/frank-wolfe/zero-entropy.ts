@@ -1,7 +1,14 @@
 // The zero-entropy test: is there a feasible state at which the eavesdropper knows the key, so that F reaches the
 // trivial bound? Such optima lie on the boundary of the cone, where Frank–Wolfe crawls; the test finds one with a
 // single semidefinite feasibility problem (docs/convergence.md, "Optima at the trivial bound").
-import { ComplexMatrix, hermitianPart, multiplyAdjointLeft, type ComplexMatrix as Matrix } from '../linear-algebra/complex-matrix.js';
+import {
+  addScaledInPlace,
+  ComplexMatrix,
+  hermitianPart,
+  multiplyAdjointLeft,
+  trace,
+  type ComplexMatrix as Matrix,
+} from '../linear-algebra/complex-matrix.js';
 import { eigh } from '../linear-algebra/eigen.js';
 import { LinearOracle } from '../oracle/index.js';
 import type { Checkpoint } from '../oracle/types.js';
@@ -18,7 +25,7 @@ export function zeroEntropyConstraints(problem: Problem, dimension: number): Lin
   problem.branches.forEach((branch) => {
     if (branch.score < highest) {
       const weight = ComplexMatrix.zeros(dimension);
-      for (const k of branch.krausOperators) addInPlace(weight, multiplyAdjointLeft(k, k));
+      for (const k of branch.krausOperators) addScaledInPlace(weight, multiplyAdjointLeft(k, k), 1);
       out.push({ label: `zero-entropy:${branch.label}:weight`, operator: hermitianPart(weight), lower: 0, upper: 0 });
       return;
     }
@@ -96,14 +103,11 @@ function realAndImaginaryParts(us: Float64Array[][], vs: Float64Array[][]): [Mat
       }
     }
   });
-  const re = ComplexMatrix.zeros(n);
   const im = ComplexMatrix.zeros(n);
   for (let i = 0; i < n; i++) {
     for (let j = 0; j < n; j++) {
       const ij = i * n + j;
       const ji = j * n + i;
-      re.re[ij] = (m.re[ij] + m.re[ji]) / 2;
-      re.im[ij] = (m.im[ij] - m.im[ji]) / 2;
       // (M − M†)/(2i): entries (m_ij − conj(m_ji))/(2i)
       const dRe = m.re[ij] - m.re[ji];
       const dIm = m.im[ij] + m.im[ji];
@@ -111,14 +115,7 @@ function realAndImaginaryParts(us: Float64Array[][], vs: Float64Array[][]): [Mat
       im.im[ij] = -dRe / 2;
     }
   }
-  return [re, im];
-}
-
-function addInPlace(target: Matrix, a: Matrix): void {
-  for (let t = 0; t < target.re.length; t++) {
-    target.re[t] += a.re[t];
-    target.im[t] += a.im[t];
-  }
+  return [hermitianPart(m), im];
 }
 
 /**
@@ -132,17 +129,11 @@ export function zeroEntropyConstraintCount(problem: Problem): number {
   const highest = problem.branches.reduce((m, b) => Math.max(m, b.score), -Infinity);
   return problem.branches.reduce((total, branch) => {
     if (branch.score < highest) return total + 1;
-    const ranks = branch.keyProjectors.map((p) => Math.round(realTrace(p)));
+    const ranks = branch.keyProjectors.map((p) => Math.round(trace(p).re));
     let pairs = 0;
     for (let a = 0; a < ranks.length; a++) for (let b = a + 1; b < ranks.length; b++) pairs += ranks[a] * ranks[b];
     return total + 2 * pairs;
   }, 0);
-}
-
-function realTrace(m: Matrix): number {
-  let t = 0;
-  for (let i = 0; i < m.rows; i++) t += m.re[i * m.cols + i];
-  return t;
 }
 
 /**
