@@ -833,6 +833,7 @@ export class InteriorPointSolver {
     }
     multiplyByLowerLeft(uRe, uIm, dRe, dIm, n, this.tmpRe, this.tmpIm);
     multiplyByLowerAdjointRightHermitian(this.tmpRe, this.tmpIm, uRe, uIm, n, this.tmp2Re, this.tmp2Im);
+    pollAtOrder(n);
     // Only a negative λ_min limits the step, and a relative 1e-9 is far finer than the step fraction needs.
     const lambda = smallestEigenvalueInPlace(this.tmp2Re, this.tmp2Im, n, this.tridiagonal, STEP_EIGENVALUE_TOLERANCE, 0);
     return lambda >= 0 ? Infinity : -1 / lambda;

@@ -1,5 +1,6 @@
 // Private dense kernels for the interior-point oracle: allocation-free, on row-major re/im arrays of n×n matrices.
-// Kept inside src/oracle/ so the hot loop depends on nothing that may change underneath it.
+// Kept inside src/oracle/ so the hot loop depends on nothing that may change underneath it (but the run's deadline poll).
+import { pollAtOrder, STAGES_PER_POLL } from '../linear-algebra/interruption.js';
 
 /**
  * In-place complex Cholesky factorization A = L·L† of a Hermitian matrix; the lower triangle receives L,
@@ -215,6 +216,8 @@ export function smallestEigenvalueInPlace(
 ): number {
   const { diagonal, offDiagonalSquared, vRe, vIm, pRe, pIm } = work;
   for (let k = 0; k < n - 2; k++) {
+    // An abort between columns leaves only the destroyed input and the workspace behind.
+    if (k % STAGES_PER_POLL === 0) pollAtOrder(n);
     // Householder vector for column k below the diagonal.
     let norm2 = 0;
     for (let i = k + 1; i < n; i++) norm2 += re[i * n + k] ** 2 + im[i * n + k] ** 2;
@@ -807,6 +810,7 @@ export function smallestEigenvalueInPlaceReal(
 ): number {
   const { diagonal, offDiagonalSquared, vRe: v, pRe: p } = work;
   for (let k = 0; k < n - 2; k++) {
+    if (k % STAGES_PER_POLL === 0) pollAtOrder(n);
     let norm2 = 0;
     for (let i = k + 1; i < n; i++) norm2 += a[i * n + k] * a[i * n + k];
     const x0 = a[(k + 1) * n + k];
