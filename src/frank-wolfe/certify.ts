@@ -10,7 +10,7 @@ import {
 } from '../linear-algebra/complex-matrix.js';
 import type { ObjectiveEvaluation } from '../objectives/index.js';
 import type { OracleResult } from '../oracle/index.js';
-import { linearizationBound } from '../certificate/bound.js';
+import { linearizationBound, type BoundBreakdown } from '../certificate/bound.js';
 import { TUNING } from './settings.js';
 import { evaluateSafely, iterateEigen, type Multipliers, type SolverSetup, type SolverState } from './state.js';
 
@@ -26,9 +26,10 @@ export function restoreMultipliers(oracleResult: OracleResult, equalityCoefficie
 }
 
 /**
- * Keeps the linearization at `point` when its bound beats the best so far. While iterating, the margin's curvature
- * (a few extra gradient evaluations) is measured only for a bound that could then certify the requested gap; the
- * last certification (`thorough`) measures it for any bound that could become the best.
+ * Keeps the linearization at `point` when its bound beats the best so far, and returns that bound with its margin.
+ * While iterating, the margin's curvature (a few extra gradient evaluations) is measured only for a bound that could
+ * then certify the requested gap; the last certification (`thorough`) measures it for any bound that could become
+ * the best.
  */
 function considerCandidate(
   setup: SolverSetup,
@@ -37,7 +38,7 @@ function considerCandidate(
   pointEvaluation: ObjectiveEvaluation,
   y: Multipliers,
   thorough: boolean,
-): void {
+): BoundBreakdown {
   const best = state.best === null ? -Infinity : state.best.breakdown.lowerBound;
   const worthAbove = thorough ? best : Math.max(best, state.evaluation.value - setup.settings.gapTolerance);
   const breakdown = linearizationBound(
@@ -60,22 +61,29 @@ function considerCandidate(
       multipliersUpper: y.upper,
     };
   }
+  return breakdown;
 }
 
-/** A neighbour of the iterate needs its own gradient and therefore its own oracle answer. */
-function certifyNeighbour(setup: SolverSetup, state: SolverState, point: ComplexMatrix, thorough: boolean): void {
+/** A neighbour of the iterate needs its own gradient and therefore its own oracle answer; −∞ when it gave no bound. */
+function certifyNeighbour(setup: SolverSetup, state: SolverState, point: ComplexMatrix, thorough: boolean): number {
   setup.clock.checkpoint();
   const e = evaluateSafely(setup.objective, point);
-  if (!e) return;
+  if (!e) return -Infinity;
   const split = setup.oracle.stripEqualitySpan(e.gradient);
   const answer = setup.clock.timeOracle(() => setup.oracle.minimize(split.stripped, { relativeAccuracy: state.oracleAccuracy }));
-  if (answer.point || answer.status === 'ITERATION_LIMIT') {
-    considerCandidate(setup, state, point, e, restoreMultipliers(answer, split.equalityCoefficients), thorough);
-  }
+  if (!answer.point && answer.status !== 'ITERATION_LIMIT') return -Infinity;
+  return considerCandidate(setup, state, point, e, restoreMultipliers(answer, split.equalityCoefficients), thorough).lowerBound;
 }
 
 /** Stop trying neighbours once the best bound is within this share of the requested gap of F at the iterate. */
 const ENOUGH_SHARE = 0.5;
+
+/**
+ * Lifts are tried first from the lowest level at which the iterate's margin, scaled by λ_min(x)/μ (the Weyl charge
+ * grows like 1/λ_min), falls to this share of the requested gap: lower levels cannot certify unless the graded
+ * charge is far below the Weyl charge, and are tried last.
+ */
+const LIFT_MARGIN_SHARE = 0.25;
 
 /** The best bound already certifies the request with room to spare: further neighbours only cost evaluations. */
 function certifiedEnough(setup: SolverSetup, state: SolverState): boolean {
@@ -84,29 +92,63 @@ function certifiedEnough(setup: SolverSetup, state: SolverState): boolean {
 
 /**
  * Certifies the iterate with multipliers y. Near the boundary of the cone the margin grows like 1/λ_min(ρ'). Any
- * full-rank ρ' gives a valid bound, so a few better-conditioned neighbours are tried as well and the best bound is
- * kept: mixtures (1−ε)x + ε·x₀ with the interior point, and x with its small eigenvalues lifted to a level μ
- * (trace and feasibility not needed). The search stops early once half the requested gap is certified.
+ * full-rank ρ' gives a valid bound, so better-conditioned neighbours are tried as well and the best bound is kept:
+ * mixtures (1−ε)x + ε·x₀ with the interior point, and x with its small eigenvalues lifted to a level μ (trace and
+ * feasibility not needed). The search stops once half the requested gap is certified, so the order matters
+ * (docs/convergence.md, "Choosing the linearization point"): mixtures with growing ε while each at least halves the
+ * distance F(x) − bound; then lifts from the level the margin predicts, upwards while the bound is not clearly
+ * worse than the best lift's; then every neighbour passed over. Each neighbour is tried at most once, so a search
+ * that certifies nothing tries the same set as before.
  */
 export function certify(setup: SolverSetup, state: SolverState, y: Multipliers, thorough = false): void {
   const { x } = state;
-  considerCandidate(setup, state, x, state.evaluation, y, thorough);
+  const own = considerCandidate(setup, state, x, state.evaluation, y, thorough);
   const { values, vectors } = iterateEigen(state);
   if (values[0] >= TUNING.wellConditionedEigenvalue || certifiedEnough(setup, state)) return;
-  for (const share of TUNING.certificateMixtures) {
-    if (share <= values[0]) continue;
-    const mixture = scale(x, 1 - share);
-    addScaledInPlace(mixture, setup.interiorPoint, share);
-    certifyNeighbour(setup, state, mixture, thorough);
+  const distance = (bound: number) => state.evaluation.value - bound;
+  const mixture = (share: number) => () => {
+    const point = scale(x, 1 - share);
+    addScaledInPlace(point, setup.interiorPoint, share);
+    return point;
+  };
+  const lift = (level: number) => () => {
+    const lifted = Float64Array.from(values, (v) => Math.max(v, level) - v);
+    return add(x, hermitianPart(multiply(multiply(vectors, ComplexMatrix.diagonal(lifted)), adjoint(vectors))));
+  };
+  const passedOver: (() => ComplexMatrix)[] = [];
+  const tryNeighbour = (build: () => ComplexMatrix) => distance(certifyNeighbour(setup, state, build(), thorough));
+
+  const shares = TUNING.certificateMixtures.filter((share) => share > values[0]);
+  let previous = distance(own.lowerBound);
+  for (let i = 0; i < shares.length; i++) {
+    const d = tryNeighbour(mixture(shares[i]));
     if (certifiedEnough(setup, state)) return;
+    if (!(d <= 0.5 * previous)) {
+      passedOver.push(...shares.slice(i + 1).map(mixture));
+      break;
+    }
+    previous = d;
   }
+
   // Half-decade steps between the tuned levels: near a boundary optimum the margin (∝ 1/μ) and the linearization
   // loss (∝ μ) cross steeply, and the best μ decides whether a gap of 1e-6 is reachable at all.
-  const levels = TUNING.certificateLiftLevels.flatMap((level) => [level, level * Math.sqrt(10)]);
-  for (const level of levels) {
-    if (level <= values[0]) continue;
-    const lifted = Float64Array.from(values, (v) => Math.max(v, level) - v);
-    certifyNeighbour(setup, state, add(x, hermitianPart(multiply(multiply(vectors, ComplexMatrix.diagonal(lifted)), adjoint(vectors)))), thorough);
+  const levels = TUNING.certificateLiftLevels.flatMap((level) => [level, level * Math.sqrt(10)]).filter((level) => level > values[0]);
+  const predictedLevel = (own.margin * values[0]) / (LIFT_MARGIN_SHARE * setup.settings.gapTolerance);
+  const below = levels.filter((level) => !(level >= predictedLevel));
+  const fromPrediction = levels.filter((level) => level >= predictedLevel);
+  let bestLift = Infinity;
+  for (let i = 0; i < fromPrediction.length; i++) {
+    const d = tryNeighbour(lift(fromPrediction[i]));
+    if (certifiedEnough(setup, state)) return;
+    if (d > 2 * bestLift) {
+      passedOver.push(...fromPrediction.slice(i + 1).map(lift));
+      break;
+    }
+    bestLift = Math.min(bestLift, d);
+  }
+
+  for (const build of [...passedOver, ...below.map(lift)]) {
+    tryNeighbour(build);
     if (certifiedEnough(setup, state)) return;
   }
 }
