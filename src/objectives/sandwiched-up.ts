@@ -15,9 +15,11 @@ import {
   blockFrechet,
   blockSpectralFunction,
   eigenBlocks,
+  outputRoot,
   pinchedBlocks,
   powerFunction,
-  sandwichedPower,
+  sandwichedPowerOfRoot,
+  type OutputRoot,
 } from './spectral-blocks.js';
 
 /**
@@ -38,19 +40,23 @@ export interface SandwichedBranchTerm {
   pinchedPower: ComplexMatrix[];
 }
 
-/** Q̃_β(X‖τ) = Tr[(τ^s X τ^s)^β], s = (1−β)/(2β), and both partial gradients, for one branch. */
+/**
+ * Q̃_β(X‖τ) = Tr[(τ^s X τ^s)^β], s = (1−β)/(2β), and both partial gradients, for one branch. `root` is X's
+ * square-root factor when the caller already has it (the inner maximisation evaluates many τ at one X).
+ */
 export function sandwichedBranchTerm(
   weightedState: ComplexMatrix,
   support: BranchSupport,
   reference: ComplexMatrix[],
   beta: number,
+  root?: OutputRoot,
 ): SandwichedBranchTerm {
   if (isKeyless(support)) return keylessBranchTerm(weightedState, reference[0].re[0], beta);
   const s = (1 - beta) / (2 * beta);
   const { blockSizes: sizes, blockOffsets: offsets } = support;
   const referenceEigs = eigenBlocks(reference);
   const ts = blockSpectralFunction(referenceEigs, (t) => Math.max(t, 0) ** s);
-  const { quasiEntropy, weight, powerOfM } = sandwichedPower(ts, weightedState, support.outputRange, beta);
+  const { quasiEntropy, weight, powerOfM } = sandwichedPowerOfRoot(ts, root ?? outputRoot(weightedState, support.outputRange), beta);
   const gradientState = multiply(multiply(ts, weight), ts);
   const xtsW = multiply(multiply(weightedState, ts), weight);
   const direction = add(xtsW, adjoint(xtsW));
@@ -155,10 +161,11 @@ interface InnerPoint {
 function innerPoint(
   weightedStates: readonly ComplexMatrix[],
   supports: readonly BranchSupport[],
+  roots: readonly (OutputRoot | undefined)[],
   reference: ReferenceBlocks,
   beta: number,
 ): InnerPoint {
-  const terms = supports.map((sup, c) => sandwichedBranchTerm(weightedStates[c], sup, reference[c], beta));
+  const terms = supports.map((sup, c) => sandwichedBranchTerm(weightedStates[c], sup, reference[c], beta, roots[c]));
   const quasiEntropy = terms.reduce((s, t) => s + t.quasiEntropy, 0);
   const summary = referenceGradientSummary(terms, reference);
   return { reference, terms, quasiEntropy, innerGap: Math.max(0, summary.largestEigenvalue - summary.innerProduct) };
@@ -207,7 +214,10 @@ export function optimalReference(
   settings: ReferenceSettings = DEFAULT_REFERENCE_SETTINGS,
   start?: ReferenceBlocks,
 ): ReferenceOptimum {
-  let point = innerPoint(weightedStates, supports, start ?? initialReference(weightedStates, supports), beta);
+  // X's square-root factors do not depend on τ: one eigendecomposition per branch for the whole loop.
+  const roots = supports.map((sup, c) => (isKeyless(sup) ? undefined : outputRoot(weightedStates[c], sup.outputRange)));
+  const at = (reference: ReferenceBlocks) => innerPoint(weightedStates, supports, roots, reference, beta);
+  let point = at(start ?? initialReference(weightedStates, supports));
   let iterations = 0;
   let bestGap = Infinity;
   let bestGapIteration = 0;
@@ -226,11 +236,11 @@ export function optimalReference(
     let next: InnerPoint | null = null;
     if (extrapolate) {
       const candidate = extrapolatedReference(point.reference, mapped, beta);
-      const tried = candidate && innerPoint(weightedStates, supports, candidate, beta);
+      const tried = candidate && at(candidate);
       if (tried && tried.innerGap < point.innerGap) next = tried;
       else extrapolate = false;
     }
-    point = next ?? innerPoint(weightedStates, supports, mapped, beta);
+    point = next ?? at(mapped);
     iterations++;
   }
 }

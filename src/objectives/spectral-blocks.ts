@@ -121,6 +121,28 @@ export function traceFunction(values: Float64Array, f: (x: number) => number): n
 }
 
 /**
+ * A square-root factor of a branch output, X = R·R† with R = left·right: left = V, right = Λ^{1/2} from X = V·Λ·V†,
+ * or, when X is rank deficient on its support (outputRange W given), left = W, right = (W†XW)^{1/2}. The
+ * eigendecomposition is recorded in the ledger as a branch output. One factor serves every τ of the sandwiched inner
+ * maximisation at that X; Y^s·R is formed as (Y^s·left)·right.
+ */
+export interface OutputRoot {
+  left: ComplexMatrix;
+  right: ComplexMatrix;
+  /** X is rank deficient on the support (R has fewer columns than rows). */
+  onRange: boolean;
+}
+
+export function outputRoot(x: ComplexMatrix, outputRange: ComplexMatrix | null): OutputRoot {
+  if (outputRange === null) {
+    const xe = positiveEigen(x, 'output');
+    return { left: xe.vectors, right: diagonalRoot(xe.values), onRange: false };
+  }
+  const xe = positiveEigen(compress(outputRange, x), 'output');
+  return { left: outputRange, right: spectralFunction(xe, (t) => Math.sqrt(Math.max(t, 0))), onRange: true };
+}
+
+/**
  * For M = Y^s·X·Y^s with Y full rank on the support: returns Tr M^γ and W = γ·M^{γ−1} on supp(M).
  * When X is rank deficient on the support (outputRange given), M = A·A† with A = Y^s·V·X̃^{1/2} and the
  * nonzero spectrum comes from N = A†·A (square-root factor), so no eigenvalue is ever clipped.
@@ -131,21 +153,28 @@ export function sandwichedPower(
   outputRange: ComplexMatrix | null,
   gamma: number,
 ): { quasiEntropy: number; weight: ComplexMatrix; powerOfM: ComplexMatrix } {
-  if (outputRange === null) {
+  return sandwichedPowerOfRoot(ys, outputRoot(x, outputRange), gamma);
+}
+
+/** sandwichedPower from X's square-root factor R (X = R·R†). */
+export function sandwichedPowerOfRoot(
+  ys: ComplexMatrix,
+  { left, right, onRange }: OutputRoot,
+  gamma: number,
+): { quasiEntropy: number; weight: ComplexMatrix; powerOfM: ComplexMatrix } {
+  const factor = multiply(multiply(ys, left), right);
+  if (!onRange) {
     // M = G·G† with G = Y^s·V·Λ^{1/2} (X = V·Λ·V†): the spectrum of M comes from G's singular values, which one-sided
     // Jacobi gets to high relative accuracy, instead of from the formed product, whose small eigenvalues carry an
     // absolute error u·‖M‖ (so M's conditioning, about κ(X)·κ(Y)^{2s}, never enters the margin; docs/convergence.md).
-    const xe = positiveEigen(x, 'output');
-    const { left, singularValues } = oneSidedJacobi(multiply(multiply(ys, xe.vectors), diagonalRoot(xe.values)));
+    const { left: vectors, singularValues } = oneSidedJacobi(factor);
     const squares = Float64Array.from(singularValues, (t) => t * t);
     const quasiEntropy = traceFunction(squares, (t) => (t > 0 ? t ** gamma : 0));
-    const me = { values: squares, vectors: left };
+    const me = { values: squares, vectors };
     const weight = spectralFunction(me, (t) => gamma * t ** (gamma - 1));
     const powerOfM = spectralFunction(me, (t) => (t > 0 ? t ** gamma : 0));
     return { quasiEntropy, weight, powerOfM };
   }
-  const xe = positiveEigen(compress(outputRange, x), 'output');
-  const factor = multiply(multiply(ys, outputRange), spectralFunction(xe, (t) => Math.sqrt(Math.max(t, 0))));
   const ne = positiveEigen(multiplyAdjointLeft(factor, factor));
   const quasiEntropy = traceFunction(ne.values, (t) => (t > 0 ? t ** gamma : 0));
   const weight = expand(factor, spectralFunction(ne, (t) => gamma * t ** (gamma - 2)));
