@@ -245,7 +245,7 @@ function faceNewtonOnFace<E extends FaceEvaluation>(
 }
 
 /** An orthonormal basis of the r×r Hermitian matrices (Hilbert–Schmidt): E_ii, (E_ij + E_ji)/√2, i(E_ij − E_ji)/√2. */
-function hermitianBasis(r: number): ComplexMatrix[] {
+export function hermitianBasis(r: number): ComplexMatrix[] {
   const basis: ComplexMatrix[] = [];
   for (let i = 0; i < r; i++) {
     const e = ComplexMatrix.zeros(r);
@@ -278,10 +278,10 @@ function combine(basis: readonly ComplexMatrix[], coefficients: ArrayLike<number
  * tangent directions of the face, by Gram–Schmidt against the rows) and the least-norm solution of C·s = residual
  * (the move onto the face; dependent held rows are solved in the least-squares sense by the pseudo-inverse).
  */
-function rowSpaceAndTangent(
+export function rowSpaceAndTangent(
   rows: readonly Float64Array[],
   m: number,
-): { tangent: Float64Array[]; correction: (residual: readonly number[]) => Float64Array } {
+): { normal: Float64Array[]; tangent: Float64Array[]; correction: (residual: readonly number[]) => Float64Array } {
   const orthonormal: Float64Array[] = [];
   const absorb = (vector: Float64Array, threshold: number): boolean => {
     const v = Float64Array.from(vector);
@@ -310,11 +310,11 @@ function rowSpaceAndTangent(
   const pseudo = pseudoInverse(new Matrix(rows.map((row) => Array.from(row))));
   const correction = (residual: readonly number[]) =>
     Float64Array.from(pseudo.mmul(Matrix.columnVector([...residual])).getColumn(0));
-  return { tangent, correction };
+  return { normal: orthonormal.slice(0, rank), tangent, correction };
 }
 
 /** Solves H·s = −g with a Levenberg shift when H is not positive definite; null when no shift makes it so. */
-function dampedNewton(hessian: Matrix): { solve: (gradient: Float64Array) => { coefficients: Float64Array; decrement: number } } | null {
+export function dampedNewton(hessian: Matrix): { solve: (gradient: Float64Array) => { coefficients: Float64Array; decrement: number } } | null {
   const k = hessian.rows;
   let scale = 0;
   for (let i = 0; i < k; i++) scale = Math.max(scale, Math.abs(hessian.get(i, i)));
@@ -337,7 +337,7 @@ function dampedNewton(hessian: Matrix): { solve: (gradient: Float64Array) => { c
 }
 
 /** Trace 1 and every equality and held side met up to rounding. */
-function meetsHeldRows(constraints: readonly LinearConstraint[], held: readonly HeldSide[], state: ComplexMatrix): boolean {
+export function meetsHeldRows(constraints: readonly LinearConstraint[], held: readonly HeldSide[], state: ComplexMatrix): boolean {
   const close = (value: number, target: number, size: number) => Math.abs(value - target) <= 1e-11 * (1 + size);
   let trace = 0;
   for (let i = 0; i < state.rows; i++) trace += state.re[i * state.cols + i];
@@ -351,7 +351,7 @@ function meetsHeldRows(constraints: readonly LinearConstraint[], held: readonly 
   });
 }
 
-function meetsIntervals(constraints: readonly LinearConstraint[], state: ComplexMatrix): boolean {
+export function meetsIntervals(constraints: readonly LinearConstraint[], state: ComplexMatrix): boolean {
   return constraints.every((c) => {
     if (c.lower === c.upper) return true;
     const v = traceProductReal(c.operator, state);

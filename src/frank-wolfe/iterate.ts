@@ -15,6 +15,7 @@ import { trivialLowerBound } from '../certificate/trivial-bound.js';
 import { certify, restoreMultipliers } from './certify.js';
 import { DEFAULT_FACE_NEWTON, faceNewtonStep, FACE_NEWTON_SCHEDULE, heldIntervalSides } from './face-newton.js';
 import { derivativeLineSearch } from './line-search.js';
+import { rankManifoldStep } from './rank-manifold.js';
 import { TUNING } from './settings.js';
 import { alongActiveIntervals, stepToEigenvalueFloor, stepToIntervalBounds } from './step-limits.js';
 import {
@@ -165,6 +166,8 @@ function faceNewtonMove(setup: SolverSetup, state: SolverState, multipliers: Mul
   if (state.faceNewtonEvaluations > FACE_NEWTON_SCHEDULE.evaluationsPerIteration * state.iterations) return false;
   const held = heldIntervalSides(setup.restricted.constraints, state.x, multipliers);
   const evaluate = (point: ComplexMatrix) => {
+    // A Hessian takes up to 2·144 evaluations: the deadline is polled before each (the iterate is unchanged).
+    setup.clock.checkpoint();
     state.faceNewtonEvaluations++;
     return evaluateSafely(setup.objective, point);
   };
@@ -172,7 +175,8 @@ function faceNewtonMove(setup: SolverSetup, state: SolverState, multipliers: Mul
   // Several Newton steps in a row reach the face's optimum, which the oracle then certifies (or Frank–Wolfe
   // leaves, when the face was wrong); they stop once the predicted decrease is far below the requested gap.
   const options = { ...DEFAULT_FACE_NEWTON, stopDecrement: FACE_NEWTON_SCHEDULE.converged * setup.settings.gapTolerance };
-  const moved = faceNewtonStep(state.x, state.evaluation, setup.restricted.constraints, held, evaluate, options);
+  const args = [state.x, state.evaluation, setup.restricted.constraints, held, evaluate, options] as const;
+  const moved = rankManifoldStep(...args) ?? faceNewtonStep(...args);
   const decrease = moved ? before - moved.evaluation.value : 0;
   if (!moved || decrease < FACE_NEWTON_SCHEDULE.payoff * state.lastEstimatedGap) {
     // Each unpaid attempt doubles the wait (an optimum on the cone's boundary gains little from the face).
