@@ -15,6 +15,12 @@ import type { LinearConstraint } from '../problem/model.js';
 /** Which side of an interval constraint is held at its bound on the face (equalities are always held). */
 export type HeldSide = 'lower' | 'upper' | null;
 
+/** The value a constraint is held at: an equality's, a held side's bound, or null when it is free. */
+export function heldTarget(c: LinearConstraint, side: HeldSide): number | null {
+  if (c.lower === c.upper) return c.lower;
+  return side === 'lower' ? c.lower : side === 'upper' ? c.upper : null;
+}
+
 export interface FaceEvaluation {
   value: number;
   gradient: ComplexMatrix;
@@ -165,7 +171,7 @@ function faceNewtonOnFace<E extends FaceEvaluation>(
   rows.push(coordinates(identity));
   residuals.push(1 - traceProductReal(identity, base));
   constraints.forEach((c, i) => {
-    const target = c.lower === c.upper ? c.lower : held[i] === 'lower' ? c.lower : held[i] === 'upper' ? c.upper : null;
+    const target = heldTarget(c, held[i]);
     if (target === null) return;
     rows.push(coordinates(c.operator));
     residuals.push(target - traceProductReal(c.operator, base));
@@ -343,7 +349,7 @@ export function meetsHeldRows(constraints: readonly LinearConstraint[], held: re
   for (let i = 0; i < state.rows; i++) trace += state.re[i * state.cols + i];
   if (!close(trace, 1, 1)) return false;
   return constraints.every((c, i) => {
-    const target = c.lower === c.upper ? c.lower : held[i] === 'lower' ? c.lower : held[i] === 'upper' ? c.upper : null;
+    const target = heldTarget(c, held[i]);
     if (target === null) return true;
     let size = 0;
     for (let t = 0; t < c.operator.re.length; t++) size = Math.max(size, Math.abs(c.operator.re[t]), Math.abs(c.operator.im[t]));
@@ -389,6 +395,7 @@ export function heldIntervalSides(
   constraints: readonly LinearConstraint[],
   x: ComplexMatrix,
   multipliers: { lower: ArrayLike<number>; upper: ArrayLike<number> },
+  remembered: readonly HeldSide[] = [],
 ): HeldSide[] {
   let largest = 0;
   constraints.forEach((_, i) => (largest = Math.max(largest, multipliers.lower[i], multipliers.upper[i])));
@@ -399,6 +406,10 @@ export function heldIntervalSides(
     const near = FACE_NEWTON_SCHEDULE.nearShare * (c.upper - c.lower);
     if (multipliers.lower[i] > threshold && v - c.lower <= near) return 'lower';
     if (multipliers.upper[i] > threshold && c.upper - v <= near) return 'upper';
+    // A side an earlier Newton step ran into and the iterate is still at (within a thousandth of the width).
+    const close = 1e-3 * (c.upper - c.lower);
+    if (remembered[i] === 'lower' && v - c.lower <= close) return 'lower';
+    if (remembered[i] === 'upper' && c.upper - v <= close) return 'upper';
     return null;
   });
 }

@@ -164,7 +164,7 @@ function faceNewtonMove(setup: SolverSetup, state: SolverState, multipliers: Mul
   // Its Hessian costs two evaluations per tangent direction: a budget per iteration keeps it from dominating
   // (counted, not timed, so that a run is reproducible from its input).
   if (state.faceNewtonEvaluations > FACE_NEWTON_SCHEDULE.evaluationsPerIteration * state.iterations) return false;
-  const held = heldIntervalSides(setup.restricted.constraints, state.x, multipliers);
+  const held = heldIntervalSides(setup.restricted.constraints, state.x, multipliers, state.manifoldHeld);
   const evaluate = (point: ComplexMatrix) => {
     // A Hessian takes up to 2·144 evaluations: the deadline is polled before each (the iterate is unchanged).
     setup.clock.checkpoint();
@@ -176,7 +176,10 @@ function faceNewtonMove(setup: SolverSetup, state: SolverState, multipliers: Mul
   // leaves, when the face was wrong); they stop once the predicted decrease is far below the requested gap.
   const options = { ...DEFAULT_FACE_NEWTON, stopDecrement: FACE_NEWTON_SCHEDULE.converged * setup.settings.gapTolerance };
   const args = [state.x, state.evaluation, setup.restricted.constraints, held, evaluate, options] as const;
-  const moved = rankManifoldStep(...args) ?? faceNewtonStep(...args);
+  const onManifold = rankManifoldStep(...args);
+  // Sides a manifold step ran into stay candidates for the next attempt (the multipliers may not weight them yet).
+  state.manifoldHeld = onManifold?.holding ?? state.manifoldHeld;
+  const moved = onManifold ?? faceNewtonStep(...args);
   const decrease = moved ? before - moved.evaluation.value : 0;
   if (!moved || decrease < FACE_NEWTON_SCHEDULE.payoff * state.lastEstimatedGap) {
     // Each unpaid attempt doubles the wait (an optimum on the cone's boundary gains little from the face).

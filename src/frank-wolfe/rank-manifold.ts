@@ -3,6 +3,7 @@ import {
   ComplexMatrix,
   conjugate,
   conjugateAdjoint,
+  hermitianPart,
   multiply,
   multiplyAdjointLeft,
   multiplyAdjointRight,
@@ -13,8 +14,8 @@ import type { LinearConstraint } from '../problem/model.js';
 import {
   dampedNewton,
   DEFAULT_FACE_NEWTON,
+  heldTarget,
   meetsHeldRows,
-  meetsIntervals,
   rowSpaceAndTangent,
   spectralGap,
   type FaceEvaluation,
@@ -47,6 +48,12 @@ const RESTORED = 1e-14;
 const ROUNDS = 3;
 /** Interval sides newly held within one chart (each costs a projection of the Hessian, no evaluations). */
 const MAX_ABSORBED = 12;
+/** A Newton step of which less than this share is feasible is replaced by one within a trust radius… */
+const SHORTEST_SHARE = 1e-3;
+/** …of this share of the smallest eigenvalue kept in the support. */
+const TRUST_SHARE = 0.5;
+/** Restoration corrections that reuse the first Jacobian before each one recomputes it. */
+const CHORD_STEPS = 3;
 /** Bisections of a Newton step that crosses a boundary. */
 const BISECTIONS = 12;
 /** The support block S must keep its eigenvalues above this share of the iterate's smallest kept eigenvalue. */
@@ -116,19 +123,8 @@ export class RankChart {
       }
     }
     const g = multiply(m, inverse);
-    const inFrame = multiplyAdjointRight(m, g);
     // Exactly Hermitian (the two triangles are rounded differently).
-    for (let i = 0; i < n; i++) {
-      inFrame.im[i * n + i] = 0;
-      for (let j = i + 1; j < n; j++) {
-        const re = 0.5 * (inFrame.re[i * n + j] + inFrame.re[j * n + i]);
-        const im = 0.5 * (inFrame.im[i * n + j] - inFrame.im[j * n + i]);
-        inFrame.re[i * n + j] = re;
-        inFrame.re[j * n + i] = re;
-        inFrame.im[i * n + j] = im;
-        inFrame.im[j * n + i] = -im;
-      }
-    }
+    const inFrame = hermitianPart(multiplyAdjointRight(m, g));
     const state = conjugate(this.frame, inFrame);
     for (let i = 0; i < n; i++) state.re[i * n + i] += this.squeeze;
     return { z, g, state };
@@ -207,7 +203,7 @@ function heldRows(constraints: readonly LinearConstraint[], held: readonly HeldS
   const identity = ComplexMatrix.identity(n);
   const rows: HeldRow[] = [{ operator: identity, target: 1, rotated: identity }];
   constraints.forEach((c, i) => {
-    const target = c.lower === c.upper ? c.lower : held[i] === 'lower' ? c.lower : held[i] === 'upper' ? c.upper : null;
+    const target = heldTarget(c, held[i]);
     if (target === null) return;
     rows.push({ operator: c.operator, target, rotated: conjugateAdjoint(frame, c.operator) });
   });
@@ -232,10 +228,11 @@ type Blocked = { index: number; side: 'lower' | 'upper' } | 'support' | 'restora
 /**
  * Damped Newton steps of F on the rank-r states of the face (r from the iterate's spectral gap, see
  * FaceNewtonOptions.gapRatio), the held rows met exactly. A step that would leave an interval or lower the rank
- * stops at that boundary (bisection on the step length), and the next round holds that side or, after the
- * eigendecomposition of the new point, drops the vanishing eigenvalue from the support (an active-set strategy;
- * Nocedal & Wright, Numerical Optimization, 2nd ed., §16.5; from memory). Null when the iterate has no spectral
- * gap, the manifold has no room or too many tangent directions for a formed Hessian, or no step lowers F below F(x).
+ * stops at that boundary (bisection on the step length); the side is then held in the same chart, and a lower
+ * rank starts the next round, whose eigendecomposition drops the vanishing eigenvalue from the support (an
+ * active-set strategy; Nocedal & Wright, Numerical Optimization, 2nd ed., §16.5; from memory). Returns the end
+ * point and the sides held there; null when the iterate has no spectral gap, the manifold has no room or too many
+ * tangent directions for a formed Hessian, or no step ends below F(x).
  */
 export function rankManifoldStep<E extends FaceEvaluation>(
   x: ComplexMatrix,
@@ -244,7 +241,7 @@ export function rankManifoldStep<E extends FaceEvaluation>(
   held: readonly HeldSide[],
   evaluate: (state: ComplexMatrix) => E | null,
   options: FaceNewtonOptions = DEFAULT_FACE_NEWTON,
-): FaceNewtonStep<E> | null {
+): (FaceNewtonStep<E> & { holding: readonly HeldSide[] }) | null {
   let holding: readonly HeldSide[] = held;
   let best: FaceNewtonStep<E> | null = null;
   for (let round = 0; round < ROUNDS; round++) {
@@ -255,7 +252,7 @@ export function rankManifoldStep<E extends FaceEvaluation>(
     holding = outcome.holding;
     if (outcome.blocked === null || outcome.blocked === 'restoration') break;
   }
-  return best;
+  return best !== null && best.evaluation.value < current.value ? { ...best, holding } : null;
 }
 
 interface RoundOutcome<E extends FaceEvaluation> {
@@ -293,15 +290,14 @@ function manifoldRound<E extends FaceEvaluation>(
   const large = values.slice(first);
   const chart = new RankChart(frame, large, options.squeezeLevel, SUPPORT_FLOOR * large[0]);
   const holding = [...held];
-  const rows = heldRows(constraints, holding, frame);
-  if (chart.size - rows.length > options.maxTangentDimension) return none;
   const origin = chart.point(new Float64Array(chart.size));
   if (!origin) return none;
+  let rows: HeldRow[] = [];
+  let scales: number[] = [];
+  let tangent: Float64Array[] = [];
+  let normal: Float64Array[] = [];
+  let k = 0;
   const jacobian = (at: ChartPoint) => rows.map((row) => chart.pairing(row.rotated, at));
-  const split = rowSpaceAndTangent(jacobian(origin), chart.size);
-  let k = split.tangent.length;
-  if (k === 0 || k > options.maxTangentDimension) return none;
-  let { tangent, normal } = split;
   // (J·R)⁺ as q rows of length m: J·R has full column rank (R spans the held rows' independent directions), so
   // (J·R)⁺ = ((J·R)ᵀ·J·R)⁻¹·(J·R)ᵀ, from one Cholesky factor of the small Gram matrix.
   const rowSpaceInverse = (j: readonly Float64Array[]): Float64Array[] => {
@@ -310,7 +306,6 @@ function manifoldRound<E extends FaceEvaluation>(
     const inverse = gram.isPositiveDefinite() ? gram.solve(inRowSpace.transpose()) : pseudoInverse(inRowSpace);
     return normal.map((_, a) => Float64Array.from(inverse.getRow(a)));
   };
-  const scales = rows.map((row) => 1 + largestAbsoluteEntry(row.operator));
 
   // z = T·t + R·u, with u chosen so that the held rows are met at ρ(z) (Gauss–Newton in the row space).
   type Restored = (ChartPoint & { u: Float64Array }) | 'support' | 'restoration';
@@ -330,8 +325,9 @@ function manifoldRound<E extends FaceEvaluation>(
       const residual = rows.map((row) => row.target - traceProductReal(row.operator, at.state));
       if (residual.every((v, i) => Math.abs(v) <= RESTORED * scales[i])) return { ...at, u };
       if (step === RESTORATION_STEPS) return meetsHeldRows(constraints, holding, at.state) ? { ...at, u } : 'restoration';
-      // The Jacobian of the first point serves every correction (a chord method: the steps are short).
-      chord ??= rowSpaceInverse(jacobian(at));
+      // The Jacobian of the first point serves the first corrections (a chord method: the steps are short); a
+      // restoration that has not converged by then refreshes it every time (Gauss–Newton).
+      if (chord === undefined || step >= CHORD_STEPS) chord = rowSpaceInverse(jacobian(at));
       for (let j = 0; j < u.length; j++) u[j] += dot(chord[j], residual);
     }
   };
@@ -352,8 +348,27 @@ function manifoldRound<E extends FaceEvaluation>(
   };
   const reducedGradient = (at: ChartPoint, e: E) => reduce(at, chart.pairing(conjugateAdjoint(frame, e.gradient), at));
 
-  const start = restore(new Float64Array(k), new Float64Array(normal.length));
-  if (typeof start === 'string' || !meetsIntervals(constraints, start.state)) return none;
+  // The held rows, their tangent space at the origin, and the squeezed iterate restored onto them; a side the
+  // squeeze pushes out of its interval is held too (the squeeze moves ρ by the small eigenvalues, which ±1e-3
+  // intervals do not always absorb).
+  let start: ChartPoint & { u: Float64Array };
+  for (let attempt = 0; ; attempt++) {
+    rows = heldRows(constraints, holding, frame);
+    scales = rows.map((row) => 1 + largestAbsoluteEntry(row.operator));
+    if (chart.size - rows.length > options.maxTangentDimension) return none;
+    ({ tangent, normal } = rowSpaceAndTangent(jacobian(origin), chart.size));
+    k = tangent.length;
+    if (k === 0 || k > options.maxTangentDimension) return none;
+    const restored = restore(new Float64Array(k), new Float64Array(normal.length));
+    if (typeof restored === 'string') return none;
+    const crossed = crossedSide(constraints, holding, restored.state);
+    if (crossed === null) {
+      start = restored;
+      break;
+    }
+    if (typeof crossed === 'string' || attempt === MAX_ABSORBED) return none;
+    holding[crossed.index] = crossed.side;
+  }
   const atStart = evaluate(start.state);
   if (!atStart) return none;
 
@@ -388,26 +403,45 @@ function manifoldRound<E extends FaceEvaluation>(
   let u: Float64Array = start.u;
   let here: { at: ChartPoint; e: E } = { at: start, e: atStart };
   let best: FaceNewtonStep<E> | null = null;
-  let reference = current.value;
+  // Each step must lower F from the chart's start; the squeeze may have raised it above F(x), which only the
+  // attempt's end point must beat (rankManifoldStep).
+  let reference = atStart.value;
   for (let taken = 0, absorbed = 0; taken < options.stepsInARow + absorbed && newton !== null; taken++) {
-    const step: { coefficients: Float64Array; decrement: number } = newton.solve(reducedGradient(here.at, here.e));
-    if (!(step.decrement > 0)) break;
-    const along = (scale: number) => Float64Array.from(t, (v, i) => v + scale * step.coefficients[i]);
-    // The longest feasible share of the Newton step (bisection when the full step crosses a boundary)…
-    let longest = 1;
-    let blocked: Blocked | null = null;
-    const full = tryStep(along(1), u);
-    if (isBlocked(full)) {
-      blocked = full;
+    const g = reducedGradient(here.at, here.e);
+    // The longest feasible share of a step (bisection when the full step crosses a boundary).
+    const feasibleShare = (coefficients: Float64Array): { longest: number; blocked: Blocked | null } => {
+      const full = tryStep(Float64Array.from(t, (v, i) => v + coefficients[i]), u);
+      if (!isBlocked(full)) return { longest: 1, blocked: null };
+      let blocked: Blocked = full;
       let low = 0;
+      let high = 1;
       for (let i = 0; i < BISECTIONS; i++) {
-        const mid = 0.5 * (low + longest);
-        const probe = tryStep(along(mid), u);
-        if (isBlocked(probe)) (longest = mid), (blocked = probe);
+        const mid = 0.5 * (low + high);
+        const probe = tryStep(Float64Array.from(t, (v, j) => v + mid * coefficients[j]), u);
+        if (isBlocked(probe)) (high = mid), (blocked = probe);
         else low = mid;
       }
-      longest = low;
+      return { longest: low, blocked };
+    };
+    let step: { coefficients: Float64Array; decrement: number } = newton.solve(g);
+    if (!(step.decrement > 0)) break;
+    let { longest, blocked } = feasibleShare(step.coefficients);
+    // Near-zero curvature along directions that end on an interval or the cone can make the Newton step so long
+    // that hardly any of it is feasible; then a Levenberg shift |g|/radius keeps it within a trust radius of half
+    // the smallest support eigenvalue (for H ⪰ 0, ‖(H + μ)⁻¹g‖ ≤ |g|/μ), the room S has before the rank drops
+    // (Nocedal & Wright, Numerical Optimization, 2nd ed., ch. 4; from memory).
+    if (longest < SHORTEST_SHARE) {
+      const radius = TRUST_SHARE * large[0];
+      const shifted = reduced.clone();
+      const shift = Math.hypot(...g) / radius;
+      for (let i = 0; i < k; i++) shifted.set(i, i, shifted.get(i, i) + shift);
+      const trusted = dampedNewton(shifted)?.solve(g);
+      if (trusted && trusted.decrement > 0) {
+        step = trusted;
+        ({ longest, blocked } = feasibleShare(step.coefficients));
+      }
     }
+    const along = (scale: number) => Float64Array.from(t, (v, i) => v + scale * step.coefficients[i]);
     // …then halved until F decreases.
     let moved: { t: Float64Array; at: ChartPoint & { u: Float64Array }; e: E; scale: number } | null = null;
     for (let scale = longest, tries = 0; scale > 0 && tries <= options.backtracks && moved === null; tries++, scale /= 2) {
@@ -424,8 +458,10 @@ function manifoldRound<E extends FaceEvaluation>(
     reference = moved.e.value;
     best = { point: moved.at.state, evaluation: moved.e, decrement: step.decrement };
     if (blocked !== null && moved.scale === longest) {
-      // Stopped at a boundary. A lower rank or a failed restoration needs a new chart (the next round).
-      if (typeof blocked === 'string' || k === 1 || absorbed === MAX_ABSORBED) return { step: best, blocked, holding };
+      // Stopped at a boundary. A restoration that failed further on only shortened the step: go on from here.
+      if (blocked === 'restoration') continue;
+      // A lower rank needs a new chart (the next round).
+      if (blocked === 'support' || k === 1 || absorbed === MAX_ABSORBED) return { step: best, blocked, holding };
       // An interval side: hold it from here on, in the same chart. Its reduced gradient q (unit) splits the
       // tangent coordinates into q (now a row-space direction) and q's complement Q; the Hessian becomes QᵀHQ.
       const side = constraints[blocked.index];
