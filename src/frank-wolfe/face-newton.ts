@@ -371,6 +371,12 @@ export function meetsIntervals(constraints: readonly LinearConstraint[], state: 
 export const FACE_NEWTON_SCHEDULE = Object.freeze({
   /** Not before this many oracle calls: the examples certify in one to four iterations without it. */
   firstOracleCall: 6,
+  /**
+   * Rank-manifold steps (rank-manifold.ts) not before this many: the boundary examples certify in up to eight
+   * iterations without them, and there the attempt only cost time (CHSH w = 0.80, sandwiched-up α = 1.5: 7
+   * iterations either way, CPU 29 → 198 ms, from evaluations at the squeezed, nearly singular chart points).
+   */
+  firstManifoldOracleCall: 10,
   /** Newton steps on one face stop once the decrement is below this share of the requested gap. */
   converged: 0.01,
   /** Face-Newton steps may use at most this many objective evaluations per solver iteration so far. */
