@@ -15,6 +15,12 @@ import type { LinearConstraint } from '../problem/model.js';
 /** Which side of an interval constraint is held at its bound on the face (equalities are always held). */
 export type HeldSide = 'lower' | 'upper' | null;
 
+/** The value a constraint is held at: an equality's, a held side's bound, or null when it is free. */
+export function heldTarget(c: LinearConstraint, side: HeldSide): number | null {
+  if (c.lower === c.upper) return c.lower;
+  return side === 'lower' ? c.lower : side === 'upper' ? c.upper : null;
+}
+
 export interface FaceEvaluation {
   value: number;
   gradient: ComplexMatrix;
@@ -165,7 +171,7 @@ function faceNewtonOnFace<E extends FaceEvaluation>(
   rows.push(coordinates(identity));
   residuals.push(1 - traceProductReal(identity, base));
   constraints.forEach((c, i) => {
-    const target = c.lower === c.upper ? c.lower : held[i] === 'lower' ? c.lower : held[i] === 'upper' ? c.upper : null;
+    const target = heldTarget(c, held[i]);
     if (target === null) return;
     rows.push(coordinates(c.operator));
     residuals.push(target - traceProductReal(c.operator, base));
@@ -245,7 +251,7 @@ function faceNewtonOnFace<E extends FaceEvaluation>(
 }
 
 /** An orthonormal basis of the r×r Hermitian matrices (Hilbert–Schmidt): E_ii, (E_ij + E_ji)/√2, i(E_ij − E_ji)/√2. */
-function hermitianBasis(r: number): ComplexMatrix[] {
+export function hermitianBasis(r: number): ComplexMatrix[] {
   const basis: ComplexMatrix[] = [];
   for (let i = 0; i < r; i++) {
     const e = ComplexMatrix.zeros(r);
@@ -278,10 +284,10 @@ function combine(basis: readonly ComplexMatrix[], coefficients: ArrayLike<number
  * tangent directions of the face, by Gram–Schmidt against the rows) and the least-norm solution of C·s = residual
  * (the move onto the face; dependent held rows are solved in the least-squares sense by the pseudo-inverse).
  */
-function rowSpaceAndTangent(
+export function rowSpaceAndTangent(
   rows: readonly Float64Array[],
   m: number,
-): { tangent: Float64Array[]; correction: (residual: readonly number[]) => Float64Array } {
+): { normal: Float64Array[]; tangent: Float64Array[]; correction: (residual: readonly number[]) => Float64Array } {
   const orthonormal: Float64Array[] = [];
   const absorb = (vector: Float64Array, threshold: number): boolean => {
     const v = Float64Array.from(vector);
@@ -310,11 +316,11 @@ function rowSpaceAndTangent(
   const pseudo = pseudoInverse(new Matrix(rows.map((row) => Array.from(row))));
   const correction = (residual: readonly number[]) =>
     Float64Array.from(pseudo.mmul(Matrix.columnVector([...residual])).getColumn(0));
-  return { tangent, correction };
+  return { normal: orthonormal.slice(0, rank), tangent, correction };
 }
 
 /** Solves H·s = −g with a Levenberg shift when H is not positive definite; null when no shift makes it so. */
-function dampedNewton(hessian: Matrix): { solve: (gradient: Float64Array) => { coefficients: Float64Array; decrement: number } } | null {
+export function dampedNewton(hessian: Matrix): { solve: (gradient: Float64Array) => { coefficients: Float64Array; decrement: number } } | null {
   const k = hessian.rows;
   let scale = 0;
   for (let i = 0; i < k; i++) scale = Math.max(scale, Math.abs(hessian.get(i, i)));
@@ -337,13 +343,13 @@ function dampedNewton(hessian: Matrix): { solve: (gradient: Float64Array) => { c
 }
 
 /** Trace 1 and every equality and held side met up to rounding. */
-function meetsHeldRows(constraints: readonly LinearConstraint[], held: readonly HeldSide[], state: ComplexMatrix): boolean {
+export function meetsHeldRows(constraints: readonly LinearConstraint[], held: readonly HeldSide[], state: ComplexMatrix): boolean {
   const close = (value: number, target: number, size: number) => Math.abs(value - target) <= 1e-11 * (1 + size);
   let trace = 0;
   for (let i = 0; i < state.rows; i++) trace += state.re[i * state.cols + i];
   if (!close(trace, 1, 1)) return false;
   return constraints.every((c, i) => {
-    const target = c.lower === c.upper ? c.lower : held[i] === 'lower' ? c.lower : held[i] === 'upper' ? c.upper : null;
+    const target = heldTarget(c, held[i]);
     if (target === null) return true;
     let size = 0;
     for (let t = 0; t < c.operator.re.length; t++) size = Math.max(size, Math.abs(c.operator.re[t]), Math.abs(c.operator.im[t]));
@@ -351,7 +357,7 @@ function meetsHeldRows(constraints: readonly LinearConstraint[], held: readonly 
   });
 }
 
-function meetsIntervals(constraints: readonly LinearConstraint[], state: ComplexMatrix): boolean {
+export function meetsIntervals(constraints: readonly LinearConstraint[], state: ComplexMatrix): boolean {
   return constraints.every((c) => {
     if (c.lower === c.upper) return true;
     const v = traceProductReal(c.operator, state);
@@ -365,6 +371,12 @@ function meetsIntervals(constraints: readonly LinearConstraint[], state: Complex
 export const FACE_NEWTON_SCHEDULE = Object.freeze({
   /** Not before this many oracle calls: the examples certify in one to four iterations without it. */
   firstOracleCall: 6,
+  /**
+   * Rank-manifold steps (rank-manifold.ts) not before this many: the boundary examples certify in up to eight
+   * iterations without them, and there the attempt only cost time (CHSH w = 0.80, sandwiched-up α = 1.5: 7
+   * iterations either way, CPU 29 → 198 ms, from evaluations at the squeezed, nearly singular chart points).
+   */
+  firstManifoldOracleCall: 10,
   /** Newton steps on one face stop once the decrement is below this share of the requested gap. */
   converged: 0.01,
   /** Face-Newton steps may use at most this many objective evaluations per solver iteration so far. */
@@ -389,6 +401,7 @@ export function heldIntervalSides(
   constraints: readonly LinearConstraint[],
   x: ComplexMatrix,
   multipliers: { lower: ArrayLike<number>; upper: ArrayLike<number> },
+  remembered: readonly HeldSide[] = [],
 ): HeldSide[] {
   let largest = 0;
   constraints.forEach((_, i) => (largest = Math.max(largest, multipliers.lower[i], multipliers.upper[i])));
@@ -399,6 +412,10 @@ export function heldIntervalSides(
     const near = FACE_NEWTON_SCHEDULE.nearShare * (c.upper - c.lower);
     if (multipliers.lower[i] > threshold && v - c.lower <= near) return 'lower';
     if (multipliers.upper[i] > threshold && c.upper - v <= near) return 'upper';
+    // A side an earlier Newton step ran into and the iterate is still at (within a thousandth of the width).
+    const close = 1e-3 * (c.upper - c.lower);
+    if (remembered[i] === 'lower' && v - c.lower <= close) return 'lower';
+    if (remembered[i] === 'upper' && c.upper - v <= close) return 'upper';
     return null;
   });
 }

@@ -15,6 +15,7 @@ import { trivialLowerBound } from '../certificate/trivial-bound.js';
 import { certify, restoreMultipliers } from './certify.js';
 import { DEFAULT_FACE_NEWTON, faceNewtonStep, FACE_NEWTON_SCHEDULE, heldIntervalSides } from './face-newton.js';
 import { derivativeLineSearch } from './line-search.js';
+import { rankManifoldStep } from './rank-manifold.js';
 import { TUNING } from './settings.js';
 import { alongActiveIntervals, stepToEigenvalueFloor, stepToIntervalBounds } from './step-limits.js';
 import {
@@ -163,8 +164,10 @@ function faceNewtonMove(setup: SolverSetup, state: SolverState, multipliers: Mul
   // Its Hessian costs two evaluations per tangent direction: a budget per iteration keeps it from dominating
   // (counted, not timed, so that a run is reproducible from its input).
   if (state.faceNewtonEvaluations > FACE_NEWTON_SCHEDULE.evaluationsPerIteration * state.iterations) return false;
-  const held = heldIntervalSides(setup.restricted.constraints, state.x, multipliers);
+  const held = heldIntervalSides(setup.restricted.constraints, state.x, multipliers, state.manifoldHeld);
   const evaluate = (point: ComplexMatrix) => {
+    // A Hessian takes up to 2·144 evaluations: the deadline is polled before each (the iterate is unchanged).
+    setup.clock.checkpoint();
     state.faceNewtonEvaluations++;
     return evaluateSafely(setup.objective, point);
   };
@@ -172,7 +175,11 @@ function faceNewtonMove(setup: SolverSetup, state: SolverState, multipliers: Mul
   // Several Newton steps in a row reach the face's optimum, which the oracle then certifies (or Frank–Wolfe
   // leaves, when the face was wrong); they stop once the predicted decrease is far below the requested gap.
   const options = { ...DEFAULT_FACE_NEWTON, stopDecrement: FACE_NEWTON_SCHEDULE.converged * setup.settings.gapTolerance };
-  const moved = faceNewtonStep(state.x, state.evaluation, setup.restricted.constraints, held, evaluate, options);
+  const args = [state.x, state.evaluation, setup.restricted.constraints, held, evaluate, options] as const;
+  const onManifold = state.oracleCalls >= FACE_NEWTON_SCHEDULE.firstManifoldOracleCall ? rankManifoldStep(...args) : null;
+  // Sides a manifold step ran into stay candidates for the next attempt (the multipliers may not weight them yet).
+  state.manifoldHeld = onManifold?.holding ?? state.manifoldHeld;
+  const moved = onManifold ?? faceNewtonStep(...args);
   const decrease = moved ? before - moved.evaluation.value : 0;
   if (!moved || decrease < FACE_NEWTON_SCHEDULE.payoff * state.lastEstimatedGap) {
     // Each unpaid attempt doubles the wait (an optimum on the cone's boundary gains little from the face).

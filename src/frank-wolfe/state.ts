@@ -9,6 +9,7 @@ import type { NoProgressCause, SolveResult, StopLimit } from '../result/types.js
 import type { BoundBreakdown } from '../certificate/bound.js';
 import { trivialLowerBound } from '../certificate/trivial-bound.js';
 import type { ActiveSet } from './active-set.js';
+import type { HeldSide } from './face-newton.js';
 import type { TangentQuasiNewton } from './quasi-newton.js';
 import type { SolveControl, SolverSettings } from './settings.js';
 
@@ -125,6 +126,8 @@ export interface SolverState {
   lastOracleGap: number;
   /** Set when the run stops on no-progress. */
   noProgressCause: NoProgressCause | undefined;
+  /** The sides held at the end of the last successful rank-manifold step (interval sides its steps ran into). */
+  manifoldHeld?: readonly HeldSide[];
   /** Objective evaluations spent in face-Newton steps so far. */
   faceNewtonEvaluations: number;
   /** Whether the zero-entropy test has run (it runs at most once). */
