@@ -169,7 +169,7 @@ describe('privacy amplification terms against exact two-universal hashing', () =
         }
       }
     }
-    // Teeth as in the classical check (0.79 measured): a prefactor twice as large would fail somewhere.
+    // Teeth as in the classical check (0.79 measured): a bound with under 0.79 of this prefactor is refuted here.
     expect(worstRatio).toBeGreaterThan(0.5);
     // Orthogonal states are classical side information: the qubit entropy must equal the classical formula.
     const classical = sandwichedUpClassical([[0.1, 0], [0.2, 0], [0, 0.3], [0, 0.4]], 1.3);
