@@ -118,6 +118,13 @@ async function evaluateTrial(
   return full.single.result.status === 'NUMERICAL_ERROR' ? quick : full;
 }
 
+/** The point solved to the full settings (warm-started where it stopped), unless it already was. */
+async function settled(context: SearchContext, state: SearchState, point: ScorePoint): Promise<ScorePoint> {
+  if (point.single.result.status === 'CERTIFIED' || point.single.result.iterations >= (context.settings.maxIterations ?? 0)) return point;
+  const full = await evaluate(context, state, point.alpha, point.scores, point.single.finalState);
+  return full.single.result.status === 'NUMERICAL_ERROR' ? point : full;
+}
+
 /** The result recorded for a solve that threw: no bound, no certificate, the error's message. */
 function numericalError(context: SearchContext, alpha: number, error: Error): SolveResult {
   const base = { entropy: context.kind, alpha, inputHash: '' };
@@ -201,7 +208,9 @@ export async function ascendScores(
         }
         nearest = candidate;
       }
-      const other = accepted === null && nearest !== null ? supergradient(context, nearest) : null;
+      // The nearest trial's state after a full solve: a short solve barely leaves the state it started from.
+      const probe = accepted === null && nearest !== null && withinBudget() ? await settled(context, state, nearest) : null;
+      const other = probe === null ? null : supergradient(context, probe);
       if (other === null) break;
       gradient = leastNormCombination(gradient, other, inverse);
     }
@@ -311,5 +320,5 @@ export async function searchAlpha(context: SearchContext, state: SearchState, in
   }
   for (const p of solved.values()) if (score(p) > score(best)) best = p;
   // Bundle steps only at the best α: they cost solves, and only kinks need them.
-  return state.kinked ? ascendScores(context, state, best.alpha, best.scores, best.single.finalState) : best;
+  return state.kinked ? ascendScores(context, state, best.alpha, best.scores) : best;
 }
