@@ -8,9 +8,9 @@ import { keyLengthLedger, privacyAmplificationBits, errorVerificationBits, varia
 import { MIN_ALPHA_EXCESS, ascendScores, searchAlpha, type SearchContext, type SearchProgress, type SearchState } from './optimise.js';
 import { localSolver, problemToJson, scoredProblem, type FiniteSizeEntropy, type SingleRoundSolver } from './single-round.js';
 import type { ProblemJson } from '../problem/json.js';
-import { ComplexMatrix, addScaledInPlace, hermitianPart, multiplyAdjointLeft } from '../linear-algebra/complex-matrix.js';
 import { sourceMarginalConstraints } from '../problem/validate.js';
 import { minTradeoffOf } from './min-tradeoff.js';
+import { branchOperators, leastVarianceScores } from './score-equivalence.js';
 
 /** Defaults: common practice values (ε_sec 1e−10, ε_com 1e−2, f_EC 1.16). */
 export const KEY_LENGTH_DEFAULTS = Object.freeze({
@@ -253,19 +253,20 @@ export async function minTradeoffScores(
   solver: SingleRoundSolver,
   settings: Partial<SolverSettings>,
 ): Promise<number[]> {
-  const d = problem.dimensionA * problem.dimensionB;
   const marginal = problem.sourceMarginal ? sourceMarginalConstraints(problem.sourceMarginal, problem.dimensionB) : [];
-  const branchConstraints = problem.branches.map((b, c) => {
-    const operator = new ComplexMatrix(d, d);
-    for (const k of b.krausOperators) addScaledInPlace(operator, multiplyAdjointLeft(k, k), 1);
-    return { label: `branch ${b.label}`, operator: hermitianPart(operator), lower: honest[c], upper: honest[c] };
-  });
+  const branchConstraints = branchOperators(problem).map((operator, c) => ({
+    label: `branch ${problem.branches[c].label}`,
+    operator,
+    lower: honest[c],
+    upper: honest[c],
+  }));
   const tested: Problem = { ...problem, constraints: [...marginal, ...branchConstraints], branches: problem.branches.map((b) => ({ ...b, score: 0 })) };
   const result = await solver(tested, { kind: 'von-neumann' }, settings);
   const tradeoff = minTradeoffOf(tested, result);
   if (!tradeoff) return problem.branches.map(() => 0);
-  const coefficients = tradeoff.coefficients.slice(marginal.length);
-  return coefficients.map((c) => c.coefficient);
+  const coefficients = tradeoff.coefficients.slice(marginal.length).map((c) => c.coefficient);
+  // The dual's coefficients are one member of a class with the same rate on every allowed state; take the quietest.
+  return leastVarianceScores(problem, coefficients, honest);
 }
 
 /** Devetak–Winter reference: the certified von Neumann bound under the problem's statistics minus λ_EC per round. */

@@ -4,15 +4,24 @@
 import type { ComplexMatrix } from '../linear-algebra/complex-matrix.js';
 import type { Problem } from '../problem/model.js';
 import type { SolverSettings } from '../frank-wolfe/settings.js';
+import type { SolveResult } from '../result/types.js';
+import { resultWithoutBound } from '../frank-wolfe/finish.js';
+import { RunClock } from '../frank-wolfe/state.js';
 import { acceptanceWindow, type AcceptanceWindow } from './acceptance-window.js';
 import { singleRoundValue, tiltedBranchWeights, scoredProblem, type FiniteSizeEntropy, type SingleRoundSolver, type SingleRoundValue } from './single-round.js';
 
 /** Smallest α − 1 searched: below it the sandwiched objective's 1/(α−1) amplifies rounding beyond the gap. */
 export const MIN_ALPHA_EXCESS = 1e-4;
 const MAX_ASCENT_STEPS = 30;
+/** Single-round solves one ascent may spend (the speed target; near α = 1 later steps gain little, §9). */
+const MAX_ASCENT_SOLVES = 24;
 const MAX_STEP_TRIALS = 5;
 /** Iterations of a trial point's first solve: its upper bound already rejects most losing steps. */
 const TRIAL_ITERATIONS = 8;
+/** Largest change of one score in a first trial (bits): a trust region where the local curvature model is poor. */
+const MAX_SCORE_STEP = 4;
+/** Supergradients added at one point when its line searches fail (kinks of h^f_α, docs/finite-size.md). */
+const MAX_BUNDLE_STEPS = 2;
 
 export interface SearchContext {
   problem: Problem;
@@ -47,7 +56,20 @@ export interface ScorePoint {
 export interface SearchState {
   /** Single-round solves so far. */
   solves: number;
+  /**
+   * Set when an ascent's first line search fails at its start (a kink, docs/finite-size.md §9): the α search then
+   * compares the start scores, and only the best α's ascent adds supergradients (bundle steps).
+   */
+  kinked?: boolean;
 }
+
+/** What one ascent may spend: single-round solves, and supergradients added at one point (0: plain BFGS). */
+export interface AscentBudget {
+  solves: number;
+  bundles: number;
+}
+
+const FULL_ASCENT: AscentBudget = { solves: MAX_ASCENT_SOLVES, bundles: MAX_BUNDLE_STEPS };
 
 async function evaluate(
   context: SearchContext,
@@ -58,7 +80,15 @@ async function evaluate(
   settings: Partial<SolverSettings> = context.settings,
 ): Promise<ScorePoint> {
   state.solves++;
-  const single = await singleRoundValue(context.problem, context.kind, alpha, scores, settings, context.solver, warmStart, false);
+  let single: SingleRoundValue;
+  try {
+    single = await singleRoundValue(context.problem, context.kind, alpha, scores, settings, context.solver, warmStart, false);
+  } catch (error) {
+    // Some inputs make the solver's step-length eigenvalue overflow (a solver defect, reported): this point then
+    // has no certified value, and the search goes on without it.
+    if (!(error instanceof RangeError)) throw error;
+    single = { alpha, scores: [...scores], bound: null, result: numericalError(context, alpha, error), tiltedWeights: [] };
+  }
   const window = acceptanceWindow(context.honest, scores, context.rounds, context.epsilonCompleteness);
   const value = single.bound === null ? -Infinity : single.bound + window.minimumScoreSum / context.rounds;
   return { alpha, scores, single, window, value };
@@ -83,14 +113,51 @@ async function evaluateTrial(
   const upper = quick.single.result.upperBound;
   if (quick.single.result.status === 'CERTIFIED') return quick;
   if (upper !== null && upper + quick.window.minimumScoreSum / context.rounds <= threshold) return quick;
-  return evaluate(context, state, alpha, scores, quick.single.finalState ?? warmStart);
+  const full = await evaluate(context, state, alpha, scores, quick.single.finalState ?? warmStart);
+  // When the longer solve fails (see numericalError), the short solve's certified bound still stands.
+  return full.single.result.status === 'NUMERICAL_ERROR' ? quick : full;
+}
+
+/** The point solved to the full settings (warm-started where it stopped), unless it already was. */
+async function settled(context: SearchContext, state: SearchState, point: ScorePoint): Promise<ScorePoint> {
+  if (point.single.result.status === 'CERTIFIED' || point.single.result.iterations >= (context.settings.maxIterations ?? 0)) return point;
+  const full = await evaluate(context, state, point.alpha, point.scores, point.single.finalState);
+  return full.single.result.status === 'NUMERICAL_ERROR' ? point : full;
+}
+
+/** The result recorded for a solve that threw: no bound, no certificate, the error's message. */
+function numericalError(context: SearchContext, alpha: number, error: Error): SolveResult {
+  const base = { entropy: context.kind, alpha, inputHash: '' };
+  return resultWithoutBound(base, new RunClock(0, undefined), `single-round solve failed: ${error.message}`, 0);
+}
+
+/** H·v for the row-major m×m matrix H. */
+function multiply(matrix: Float64Array, vector: readonly number[]): number[] {
+  const m = vector.length;
+  return Array.from({ length: m }, (_, i) => vector.reduce((acc, v, j) => acc + matrix[i * m + j] * v, 0));
+}
+
+/** The point of the segment [a, b] of least H-norm: argmin over λ ∈ [0, 1] of ‖b + λ(a − b)‖_H. */
+function leastNormCombination(a: readonly number[], b: readonly number[], metric: Float64Array): number[] {
+  const difference = a.map((x, c) => x - b[c]);
+  const hd = multiply(metric, difference);
+  const curvature = difference.reduce((acc, x, c) => acc + x * hd[c], 0);
+  const lambda = curvature > 0 ? Math.min(1, Math.max(0, -b.reduce((acc, x, c) => acc + x * hd[c], 0) / curvature)) : 0;
+  return b.map((x, c) => x + lambda * difference[c]);
 }
 
 /** ∂(value)/∂f = r − q: tilted honest distribution of the window minus tilted branch weights at the optimal state. */
-function supergradient(context: SearchContext, point: ScorePoint): number[] {
+function supergradient(context: SearchContext, point: ScorePoint): number[] | null {
   const state = point.single.finalState;
-  if (!state) return point.scores.map(() => 0);
-  const q = tiltedBranchWeights(scoredProblem(context.problem, point.scores), { kind: context.kind, alpha: point.alpha }, state);
+  if (!state) return null;
+  let q: number[];
+  try {
+    q = tiltedBranchWeights(scoredProblem(context.problem, point.scores), { kind: context.kind, alpha: point.alpha }, state);
+  } catch (error) {
+    // A final state outside the positive cone (seen after iteration limits, reported) gives no supergradient.
+    if (error instanceof RangeError) return null;
+    throw error;
+  }
   return q.map((qc, c) => context.honest[c] - point.window.deviationGradient[c] / context.rounds - qc);
 }
 
@@ -106,6 +173,7 @@ export async function ascendScores(
   alpha: number,
   initialScores: number[],
   warmStart?: ComplexMatrix,
+  budget: AscentBudget = FULL_ASCENT,
 ): Promise<ScorePoint> {
   const m = initialScores.length;
   const kappa = (alpha - 1) / alpha;
@@ -114,31 +182,50 @@ export async function ascendScores(
   for (let c = 0; c < m; c++) inverse[c * m + c] = 1 / (Math.max(context.honest[c], 1e-6) * kappa * Math.LN2);
   let current = await evaluate(context, state, alpha, initialScores, warmStart);
   let gradient = supergradient(context, current);
-  for (let iteration = 0; iteration < MAX_ASCENT_STEPS; iteration++) {
+  const firstSolve = state.solves;
+  const withinBudget = () => state.solves - firstSolve < budget.solves;
+  for (let iteration = 0; iteration < MAX_ASCENT_STEPS && gradient !== null && withinBudget(); iteration++) {
     if (Math.max(...gradient.map(Math.abs)) < 1e-10) break;
-    // Ascent direction d = H·∇G.
-    const direction = Array.from({ length: m }, (_, i) => gradient.reduce((acc, g, j) => acc + inverse[i * m + j] * g, 0));
-    const slope = direction.reduce((acc, d, c) => acc + d * gradient[c], 0);
-    if (!(slope > 0)) break;
     let accepted: ScorePoint | null = null;
+    let direction: number[] = [];
     let step = 1;
-    for (let trial = 0; trial < MAX_STEP_TRIALS; trial++, step /= 4) {
-      const scores = current.scores.map((f, c) => f + step * direction[c]);
-      const threshold = current.value + 1e-4 * step * slope;
-      const candidate = await evaluateTrial(context, state, alpha, scores, current.single.finalState, threshold);
-      if (candidate.value > threshold) {
-        accepted = candidate;
-        break;
+    // A kink (several optimal states, each with its own supergradient) blocks the direction of one of them; each
+    // failed line search adds the supergradient at its nearest trial point and retries along the least-norm
+    // element of their hull (a two-element bundle step).
+    for (let bundle = 0; accepted === null && bundle <= budget.bundles && withinBudget(); bundle++) {
+      direction = multiply(inverse, gradient);
+      const slope = direction.reduce((acc, d, c) => acc + d * (gradient as number[])[c], 0);
+      if (!(slope > 0)) break;
+      step = Math.min(1, MAX_SCORE_STEP / Math.max(...direction.map(Math.abs)));
+      let nearest: ScorePoint | null = null;
+      for (let trial = 0; trial < MAX_STEP_TRIALS && withinBudget(); trial++, step /= 4) {
+        const scores = current.scores.map((f, c) => f + step * direction[c]);
+        const threshold = current.value + 1e-4 * step * slope;
+        const candidate = await evaluateTrial(context, state, alpha, scores, current.single.finalState, threshold);
+        if (candidate.value > threshold) {
+          accepted = candidate;
+          break;
+        }
+        nearest = candidate;
       }
+      // The nearest trial's state after a full solve: a short solve barely leaves the state it started from.
+      const probe = accepted === null && nearest !== null && withinBudget() ? await settled(context, state, nearest) : null;
+      const other = probe === null ? null : supergradient(context, probe);
+      if (other === null) break;
+      gradient = leastNormCombination(gradient, other, inverse);
     }
-    if (accepted === null) break;
+    if (accepted === null) {
+      if (iteration === 0 && budget.bundles === 0) state.kinked = true;
+      break;
+    }
     const improvement = accepted.value - current.value;
     const nextGradient = supergradient(context, accepted);
+    const previous = gradient;
     // BFGS update of the inverse curvature of −G: s = step·d, y = −(∇G_new − ∇G_old).
     const sVector = direction.map((d) => step * d);
-    const yVector = nextGradient.map((g, c) => gradient[c] - g);
-    const sy = sVector.reduce((acc, x, c) => acc + x * yVector[c], 0);
-    if (sy > 1e-12) {
+    const yVector = nextGradient?.map((g, c) => previous[c] - g) ?? [];
+    const sy = sVector.reduce((acc, x, c) => acc + x * (yVector[c] ?? 0), 0);
+    if (nextGradient !== null && sy > 1e-12) {
       const rho = 1 / sy;
       const hy = Array.from({ length: m }, (_, i) => yVector.reduce((acc, y, j) => acc + inverse[i * m + j] * y, 0));
       const yhy = yVector.reduce((acc, y, c) => acc + y * hy[c], 0);
@@ -185,7 +272,8 @@ export async function searchAlpha(context: SearchContext, state: SearchState, in
         nearest = p;
       }
     }
-    const point = await ascendScores(context, state, 1 + 10 ** key, nearest?.scores ?? initialScores, nearest?.single.finalState);
+    const budget = { solves: state.kinked ? 0 : MAX_ASCENT_SOLVES, bundles: 0 };
+    const point = await ascendScores(context, state, 1 + 10 ** key, nearest?.scores ?? initialScores, nearest?.single.finalState, budget);
     solved.set(key, point);
     return point;
   };
@@ -231,5 +319,6 @@ export async function searchAlpha(context: SearchContext, state: SearchState, in
     }
   }
   for (const p of solved.values()) if (score(p) > score(best)) best = p;
-  return best;
+  // Bundle steps only at the best α: they cost solves, and only kinks need them.
+  return state.kinked ? ascendScores(context, state, best.alpha, best.scores) : best;
 }
