@@ -176,42 +176,101 @@ export function applyTensorLeft(
   outIm: Float64Array,
 ): void {
   const n = a * b;
-  const { leftRe, leftIm, rightRe, rightIm } = f;
-  tmpRe.fill(0);
-  tmpIm.fill(0);
-  for (let i = 0; i < a; i++) {
-    for (let j = 0; j < b; j++) {
-      const target = (i * b + j) * n;
-      for (let jp = 0; jp < b; jp++) {
-        const qr = rightRe[j * b + jp];
-        const qi = rightIm[j * b + jp];
-        if (qr === 0 && qi === 0) continue;
-        const source = (i * b + jp) * n;
-        for (let c = 0; c < n; c++) {
-          const yr = yRe[source + c];
-          const yi = yIm[source + c];
-          tmpRe[target + c] += qr * yr - qi * yi;
-          tmpIm[target + c] += qr * yi + qi * yr;
+  // tmp[(i,j),c] = Σ_j' Q[j,j']·Y[(i,j'),c]; out[i,(j,c)] = Σ_i' P[i,i']·tmp[i',(j,c)].
+  applyFactor(f.rightRe, f.rightIm, b, a, n, yRe, yIm, tmpRe, tmpIm);
+  applyFactor(f.leftRe, f.leftIm, a, 1, b * n, tmpRe, tmpIm, outRe, outIm);
+}
+
+/** A factor with at most this share of nonzero entries is applied by row updates over its nonzeros only. */
+const SPARSE_FACTOR_DENSITY = 0.25;
+
+/**
+ * out[(i,j),c] = Σ_k F[j,k]·in[(i,k),c] for i < blocks, j, k < size, c < width (F size×size, complex, row-major).
+ * Dense factors run as dot products over k in 2×2 blocks of (j, c), so each loaded entry serves two multiply–adds
+ * and the sums stay in registers (row updates over c would load and store out once per k, several times slower).
+ * Sparse factors (identities, projectors in the computational basis) update rows over their nonzeros only. Both
+ * sum over k in increasing order.
+ */
+function applyFactor(
+  fRe: Float64Array,
+  fIm: Float64Array,
+  size: number,
+  blocks: number,
+  width: number,
+  inRe: Float64Array,
+  inIm: Float64Array,
+  outRe: Float64Array,
+  outIm: Float64Array,
+): void {
+  let nonzeros = 0;
+  for (let t = 0; t < size * size; t++) if (fRe[t] !== 0 || fIm[t] !== 0) nonzeros++;
+  if (nonzeros <= SPARSE_FACTOR_DENSITY * size * size) {
+    // Row updates over the nonzeros of F.
+    outRe.fill(0, 0, blocks * size * width);
+    outIm.fill(0, 0, blocks * size * width);
+    for (let i = 0; i < blocks; i++) {
+      const base = i * size * width;
+      for (let j = 0; j < size; j++) {
+        const target = base + j * width;
+        for (let k = 0; k < size; k++) {
+          const qr = fRe[j * size + k];
+          const qi = fIm[j * size + k];
+          if (qr === 0 && qi === 0) continue;
+          const source = base + k * width;
+          for (let c = 0; c < width; c++) {
+            const yr = inRe[source + c];
+            const yi = inIm[source + c];
+            outRe[target + c] += qr * yr - qi * yi;
+            outIm[target + c] += qr * yi + qi * yr;
+          }
         }
       }
     }
+    return;
   }
-  outRe.fill(0);
-  outIm.fill(0);
-  for (let i = 0; i < a; i++) {
-    for (let ip = 0; ip < a; ip++) {
-      const pr = leftRe[i * a + ip];
-      const pi = leftIm[i * a + ip];
-      if (pr === 0 && pi === 0) continue;
-      for (let j = 0; j < b; j++) {
-        const target = (i * b + j) * n;
-        const source = (ip * b + j) * n;
-        for (let c = 0; c < n; c++) {
-          const tr = tmpRe[source + c];
-          const ti = tmpIm[source + c];
-          outRe[target + c] += pr * tr - pi * ti;
-          outIm[target + c] += pr * ti + pi * tr;
+  for (let i = 0; i < blocks; i++) {
+    const base = i * size * width;
+    for (let j = 0; j < size; j += 2) {
+      const j1 = j + 1 < size ? j + 1 : j;
+      const r0 = base + j * width;
+      const r1 = base + j1 * width;
+      for (let c = 0; c < width; c += 2) {
+        const c1 = c + 1 < width ? c + 1 : c;
+        let s00r = 0;
+        let s00i = 0;
+        let s01r = 0;
+        let s01i = 0;
+        let s10r = 0;
+        let s10i = 0;
+        let s11r = 0;
+        let s11i = 0;
+        for (let k = 0; k < size; k++) {
+          const f0r = fRe[j * size + k];
+          const f0i = fIm[j * size + k];
+          const f1r = fRe[j1 * size + k];
+          const f1i = fIm[j1 * size + k];
+          const source = base + k * width;
+          const y0r = inRe[source + c];
+          const y0i = inIm[source + c];
+          const y1r = inRe[source + c1];
+          const y1i = inIm[source + c1];
+          s00r += f0r * y0r - f0i * y0i;
+          s00i += f0r * y0i + f0i * y0r;
+          s01r += f0r * y1r - f0i * y1i;
+          s01i += f0r * y1i + f0i * y1r;
+          s10r += f1r * y0r - f1i * y0i;
+          s10i += f1r * y0i + f1i * y0r;
+          s11r += f1r * y1r - f1i * y1i;
+          s11i += f1r * y1i + f1i * y1r;
         }
+        outRe[r0 + c] = s00r;
+        outIm[r0 + c] = s00i;
+        outRe[r0 + c1] = s01r;
+        outIm[r0 + c1] = s01i;
+        outRe[r1 + c] = s10r;
+        outIm[r1 + c] = s10i;
+        outRe[r1 + c1] = s11r;
+        outIm[r1 + c1] = s11i;
       }
     }
   }

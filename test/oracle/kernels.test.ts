@@ -2,6 +2,7 @@ import { CholeskyDecomposition, Matrix } from 'ml-matrix';
 import { describe, expect, it } from 'vitest';
 import { ComplexMatrix, multiply, multiplyAdjointRight } from '../../src/linear-algebra/complex-matrix.js';
 import {
+  blockedPairSums,
   choleskyInPlace,
   lowerCongruence,
   lowerGram,
@@ -203,5 +204,40 @@ describe('oracle kernels', () => {
     for (let i = 0; i < m; i++) expect(Math.abs(x[i] - reference[i])).toBeLessThan(1e-10 * (1 + Math.abs(reference[i])));
     const notDefinite = Float64Array.from(spd.sub(Matrix.eye(m, m).mul(1e6)).to1DArray());
     expect(choleskyInPlaceReal(notDefinite, m)).toBe(false);
+  });
+
+  it('blocked pair sums equal the product [a, sign·a′]·[b, b′]ᵀ from ml-matrix, complex and real, odd and even counts', () => {
+    const rng = seededRandom(41);
+    // 300 entries: two full chunks and a partial one; counts 7 and 10 leave an unpaired row and a partial block of four.
+    const size = 300;
+    for (const count of [7, 10]) {
+      const vector = () => Float64Array.from({ length: count * size }, () => rng() - 0.5);
+      const aRe = vector();
+      const aIm = vector();
+      const bRe = vector();
+      const bIm = vector();
+      const rowsOf = (re: Float64Array, im: Float64Array | null, sign: number) =>
+        new Matrix(
+          Array.from({ length: count }, (_, j) => [
+            ...Array.from(re.subarray(j * size, (j + 1) * size)),
+            ...(im ? Array.from(im.subarray(j * size, (j + 1) * size), (x) => sign * x) : []),
+          ]),
+        );
+      for (const [sign, complex] of [
+        [1, true],
+        [-1, true],
+        [1, false],
+      ] as const) {
+        const out = new Float64Array(count * count);
+        blockedPairSums(aRe, complex ? aIm : null, bRe, complex ? bIm : null, sign, count, size, out);
+        const reference = rowsOf(aRe, complex ? aIm : null, sign).mmul(rowsOf(bRe, complex ? bIm : null, 1).transpose());
+        for (let j = 0; j < count; j++) {
+          for (let l = 0; l <= j; l++) {
+            expect(Math.abs(out[j * count + l] - reference.get(j, l))).toBeLessThan(1e-12);
+            expect(out[l * count + j]).toBe(out[j * count + l]);
+          }
+        }
+      }
+    }
   });
 });

@@ -73,21 +73,31 @@ describe('tensor-product constraint rows', () => {
 
   it('(P ⊗ Q)·Y agrees with ml-matrix (Kronecker product and matrix product, complex parts expanded)', () => {
     const rng = seededRandom(8);
-    const p = randomHermitian(2, rng);
-    const q = randomHermitian(5, rng);
-    const y = randomHermitian(10, rng);
-    const product = kron(p, q);
-    const f = tensorFactors(product.re, product.im, 2, 5)!;
-    const outRe = new Float64Array(100);
-    const outIm = new Float64Array(100);
-    applyTensorLeft(f, 2, 5, y.re, y.im, new Float64Array(100), new Float64Array(100), outRe, outIm);
-    const kr = realPart(p).kroneckerProduct(realPart(q)).sub(imaginaryPart(p).kroneckerProduct(imaginaryPart(q)));
-    const ki = realPart(p).kroneckerProduct(imaginaryPart(q)).add(imaginaryPart(p).kroneckerProduct(realPart(q)));
-    const re = kr.mmul(realPart(y)).sub(ki.mmul(imaginaryPart(y)));
-    const im = kr.mmul(imaginaryPart(y)).add(ki.mmul(realPart(y)));
-    for (let t = 0; t < 100; t++) {
-      expect(Math.abs(outRe[t] - re.get(Math.floor(t / 10), t % 10))).toBeLessThan(1e-12);
-      expect(Math.abs(outIm[t] - im.get(Math.floor(t / 10), t % 10))).toBeLessThan(1e-12);
+    // Dense factors of odd and even sizes (the 2×2 blocked dot products) and identity factors (the sparse row updates).
+    const cases = [
+      { p: randomHermitian(2, rng), q: randomHermitian(5, rng) },
+      { p: randomHermitian(3, rng), q: ComplexMatrix.identity(4) },
+      { p: ComplexMatrix.identity(4), q: randomHermitian(3, rng) },
+      { p: randomHermitian(5, rng), q: randomHermitian(3, rng) },
+    ];
+    for (const { p, q } of cases) {
+      const a = p.rows;
+      const b = q.rows;
+      const n = a * b;
+      const y = randomHermitian(n, rng);
+      const product = kron(p, q);
+      const f = tensorFactors(product.re, product.im, a, b)!;
+      const outRe = new Float64Array(n * n);
+      const outIm = new Float64Array(n * n);
+      applyTensorLeft(f, a, b, y.re, y.im, new Float64Array(n * n), new Float64Array(n * n), outRe, outIm);
+      const kr = realPart(p).kroneckerProduct(realPart(q)).sub(imaginaryPart(p).kroneckerProduct(imaginaryPart(q)));
+      const ki = realPart(p).kroneckerProduct(imaginaryPart(q)).add(imaginaryPart(p).kroneckerProduct(realPart(q)));
+      const re = kr.mmul(realPart(y)).sub(ki.mmul(imaginaryPart(y)));
+      const im = kr.mmul(imaginaryPart(y)).add(ki.mmul(realPart(y)));
+      for (let t = 0; t < n * n; t++) {
+        expect(Math.abs(outRe[t] - re.get(Math.floor(t / n), t % n))).toBeLessThan(1e-12);
+        expect(Math.abs(outIm[t] - im.get(Math.floor(t / n), t % n))).toBeLessThan(1e-12);
+      }
     }
   });
 
