@@ -21,11 +21,13 @@ async function run(args: string[]) {
     .option('--quiet', 'say nothing')
     .option('--no-cache', 'keep nothing')
     .repeatableOption('--set <name=value>', 'a setting (repeatable)')
-    .action((from: string, to: string | undefined, options: Record<string, unknown>, command: Command) =>
-      calls.push([from, to, options, command.isGiven('mode')]),
-    );
+    .action((from: string, to: string | undefined, options: Record<string, unknown>, command: Command) => {
+      calls.push([from, to, options, command.isGiven('mode')]);
+    });
   const group = program.command('store').description('stored things');
-  group.command('list').description('list them').option('--all', 'every one').action(() => calls.push(['list']));
+  group.command('list').description('list them').option('--all', 'every one').action(() => {
+    calls.push(['list']);
+  });
   let stdout = '';
   let stderr = '';
   vi.spyOn(process.stdout, 'write').mockImplementation((chunk) => ((stdout += String(chunk)), true));
