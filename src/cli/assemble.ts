@@ -1,7 +1,7 @@
 // `renyi-bound assemble <grid.json>`: builds a sweep's CSV, JSON and SVG from the cache the shards wrote, without
 // recomputing. Points without a verified cached result are listed and the command exits 1, unless
 // --compute-missing asks for them to be solved (on --server, or on an embedded server).
-import { Command } from 'commander';
+import type { Command } from './command-line.js';
 import { readJsonInput, withInputErrors } from './io.js';
 import { SERVER_OPTION_HELP, serversOption } from './service-options.js';
 import { cacheDirectoryOption, EXIT_SOME_POINTS_FAILED, reportProblems } from './sweep.js';
@@ -36,7 +36,7 @@ export function register(program: Command): void {
         const { commandLineError } = await import('../client/errors.js');
         const started = performance.now();
         const grid = gridFromJson(readJsonInput(gridPath, 'grid.json'));
-        const server = options.server === undefined ? undefined : serversOption(options.server);
+        const server = options.server === undefined ? undefined : await serversOption(options.server);
         const cacheDirectory = cacheDirectoryOption(options);
         const assembly = await assembleFromCache(grid, {
           cacheDirectory,

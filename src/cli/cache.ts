@@ -1,7 +1,7 @@
 // `renyi-bound cache info|clear [--cache-dir d]`: where the disk cache is, how big, and emptying it.
 import { existsSync } from 'node:fs';
 import { join } from 'node:path';
-import { Command } from 'commander';
+import type { Command } from './command-line.js';
 import { defaultCacheDirectory, SQLITE_FILE_NAME } from '../cache/directory.js';
 import type { SqliteCacheLayer } from '../cache/sqlite.js';
 import { printJson, withInputErrors } from './io.js';

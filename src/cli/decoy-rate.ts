@@ -1,7 +1,7 @@
 // `renyi-bound decoy-rate`: asymptotic key rate per pulse of decoy-state BB84 with weak coherent pulses, from
 // channel parameters or measured counts; optionally a channel fit and a sweep over distance drawn as SVG.
 import { writeFileSync } from 'node:fs';
-import { Command } from 'commander';
+import type { Command } from './command-line.js';
 import { ValidationError } from '../problem/errors.js';
 import { parseNumberOption, printJson, readJsonInput, withInputErrors } from './io.js';
 
@@ -53,7 +53,7 @@ export function register(program: Command): void {
         if (options.counts !== undefined) {
           // The counts file states the intensities and basis choice it was measured with.
           for (const name of ['signal', 'decoys', 'zBasisProbability'] as const) {
-            if (command.getOptionValueSource(name) === 'cli') {
+            if (command.isGiven(name)) {
               throw new ValidationError(name === 'zBasisProbability' ? 'z-basis-probability' : name, 'is taken from the --counts file; do not give both');
             }
           }

@@ -1,7 +1,7 @@
 // `renyi-bound demo`: an invented scenario swept end to end through the embedded service — a table on
 // standard output, CSV, JSON and an SVG plot under demo-output/.
 import { join } from 'node:path';
-import type { Command } from 'commander';
+import type { Command } from './command-line.js';
 import type { ParameterGrid } from '../service/generated/renyibound/v1/ParameterGrid.js';
 import { withInputErrors } from './io.js';
 import { integerOption, MAX_WORKERS, noticeNewCacheFile } from './service-options.js';

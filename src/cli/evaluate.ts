@@ -1,7 +1,7 @@
 // `renyi-bound evaluate <problem.json | -> --state <matrix.json> --entropy <kind> [--alpha a]`
 // (--entropy and --alpha default to the problem's fields; the rule is in src/problem/entropy-request.ts):
 // the objective's value (bits) and gradient norm at a given density operator.
-import type { Command } from 'commander';
+import type { Command } from './command-line.js';
 import { ValidationError } from '../problem/errors.js';
 import { parseNumberOption, printJson, readJsonInput, withInputErrors } from './io.js';
 
@@ -29,11 +29,14 @@ export function register(program: Command): void {
     .option('--alpha <a>', 'Rényi order in (1, 2] (Rényi kinds only; default: the problem’s alpha field)')
     .action(
       withInputErrors(async (problemSource: string, options: EvaluateOptions) => {
-        const { frobeniusNorm } = await import('../linear-algebra/complex-matrix.js');
-        const { createObjective } = await import('../objectives/index.js');
-        const { densityOperatorFromJson } = await import('../problem/state.js');
-        const { parseProblemJson } = await import('../problem/validate.js');
-        const { resolveEntropyRequest } = await import('../problem/entropy-request.js');
+        const [{ frobeniusNorm }, { createObjective }, { densityOperatorFromJson }, { parseProblemJson }, { resolveEntropyRequest }] =
+          await Promise.all([
+            import('../linear-algebra/complex-matrix.js'),
+            import('../objectives/index.js'),
+            import('../problem/state.js'),
+            import('../problem/validate.js'),
+            import('../problem/entropy-request.js'),
+          ]);
         const alpha = options.alpha === undefined ? undefined : parseNumberOption(options.alpha, 'alpha');
         const parsed = parseProblemJson(readJsonInput(problemSource, 'problem'));
         const problem = parsed.problem;

@@ -1,6 +1,6 @@
 // `renyi-bound example <name> [--param value ...]`: prints an example problem as protobuf JSON;
 // `renyi-bound example --list`: every builder with its parameters, defaults and ranges.
-import type { Command } from 'commander';
+import type { Command } from './command-line.js';
 import { ValidationError } from '../problem/errors.js';
 import { exampleCatalogue } from '../protocols/catalogue.js';
 import { EXAMPLES, buildExample } from '../protocols/index.js';

@@ -1,7 +1,6 @@
 // `renyi-bound health --server <servers> [--wait <seconds>]`: prints the grpc.health.v1 status name; exit 0 only
 // when SERVING. With a list, one line per server (`host:port STATUS`), exit 0 only when all serve.
-import type { Command } from 'commander';
-import { parseServers } from '../client/servers.js';
+import type { Command } from './command-line.js';
 import { ValidationError } from '../problem/errors.js';
 import { parseNumberOption, withInputErrors } from './io.js';
 import { integerOption, SERVER_OPTION_HELP, serversOption } from './service-options.js';
@@ -30,9 +29,10 @@ export function register(program: Command): void {
     .action(
       withInputErrors(async (options: HealthOptions) => {
         const { checkHealthOf, waitForServing } = await import('../client/client.js');
+        const { parseServers } = await import('../client/servers.js');
         const { clientSecurityFromPaths, setDefaultClientSecurity } = await import('../service/security.js');
         setDefaultClientSecurity(clientSecurityFromPaths(options));
-        const servers = serversOption(options.server);
+        const servers = await serversOption(options.server);
         const timeoutMs = integerOption(options.timeoutMs, '--timeout-ms', 1, 600_000)!;
         const waitSeconds = options.wait === undefined ? undefined : parseNumberOption(options.wait, '--wait');
         if (waitSeconds !== undefined && !(waitSeconds >= 0 && waitSeconds <= MAX_WAIT_SECONDS)) {

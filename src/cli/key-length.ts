@@ -2,7 +2,7 @@
 //  [--ec-efficiency f] [--alpha a] [--variable-length]`: the finite-size key length under coherent attacks as JSON.
 // Sweep mode: several n (`--rounds 1e4..1e12:9` or a comma list) and optionally one channel parameter of an
 // example (`--example bb84-entangled --set test-probability=0.02 --sweep qber-x=0.01,0.03`), drawn with `--plot`.
-import type { Command } from 'commander';
+import type { Command } from './command-line.js';
 import { ValidationError } from '../problem/errors.js';
 import type { KeyLengthOptions } from '../finite-size/key-length.js';
 import { parseNumberOption, printJson, readJsonInput, withInputErrors } from './io.js';
@@ -61,7 +61,7 @@ export function register(program: Command): void {
     .option('--variable-length', 'also return the affine rule ℓ(observed score sum)')
     .option('--fast', 'Petz-up single-round bound (faster, lower) instead of sandwiched-up')
     .option('--example <name>', 'build the problem from an example instead of a file (sweeps over a channel parameter)')
-    .option('--set <name=value>', 'an example parameter (repeatable)', (v: string, all: string[]) => [...all, v], [])
+    .repeatableOption('--set <name=value>', 'an example parameter (repeatable)')
     .option('--sweep <name=v1,v2,…>', 'sweep one example parameter')
     .option('--plot <file.svg>', 'sweep chart: key rate per round against n, asymptotic rate dashed')
     .option('--optimise-test-probability', 'with --example and one n: search the test probability γ too')

@@ -1,17 +1,14 @@
 #!/usr/bin/env node
 // The renyi-bound command line. Each command lives in its own module exporting register(program); only the
 // module of the command being run is loaded (all of them for the overall help), so start-up stays short.
-import nodeModule, { createRequire } from 'node:module';
-import type { Command as CommandType } from 'commander';
+import nodeModule from 'node:module';
+import { Command } from './command-line.js';
 import { packageVersion } from './io.js';
 
 // Node ≥ 22.1 keeps compiled code of the modules loaded from here on between runs; Node 20 has no such cache.
 (nodeModule as { enableCompileCache?: () => unknown }).enableCompileCache?.();
 
-// commander through require(): its ES-module entry wraps the CommonJS build, which costs a scan of it at every start.
-const { Command } = createRequire(import.meta.url)('commander') as typeof import('commander');
-
-type CommandModule = { register(program: CommandType): void };
+type CommandModule = { register(program: Command): void };
 
 /** Every command by name, in the order the overall help lists them. */
 const COMMANDS: Readonly<Record<string, () => Promise<CommandModule>>> = {
@@ -37,4 +34,4 @@ const named = process.argv[2];
 const loaders = named !== undefined && Object.hasOwn(COMMANDS, named) ? [COMMANDS[named]] : Object.values(COMMANDS);
 for (const module of await Promise.all(loaders.map((load) => load()))) module.register(program);
 
-await program.parseAsync(process.argv);
+await program.run(process.argv.slice(2));

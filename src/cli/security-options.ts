@@ -1,9 +1,9 @@
 // The security options of the service commands: TLS files and the token file (never the token itself, which
 // would show in the process list and the shell history).
-import type { Command } from 'commander';
+import type { Command } from './command-line.js';
 import { TOKEN_FILE_ENV } from '../service/security-names.js';
 
-/** What commander collects from the options added below. */
+/** What the command line collects from the options added below. */
 export interface SecurityCommandOptions {
   tokenFile?: string;
   tlsCa?: string;

@@ -1,5 +1,5 @@
 // `renyi-bound serve`: runs the gRPC service until SIGTERM/SIGINT, then drains and exits 0.
-import type { Command } from 'commander';
+import type { Command } from './command-line.js';
 import type { RenyiBoundServer } from '../service/server.js';
 import { ValidationError } from '../problem/errors.js';
 import { withInputErrors } from './io.js';

@@ -4,7 +4,6 @@ import { availableParallelism } from 'node:os';
 import { join } from 'node:path';
 import { defaultCacheDirectory, SQLITE_FILE_NAME } from '../cache/directory.js';
 import { ValidationError } from '../problem/errors.js';
-import { parseServers } from '../client/servers.js';
 import { parseNumberOption } from './io.js';
 
 /** A non-negative integer option within [minimum, maximum]; `field` names the option in errors. */
@@ -24,8 +23,12 @@ export const MAX_WORKERS = 4 * availableParallelism() + 4;
 export const SERVER_OPTION_HELP =
   'host:port, a comma-separated list of them, or a DNS name resolving to every replica (dns:///name:port); calls are spread round robin';
 
-/** `--server`: host:port, a comma-separated list, or a DNS name (checked here, resolved when connecting). */
-export function serversOption(text: string, field = '--server'): string {
+/**
+ * `--server`: host:port, a comma-separated list, or a DNS name (checked here, resolved when connecting). The
+ * parser is loaded only then: it brings in the DNS and network modules, which commands run locally never need.
+ */
+export async function serversOption(text: string, field = '--server'): Promise<string> {
+  const { parseServers } = await import('../client/servers.js');
   parseServers(text, field);
   return text.trim();
 }

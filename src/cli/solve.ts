@@ -1,6 +1,6 @@
 // `renyi-bound solve <problem.json | -> --entropy <kind> [--alpha a] [--gap g] [--max-iterations n]
 //  [--time-limit-ms t] [--warm-start matrix.json] [--server servers]`: a certified bound as JSON.
-import type { Command } from 'commander';
+import type { Command } from './command-line.js';
 import type { SolveResult } from '../result/types.js';
 import type { SolverSettings } from '../frank-wolfe/settings.js';
 import { ValidationError } from '../problem/errors.js';
@@ -52,9 +52,11 @@ export function register(program: Command): void {
     .option('--server <servers>', `send the request to running renyi-bound server(s) instead of solving here: ${SERVER_OPTION_HELP}`))
     .action(
       withInputErrors(async (problemSource: string, options: SolveOptions) => {
-        const { parseProblemJson } = await import('../problem/validate.js');
-        const { resolveEntropyRequest } = await import('../problem/entropy-request.js');
-        const { densityOperatorFromJson } = await import('../problem/state.js');
+        const [{ parseProblemJson }, { resolveEntropyRequest }, { densityOperatorFromJson }] = await Promise.all([
+          import('../problem/validate.js'),
+          import('../problem/entropy-request.js'),
+          import('../problem/state.js'),
+        ]);
         const alpha = options.alpha === undefined ? undefined : parseNumberOption(options.alpha, 'alpha');
         const problemJson = readJsonInput(problemSource, 'problem');
         const parsed = parseProblemJson(problemJson);
@@ -66,7 +68,7 @@ export function register(program: Command): void {
           warmStartJson === undefined ? undefined : densityOperatorFromJson(warmStartJson, 'warm-start', dimension);
         let result: SolveResult;
         if (options.server !== undefined) {
-          const server = serversOption(options.server);
+          const server = await serversOption(options.server);
           const { closeClients, solveRemote } = await import('../client/client.js');
           const { commandLineError } = await import('../client/errors.js');
           const { clientSecurityFromPaths, setDefaultClientSecurity } = await import('../service/security.js');

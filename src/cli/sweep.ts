@@ -1,6 +1,6 @@
 // `renyi-bound sweep <grid.json>`: runs a parameter grid (or one shard of it) spread over the replicas behind
 // --server, or on an embedded server, with a progress bar; then writes CSV, JSON and optionally an SVG plot.
-import type { Command } from 'commander';
+import type { Command } from './command-line.js';
 import type { SweepOutcome } from '../client/sweep.js';
 import { ValidationError } from '../problem/errors.js';
 import { readJsonInput, withInputErrors } from './io.js';
@@ -61,7 +61,7 @@ export function register(program: Command): void {
         const { axisNamesOf, jsonPathFor, progressBar, sweepTable, writeSweepOutputs } = await import('../client/report.js');
         const { commandLineError } = await import('../client/errors.js');
         const grid = gridFromJson(readJsonInput(gridPath, 'grid.json'));
-        const server = options.server === undefined ? undefined : serversOption(options.server);
+        const server = options.server === undefined ? undefined : await serversOption(options.server);
         if (server !== undefined && options.redisUrl !== undefined) {
           throw new ValidationError('--redis-url', 'is for the embedded server; the servers behind --server have their own');
         }

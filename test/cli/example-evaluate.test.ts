@@ -2,7 +2,7 @@ import { spawnSync } from 'node:child_process';
 import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { Command } from 'commander';
+import { Command } from '../../src/cli/command-line.js';
 import { afterEach, describe, expect, it, vi } from 'vitest';
 import { register as registerEvaluate } from '../../src/cli/evaluate.js';
 import { register as registerExample } from '../../src/cli/example.js';
@@ -27,7 +27,7 @@ function spawnCli(args: string[], input?: string): Run {
 
 // The command modules in process, registered as main.ts registers them; output and exit code captured.
 async function cli(args: string[], input?: string): Promise<Run> {
-  const program = new Command('renyi-bound').exitOverride();
+  const program = new Command('renyi-bound');
   registerExample(program);
   registerEvaluate(program);
   let stdout = '';
@@ -38,7 +38,7 @@ async function cli(args: string[], input?: string): Promise<Run> {
   process.exitCode = undefined;
   try {
     // '-' (standard input) is exercised by the spawned runs; in process it is replaced by a file with the input.
-    await program.parseAsync(args.map((a) => (a === '-' && stdinFile !== undefined ? stdinFile : a)), { from: 'user' });
+    await program.run(args.map((a) => (a === '-' && stdinFile !== undefined ? stdinFile : a)));
   } finally {
     vi.restoreAllMocks();
   }

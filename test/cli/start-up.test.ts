@@ -6,6 +6,7 @@ import { spawnSync } from 'node:child_process';
 import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
+import { pathToFileURL } from 'node:url';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { buildExample } from '../../src/protocols/index.js';
 import { packageRoot } from '../../src/problem/proto-options.js';
@@ -42,6 +43,19 @@ function packagesLoaded(trace: Trace): string[] {
   return [...new Set(names)].sort();
 }
 
+/**
+ * The project's modules (relative to src/) a trace loaded that a command run locally has no use for: the optimiser
+ * and the oracle (the verifier must not import them), the client and the service (network modules, gRPC).
+ * The service's option names are plain strings and allowed.
+ */
+function remoteOrOptimiserModules(trace: Trace): string[] {
+  const source = `${pathToFileURL(join(root, 'src')).href}/`;
+  return trace.esm
+    .filter((e) => e.url.startsWith(source))
+    .map((e) => e.url.slice(source.length))
+    .filter((m) => /^(frank-wolfe|oracle|client|service)\//.test(m) && m !== 'service/security-names.ts');
+}
+
 /** Packages' CommonJS files that went through the ES-module loader (each one scanned at every start). */
 function commonJsThroughEsm(trace: Trace): string[] {
   return trace.esm.filter((e) => e.format === 'commonjs' && packageOf(e.url) !== null).map((e) => e.url);
@@ -61,8 +75,8 @@ describe('a fresh CLI process loads only what its command needs', () => {
     writeFileSync(state, JSON.stringify((JSON.parse(solveTrace.stdout) as { finalState: unknown }).finalState));
   }, 120_000);
 
-  it('solve: commander and ml-matrix, both through require()', () => {
-    expect(packagesLoaded(solveTrace)).toEqual(['commander', 'ml-matrix']);
+  it('solve: ml-matrix alone, through require()', () => {
+    expect(packagesLoaded(solveTrace)).toEqual(['ml-matrix']);
     expect(commonJsThroughEsm(solveTrace)).toEqual([]);
     expect(solveTrace.commonjs.some((p) => p.endsWith('ml-matrix/matrix.js'))).toBe(true);
   });
@@ -72,12 +86,16 @@ describe('a fresh CLI process loads only what its command needs', () => {
     ['example', ['example', 'bb84-entangled', '--qber-z', '0.03']],
     ['evaluate', ['evaluate', problem, '--state', state, '--entropy', 'petz-up', '--alpha', '1.2']],
     ['verify', ['verify', result, '--problem', problem]],
-  ])('%s: commander alone, through require()', (_, args) => {
+  ])('%s: no package, and none of the optimiser, client or service code', (_, args) => {
     const trace = traced(args);
     expect(trace.status, trace.stderr).toBe(0);
-    expect(packagesLoaded(trace)).toEqual(['commander']);
-    expect(commonJsThroughEsm(trace)).toEqual([]);
+    expect(packagesLoaded(trace)).toEqual([]);
+    expect(remoteOrOptimiserModules(trace)).toEqual([]);
   }, 60_000);
+
+  it('a local solve loads no client or service code either', () => {
+    expect(remoteOrOptimiserModules(solveTrace).filter((m) => !/^(frank-wolfe|oracle)\//.test(m))).toEqual([]);
+  });
 
   it('the trace sees a CommonJS package imported through the ES-module loader', () => {
     const script = join(directory, 'imports-ml-matrix.mjs');

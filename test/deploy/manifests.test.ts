@@ -4,7 +4,7 @@
 // service names, Secret and ConfigMap names and keys, mounted file paths, CLI options, $(VAR) expansions.
 import { readdirSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { Command } from 'commander';
+import { Command } from '../../src/cli/command-line.js';
 import { describe, expect, it } from 'vitest';
 import { parseAllDocuments } from 'yaml';
 import { register as registerHealth } from '../../src/cli/health.js';
@@ -218,7 +218,7 @@ describe('deploy/kubernetes: cross-references', () => {
     const renyiBound = podTemplates.flatMap((pod) => containers(pod).filter((c: Json) => String(c.image).includes('renyi-bound')).map((c: Json) => ({ pod, c })));
     expect(renyiBound.length).toBeGreaterThanOrEqual(3);
     for (const { pod, c } of renyiBound) {
-      const command = program.commands.find((x) => x.name() === c.args[0]);
+      const command = program.commands.find((x) => x.name === c.args[0]);
       expect(command, `${pod.owner}: ${c.args[0]}`).toBeDefined();
       const known = command!.options.map((o) => o.long);
       for (const flag of c.args.filter((a: string) => a.startsWith('--'))) expect(known, `${pod.owner}: ${flag}`).toContain(flag);

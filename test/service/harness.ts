@@ -2,7 +2,7 @@
 import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { Command } from 'commander';
+import { Command } from '../../src/cli/command-line.js';
 import { pino } from 'pino';
 import { vi } from 'vitest';
 import { RenyiBoundServer, type ServerOptions } from '../../src/service/server.js';
@@ -93,7 +93,7 @@ export async function runRegistered(
   registers: ((program: Command) => void)[],
   args: string[],
 ): Promise<{ status: number; stdout: string; stderr: string }> {
-  const program = new Command('renyi-bound').exitOverride();
+  const program = new Command('renyi-bound');
   for (const register of registers) register(program);
   let stdout = '';
   let stderr = '';
@@ -101,7 +101,7 @@ export async function runRegistered(
   const err = vi.spyOn(process.stderr, 'write').mockImplementation((chunk) => ((stderr += String(chunk)), true));
   process.exitCode = undefined;
   try {
-    await program.parseAsync(args, { from: 'user' });
+    await program.run(args);
   } finally {
     out.mockRestore();
     err.mockRestore();

@@ -5,7 +5,7 @@ import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import * as grpc from '@grpc/grpc-js';
-import { Command } from 'commander';
+import { Command } from '../../src/cli/command-line.js';
 import { afterAll, afterEach, beforeAll, describe, expect, it, vi } from 'vitest';
 import { register as registerHealth } from '../../src/cli/health.js';
 import { register as registerServe } from '../../src/cli/serve.js';
@@ -147,12 +147,12 @@ describe('exposure beyond loopback', () => {
   });
 
   it('`serve --host 0.0.0.0` exits 1 with one line naming --host; --allow-insecure-remote is the way out', async () => {
-    const program = new Command('renyi-bound').exitOverride();
+    const program = new Command('renyi-bound');
     registerServe(program);
     let stderr = '';
     const err = vi.spyOn(process.stderr, 'write').mockImplementation((chunk) => ((stderr += String(chunk)), true));
     try {
-      await program.parseAsync(['serve', '--host', '0.0.0.0', '--port', '0', '--no-disk-cache', '--workers', '1'], { from: 'user' });
+      await program.run(['serve', '--host', '0.0.0.0', '--port', '0', '--no-disk-cache', '--workers', '1']);
     } finally {
       err.mockRestore();
     }
@@ -241,12 +241,12 @@ describe('TLS', () => {
 
   it('the health command speaks TLS with --tls-ca', async () => {
     const run = async (args: string[]) => {
-      const program = new Command('renyi-bound').exitOverride();
+      const program = new Command('renyi-bound');
       registerHealth(program);
       let stdout = '';
       const out = vi.spyOn(process.stdout, 'write').mockImplementation((chunk) => ((stdout += String(chunk)), true));
       try {
-        await program.parseAsync(args, { from: 'user' });
+        await program.run(args);
       } finally {
         out.mockRestore();
       }
