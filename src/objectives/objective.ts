@@ -99,6 +99,9 @@ export interface Objective {
   outputCurvature(rho: ComplexMatrix, reference?: ReferenceBlocks): OutputCurvature | null;
 }
 
+/** D = Σ K†K − 1 is summed with compensation when |c|/ln 2 times the plain sums' rounding bound would exceed this (bits). */
+const DEFECT_COMPENSATION_THRESHOLD = 1e-13;
+
 /** Forward-difference step of the curvature, as a share of the smallest output eigenvalue (truncation ∝ this share). */
 const CURVATURE_STEP_SHARE = 1e-3;
 
@@ -331,9 +334,12 @@ class EntropyObjective implements Objective {
     const coefficient = logCoefficient(this.request);
     const betaMinusOne = sandwichedOrderDefect(this.request.alpha);
     const a = (coefficient * (1 + betaMinusOne)) / (quasiEntropy * Math.LN2);
+    // |a| ≈ |c|/ln 2 at every ρ, so whether D needs compensated sums is decided once, from c.
     this.defect ??= identityDefect(
       this.supports.flatMap((s) => s.krausOperators),
       this.dimension,
+      coefficient / Math.LN2,
+      DEFECT_COMPENSATION_THRESHOLD,
     );
     const perBranch = terms.map((t, c) => {
       const h = scale(t.gradientStateDefect as ComplexMatrix, this.weights[c]);
