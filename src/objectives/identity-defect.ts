@@ -1,4 +1,5 @@
 import { ComplexMatrix } from '../linear-algebra/complex-matrix.js';
+import { pollAtOrder } from '../linear-algebra/interruption.js';
 import { UNIT_ROUNDOFF } from '../linear-algebra/rounding.js';
 
 /**
@@ -41,6 +42,8 @@ function defectSums(kraus: readonly ComplexMatrix[], dimension: number, compensa
   let absoluteSquares = 0;
   let squares = 0;
   for (let a = 0; a < dimension; a++) {
+    // Seconds at d = 256 with compensation: the run's deadline is polled once per row.
+    pollAtOrder(dimension);
     for (let b = a; b < dimension; b++) {
       re.reset(a === b ? -1 : 0);
       im.reset(0);
