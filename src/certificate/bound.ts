@@ -9,7 +9,7 @@ import {
   traceProductReal,
 } from '../linear-algebra/complex-matrix.js';
 import { eigh, eigvalsh } from '../linear-algebra/eigen.js';
-import type { Objective, ObjectiveEvaluation, ReferenceBlocks, BranchSupport } from '../objectives/index.js';
+import type { Objective, ObjectiveEvaluation, ReferenceBlocks, BranchSupport, IdentitySplit } from '../objectives/index.js';
 import type { Problem } from '../problem/model.js';
 import { compressToFace, faceContinuityMargin, type FeasibleFace } from '../problem/feasible-face.js';
 import { matrixFromJson } from '../problem/json.js';
@@ -67,11 +67,14 @@ export function linearizationBound(
   let referenceError = 0;
   let evaluationConditioning = 1;
   let derivedConditioning: number | undefined;
+  let split: IdentitySplit | undefined;
   if (objective.request.kind === 'sandwiched-up') {
     if (!reference) throw new Error('linearizationBound: sandwiched-up needs reference states τ');
     const joint = objective.evaluateAtReference(rho, reference);
     objectiveValue = joint.value;
-    gradient = joint.gradientState;
+    // ∇F = a·1 + G: λ_min(∇F − Σ yΓ) = a + λ_min(G − Σ yΓ), and a enters only through the split's constant.
+    split = joint.split;
+    gradient = split.remainder;
     evaluationConditioning = joint.conditioning;
     derivedConditioning = joint.derivedConditioning;
     let smallest = Infinity;
@@ -111,8 +114,10 @@ export function linearizationBound(
     multiplierWeight += (yLower + yUpper) * (frobeniusNorm(constraint.operator) + Math.abs(lower) + Math.abs(upper));
   });
   const spectrum = eigh(shifted);
-  const smallestEigenvalue = spectrum.values[0];
   const gradientInnerProduct = eulerInnerProduct(objective, objectiveValue);
+  // The stated λ_min(∇F − Σ yΓ) keeps its meaning; the bound itself adds the split's parts without cancellation.
+  const smallestEigenvalue = spectrum.values[0] + (split ? split.identityCoefficient : 0);
+  const linearizationConstant = split ? split.constant : objectiveValue - gradientInnerProduct;
 
   // Backward-error scale of each eigendecomposition; the gradient term grows like ‖ρ'‖/λ_min(ρ') because the
   // derivative of log or of a negative power amplifies a backward error by the inverse smallest eigenvalue. The
@@ -123,8 +128,14 @@ export function linearizationBound(
   // blocks, sandwiched products): Kraus maps can make an output worse conditioned than ρ'.
   const conditioning = Math.max(frobeniusNorm(rho) / Math.max(rhoEigenvalues[0], Number.MIN_VALUE), evaluationConditioning);
   const scale = MARGIN_CONSTANT * n * UNIT_ROUNDOFF;
-  const valueError = objective.request.kind === 'von-neumann' ? 0 : Math.abs(objectiveValue);
-  const unamplified = scale * (valueError + frobeniusNorm(shifted) + multiplierWeight + frobeniusNorm(gradient)) + referenceError;
+  // Split: the constant's own size and what Q's relative error does to it, plus the identity defect's rounding.
+  const valueError = split
+    ? Math.abs(split.constant) + split.constantSensitivity
+    : objective.request.kind === 'von-neumann'
+      ? 0
+      : Math.abs(objectiveValue);
+  const unamplified =
+    scale * (valueError + frobeniusNorm(shifted) + multiplierWeight + frobeniusNorm(gradient)) + referenceError + (split?.defectError ?? 0);
   const weyl = (scale * conditioning) / Math.LN2;
   // Graded alternative: the matrices other than ρ' and the branch outputs keep their full (Weyl) charge; the
   // outputs' share is measured where it reaches λ_min.
@@ -132,7 +143,7 @@ export function linearizationBound(
   const derivedCharge = (scale * derived) / Math.LN2;
   let conditioningCharge = weyl;
   let margin = unamplified + weyl;
-  const base = objectiveValue - gradientInnerProduct + dualConstant + smallestEigenvalue + referenceTerm;
+  const base = linearizationConstant + dualConstant + spectrum.values[0] + referenceTerm;
   if (weyl > derivedCharge + unamplified && base - unamplified - derivedCharge > curvatureWorthAbove) {
     const graded = derivedCharge + curvatureCharge(objective, rho, reference, spectrum, weyl, scale, checkpoint);
     if (graded < weyl) {

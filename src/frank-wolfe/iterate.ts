@@ -260,6 +260,7 @@ function lineStep(setup: SolverSetup, state: SolverState, direction: ComplexMatr
     maxStep,
     TUNING.lineSearchTolerance,
     TUNING.lineSearchEvaluations,
+    setup.settings.gapTolerance,
   );
   const chosen = search.best;
   if (!chosen || !(chosen.value <= state.evaluation.value) || chosen.step <= 0) return null;

@@ -11,6 +11,17 @@ export interface TrialPoint {
 }
 
 /**
+ * A search is skipped when even its largest possible decrease is below this share of the requested gap: F is convex,
+ * so φ(t) ≥ φ(0) + t·φ'(0) and no step in [0, maxStep] lowers F by more than |φ'(0)|·maxStep (docs/convergence.md).
+ */
+export const NEGLIGIBLE_DECREASE_SHARE = 1e-6;
+
+/** True when |φ'(0)|·maxStep, the convexity bound on what the search can gain, is negligible against the gap. */
+export function decreaseIsNegligible(initialSlope: number, maxStep: number, gapTolerance: number): boolean {
+  return Math.abs(initialSlope) * maxStep < NEGLIGIBLE_DECREASE_SHARE * gapTolerance;
+}
+
+/**
  * Minimises φ(t) = F(x + t·d) on [0, maxStep] by finding the zero of φ' (Illinois regula falsi, bisection when
  * a bracket end is not finite). Searching on the derivative keeps working after value differences fall below
  * rounding, which a search on function values does not.
@@ -22,7 +33,10 @@ export function derivativeLineSearch(
   maxStep: number,
   tolerance: number,
   maxEvaluations: number,
+  /** The requested gap: a search that cannot gain a millionth of it returns no step without evaluating F. */
+  gapTolerance = 0,
 ): { best: TrialPoint | null; evaluations: number } {
+  if (decreaseIsNegligible(initialSlope, maxStep, gapTolerance)) return { best: null, evaluations: 0 };
   let evaluations = 0;
   const probe = (step: number): TrialPoint | null => {
     evaluations++;

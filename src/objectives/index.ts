@@ -7,6 +7,7 @@ export {
   type Objective,
   type ObjectiveEvaluation,
   type JointEvaluation,
+  type IdentitySplit,
 } from './objective.js';
 export type { ReferenceBlocks } from './sandwiched-up.js';
 export type { BranchSupport } from './branch-supports.js';

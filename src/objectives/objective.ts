@@ -20,10 +20,12 @@ import {
   optimalReference,
   sandwichedBranchTerm,
   type ReferenceBlocks,
+  type SandwichedBranchTerm,
   type ReferenceSettings,
 } from './sandwiched-up.js';
 import { readConditioning, readDerivedConditioning, readOutputFloor, resetConditioning } from './spectral-blocks.js';
 import { relativeEntropyToPinched } from './von-neumann.js';
+import { identityDefect, type IdentityDefect } from './identity-defect.js';
 
 export interface ObjectiveEvaluation {
   /** F(ρ) in bits. */
@@ -45,6 +47,22 @@ export interface EvaluateOptions {
   assumeFullRank?: boolean;
 }
 
+/**
+ * ∇_ρF = a·1 + G with G formed without the cancellation of the identity part a·1 (|a| ≈ |c|/ln 2 grows like
+ * 1/(α − 1)), and the linearization's constant F − ⟨∇_ρF, ρ⟩ − ⟨∇_τF, τ⟩ + a (docs/math.md §5, "The identity part").
+ * On density operators ⟨a·1, σ⟩ = a exactly, so a never meets a rounding.
+ */
+export interface IdentitySplit {
+  identityCoefficient: number;
+  remainder: ComplexMatrix;
+  /** F − c/ln 2 + a = (c/ln 2)·(log1p(q) − q/Q) + 1/(Q·ln 2), q = Q − 1 (c·(β − 1) = 1 exactly). */
+  constant: number;
+  /** |Q·∂constant/∂Q| = |c·q − 1|/(Q·ln 2): what a relative error of Q does to the constant. */
+  constantSensitivity: number;
+  /** |a| times the rounding bound of Σ K†K − 1 inside the remainder. */
+  defectError: number;
+}
+
 /** Value and gradient of F at a fixed τ (sandwiched-up), as used by the joint linearization of a certificate. */
 export interface JointEvaluation {
   value: number;
@@ -54,6 +72,8 @@ export interface JointEvaluation {
   /** As in ObjectiveEvaluation. */
   conditioning: number;
   derivedConditioning: number;
+  /** The same ∇_ρF as a·1 + G. */
+  split: IdentitySplit;
 }
 
 /**
@@ -79,6 +99,9 @@ export interface Objective {
   outputCurvature(rho: ComplexMatrix, reference?: ReferenceBlocks): OutputCurvature | null;
 }
 
+/** D = Σ K†K − 1 is summed with compensation when |c|/ln 2 times the plain sums' rounding bound would exceed this (bits). */
+const DEFECT_COMPENSATION_THRESHOLD = 1e-13;
+
 /** Forward-difference step of the curvature, as a share of the smallest output eigenvalue (truncation ∝ this share). */
 const CURVATURE_STEP_SHARE = 1e-3;
 
@@ -88,6 +111,14 @@ export function branchWeight(request: Required<EntropyRequest>, score: number): 
   if (kind === 'von-neumann') return 1;
   const exponent = kind === 'petz-down' ? (alpha - 1) * score : ((alpha - 1) / alpha) * score;
   return 2 ** exponent;
+}
+
+/** w_c − 1 without cancellation (expm1), for the identity split of the gradient. */
+export function branchWeightMinusOne(request: Required<EntropyRequest>, score: number): number {
+  const { kind, alpha } = request;
+  if (kind === 'von-neumann') return 0;
+  const exponent = kind === 'petz-down' ? (alpha - 1) * score : ((alpha - 1) / alpha) * score;
+  return Math.expm1(exponent * Math.LN2);
 }
 
 /** The coefficient c in F = c·log2 Q for the Rényi kinds. */
@@ -102,6 +133,11 @@ export function logCoefficient(request: Required<EntropyRequest>): number {
 /** β = α/(2α−1), the sandwiched order dual to α. */
 export function sandwichedOrder(alpha: number): number {
   return alpha / (2 * alpha - 1);
+}
+
+/** β − 1 = (1 − α)/(2α − 1), with 1 − α and 2α − 1 exact in floating point for α ∈ (1, 2]. */
+export function sandwichedOrderDefect(alpha: number): number {
+  return (1 - alpha) / (2 * alpha - 1);
 }
 
 export function normaliseRequest(request: EntropyRequest): Required<EntropyRequest> {
@@ -128,6 +164,9 @@ class EntropyObjective implements Objective {
   readonly dimension: number;
   readonly supports: readonly BranchSupport[];
   private readonly weights: number[];
+  private readonly weightsMinusOne: number[];
+  /** Σ K†K − 1 over every branch, computed once at the first certificate (sandwiched-up). */
+  private defect: IdentityDefect | undefined;
   private readonly referenceSettings: ReferenceSettings;
   /** Last optimal τ: the next evaluation (a nearby ρ in a line search) starts its fixed-point iteration there. */
   private lastReference: ReferenceBlocks | undefined;
@@ -143,6 +182,7 @@ class EntropyObjective implements Objective {
     // A branch that can never occur contributes nothing to any kind.
     this.supports = problem.branches.map(branchSupport).filter((s) => s.dimension > 0);
     this.weights = this.supports.map((s) => branchWeight(request, s.score));
+    this.weightsMinusOne = this.supports.map((s) => branchWeightMinusOne(request, s.score));
   }
 
   private branchStates(rho: ComplexMatrix): ComplexMatrix[] {
@@ -253,10 +293,12 @@ class EntropyObjective implements Objective {
   private fromOutputsAtReference(
     states: readonly ComplexMatrix[],
     reference: ReferenceBlocks,
-  ): { value: number; gradients: ComplexMatrix[]; gradientReference: ComplexMatrix[][] } {
+    withDefect = false,
+  ): { value: number; gradients: ComplexMatrix[]; gradientReference: ComplexMatrix[][]; terms: SandwichedBranchTerm[]; quasiEntropy: number } {
     const beta = sandwichedOrder(this.request.alpha);
+    const betaMinusOne = withDefect ? sandwichedOrderDefect(this.request.alpha) : undefined;
     const terms = this.supports.map((support, c) =>
-      sandwichedBranchTerm(scale(states[c], this.weights[c]), support, reference[c], beta),
+      sandwichedBranchTerm(scale(states[c], this.weights[c]), support, reference[c], beta, undefined, betaMinusOne),
     );
     const total = terms.reduce((s, t) => s + t.quasiEntropy, 0);
     const coefficient = logCoefficient(this.request);
@@ -265,19 +307,54 @@ class EntropyObjective implements Objective {
       value: coefficient * Math.log2(total),
       gradients: terms.map((t, c) => scale(t.gradientState, factor * this.weights[c])),
       gradientReference: terms.map((t) => t.gradientReference.map((g) => scale(g, factor))),
+      terms,
+      quasiEntropy: total,
     };
   }
 
   evaluateAtReference(rho: ComplexMatrix, reference: ReferenceBlocks): JointEvaluation {
     if (this.request.kind !== 'sandwiched-up') throw new Error('evaluateAtReference: only for sandwiched-up');
     resetConditioning();
-    const joint = this.fromOutputsAtReference(this.branchStates(rho), reference);
+    const joint = this.fromOutputsAtReference(this.branchStates(rho), reference, true);
     return {
       value: joint.value,
       gradientState: this.pullBack(joint.gradients),
       gradientReference: joint.gradientReference,
       conditioning: readConditioning(),
       derivedConditioning: readDerivedConditioning(),
+      split: this.identitySplit(joint.terms, joint.quasiEntropy),
+    };
+  }
+
+  /**
+   * ∇_ρF = a·Σ_c Σ_j K†(w_c(1 + G'_c))K with a = c·β/(Q·ln 2) and G'_c = ∇_X Q̃/β − 1 (sandwiched-up.ts), so
+   * ∇_ρF − a·1 = a·(D + Σ_c Σ_j K†H_cK), H_c = (w_c − 1)·1 + w_c·G'_c, D = Σ K†K − 1: nothing of size |a| is subtracted.
+   */
+  private identitySplit(terms: readonly SandwichedBranchTerm[], quasiEntropy: number): IdentitySplit {
+    const coefficient = logCoefficient(this.request);
+    const betaMinusOne = sandwichedOrderDefect(this.request.alpha);
+    const a = (coefficient * (1 + betaMinusOne)) / (quasiEntropy * Math.LN2);
+    // |a| ≈ |c|/ln 2 at every ρ, so whether D needs compensated sums is decided once, from c.
+    this.defect ??= identityDefect(
+      this.supports.flatMap((s) => s.krausOperators),
+      this.dimension,
+      coefficient / Math.LN2,
+      DEFECT_COMPENSATION_THRESHOLD,
+    );
+    const perBranch = terms.map((t, c) => {
+      const h = scale(t.gradientStateDefect as ComplexMatrix, this.weights[c]);
+      for (let i = 0; i < h.rows; i++) h.re[i * h.cols + i] += this.weightsMinusOne[c];
+      return h;
+    });
+    const inner = this.pullBack(perBranch);
+    addScaledInPlace(inner, this.defect.matrix, 1);
+    const q = quasiEntropy - 1;
+    return {
+      identityCoefficient: a,
+      remainder: scale(inner, a),
+      constant: (coefficient / Math.LN2) * (Math.log1p(q) - q / quasiEntropy) + 1 / (quasiEntropy * Math.LN2),
+      constantSensitivity: Math.abs(coefficient * q - 1) / (quasiEntropy * Math.LN2),
+      defectError: Math.abs(a) * this.defect.roundingBound,
     };
   }
 

@@ -38,6 +38,11 @@ export interface SandwichedBranchTerm {
   gradientReference: ComplexMatrix[];
   /** Z(M^β): the fixed-point map's image before normalisation. */
   pinchedPower: ComplexMatrix[];
+  /**
+   * ∇_X Q̃/β − 1 = (τ^{2s} − 1) + τ^s·(M^{β−1} − 1)·τ^s, each difference through expm1 of a logarithm, so it is
+   * accurate relative to its own size (it vanishes as α → 1, where ∇_X Q̃ → 1). Only when asked for.
+   */
+  gradientStateDefect?: ComplexMatrix;
 }
 
 /**
@@ -50,37 +55,51 @@ export function sandwichedBranchTerm(
   reference: ComplexMatrix[],
   beta: number,
   root?: OutputRoot,
+  /** β − 1 formed from α without rounding β first (`sandwichedOrderDefect`): asks for `gradientStateDefect`. */
+  betaMinusOne?: number,
 ): SandwichedBranchTerm {
-  if (isKeyless(support)) return keylessBranchTerm(weightedState, reference[0].re[0], beta);
+  if (isKeyless(support)) return keylessBranchTerm(weightedState, reference[0].re[0], beta, betaMinusOne);
   const s = (1 - beta) / (2 * beta);
   const { blockSizes: sizes, blockOffsets: offsets } = support;
   const referenceEigs = eigenBlocks(reference);
   const ts = blockSpectralFunction(referenceEigs, (t) => Math.max(t, 0) ** s);
-  const { quasiEntropy, weight, powerOfM } = sandwichedPowerOfRoot(ts, root ?? outputRoot(weightedState, support.outputRange), beta);
+  const power = sandwichedPowerOfRoot(ts, root ?? outputRoot(weightedState, support.outputRange), beta, betaMinusOne);
+  const { quasiEntropy, weight, powerOfM } = power;
   const gradientState = multiply(multiply(ts, weight), ts);
   const xtsW = multiply(multiply(weightedState, ts), weight);
   const direction = add(xtsW, adjoint(xtsW));
   const gradientFull = blockFrechet(referenceEigs, powerFunction(s), direction, sizes, offsets);
-  return {
+  const term: SandwichedBranchTerm = {
     quasiEntropy,
     gradientState,
     gradientReference: pinchedBlocks(gradientFull, sizes, offsets),
     pinchedPower: pinchedBlocks(powerOfM, sizes, offsets),
   };
+  if (betaMinusOne === undefined || !power.weightDefect) return term;
+  // 2s = (1 − β)/β with 1 − β = −(β − 1) exact.
+  const twoS = -betaMinusOne / (1 + betaMinusOne);
+  const defect = blockSpectralFunction(referenceEigs, (t) => Math.expm1(twoS * Math.log(t)));
+  addScaledInPlace(defect, multiply(multiply(ts, power.weightDefect), ts), 1);
+  return { ...term, gradientStateDefect: defect };
 }
 
 /** Q = t^{1−β}·(Tr X)^β with ∂_X Q = β·t^{1−β}(Tr X)^{β−1}·1 and ∂_t Q = (1−β)·t^{−β}(Tr X)^β. */
-function keylessBranchTerm(weightedState: ComplexMatrix, weight: number, beta: number): SandwichedBranchTerm {
+function keylessBranchTerm(weightedState: ComplexMatrix, weight: number, beta: number, betaMinusOne?: number): SandwichedBranchTerm {
   let traceX = 0;
   for (let i = 0; i < weightedState.rows; i++) traceX += weightedState.re[i * weightedState.cols + i];
   const quasiEntropy = weight ** (1 - beta) * traceX ** beta;
   const oneByOne = (value: number) => ComplexMatrix.from([[value]]);
+  const identity = ComplexMatrix.identity(weightedState.rows);
   return {
     quasiEntropy,
-    gradientState: scale(ComplexMatrix.identity(weightedState.rows), beta * weight ** (1 - beta) * traceX ** (beta - 1)),
+    gradientState: scale(identity, beta * weight ** (1 - beta) * traceX ** (beta - 1)),
     gradientReference: [oneByOne((1 - beta) * weight ** -beta * traceX ** beta)],
     // The fixed-point map sends the weight to this branch's share of Q.
     pinchedPower: [oneByOne(quasiEntropy)],
+    // ∂_X Q/β − 1 = (t/Tr X)^{1−β} − 1.
+    ...(betaMinusOne === undefined
+      ? {}
+      : { gradientStateDefect: scale(identity, Math.expm1(-betaMinusOne * Math.log(weight / traceX))) }),
   };
 }
 

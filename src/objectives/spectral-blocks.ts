@@ -5,6 +5,7 @@ import {
   multiply,
   multiplyAdjointLeft,
   multiplyAdjointRight,
+  scale,
 } from '../linear-algebra/complex-matrix.js';
 import { eigh, type HermitianEigen } from '../linear-algebra/eigen.js';
 import {
@@ -156,12 +157,17 @@ export function sandwichedPower(
   return sandwichedPowerOfRoot(ys, outputRoot(x, outputRange), gamma);
 }
 
-/** sandwichedPower from X's square-root factor R (X = R·R†). */
+/**
+ * sandwichedPower from X's square-root factor R (X = R·R†). With `gammaMinusOne` (γ − 1 formed without rounding γ
+ * first) it also returns `weightDefect` = W/γ − 1 = M^{γ−1} − 1, through expm1((γ−1)·ln μ) on M's eigenvalues where M
+ * is positive definite, so the identity never meets the rounding of W (docs/math.md §5, "The identity part").
+ */
 export function sandwichedPowerOfRoot(
   ys: ComplexMatrix,
   { left, right, onRange }: OutputRoot,
   gamma: number,
-): { quasiEntropy: number; weight: ComplexMatrix; powerOfM: ComplexMatrix } {
+  gammaMinusOne?: number,
+): { quasiEntropy: number; weight: ComplexMatrix; powerOfM: ComplexMatrix; weightDefect?: ComplexMatrix } {
   const factor = multiply(multiply(ys, left), right);
   if (!onRange) {
     // M = G·G† with G = Y^s·V·Λ^{1/2} (X = V·Λ·V†): the spectrum of M comes from G's singular values, which one-sided
@@ -173,13 +179,19 @@ export function sandwichedPowerOfRoot(
     const me = { values: squares, vectors };
     const weight = spectralFunction(me, (t) => gamma * t ** (gamma - 1));
     const powerOfM = spectralFunction(me, (t) => (t > 0 ? t ** gamma : 0));
-    return { quasiEntropy, weight, powerOfM };
+    if (gammaMinusOne === undefined) return { quasiEntropy, weight, powerOfM };
+    const weightDefect = spectralFunction(me, (t) => Math.expm1(gammaMinusOne * Math.log(t)));
+    return { quasiEntropy, weight, powerOfM, weightDefect };
   }
   const ne = positiveEigen(multiplyAdjointLeft(factor, factor));
   const quasiEntropy = traceFunction(ne.values, (t) => (t > 0 ? t ** gamma : 0));
   const weight = expand(factor, spectralFunction(ne, (t) => gamma * t ** (gamma - 2)));
   const powerOfM = expand(factor, spectralFunction(ne, (t) => t ** (gamma - 1)));
-  return { quasiEntropy, weight, powerOfM };
+  if (gammaMinusOne === undefined) return { quasiEntropy, weight, powerOfM };
+  // M is singular here: W/γ is far from 1 (zero on ker M), so subtracting 1 cancels nothing.
+  const weightDefect = scale(weight, 1 / gamma);
+  for (let i = 0; i < weightDefect.rows; i++) weightDefect.re[i * weightDefect.cols + i] -= 1;
+  return { quasiEntropy, weight, powerOfM, weightDefect };
 }
 
 function diagonalRoot(values: Float64Array): ComplexMatrix {

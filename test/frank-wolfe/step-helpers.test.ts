@@ -11,7 +11,7 @@ import {
 } from '../../src/linear-algebra/complex-matrix.js';
 import { eigh } from '../../src/linear-algebra/eigen.js';
 import { ActiveSet } from '../../src/frank-wolfe/active-set.js';
-import { derivativeLineSearch } from '../../src/frank-wolfe/line-search.js';
+import { decreaseIsNegligible, derivativeLineSearch, NEGLIGIBLE_DECREASE_SHARE } from '../../src/frank-wolfe/line-search.js';
 import { TangentQuasiNewton } from '../../src/frank-wolfe/quasi-newton.js';
 import { alongActiveIntervals, stepToEigenvalueFloor, stepToIntervalBounds } from '../../src/frank-wolfe/step-limits.js';
 import type { Problem } from '../../src/problem/model.js';
@@ -56,6 +56,45 @@ describe('derivativeLineSearch', () => {
     const bounded = (step: number) => (step > 1.5 * exact ? null : quadratic(step));
     const { best } = derivativeLineSearch(bounded, d, slope0, 10 * exact, 1e-10, 80);
     expect(best!.step).toBeCloseTo(exact, 8);
+  });
+
+  // The skip rule for negligible predicted decreases (docs/convergence.md, "Negligible line searches"); the
+  // minimiser t* = ⟨c − x, d⟩/⟨d, d⟩ recomputed with mathjs as the outside reference.
+  const mathjsInner = (a: ComplexMatrix, b: ComplexMatrix) => {
+    const value = math.trace(math.multiply(math.ctranspose(toMathjs(a)), toMathjs(b))) as unknown as number | math.Complex;
+    return typeof value === 'number' ? value : value.re;
+  };
+  const mathjsMinimiser = mathjsInner(subtract(c, x), d) / mathjsInner(d, d);
+
+  it('leaves the step unchanged, at the mathjs minimiser, when the predicted decrease is not negligible', () => {
+    const without = derivativeLineSearch(quadratic, d, slope0, 4 * exact, 1e-10, 60);
+    const withRule = derivativeLineSearch(quadratic, d, slope0, 4 * exact, 1e-10, 60, 1e-9);
+    expect(withRule.best!.step).toBeCloseTo(mathjsMinimiser, 9);
+    expect(withRule.best!.step).toBe(without.best!.step);
+    expect(withRule.evaluations).toBe(without.evaluations);
+  });
+
+  it('returns no step and evaluates nothing when |slope|·maxStep is below 1e-6 of the requested gap', () => {
+    const maxStep = (0.5 * NEGLIGIBLE_DECREASE_SHARE * 1e-6) / Math.abs(slope0);
+    let calls = 0;
+    const counted = (step: number) => (calls++, quadratic(step));
+    const { best, evaluations } = derivativeLineSearch(counted, d, slope0, maxStep, 1e-10, 60, 1e-6);
+    expect(best).toBeNull();
+    expect(evaluations).toBe(0);
+    expect(calls).toBe(0);
+    // Without a requested gap the same search still steps (the rule is opt-in).
+    expect(derivativeLineSearch(quadratic, d, slope0, maxStep, 1e-10, 60).best!.step).toBe(maxStep);
+  });
+
+  it('what a skipped search could gain is at most |slope|·maxStep (convexity), on the exact quadratic', () => {
+    for (const share of [1e-3, 0.1, 0.5, 1]) {
+      const gain = quadratic(0).value - quadratic(share * exact).value;
+      expect(gain).toBeGreaterThan(0);
+      expect(gain).toBeLessThanOrEqual(Math.abs(slope0) * share * exact);
+    }
+    expect(decreaseIsNegligible(slope0, exact, 1e-9)).toBe(false);
+    // The boundary case of issue #7: a slope of −2e-21 on a unit step against a 1e-6 gap.
+    expect(decreaseIsNegligible(-2e-21, 1, 1e-6)).toBe(true);
   });
 });
 
