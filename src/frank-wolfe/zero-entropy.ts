@@ -2,14 +2,26 @@
 // trivial bound? Such optima lie on the boundary of the cone, where Frank–Wolfe crawls; the test finds one with a
 // single semidefinite feasibility problem (docs/convergence.md, "Optima at the trivial bound").
 import {
+  add,
   addScaledInPlace,
   ComplexMatrix,
+  concatColumns,
+  conjugate,
+  conjugateAdjoint,
+  diagonalBlock,
+  directSum,
+  frobeniusNorm,
   hermitianPart,
+  multiply,
   multiplyAdjointLeft,
+  multiplyAdjointRight,
+  subtract,
   trace,
   type ComplexMatrix as Matrix,
 } from '../linear-algebra/complex-matrix.js';
 import { eigh } from '../linear-algebra/eigen.js';
+import { spectralFunction } from '../linear-algebra/matrix-functions.js';
+import { kernelIsometry, rangeIsometry } from '../linear-algebra/support.js';
 import { LinearOracle } from '../oracle/index.js';
 import type { Checkpoint } from '../oracle/types.js';
 import type { AnnouncementBranch, LinearConstraint, Problem } from '../problem/model.js';
@@ -136,11 +148,81 @@ export function zeroEntropyConstraintCount(problem: Problem): number {
   }, 0);
 }
 
+/** Smallest ratio λ_min/λ_max of K†K at which the block form is used. */
+const KRAUS_CONDITION_FLOOR = 1e-8;
+
+/**
+ * The zero-entropy states in closed form when every branch has the highest score and the key sits in one branch with a
+ * single injective Kraus operator K and key projectors summing to the identity: X = KρK† is block diagonal with range
+ * in range K, so each block P_a·X·P_a lives on range P_a ∩ range K and ρ = K⁺XK⁺†. Returns V = [V_1 | … | V_A],
+ * each V_a orthonormal (not across blocks), with ρ = Σ_a V_a σ_a V_a† (σ_a ≥ 0) exactly the zero-entropy states and
+ * Tr ρ = Σ_a Tr σ_a; null when the problem is not of that shape.
+ */
+export function keyBlockBasis(problem: Problem, dimension: number): { basis: Matrix; sizes: number[] } | null {
+  const highest = problem.branches.reduce((m, b) => Math.max(m, b.score), -Infinity);
+  if (problem.branches.some((b) => b.score < highest)) return null;
+  const keyed = problem.branches.filter((b) => b.keyProjectors.length > 1);
+  if (keyed.length !== 1 || keyed[0].krausOperators.length !== 1) return null;
+  const [k] = keyed[0].krausOperators;
+  if (k.cols !== dimension) return null;
+  const gram = eigh(multiplyAdjointLeft(k, k));
+  // K⁺ loses ~log10(cond K†K) digits: the block form is used only where K is well conditioned.
+  if (!(gram.values[0] > KRAUS_CONDITION_FLOOR * gram.values[dimension - 1])) return null;
+  const outputs = k.rows;
+  const total = ComplexMatrix.zeros(outputs);
+  for (const p of keyed[0].keyProjectors) addScaledInPlace(total, p, 1);
+  if (frobeniusNorm(subtract(total, ComplexMatrix.identity(outputs))) > 1e-10 * outputs) return null;
+  // Projector onto the orthogonal complement of range K, and K⁺ = (K†K)⁻¹K†.
+  const cokernel = kernelIsometry(hermitianPart(multiplyAdjointRight(k, k)));
+  const outside = multiplyAdjointRight(cokernel, cokernel);
+  const pseudoInverse = multiplyAdjointRight(spectralFunction(gram, (x) => 1 / x), k);
+  const blocks: Matrix[] = [];
+  for (const p of keyed[0].keyProjectors) {
+    // range P ∩ range K is the kernel of (I − P) + (I − Q_K), a sum of two projectors.
+    const shared = kernelIsometry(hermitianPart(add(subtract(ComplexMatrix.identity(outputs), p), outside)));
+    if (shared.cols === 0) continue;
+    const preimage = multiply(pseudoInverse, shared);
+    const block = rangeIsometry(hermitianPart(multiplyAdjointRight(preimage, preimage)));
+    if (block.cols !== shared.cols) return null;
+    blocks.push(block);
+  }
+  if (blocks.length === 0) return null;
+  return { basis: concatColumns(blocks, dimension), sizes: blocks.map((b) => b.cols) };
+}
+
+/** The diagonal blocks of a square matrix, as a direct sum (the pinching: it keeps PSD and the trace). */
+function pinch(a: Matrix, sizes: readonly number[]): Matrix {
+  let start = 0;
+  return directSum(
+    sizes.map((size) => {
+      const block = diagonalBlock(a, start, size);
+      start += size;
+      return block;
+    }),
+  );
+}
+
 /**
  * A feasible state of `problem` meeting the zero-entropy equalities (the analytic centre of that set, from the
- * oracle's feasibility run), or null when there is none or the run does not decide.
+ * oracle's feasibility run), or null when there is none or the run does not decide. Where keyBlockBasis applies,
+ * the run is over the block-diagonal σ with the problem's constraints pulled back (d = 32, seed 2 of the suite:
+ * 52 constraints at size 29 instead of 868 at size 32); the set is invariant under phases on the blocks, so its
+ * analytic centre is block diagonal, and the pinching only removes rounding.
  */
 export function zeroEntropyState(problem: Problem, dimension: number, checkpoint?: Checkpoint): ComplexMatrix | null {
+  const reduced = keyBlockBasis(problem, dimension);
+  if (reduced) {
+    const { basis, sizes } = reduced;
+    const pulledBack = problem.constraints.map((c) => ({
+      label: c.label,
+      operator: pinch(hermitianPart(conjugateAdjoint(basis, c.operator)), sizes),
+      lower: c.lower,
+      upper: c.upper,
+    }));
+    const found = new LinearOracle(basis.cols, pulledBack, { relativeAccuracy: 1e-9, checkpoint }).findFeasiblePoint();
+    if (found.status !== 'OPTIMAL' || !found.point) return null;
+    return hermitianPart(conjugate(basis, pinch(hermitianPart(found.point), sizes)));
+  }
   const count = zeroEntropyConstraintCount(problem);
   if (count === 0 || count + problem.constraints.length > ZERO_ENTROPY_MAX_CONSTRAINTS) return null;
   const extra = zeroEntropyConstraints(problem, dimension);
