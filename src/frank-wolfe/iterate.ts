@@ -75,6 +75,26 @@ export function noProgressCause(gapTolerance: number, state: SolverState): NoPro
 }
 
 export function iterate(setup: SolverSetup, state: SolverState): IterationOutcome {
+  const before = { x: state.x, evaluation: state.evaluation };
+  const outcome = iterateOnce(setup, state);
+  // Every move checks the cone on its own terms; this backstop (its eigendecomposition is the next step's anyway)
+  // undoes one that still left it, so that the final state is always positive definite (docs/convergence.md).
+  if (state.x !== before.x && !(iterateEigen(state).values[0] > 0)) restartAt(state, before.x, before.evaluation);
+  return outcome;
+}
+
+/** Jumps to a point (forgetting the atoms and the curvature pairs of the old path); Frank–Wolfe steps next. */
+function restartAt(state: SolverState, point: ComplexMatrix, evaluation: SolverState['evaluation']): void {
+  state.x = point;
+  state.evaluation = evaluation;
+  state.atoms.reset(state.x);
+  state.quasiNewton.reset();
+  state.previous = null;
+  state.lastDecrease = 0;
+  state.afterFrankWolfe = true;
+}
+
+function iterateOnce(setup: SolverSetup, state: SolverState): IterationOutcome {
   // At the trivial bound a certificate already on record suffices: the result reports the trivial bound.
   const aboveLower = state.evaluation.value - reportedLowerBound(setup, state);
   if (state.best !== null && aboveLower >= 0 && aboveLower <= setup.settings.gapTolerance) return 'stop';
@@ -144,13 +164,7 @@ function zeroEntropyMove(setup: SolverSetup, state: SolverState): boolean {
     if (chosen && chosen.evaluation.value - trivial <= 0.1 * tolerance) break;
   }
   if (chosen === null) return false;
-  state.x = chosen.point;
-  state.evaluation = chosen.evaluation;
-  state.atoms.reset(state.x);
-  state.quasiNewton.reset();
-  state.previous = null;
-  state.lastDecrease = 0;
-  state.afterFrankWolfe = true;
+  restartAt(state, chosen.point, chosen.evaluation);
   return true;
 }
 
@@ -208,10 +222,10 @@ function quasiNewtonStep(setup: SolverSetup, state: SolverState, split: Equality
     TUNING.shortestQuasiNewtonStep,
   );
   const slope = traceProductReal(split.stripped, direction);
-  if (!(slope < 0)) return false;
+  // A non-finite direction (or slope) is refused here: Frank–Wolfe takes the step instead.
+  if (!(slope < 0) || !Number.isFinite(slope)) return false;
   const maxStep = Math.min(
-    1,
-    stepToEigenvalueFloor(iterateEigen(state), direction, TUNING.eigenvalueFloor),
+    stepToEigenvalueFloor(state.x, iterateEigen(state), direction, TUNING.eigenvalueFloor, 1),
     stepToIntervalBounds(restricted, state.x, direction),
   );
   // A step cut short by the cone or an interval says the optimum sits on a face: Frank–Wolfe handles that.
@@ -232,8 +246,8 @@ function pairwiseStep(setup: SolverSetup, state: SolverState, vertex: ComplexMat
   const away = state.atoms.awayAtom(gradient);
   const direction = subtract(toward, away.point);
   const slope = traceProductReal(gradient, direction);
-  if (!(slope < 0)) return;
-  const maxStep = Math.min(away.weight, stepToEigenvalueFloor(iterateEigen(state), direction, TUNING.eigenvalueFloor));
+  if (!(slope < 0) || !Number.isFinite(slope)) return;
+  const maxStep = stepToEigenvalueFloor(state.x, iterateEigen(state), direction, TUNING.eigenvalueFloor, away.weight);
   const moved = lineStep(setup, state, direction, slope, maxStep);
   if (!moved) return;
   state.atoms.pairwiseStep(away.index, toward, moved.step);

@@ -1,6 +1,13 @@
 import { addScaledInPlace, ComplexMatrix, scale, traceProductReal } from '../linear-algebra/complex-matrix.js';
 
 /**
+ * A pair enters only when cos∠(s, y) exceeds this (the cautious update, common practice): each stored pair multiplies
+ * the two-loop recursion by up to ‖s‖‖y‖/(s·y), and near the cone's boundary a pair at cos 1e-10 turned a gradient
+ * of size 1 into a direction of size 1e12 (docs/convergence.md, "Non-finite steps").
+ */
+const SMALLEST_PAIR_COSINE = 1e-4;
+
+/**
  * Limited-memory BFGS on the tangent space of the equality constraints (Hermitian matrices orthogonal to the
  * identity and every equality operator, with the Hilbert–Schmidt inner product). Frank–Wolfe converges
  * sublinearly on curved feasible sets; these interior steps give the fast local convergence, while the oracle
@@ -23,10 +30,11 @@ export class TangentQuasiNewton {
     this.curvatures.length = 0;
   }
 
-  /** Records a step s and the change y of the tangent gradient; pairs without positive curvature are skipped. */
+  /** Records a step s and the change y of the tangent gradient; pairs without clearly positive curvature are skipped. */
   update(step: ComplexMatrix, gradientChange: ComplexMatrix): void {
     const curvature = traceProductReal(step, gradientChange);
-    if (!(curvature > 1e-300)) return;
+    const lengths = Math.sqrt(traceProductReal(step, step) * traceProductReal(gradientChange, gradientChange));
+    if (!(curvature > SMALLEST_PAIR_COSINE * lengths)) return;
     this.steps.push(step);
     this.gradientChanges.push(gradientChange);
     this.curvatures.push(curvature);

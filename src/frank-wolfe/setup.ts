@@ -11,7 +11,7 @@ import { equalityFarkas } from '../problem/equality-farkas.js';
 import { reduceProblem } from '../problem/inactive-bounds.js';
 import { inputHash } from '../problem/hash.js';
 import type { EntropyRequest, Problem } from '../problem/model.js';
-import { FEASIBILITY_TOLERANCE, maxConstraintViolation, relativeConstraintViolation } from '../problem/violation.js';
+import { FEASIBILITY_TOLERANCE, relativeConstraintViolation } from '../problem/violation.js';
 import { SOLVER_VERSION } from '../certificate/version.js';
 import type { SolveResult } from '../result/types.js';
 import { ActiveSet } from './active-set.js';
@@ -179,6 +179,13 @@ function dominantLabels(problem: Problem, lower: ArrayLike<number>, upper: Array
     .map((e) => e.label);
 }
 
+/**
+ * A warm start may miss the constraints by this much relative to ‖Γ‖_F: the rounding of its projection onto the
+ * equalities (Tr ρ = 1 is met only to rounding, so an exact test dropped every warm start), a thousandth of the
+ * result's FEASIBILITY_TOLERANCE.
+ */
+const WARM_START_TOLERANCE = 1e-12;
+
 /** The oracle's interior point, or a warm start projected onto the equalities and pulled inside the cone. */
 function startingPoint(
   oracle: LinearOracle,
@@ -193,7 +200,7 @@ function startingPoint(
   for (const share of [1e-3, 1e-2, 0.1, 0.5]) {
     const candidate = scale(projected, 1 - share);
     addScaledInPlace(candidate, interior, share);
-    if (eigvalsh(candidate)[0] > 0 && maxConstraintViolation(restricted, candidate) === 0) return candidate;
+    if (eigvalsh(candidate)[0] > 0 && relativeConstraintViolation(restricted, candidate) <= WARM_START_TOLERANCE) return candidate;
   }
   return interior;
 }

@@ -8,7 +8,7 @@ import { assembleResult, interruptedBeforeStart, resultWithoutBound } from './fi
 import { iterate, reachedLimit } from './iterate.js';
 import { resolveSolverSettings, type SolveControl, type SolverSettings } from './settings.js';
 import { resultBase, setUp, type SetUpOutcome } from './setup.js';
-import { RunClock, SolveInterrupted } from './state.js';
+import { RunClock, SolveInterrupted, type ResultBase } from './state.js';
 
 /** The last certification may run past the limit by this share of it (at least LAST_CERTIFICATE_MIN_MS)… */
 const LAST_CERTIFICATE_SHARE = 0.05;
@@ -36,6 +36,7 @@ function run(problem: Problem, request: EntropyRequest, settings: SolverSettings
   try {
     outcome = setUp(problem, request, settings, control, clock, base);
   } catch (error) {
+    if (error instanceof RangeError) return arithmeticFailed(base, clock, 'set-up', error, 0);
     if (!(error instanceof SolveInterrupted)) throw error;
     return interruptedBeforeStart(base, clock, problem, error.limit);
   }
@@ -53,6 +54,7 @@ function run(problem: Problem, request: EntropyRequest, settings: SolverSettings
       if (step !== 'continue') return resultWithoutBound(setup.base, clock, step.failure, state.iterations);
     }
   } catch (error) {
+    if (error instanceof RangeError) return arithmeticFailed(base, clock, `iteration ${state.iterations}`, error, state.iterations);
     if (!(error instanceof SolveInterrupted)) throw error;
     state.limit = error.limit;
   }
@@ -65,8 +67,22 @@ function run(problem: Problem, request: EntropyRequest, settings: SolverSettings
     try {
       certifyLastIterate(setup, state);
     } catch (error) {
+      if (error instanceof RangeError) return arithmeticFailed(base, clock, 'the last certification', error, state.iterations);
       if (!(error instanceof SolveInterrupted)) throw error;
     }
   }
-  return withoutPolling(() => assembleResult(setup, state));
+  try {
+    return withoutPolling(() => assembleResult(setup, state));
+  } catch (error) {
+    if (error instanceof RangeError) return arithmeticFailed(base, clock, 'assembling the result', error, state.iterations);
+    throw error;
+  }
+}
+
+/**
+ * The kernels signal arithmetic that failed (a non-finite entry, a singular factor) with a RangeError: the solve
+ * then ends as NUMERICAL_ERROR, naming the phase, instead of throwing (docs/convergence.md, "Non-finite steps").
+ */
+function arithmeticFailed(base: ResultBase, clock: RunClock, phase: string, error: RangeError, iterations: number): SolveResult {
+  return resultWithoutBound(base, clock, `arithmetic failed in ${phase}: ${error.message}`, iterations);
 }

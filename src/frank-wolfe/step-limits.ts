@@ -11,29 +11,72 @@ import {
 import { eigvalsh, type HermitianEigen } from '../linear-algebra/eigen.js';
 import type { LinearConstraint, Problem } from '../problem/model.js';
 
+/** Halvings of the estimated step before it is given up (2^-60 is below every step the line search can resolve). */
+const STEP_CHECK_HALVINGS = 60;
+
 /**
- * The largest t with λ_min(x + t·d) ≥ floor. Iterates kept this far inside the cone have gradients that
- * rounding cannot corrupt (an eigenvalue near u·‖x‖ has no correct digits, and neither would log of it).
+ * The largest t ≤ longest with λ_min(x + t·d) ≥ floor (as far as a direct check resolves it). Iterates kept this
+ * far inside the cone have gradients that rounding cannot corrupt (an eigenvalue near u·‖x‖ has no correct digits,
+ * and neither would log of it). 0 for a non-finite direction: the caller then refuses the step.
  */
-export function stepToEigenvalueFloor(iterate: HermitianEigen, direction: ComplexMatrix, floor: number): number {
-  const { values, vectors } = iterate;
-  const n = values.length;
+export function stepToEigenvalueFloor(
+  x: ComplexMatrix,
+  iterate: HermitianEigen,
+  direction: ComplexMatrix,
+  floor: number,
+  longest = Infinity,
+): number {
+  const { values } = iterate;
   if (!(values[0] > 0)) return 0;
-  const inverseRoot = new Float64Array(n);
   // An iterate already below the floor (a warm start, a face point) may not sink any further.
   floor = Math.min(floor, values[0]);
+  const size = largestEntry(direction);
+  if (!Number.isFinite(size)) return 0;
+  if (size === 0) return longest;
+  let step = Math.min(longest, scaledFloorStep(iterate, direction, floor, size));
+  if (step === Infinity) return step;
+  // The scaled eigenproblem has eigenvalues of very different sizes and a dense solver resolves them only to
+  // u·‖M‖ absolutely: its step is checked on x + t·d itself, allowing half the floor for the rounding of that check.
+  for (let halving = 0; halving < STEP_CHECK_HALVINGS; halving++, step /= 2) {
+    const end = x.clone();
+    addScaledInPlace(end, direction, step);
+    if (eigvalsh(end)[0] >= floor / 2) return step;
+  }
+  return 0;
+}
+
+/** max |d_ij|, or NaN when an entry is not finite. */
+function largestEntry(d: ComplexMatrix): number {
+  let size = 0;
+  for (let k = 0; k < d.re.length; k++) {
+    const entry = Math.abs(d.re[k]) + Math.abs(d.im[k]);
+    if (!Number.isFinite(entry)) return NaN;
+    size = Math.max(size, entry);
+  }
+  return size;
+}
+
+/**
+ * 1/λ_max(M) with M = (Λ−floor)^{-1/2} V†(−d)V (Λ−floor)^{-1/2}, the direction divided by its largest entry and
+ * Λ−floor kept above the eigenvalue resolution u·λ_max(x), so that no entry of M overflows.
+ */
+function scaledFloorStep(iterate: HermitianEigen, direction: ComplexMatrix, floor: number, size: number): number {
+  const { values, vectors } = iterate;
+  const n = values.length;
+  const resolution = Number.EPSILON * values[n - 1];
+  const inverseRoot = new Float64Array(n);
   const scaled = multiplyAdjointLeft(vectors, multiply(direction, vectors));
   // At the floor itself only directions that do not lower λ_min are allowed (the scaled matrix is then ill-posed).
-  for (let i = 0; i < n; i++) inverseRoot[i] = 1 / Math.sqrt(Math.max(values[i] - floor, 1e-300));
+  for (let i = 0; i < n; i++) inverseRoot[i] = 1 / Math.sqrt(Math.max(values[i] - floor, resolution));
   for (let i = 0; i < n; i++) {
     for (let j = 0; j < n; j++) {
-      scaled.re[i * n + j] *= -inverseRoot[i] * inverseRoot[j];
-      scaled.im[i * n + j] *= -inverseRoot[i] * inverseRoot[j];
+      scaled.re[i * n + j] *= -inverseRoot[i] * inverseRoot[j] / size;
+      scaled.im[i * n + j] *= -inverseRoot[i] * inverseRoot[j] / size;
     }
   }
-  // x − floor + t·d ⪰ 0 ⟺ 1 − t·M ⪰ 0 with M = (Λ−floor)^{-1/2} V†(−d)V (Λ−floor)^{-1/2}.
+  // x − floor + t·d ⪰ 0 ⟺ 1 − t·M ⪰ 0.
   const largest = eigvalsh(scaled)[n - 1];
-  return largest > 0 ? 1 / largest : Infinity;
+  return largest > 0 ? 1 / (largest * size) : Infinity;
 }
 
 /** The largest t keeping every interval constraint lower ≤ Tr(Γ(x + t·d)) ≤ upper (equalities are kept by d). */

@@ -4,7 +4,9 @@ import * as math from 'mathjs';
 import { describe, expect, it } from 'vitest';
 import {
   addScaledInPlace,
+  adjoint,
   ComplexMatrix,
+  multiply,
   scale,
   subtract,
   traceProductReal,
@@ -177,6 +179,15 @@ describe('TangentQuasiNewton', () => {
     qn.update(asMatrix([1, 0, 0, 0, 0]), asMatrix([-1, 0, 0, 0, 0]));
     expect(qn.ready).toBe(false);
   });
+
+  it('skips nearly orthogonal pairs (cautious update), which would inflate the direction by 1/cos∠(s, y)', () => {
+    // s·y = 1e-6·‖s‖‖y‖ > 0: positive curvature, yet the pair would scale the direction along s by 1e6.
+    const qn = new TangentQuasiNewton(3);
+    qn.update(asMatrix([1, 0, 0, 0, 0]), asMatrix([1e-6, 1, 0, 0, 0]));
+    expect(qn.ready).toBe(false);
+    qn.update(asMatrix([1, 0, 0, 0, 0]), asMatrix([1e-3, 1, 0, 0, 0]));
+    expect(qn.ready).toBe(true);
+  });
 });
 
 describe('step limits', () => {
@@ -186,7 +197,7 @@ describe('step limits', () => {
     for (const floor of [1e-9, 1e-3]) {
       const x = randomDensity(4, rng);
       const d = randomHermitian(4, rng);
-      const t = stepToEigenvalueFloor(eigh(x), d, floor);
+      const t = stepToEigenvalueFloor(x, eigh(x), d, floor);
       expect(Number.isFinite(t) && t > 0).toBe(true);
       const at = x.clone();
       addScaledInPlace(at, d, t);
@@ -199,7 +210,39 @@ describe('step limits', () => {
 
   it('stepToEigenvalueFloor is unbounded along a positive semidefinite direction', () => {
     const x = randomDensity(3, rng);
-    expect(stepToEigenvalueFloor(eigh(x), randomDensity(3, rng), 1e-9)).toBe(Infinity);
+    expect(stepToEigenvalueFloor(x, eigh(x), randomDensity(3, rng), 1e-9)).toBe(Infinity);
+  });
+
+  it('stepToEigenvalueFloor neither overflows nor leaves the cone at the floor, whatever the direction\'s size', () => {
+    // The defect of docs/convergence.md "Non-finite steps": an iterate below the floor (λ₀ ≈ λ₁ ≈ 1e-10) and a
+    // quasi-Newton direction of size 4e11 overflowed the scaled eigenproblem. Checked with mathjs eigenvalues.
+    for (const sizeOfDirection of [1, 4e11]) {
+      const { vectors } = eigh(randomDensity(4, rng));
+      const x = new ComplexMatrix(4, 4);
+      [1e-10, 1.0000000409e-10, 0.4, 0.6 - 2.0000000409e-10].forEach((value, k) => {
+        const v = new ComplexMatrix(4, 1);
+        for (let i = 0; i < 4; i++) {
+          v.re[i] = vectors.re[i * 4 + k];
+          v.im[i] = vectors.im[i * 4 + k];
+        }
+        addScaledInPlace(x, multiply(v, adjoint(v)), value);
+      });
+      const d = scale(randomHermitian(4, rng), sizeOfDirection);
+      const t = stepToEigenvalueFloor(x, eigh(x), d, 1e-9, 1);
+      expect(Number.isFinite(t)).toBe(true);
+      const at = x.clone();
+      addScaledInPlace(at, d, t);
+      expect(mathjsSmallestEigenvalue(at)).toBeGreaterThan(0);
+    }
+  });
+
+  it('stepToEigenvalueFloor refuses a non-finite direction (step 0)', () => {
+    const x = randomDensity(3, rng);
+    const d = randomHermitian(3, rng);
+    d.re[0] = Infinity;
+    expect(stepToEigenvalueFloor(x, eigh(x), d, 1e-9)).toBe(0);
+    d.re[0] = NaN;
+    expect(stepToEigenvalueFloor(x, eigh(x), d, 1e-9)).toBe(0);
   });
 
   const intervals = (x: ComplexMatrix): Problem => {
