@@ -2,7 +2,6 @@
 // name the field path of every defect.
 import { ComplexMatrix } from '../linear-algebra/complex-matrix.js';
 import { ValidationError } from './errors.js';
-import type { HonestStatisticsJson } from '../finite-size/honest-statistics.js';
 
 /** Matrices on the wire and in JSON files: row-major, im omitted for real matrices. */
 export interface MatrixJson {
@@ -37,6 +36,12 @@ export interface AnnouncementBranchJson {
   krausOperators: MatrixJson[];
   keyProjectors: MatrixJson[];
   score?: number;
+}
+
+/** renyibound.v1.HonestStatistics in JSON. */
+export interface HonestStatisticsJson {
+  branchProbabilities: number[];
+  errorCorrectionEntropy?: number[];
 }
 
 /** renyibound.v1.Problem in JSON (lowerCamelCase; parsers also accept the proto's snake_case names). */

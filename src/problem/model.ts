@@ -1,5 +1,5 @@
 import type { ComplexMatrix } from '../linear-algebra/complex-matrix.js';
-import type { HonestStatistics } from '../finite-size/honest-statistics.js';
+import type { HonestStatistics } from './honest-statistics.js';
 
 /** The entropy kinds the service bounds (see the README's mathematics section). */
 export type EntropyKind = 'von-neumann' | 'petz-up' | 'petz-down' | 'sandwiched-up';

@@ -21,7 +21,7 @@ import {
   requireShape,
 } from './operator-checks.js';
 import { DEFAULT_MAX_DIMENSION, PROBABILITY_SUM_TOLERANCE, STRUCTURE_TOLERANCE } from './tolerances.js';
-import { HONEST_STATISTICS_FIELDS, honestStatisticsFromJson } from '../finite-size/honest-statistics.js';
+import { HONEST_STATISTICS_FIELDS, honestStatisticsFromJson } from './honest-statistics.js';
 
 export { ValidationError } from './errors.js';
 

@@ -1,21 +1,15 @@
 // The honest expected statistics a problem may carry for finite-size key lengths: the probability of every
 // announcement branch in an honest run and the error-correction entropy H(S|B) of each branch
 // (docs/finite-size.md). Read from protobuf JSON with field-path errors; called from the problem validator.
-import { ValidationError } from '../problem/errors.js';
-import { JsonMessage, finiteNumber } from '../problem/json.js';
-import { PROBABILITY_SUM_TOLERANCE } from '../problem/tolerances.js';
+import { ValidationError } from './errors.js';
+import { JsonMessage, finiteNumber } from './json.js';
+import { PROBABILITY_SUM_TOLERANCE } from './tolerances.js';
 
 /** renyibound.v1.HonestStatistics, validated; both lists have one entry per branch, in branch order. */
 export interface HonestStatistics {
   branchProbabilities: number[];
   /** H(S|B) in bits per round of the branch, honest run (0 for branches without key). */
   errorCorrectionEntropy: number[];
-}
-
-/** renyibound.v1.HonestStatistics in JSON. */
-export interface HonestStatisticsJson {
-  branchProbabilities: number[];
-  errorCorrectionEntropy?: number[];
 }
 
 export const HONEST_STATISTICS_FIELDS = ['branchProbabilities', 'errorCorrectionEntropy'] as const;
