@@ -4,6 +4,7 @@ import {
   conjugate,
   conjugateAdjoint,
   hermitianPart,
+  largestEntry,
   multiply,
   multiplyAdjointLeft,
   multiplyAdjointRight,
@@ -216,12 +217,6 @@ function dot(a: ArrayLike<number>, b: ArrayLike<number>): number {
   return s;
 }
 
-function largestAbsoluteEntry(a: ComplexMatrix): number {
-  let size = 0;
-  for (let t = 0; t < a.re.length; t++) size = Math.max(size, Math.abs(a.re[t]), Math.abs(a.im[t]));
-  return size;
-}
-
 /** What stopped a round of Newton steps short of a full step: an interval side not yet held, or the rank. */
 type Blocked = { index: number; side: 'lower' | 'upper' } | 'support' | 'restoration';
 
@@ -354,7 +349,7 @@ function manifoldRound<E extends FaceEvaluation>(
   let start: ChartPoint & { u: Float64Array };
   for (let attempt = 0; ; attempt++) {
     rows = heldRows(constraints, holding, frame);
-    scales = rows.map((row) => 1 + largestAbsoluteEntry(row.operator));
+    scales = rows.map((row) => 1 + largestEntry(row.operator));
     if (chart.size - rows.length > options.maxTangentDimension) return none;
     ({ tangent, normal } = rowSpaceAndTangent(jacobian(origin), chart.size));
     k = tangent.length;
@@ -468,7 +463,7 @@ function manifoldRound<E extends FaceEvaluation>(
       holding[blocked.index] = blocked.side;
       const operator = side.operator;
       rows.push({ operator, target: blocked.side === 'lower' ? side.lower : side.upper, rotated: conjugateAdjoint(frame, operator) });
-      scales.push(1 + largestAbsoluteEntry(operator));
+      scales.push(1 + largestEntry(operator));
       const q = reduce(here.at, chart.pairing(rows[rows.length - 1].rotated, here.at));
       const length = Math.hypot(...q);
       if (!(length > 0)) return { step: best, blocked, holding };

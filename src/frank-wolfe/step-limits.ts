@@ -3,6 +3,7 @@
 import { Matrix, solve as solveLinear } from '../linear-algebra/ml-matrix.js';
 import {
   addScaledInPlace,
+  largestEntry,
   multiply,
   multiplyAdjointLeft,
   traceProductReal,
@@ -43,17 +44,6 @@ export function stepToEigenvalueFloor(
     if (eigvalsh(end)[0] >= floor / 2) return step;
   }
   return 0;
-}
-
-/** max |d_ij|, or NaN when an entry is not finite. */
-function largestEntry(d: ComplexMatrix): number {
-  let size = 0;
-  for (let k = 0; k < d.re.length; k++) {
-    const entry = Math.abs(d.re[k]) + Math.abs(d.im[k]);
-    if (!Number.isFinite(entry)) return NaN;
-    size = Math.max(size, entry);
-  }
-  return size;
 }
 
 /**

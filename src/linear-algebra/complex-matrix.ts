@@ -463,6 +463,17 @@ export function hermitianPart(a: ComplexMatrix): ComplexMatrix {
   return c;
 }
 
+/** The largest max(|Re a_ij|, |Im a_ij|): a scale for tolerances and rescaling; NaN when an entry is not finite. */
+export function largestEntry(a: ComplexMatrix): number {
+  let size = 0;
+  for (let k = 0; k < a.re.length; k++) {
+    const entry = Math.max(Math.abs(a.re[k]), Math.abs(a.im[k]));
+    if (!Number.isFinite(entry)) return NaN;
+    size = Math.max(size, entry);
+  }
+  return size;
+}
+
 export function frobeniusNorm(a: ComplexMatrix): number {
   let s = 0;
   for (let k = 0; k < a.re.length; k++) s += a.re[k] * a.re[k] + a.im[k] * a.im[k];
