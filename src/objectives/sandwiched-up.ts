@@ -275,8 +275,8 @@ export function optimalReference(
  * A warm start τ (another state's optimum) unless it is short of the tolerance and the pinched outputs give a larger
  * Q. Near a state where the key is known (X_c nearly block diagonal, small eigenvalues ~1e-10) the pinched outputs
  * are almost optimal (τ = X/Tr X is optimal for X = Z(X)), while from the τ of a distant ρ the map crawls and its gap
- * is rounding-dominated (∂τ^s amplifies by τ^{s−1}), so the stagnation rule stopped it with Q too small by up to 1e-2
- * (docs/convergence.md, "A warm start from a distant state").
+ * is rounding-dominated (∂τ^s amplifies by τ^{s−1}), so the stagnation rule stopped it with F too high by up to 1e-2
+ * (docs/objectives.md, "A warm start from a distant state").
  */
 function startingPoint(
   at: (reference: ReferenceBlocks) => InnerPoint,
