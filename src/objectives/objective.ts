@@ -227,7 +227,7 @@ class EntropyObjective implements Objective {
     const ln2 = Math.LN2;
     const beta = sandwichedOrder(alpha);
     const weighted = states.map((x, c) => scale(x, this.weights[c]));
-    const optimum = optimalReference(weighted, this.supports, beta, this.referenceSettings, this.lastReference);
+    const optimum = optimalReference(weighted, this.supports, beta, this.referenceSettings, this.lastReference, true);
     this.lastReference = optimum.reference;
     const value = coefficient * Math.log2(optimum.quasiEntropy);
     if (!withGradient) return { value, gradient: null, reference: optimum.reference, innerGap: optimum.innerGap };

@@ -224,7 +224,8 @@ export function extrapolatedReference(reference: ReferenceBlocks, mapped: Refere
  * (Z(X^{1/2}N^{β−1}X^{1/2}) ∝ τ^{1−2s}), hence the maximum by concavity (Frank & Lieb 2013). Each step is first tried
  * extrapolated (`extrapolatedReference`) and kept when it lowers the certified inner gap; otherwise the plain step is
  * taken and the loop stays plain. Either way the returned τ is one whose gap was computed, so the value and the gap
- * it states are those of that τ.
+ * it states are those of that τ. A warm start that does not already meet the tolerance competes with the pinched
+ * outputs, the larger Q starting the loop (`startingPoint`); a start that is not warm is taken as given.
  */
 export function optimalReference(
   weightedStates: readonly ComplexMatrix[],
@@ -232,11 +233,14 @@ export function optimalReference(
   beta: number,
   settings: ReferenceSettings = DEFAULT_REFERENCE_SETTINGS,
   start?: ReferenceBlocks,
+  /** `start` is the optimum at another state (a warm start): the pinched outputs compete with it (`startingPoint`). */
+  warm = false,
 ): ReferenceOptimum {
   // X's square-root factors do not depend on τ: one eigendecomposition per branch for the whole loop.
   const roots = supports.map((sup, c) => (isKeyless(sup) ? undefined : outputRoot(weightedStates[c], sup.outputRange)));
   const at = (reference: ReferenceBlocks) => innerPoint(weightedStates, supports, roots, reference, beta);
-  let point = at(start ?? initialReference(weightedStates, supports));
+  const pinched = () => initialReference(weightedStates, supports);
+  let point = start === undefined ? at(pinched()) : warm ? startingPoint(at, start, pinched, settings.relativeTolerance) : at(start);
   let iterations = 0;
   let bestGap = Infinity;
   let bestGapIteration = 0;
@@ -255,12 +259,47 @@ export function optimalReference(
     let next: InnerPoint | null = null;
     if (extrapolate) {
       const candidate = extrapolatedReference(point.reference, mapped, beta);
-      const tried = candidate && at(candidate);
+      const tried = candidate && atIfRegular(at, candidate);
       if (tried && tried.innerGap < point.innerGap) next = tried;
       else extrapolate = false;
     }
-    point = next ?? at(mapped);
+    next ??= atIfRegular(at, mapped);
+    // The map's image singular to rounding: the current τ, whose gap was computed, is the answer.
+    if (next === null) return { ...point, iterations };
+    point = next;
     iterations++;
+  }
+}
+
+/**
+ * A warm start τ (another state's optimum) unless it is short of the tolerance and the pinched outputs give a larger
+ * Q. Near a state where the key is known (X_c nearly block diagonal, small eigenvalues ~1e-10) the pinched outputs
+ * are almost optimal (τ = X/Tr X is optimal for X = Z(X)), while from the τ of a distant ρ the map crawls and its gap
+ * is rounding-dominated (∂τ^s amplifies by τ^{s−1}), so the stagnation rule stopped it with F too high by up to 1e-2
+ * (docs/objectives.md, "A warm start from a distant state").
+ */
+function startingPoint(
+  at: (reference: ReferenceBlocks) => InnerPoint,
+  warmStart: ReferenceBlocks,
+  pinched: () => ReferenceBlocks,
+  relativeTolerance: number,
+): InnerPoint {
+  const warm = at(warmStart);
+  if (warm.innerGap <= relativeTolerance * warm.quasiEntropy) return warm;
+  const cold = atIfRegular(at, pinched());
+  return cold !== null && cold.quasiEntropy > warm.quasiEntropy ? cold : warm;
+}
+
+/**
+ * The inner point at τ, or null when a block of τ is singular to rounding: ∇_τQ then has non-finite entries
+ * (∂τ^s grows like τ^{s−1}) and the eigensolver refuses it with a RangeError.
+ */
+function atIfRegular(at: (reference: ReferenceBlocks) => InnerPoint, reference: ReferenceBlocks): InnerPoint | null {
+  try {
+    return at(reference);
+  } catch (error) {
+    if (error instanceof RangeError) return null;
+    throw error;
   }
 }
 
