@@ -33,6 +33,8 @@ export function setUp(
   control: SolveControl,
   clock: RunClock,
   base: ResultBase,
+  /** Whether a face found by an exposing direction may replace the full space (docs/faces.md). */
+  exposeFace = true,
 ): SetUpOutcome {
   const settings = resolveSolverSettings(partialSettings);
   const entropy = normaliseRequest(request);
@@ -50,9 +52,11 @@ export function setUp(
   });
   let feasible = clock.timeOracle(() => oracle.findFeasiblePoint());
   // No full-rank feasible state: restate the problem on the face its exposing direction finds (docs/faces.md).
-  const exposed = clock.timeOracle(() =>
-    exposeIfRankDeficient(active.problem, entropy.kind, feasible, { checkpoint, settings: { relativeAccuracy: TUNING.initialOracleAccuracy } }),
-  );
+  const exposed = exposeFace
+    ? clock.timeOracle(() =>
+        exposeIfRankDeficient(active.problem, entropy.kind, feasible, { checkpoint, settings: { relativeAccuracy: TUNING.initialOracleAccuracy } }),
+      )
+    : null;
   if (exposed) ({ face, restricted, oracle, feasible } = exposed);
   const undecided = (message: string) =>
     done({ ...resultWithoutBound(base, clock, message, 0), status: 'FEASIBILITY_UNDECIDED' });

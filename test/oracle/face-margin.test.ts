@@ -114,3 +114,21 @@ describe('solving a model with no full-rank feasible state (von Neumann)', () =>
     expect(dropped.valid).toBe(false);
   });
 });
+
+describe('d16#2 of the random suite, von Neumann: the exposed face, then the full space for the rest of the time', () => {
+  const model = randomModel(16, 2);
+  const request = { kind: 'von-neumann' as const };
+  const result = solve(model.problem, request, { gapTolerance: 1e-6, timeLimitMs: 5000 });
+
+  it('returns the smaller of the two gaps, says which, and the bound verifies and holds at the generating state', () => {
+    const report = verifyResult(model.problem, request, result);
+    expect(report.valid, report.reason).toBe(true);
+    const atTruth = createObjective(model.problem, request).evaluate(model.truth).value;
+    expect(result.certifiedLowerBound as number).toBeLessThanOrEqual(atTruth + 1e-9);
+    // The face's bound pays the continuity margin (1.7e-4 measured); the note states the gap that was set aside.
+    const note = (result.notes ?? []).find((n) => /exposed face/.test(n));
+    expect(note).toBeDefined();
+    const other = Number(/gap (?:was )?([0-9.e+-]+)/.exec(note as string)?.[1]);
+    expect(result.gap as number).toBeLessThanOrEqual(other);
+  });
+});
