@@ -70,8 +70,9 @@ export function exposeFeasibleFace(problem: Problem, options: ExposeOptions = {}
     if (feasible.status === 'INFEASIBLE' || !feasible.point) return current;
     const multipliers = exposingMultipliers(restrictToFace(problem, face).constraints, feasible.point, checkpoint);
     if (!multipliers) return current;
-    // Sparse exposures first (their kernels are not tilted by the noise on the small weights), the first that
-    // feasibleFace accepts and whose face's centre meets the original constraints; otherwise the exposure as found.
+    // Sparse exposures first (their kernels are not tilted by the noise on the small weights): among those that
+    // feasibleFace accepts and whose face's centre meets the original constraints, the one whose centre meets them
+    // best, stopping at rounding; otherwise the exposure as found.
     const restated = restrictToFace(problem, face).constraints;
     let sparse: { multipliers: number[]; onFace: ExposedFace; violation: number } | null = null;
     for (const support of SPARSE_SUPPORTS) {
@@ -151,8 +152,7 @@ export function exposeIfRankDeficient(
 export function exposingMultipliers(constraints: readonly LinearConstraint[], centre: ComplexMatrix, checkpoint?: Checkpoint): number[] | null {
   const n = centre.rows;
   const { values, vectors } = eigh(centre);
-  let kernel = 0;
-  while (kernel < n && values[kernel] <= FACE_EIGENVALUE_RATIO * values[n - 1]) kernel++;
+  const kernel = vanishingEigenvalues(values);
   if (kernel === 0 || kernel === n) return null;
   const directions = equalityDirections(constraints, n);
   if (directions.length === 0) return null;
@@ -173,6 +173,14 @@ export function exposingMultipliers(constraints: readonly LinearConstraint[], ce
   return multipliersFromWeights(constraints.length, directions, weights);
 }
 
+/** How many of the centre's (ascending) eigenvalues mark directions no feasible state uses. */
+function vanishingEigenvalues(values: Float64Array): number {
+  const n = values.length;
+  let count = 0;
+  while (count < n && values[count] <= FACE_EIGENVALUE_RATIO * values[n - 1]) count++;
+  return count;
+}
+
 /**
  * The exposure kept on its `support` largest weights (on the normalised directions) and refitted there; null when
  * the refit leaves nothing, 'not smaller' when the exposure has no more nonzero weights than that. The noise an
@@ -190,9 +198,7 @@ export function sparseExposure(
   checkpoint?: Checkpoint,
 ): number[] | null | 'not smaller' {
   const n = centre.rows;
-  const values = eigvalsh(centre);
-  let kernel = 0;
-  while (kernel < n && values[kernel] <= FACE_EIGENVALUE_RATIO * values[n - 1]) kernel++;
+  const kernel = vanishingEigenvalues(eigvalsh(centre));
   const nonzero = equalityDirections(constraints, n).filter((d) => multipliers[d.index] !== 0);
   if (nonzero.length <= support) return 'not smaller';
   const kept = nonzero
