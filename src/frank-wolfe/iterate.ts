@@ -58,20 +58,27 @@ export function reachedLimit(setup: SolverSetup, state: SolverState): StopLimit 
 
 /** How many times the dominant floating-point allowance the gap may be for a no-progress stop. */
 const NO_PROGRESS_DOMINANCE = 4;
+/**
+ * A no-progress stop never happens at a gap this many times the certificate's margin or more (issue item 3): the
+ * oracle's duality gap there is the optimiser's own inaccuracy (an oracle on a face without interior, say), not a
+ * floating-point limit, so the run goes on to its time or iteration limit.
+ */
+const NO_PROGRESS_MARGIN_CEILING = 100;
 
 /**
  * The allowance that explains a stalled gap — the best certificate's margin or the oracle's own duality gap — when
- * the gap is at most NO_PROGRESS_DOMINANCE times it; undefined when the gap is larger (the stall is the
- * optimiser's, not rounding's, so stopping would be premature).
+ * the gap is at most NO_PROGRESS_DOMINANCE times it and below NO_PROGRESS_MARGIN_CEILING times the margin;
+ * undefined otherwise (the stall is the optimiser's, not rounding's, so stopping would be premature).
  */
 export function noProgressCause(gapTolerance: number, state: SolverState): NoProgressCause | undefined {
   if (state.best === null) return undefined;
   const gap = state.evaluation.value - state.best.breakdown.lowerBound;
   if (!(gap > gapTolerance)) return undefined;
   const margin = state.best.breakdown.margin;
+  if (!(gap < NO_PROGRESS_MARGIN_CEILING * margin)) return undefined;
+  if (gap <= NO_PROGRESS_DOMINANCE * margin) return 'margin';
   const oracle = Math.max(0, state.lastOracleGap);
-  if (gap > NO_PROGRESS_DOMINANCE * Math.max(margin, oracle)) return undefined;
-  return margin >= oracle ? 'margin' : 'oracle-accuracy';
+  return gap <= NO_PROGRESS_DOMINANCE * oracle ? 'oracle-accuracy' : undefined;
 }
 
 export function iterate(setup: SolverSetup, state: SolverState): IterationOutcome {

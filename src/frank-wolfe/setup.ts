@@ -5,7 +5,7 @@ import { eigvalsh } from '../linear-algebra/eigen.js';
 import { numericalRank } from '../linear-algebra/support.js';
 import { createObjective, normaliseRequest } from '../objectives/index.js';
 import { exposeIfRankDeficient, LinearOracle } from '../oracle/index.js';
-import { compressToFace, liftFromFace, type FeasibleFace } from '../problem/feasible-face.js';
+import { compressToFace, faceContinuityMargin, liftFromFace, type FeasibleFace } from '../problem/feasible-face.js';
 import { farkasTest } from '../problem/farkas.js';
 import { equalityFarkas } from '../problem/equality-farkas.js';
 import { reduceProblem } from '../problem/inactive-bounds.js';
@@ -33,6 +33,8 @@ export function setUp(
   control: SolveControl,
   clock: RunClock,
   base: ResultBase,
+  /** Whether a face found by an exposing direction may replace the full space (docs/faces.md). */
+  exposeFace = true,
 ): SetUpOutcome {
   const settings = resolveSolverSettings(partialSettings);
   const entropy = normaliseRequest(request);
@@ -50,10 +52,17 @@ export function setUp(
   });
   let feasible = clock.timeOracle(() => oracle.findFeasiblePoint());
   // No full-rank feasible state: restate the problem on the face its exposing direction finds (docs/faces.md).
-  const exposed = clock.timeOracle(() =>
-    exposeIfRankDeficient(active.problem, entropy.kind, feasible, { checkpoint, settings: { relativeAccuracy: TUNING.initialOracleAccuracy } }),
-  );
-  if (exposed) ({ face, restricted, oracle, feasible } = exposed);
+  const exposed = exposeFace
+    ? clock.timeOracle(() =>
+        exposeIfRankDeficient(active.problem, entropy.kind, feasible, { checkpoint, settings: { relativeAccuracy: TUNING.initialOracleAccuracy } }),
+      )
+    : null;
+  // Only a face that can certify the request replaces the full space: its continuity margin before any multiplier
+  // is charged must be below the requested gap (docs/faces.md, "What a face costs the bound").
+  const none = new Float64Array(active.problem.constraints.length);
+  if (exposed && faceContinuityMargin(exposed.face, exposed.restricted, entropy.kind, none, none) < settings.gapTolerance) {
+    ({ face, restricted, oracle, feasible } = exposed);
+  }
   const undecided = (message: string) =>
     done({ ...resultWithoutBound(base, clock, message, 0), status: 'FEASIBILITY_UNDECIDED' });
   if (feasible.status === 'INFEASIBLE' && feasible.infeasibility) {

@@ -2,7 +2,10 @@
 // the examples, and the no-progress stop (only when a floating-point allowance explains the gap).
 import { describe, expect, it } from 'vitest';
 import { verifyResult } from '../../src/certificate/verify.js';
+import { noProgressCause } from '../../src/frank-wolfe/iterate.js';
 import { solve } from '../../src/frank-wolfe/solve.js';
+import type { SolverState } from '../../src/frank-wolfe/state.js';
+import { randomModel } from '../../src/bench/random-models.js';
 import { eigvalsh } from '../../src/linear-algebra/eigen.js';
 import { traceProductReal } from '../../src/linear-algebra/complex-matrix.js';
 import { createObjective } from '../../src/objectives/index.js';
@@ -127,4 +130,32 @@ describe('no-progress is reported only when a floating-point allowance explains 
       expect(verifyResult(problem, { kind: 'petz-up', alpha: 1.5 }, result).valid).toBe(true);
     }
   }, 60000); // five solves of up to 4 s each
+
+  /** The parts of a run's state the rule reads: F at the iterate, the best certificate, the oracle's last duality gap. */
+  const stalled = (gap: number, margin: number, oracleGap: number) =>
+    ({ evaluation: { value: gap }, best: { breakdown: { lowerBound: 0, margin } }, lastOracleGap: oracleGap }) as unknown as SolverState;
+
+  it('names the allowance that explains the gap, and none at a gap 100 × the margin (issue item 3)', () => {
+    expect(noProgressCause(GAP, stalled(4e-6, 2e-6, 0))).toBe('margin');
+    expect(noProgressCause(GAP, stalled(4e-5, 1e-6, 2e-5))).toBe('oracle-accuracy');
+    // An oracle-dominated stall at 2000 × the margin: the old rule stopped it as `oracle-accuracy`.
+    expect(noProgressCause(GAP, stalled(2e-4, 1e-7, 1e-4))).toBeUndefined();
+    expect(noProgressCause(GAP, stalled(1e-4, 1e-6, 1e-4))).toBeUndefined();
+    expect(noProgressCause(GAP, stalled(4e-5, 1e-6, 1e-6))).toBeUndefined();
+    expect(noProgressCause(GAP, stalled(5e-7, 1e-6, 0))).toBeUndefined();
+  });
+
+  it('d16#2 (a face without a full-rank state), Petz-down α = 1.5: no stop on no-progress at a gap 100 × the margin', () => {
+    const model = randomModel(16, 2);
+    const request: EntropyRequest = { kind: 'petz-down', alpha: 1.5 };
+    const result = solve(model.problem, request, { gapTolerance: GAP, timeLimitMs: 5000 });
+    if (result.limit === 'no-progress') {
+      expect(result.noProgressCause).toBeDefined();
+      expect(result.gap!).toBeLessThan(100 * result.toleranceMargin!);
+    }
+    expect(verifyResult(model.problem, request, result).valid).toBe(true);
+    // The bound holds at the generating state, which meets every constraint (random-models.ts builds them from it).
+    const atTruth = createObjective(model.problem, request).evaluate(model.truth).value;
+    expect(result.certifiedLowerBound!).toBeLessThanOrEqual(atTruth + 1e-9);
+  }, 60000); // one solve of up to 5 s plus its last certification
 });

@@ -81,7 +81,8 @@ describe('solving a model with no full-rank feasible state (von Neumann)', () =>
   // d = 8, seed 23: ±1e-3 tables from a rank-4 state plus equalities pinning ρ to its support.
   const model = randomModel(8, 23);
   const request = { kind: 'von-neumann' as const };
-  const result = solve(model.problem, request, { gapTolerance: 1e-6, timeLimitMs: 20000 });
+  // At gap 1e-3: a face is used only where its continuity margin leaves room for the requested gap.
+  const result = solve(model.problem, request, { gapTolerance: 1e-3, timeLimitMs: 20000 });
 
   it('ends with a bound from the exposed face, recorded in the certificate, which verify accepts', () => {
     expect(result.status).not.toBe('NUMERICAL_ERROR');
@@ -112,5 +113,30 @@ describe('solving a model with no full-rank feasible state (von Neumann)', () =>
     const { faceExposures: _dropped, ...without } = certificate;
     const dropped = verifyResult(model.problem, request, { ...result, certificate: without });
     expect(dropped.valid).toBe(false);
+  });
+});
+
+describe('d16#2 of the random suite, von Neumann: the face is used where its continuity margin allows the request', () => {
+  const model = randomModel(16, 2);
+  const request = { kind: 'von-neumann' as const };
+  const atTruth = createObjective(model.problem, request).evaluate(model.truth).value;
+
+  it('at gap 1e-3 the exposed face certifies; the bound verifies and holds at the generating state', () => {
+    const result = solve(model.problem, request, { gapTolerance: 1e-3, timeLimitMs: 5000 });
+    expect(result.status).toBe('CERTIFIED');
+    expect(result.certificate?.faceExposures?.length).toBe(1);
+    const report = verifyResult(model.problem, request, result);
+    expect(report.valid, report.reason).toBe(true);
+    expect(result.certifiedLowerBound as number).toBeLessThanOrEqual(atTruth + 1e-9);
+    // The face recomputed from the certificate is the support of the generating state (rank 3 by construction).
+    expect(feasibleFace(model.problem, { exposures: result.certificate!.faceExposures }).dimension).toBe(model.traits.truthRank);
+  });
+
+  it('at gap 1e-6 the face cannot certify (its margin alone is 6.7e-5), so the full space gives the bound', () => {
+    const result = solve(model.problem, request, { gapTolerance: 1e-6, timeLimitMs: 3000 });
+    expect(result.certificate?.faceExposures).toBeUndefined();
+    const report = verifyResult(model.problem, request, result);
+    expect(report.valid, report.reason).toBe(true);
+    expect(result.certifiedLowerBound as number).toBeLessThanOrEqual(atTruth + 1e-9);
   });
 });
