@@ -22,8 +22,6 @@ const TRIAL_ITERATIONS = 8;
 const MAX_SCORE_STEP = 4;
 /** Step of the α walk in log10(α − 1). */
 const WALK_STEP = 0.5;
-/** The best α is ascended again when at least this far (log10) from the first: nearby, its scores serve as well. */
-const REASCENT_DISTANCE = 0.25;
 /** Supergradients added at one point when its line searches fail (kinks of h^f_α, docs/finite-size.md). */
 const MAX_BUNDLE_STEPS = 2;
 
@@ -274,8 +272,7 @@ export function rate(context: SearchContext, point: ScorePoint): number {
  * Maximises the rate over α ∈ [1 + 1e−4, 2] in x = log10(α − 1): start near α − 1 ≈ 2/√n (the optimum shrinks
  * like 1/√n, docs/finite-size.md), walk uphill in steps of 0.5 until the rate falls, then golden-section search
  * inside the bracket. Only the first α's scores are ascended; every other α is compared at the scores and state of
- * the nearest α already solved (one solve each), and the best α, when a quarter decade or more from the first, is
- * ascended last.
+ * the nearest α already solved (one solve each), and the best α, when it is not the first, is ascended last.
  */
 export async function searchAlpha(context: SearchContext, state: SearchState, initialScores: number[]): Promise<ScorePoint> {
   const lowest = Math.log10(MIN_ALPHA_EXCESS);
@@ -341,8 +338,7 @@ export async function searchAlpha(context: SearchContext, state: SearchState, in
     }
   }
   for (const p of solved.values()) if (score(p) > score(best)) best = p;
-  // Scores ascended at a nearby α serve it nearly as well (measured: re-ascending 0.1 decades away gained nothing).
-  if (Math.abs(Math.log10(best.alpha - 1) - Math.log10(ascended.alpha - 1)) < REASCENT_DISTANCE) return best;
+  if (best === ascended) return best;
   // The ascent re-solves its start (warm, yet possibly to a looser bound within the cap): the better is kept.
   const last = await ascendScores(context, state, best.alpha, best.scores, best.single.finalState);
   return last.value > best.value ? last : best;

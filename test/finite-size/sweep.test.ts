@@ -3,7 +3,7 @@
 import { describe, expect, it, vi } from 'vitest';
 import { seededRandom } from '../helpers/random.js';
 import { acceptanceWindow } from '../../src/finite-size/acceptance-window.js';
-import { splitEpsilons } from '../../src/finite-size/key-length.js';
+import { keyLength, splitEpsilons } from '../../src/finite-size/key-length.js';
 import { keyLengthLedger } from '../../src/finite-size/ledger.js';
 import { keyLengthSweep } from '../../src/finite-size/sweep.js';
 import { problemFromJson } from '../../src/problem/validate.js';
@@ -75,5 +75,20 @@ describe('sweep over n with α and f re-optimised at every n', () => {
       buildExample('bb84-prepare-measure', { qber: 0.02, transmittance: 0.5, 'z-basis-probability': 0.5, 'test-probability': 0.1 }),
     );
     expectNonDecreasing(await keyLengthSweep([{ label: 'pm', problem: pm }], [1e10, 1e11, 1e12], {}));
+  });
+});
+
+describe('a candidate from another n', () => {
+  it('is re-checked by verify: a changed bound is refused with the field, the genuine one is kept when it wins', async () => {
+    const bb84 = problemFromJson(buildExample('bb84-entangled', { 'qber-z': 0.02, 'qber-x': 0.02, 'test-probability': 0.02 }));
+    const first = await keyLength(bb84, { rounds: 1e7, withoutAsymptotic: true });
+    const scores = bb84.branches.map((b) => first.scores[b.label]);
+    const genuine = { alpha: first.alpha, scores, singleRoundBound: first.singleRoundBound };
+    const claimed = first.singleRoundBound.certifiedLowerBound! + 1e-3;
+    const forged = { ...genuine, singleRoundBound: { ...first.singleRoundBound, certifiedLowerBound: claimed } };
+    await expect(keyLength(bb84, { rounds: 1e8, candidate: forged, withoutAsymptotic: true })).rejects.toThrow(/candidate\.singleRoundBound/);
+    // At the same n the candidate is the search's own optimum: it cannot lose to a search that reproduces it.
+    const again = await keyLength(bb84, { rounds: 1e7, candidate: genuine, withoutAsymptotic: true });
+    expect(again.ratePerRound).toBeGreaterThanOrEqual(first.ratePerRound);
   });
 });
