@@ -5,7 +5,8 @@ import type { SolverSettings } from '../frank-wolfe/settings.js';
 import { ValidationError } from '../problem/errors.js';
 import type { Problem } from '../problem/model.js';
 import { keyLengthLedger, privacyAmplificationBits, errorVerificationBits, variableLengthIntercept, type EpsilonSplit, type LedgerTerm } from './ledger.js';
-import { MIN_ALPHA_EXCESS, ascendScores, searchAlpha, type SearchContext, type SearchProgress, type SearchState } from './optimise.js';
+import { MIN_ALPHA_EXCESS, ascendScores, finalSolve, pointOf, rate, searchAlpha, type ScorePoint, type SearchContext, type SearchProgress, type SearchState } from './optimise.js';
+import { verifyResult } from '../certificate/verify.js';
 import { localSolver, problemToJson, scoredProblem, type FiniteSizeEntropy, type SingleRoundSolver } from './single-round.js';
 import type { ProblemJson } from '../problem/json.js';
 import { sourceMarginalConstraints } from '../problem/validate.js';
@@ -21,6 +22,12 @@ export const KEY_LENGTH_DEFAULTS = Object.freeze({
   gapTolerance: 1e-6,
   /** Iteration cap of each single-round solve: near α = 1 a few solves stall at a gap the key length cannot see. */
   maxIterations: 40,
+  /**
+   * Iteration cap of the final solve of the chosen (α, f), the one with rank-manifold steps (the search's solves
+   * skip them, docs/finite-size.md §5); a cap other than the search's also gives it its own input hash, so a
+   * cache never answers it with the search's solve of the same point.
+   */
+  finalMaxIterations: 60,
 });
 
 export interface KeyLengthOptions {
@@ -41,6 +48,11 @@ export interface KeyLengthOptions {
   gapTolerance?: number;
   /** Scores the ascent starts from (default: the problem's branch scores); a sweep passes its neighbour's. */
   initialScores?: number[];
+  /**
+   * A point to compare with the search's best, its certified single-round result re-checked here: for fixed (α, f)
+   * the rate does not decrease in n (docs/finite-size.md §5), so a sweep passes the previous n's optimum.
+   */
+  candidate?: KeyLengthCandidate;
   /** Skip the von Neumann reference solve (the sweep does it once per channel point). */
   withoutAsymptotic?: boolean;
   /** After each finished score ascent (one α). */
@@ -96,7 +108,15 @@ export interface KeyLengthReport {
     ratePerRound: number | null;
     minTradeoff: MinTradeoffFunction | null;
   };
-  search: { singleRoundSolves: number; seconds: number };
+  /** candidateKept: the point is options.candidate (a sweep's previous n), which beat this search. */
+  search: { singleRoundSolves: number; seconds: number; candidateKept: boolean };
+}
+
+/** A point certified for this problem at another n (a sweep's previous optimum): its α, scores and single-round result. */
+export interface KeyLengthCandidate {
+  alpha: number;
+  scores: number[];
+  singleRoundBound: SolveResult;
 }
 
 function requireProbability(value: number, field: string): number {
@@ -169,6 +189,10 @@ export async function keyLength(
     gapTolerance: options.gapTolerance ?? KEY_LENGTH_DEFAULTS.gapTolerance,
     maxIterations: KEY_LENGTH_DEFAULTS.maxIterations,
   };
+  // Bare α comparisons skip the rank-manifold Newton steps (their Hessians are costly and only the bound counts);
+  // the chosen point is solved once more with them and a larger cap (docs/finite-size.md §5).
+  const comparisonSettings: Partial<SolverSettings> = { ...settings, rankManifoldSteps: false };
+  const finalSettings: Partial<SolverSettings> = { ...settings, maxIterations: KEY_LENGTH_DEFAULTS.finalMaxIterations };
   const fixedCost = (alpha: number) =>
     errorCorrectionBits +
     errorVerificationBits(epsilons.errorVerification) +
@@ -182,6 +206,7 @@ export async function keyLength(
     honest: honest.branchProbabilities,
     fixedCost,
     settings,
+    comparisonSettings,
     solver: inPhase('alpha-search'),
     onProgress: options.onProgress,
   };
@@ -191,10 +216,13 @@ export async function keyLength(
     (problem.branches.some((b) => b.score !== 0)
       ? problem.branches.map((b) => b.score)
       : await minTradeoffScores(problem, honest.branchProbabilities, inPhase('starting-scores'), settings));
-  const best =
+  const searched =
     options.alpha === undefined
       ? await searchAlpha(context, state, initialScores)
       : await ascendScores(context, state, options.alpha, initialScores);
+  const solved = await finalSolve(context, state, searched, finalSettings);
+  const carried = options.candidate && carriedCandidate(problem, entropy, options.alpha, options.candidate, context);
+  const best = carried && rate(context, carried) > rate(context, solved) ? carried : solved;
   if (best.single.bound === null) {
     throw new Error(`no certified single-round bound at α = ${best.alpha}: ${best.single.result.message ?? best.single.result.status}`);
   }
@@ -225,7 +253,7 @@ export async function keyLength(
       tail: 'Cramér–Chernoff bound for i.i.d. honest rounds: Pr[Σf ≤ nμ − t] ≤ exp(nΛ(s) − st), t = min_s (nΛ(s) + ln(1/ε_com))/s',
     },
     errorCorrection: { efficiency, bits: errorCorrectionBits },
-    search: { singleRoundSolves: state.solves, seconds: 0 },
+    search: { singleRoundSolves: state.solves, seconds: 0, candidateKept: best === carried },
   };
   if (options.variableLength) {
     const intercept = variableLengthIntercept(ledgerInput);
@@ -239,6 +267,22 @@ export async function keyLength(
   if (!options.withoutAsymptotic) report.asymptotic = await asymptoticReference(problem, errorCorrectionBits / options.rounds, inPhase('asymptotic-reference'), settings);
   report.search.seconds = (performance.now() - started) / 1000;
   return report;
+}
+
+/**
+ * The candidate as a point of this search (its window at this n; no solve), after `verifyResult` has re-checked its
+ * certificate against the scored problem. Null when it answers another α than a fixed `--alpha`.
+ */
+function carriedCandidate(problem: Problem, kind: FiniteSizeEntropy, fixedAlpha: number | undefined, candidate: KeyLengthCandidate, context: SearchContext): ScorePoint | null {
+  if (fixedAlpha !== undefined && candidate.alpha !== fixedAlpha) return null;
+  if (candidate.scores.length !== problem.branches.length) {
+    throw new ValidationError('candidate.scores', `must hold one score per branch (${problem.branches.length}, got ${candidate.scores.length})`);
+  }
+  const result = candidate.singleRoundBound;
+  const check = verifyResult(scoredProblem(problem, candidate.scores), { kind, alpha: candidate.alpha }, result);
+  if (!check.valid) throw new ValidationError('candidate.singleRoundBound', `does not verify: ${check.reason}`);
+  const bound = result.status === 'CERTIFIED' || result.status === 'LIMIT_REACHED' ? result.certifiedLowerBound : null;
+  return pointOf(context, { alpha: candidate.alpha, scores: [...candidate.scores], bound, result, tiltedWeights: [] });
 }
 
 /**

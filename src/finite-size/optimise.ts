@@ -20,6 +20,8 @@ const MAX_STEP_TRIALS = 5;
 const TRIAL_ITERATIONS = 8;
 /** Largest change of one score in a first trial (bits): a trust region where the local curvature model is poor. */
 const MAX_SCORE_STEP = 4;
+/** Step of the α walk in log10(α − 1). */
+const WALK_STEP = 0.5;
 /** Supergradients added at one point when its line searches fail (kinks of h^f_α, docs/finite-size.md). */
 const MAX_BUNDLE_STEPS = 2;
 
@@ -32,7 +34,10 @@ export interface SearchContext {
   honest: number[];
   /** Every α-dependent and constant cost in bits (λ_EC, verification, privacy amplification, −2) for the rate. */
   fixedCost: (alpha: number) => number;
+  /** The ascents' solves: their final states give the supergradients every step follows. */
   settings: Partial<SolverSettings>;
+  /** Bare comparisons of α at given scores: only their bound counts, so they skip the costly rank-manifold steps. */
+  comparisonSettings: Partial<SolverSettings>;
   solver: SingleRoundSolver;
   onProgress?: (progress: SearchProgress) => void;
 }
@@ -56,11 +61,6 @@ export interface ScorePoint {
 export interface SearchState {
   /** Single-round solves so far. */
   solves: number;
-  /**
-   * Set when an ascent's first line search fails at its start (a kink, docs/finite-size.md §9): the α search then
-   * compares the start scores, and only the best α's ascent adds supergradients (bundle steps).
-   */
-  kinked?: boolean;
 }
 
 /** What one ascent may spend: single-round solves, and supergradients added at one point (0: plain BFGS). */
@@ -70,6 +70,8 @@ export interface AscentBudget {
 }
 
 const FULL_ASCENT: AscentBudget = { solves: MAX_ASCENT_SOLVES, bundles: MAX_BUNDLE_STEPS };
+/** Only the starting point: one certified value (how the α search compares orders). */
+const NO_ASCENT: AscentBudget = { solves: 0, bundles: 0 };
 
 async function evaluate(
   context: SearchContext,
@@ -89,9 +91,26 @@ async function evaluate(
     if (!(error instanceof RangeError)) throw error;
     single = { alpha, scores: [...scores], bound: null, result: numericalError(context, alpha, error), tiltedWeights: [] };
   }
-  const window = acceptanceWindow(context.honest, scores, context.rounds, context.epsilonCompleteness);
+  return pointOf(context, single);
+}
+
+/**
+ * A certified single-round value as a point of this context's n: only the acceptance window depends on n, so a
+ * value solved for another n (a sweep's previous optimum) needs no new solve.
+ */
+export function pointOf(context: SearchContext, single: SingleRoundValue): ScorePoint {
+  const window = acceptanceWindow(context.honest, single.scores, context.rounds, context.epsilonCompleteness);
   const value = single.bound === null ? -Infinity : single.bound + window.minimumScoreSum / context.rounds;
-  return { alpha, scores, single, window, value };
+  return { alpha: single.alpha, scores: single.scores, single, window, value };
+}
+
+/**
+ * The search's best point solved once more with `settings` (the search's own solves skip the costly steps that
+ * only tighten a bound), warm-started where it stopped; the higher of the two certified values is kept.
+ */
+export async function finalSolve(context: SearchContext, state: SearchState, point: ScorePoint, settings: Partial<SolverSettings>): Promise<ScorePoint> {
+  const again = await evaluate(context, state, point.alpha, point.scores, point.single.finalState, settings);
+  return again.value > point.value ? again : point;
 }
 
 /**
@@ -180,7 +199,8 @@ export async function ascendScores(
   // Inverse curvature of −G (row-major m×m).
   let inverse = new Float64Array(m * m);
   for (let c = 0; c < m; c++) inverse[c * m + c] = 1 / (Math.max(context.honest[c], 1e-6) * kappa * Math.LN2);
-  let current = await evaluate(context, state, alpha, initialScores, warmStart);
+  // A bare comparison needs no supergradient: its solve may skip the steps that only sharpen the final state.
+  let current = await evaluate(context, state, alpha, initialScores, warmStart, budget.solves > 0 ? context.settings : context.comparisonSettings);
   let gradient = supergradient(context, current);
   const firstSolve = state.solves;
   const withinBudget = () => state.solves - firstSolve < budget.solves;
@@ -214,10 +234,7 @@ export async function ascendScores(
       if (other === null) break;
       gradient = leastNormCombination(gradient, other, inverse);
     }
-    if (accepted === null) {
-      if (iteration === 0 && budget.bundles === 0) state.kinked = true;
-      break;
-    }
+    if (accepted === null) break;
     const improvement = accepted.value - current.value;
     const nextGradient = supergradient(context, accepted);
     const previous = gradient;
@@ -254,7 +271,8 @@ export function rate(context: SearchContext, point: ScorePoint): number {
 /**
  * Maximises the rate over α ∈ [1 + 1e−4, 2] in x = log10(α − 1): start near α − 1 ≈ 2/√n (the optimum shrinks
  * like 1/√n, docs/finite-size.md), walk uphill in steps of 0.5 until the rate falls, then golden-section search
- * inside the bracket. Each α's ascent starts from the scores and state of the nearest α already solved.
+ * inside the bracket. Only the first α's scores are ascended; every other α is compared at the scores and state of
+ * the nearest α already solved (one solve each), and the best α, when it is not the first, is ascended last.
  */
 export async function searchAlpha(context: SearchContext, state: SearchState, initialScores: number[]): Promise<ScorePoint> {
   const lowest = Math.log10(MIN_ALPHA_EXCESS);
@@ -272,20 +290,21 @@ export async function searchAlpha(context: SearchContext, state: SearchState, in
         nearest = p;
       }
     }
-    const budget = { solves: state.kinked ? 0 : MAX_ASCENT_SOLVES, bundles: 0 };
+    const budget = solved.size === 0 ? FULL_ASCENT : NO_ASCENT;
     const point = await ascendScores(context, state, 1 + 10 ** key, nearest?.scores ?? initialScores, nearest?.single.finalState, budget);
     solved.set(key, point);
     return point;
   };
   const score = (p: ScorePoint) => rate(context, p);
   let x = clamp(Math.log10(2 / Math.sqrt(context.rounds)));
-  let best = await at(x);
+  const ascended = await at(x);
+  let best = ascended;
   // Walk uphill: try both neighbours first, then keep going the better way.
-  const up = await at(clamp(x + 0.5));
-  const direction = score(up) > score(best) ? 0.5 : -0.5;
+  const up = await at(clamp(x + WALK_STEP));
+  const direction = score(up) > score(best) ? WALK_STEP : -WALK_STEP;
   if (direction > 0) {
     best = up;
-    x = clamp(x + 0.5);
+    x = clamp(x + WALK_STEP);
   }
   for (;;) {
     const next = clamp(x + direction);
@@ -295,9 +314,9 @@ export async function searchAlpha(context: SearchContext, state: SearchState, in
     best = point;
     x = next;
   }
-  // Golden section on [x − 0.5, x + 0.5] ∩ range.
-  let a = clamp(x - 0.5);
-  let b = clamp(x + 0.5);
+  // Golden section on [x − step, x + step] ∩ range.
+  let a = clamp(x - WALK_STEP);
+  let b = clamp(x + WALK_STEP);
   const ratio = (Math.sqrt(5) - 1) / 2;
   let c = b - ratio * (b - a);
   let d = a + ratio * (b - a);
@@ -319,6 +338,8 @@ export async function searchAlpha(context: SearchContext, state: SearchState, in
     }
   }
   for (const p of solved.values()) if (score(p) > score(best)) best = p;
-  // Bundle steps only at the best α: they cost solves, and only kinks need them.
-  return state.kinked ? ascendScores(context, state, best.alpha, best.scores) : best;
+  if (best === ascended) return best;
+  // The ascent re-solves its start (warm, yet possibly to a looser bound within the cap): the better is kept.
+  const last = await ascendScores(context, state, best.alpha, best.scores, best.single.finalState);
+  return last.value > best.value ? last : best;
 }

@@ -2,7 +2,7 @@
 // axis), with the asymptotic Devetak–Winter rate of each channel point as a dashed reference line.
 import type { TopLevelSpec } from 'vega-lite';
 import type { Problem } from '../problem/model.js';
-import { asymptoticReference, keyLength, KEY_LENGTH_DEFAULTS, type KeyLengthOptions } from './key-length.js';
+import { asymptoticReference, keyLength, KEY_LENGTH_DEFAULTS, type KeyLengthCandidate, type KeyLengthOptions } from './key-length.js';
 import { localSolver, type SingleRoundSolver } from './single-round.js';
 
 /** One channel point of a sweep: its problem and, when a parameter is swept, the parameter's value. */
@@ -30,8 +30,8 @@ export function logSpacedRounds(low: number, high: number, count: number): numbe
 }
 
 /**
- * Every (case, n) key length, n ascending within a case so that each search starts from the previous n's scores;
- * the asymptotic reference is solved once per case.
+ * Every (case, n) key length, n ascending within a case so that each n can keep the previous n's optimum; the
+ * asymptotic reference is solved once per case.
  */
 export async function keyLengthSweep(
   cases: SweepCase[],
@@ -43,16 +43,20 @@ export async function keyLengthSweep(
   const points: SweepPoint[] = [];
   const ascending = [...rounds].sort((a, b) => a - b);
   for (const sweepCase of cases) {
-    let scores: number[] | undefined;
+    let candidate: KeyLengthCandidate | undefined;
     let asymptotic: number | null = null;
     for (const [k, n] of ascending.entries()) {
-      const report = await keyLength(sweepCase.problem, { ...options, rounds: n, initialScores: scores, withoutAsymptotic: true }, solver);
+      // The previous n's optimum is a candidate, not the start: for fixed (α, f) the rate does not decrease in n, so
+      // the sweep's re-optimised rates do not either (docs/finite-size.md §5); each search starts where a single
+      // key length starts (measured: starting from the previous optimum's scores the ascents stall at its kink).
+      const report = await keyLength(sweepCase.problem, { ...options, rounds: n, candidate, withoutAsymptotic: true }, solver);
       if (k === 0) {
         const leakagePerRound = report.errorCorrection.bits / n;
         const reference = await asymptoticReference(sweepCase.problem, leakagePerRound, solver, { gapTolerance: KEY_LENGTH_DEFAULTS.gapTolerance });
         asymptotic = reference.ratePerRound;
       }
-      scores = sweepCase.problem.branches.map((b) => report.scores[b.label]);
+      const scores = sweepCase.problem.branches.map((b) => report.scores[b.label]);
+      candidate = { alpha: report.alpha, scores, singleRoundBound: report.singleRoundBound };
       const point: SweepPoint = {
         label: sweepCase.label,
         rounds: n,
