@@ -84,7 +84,11 @@ export function assembleResult(setup: SolverSetup, state: SolverState): SolveRes
       certificate = {
         inputHash: base.inputHash,
         solverVersion: SOLVER_VERSION,
-        settings: { gapTolerance: settings.gapTolerance, maxIterations: settings.maxIterations },
+        settings: {
+          gapTolerance: settings.gapTolerance,
+          maxIterations: settings.maxIterations,
+          ...(settings.rankManifoldSteps ? {} : { rankManifoldSteps: false as const }),
+        },
         entropy: base.entropy,
         alpha: base.alpha,
         ...stored,
