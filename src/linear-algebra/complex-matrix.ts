@@ -451,13 +451,25 @@ export function traceProductReal(a: ComplexMatrix, b: ComplexMatrix): number {
 
 /** (A + A†)/2. */
 export function hermitianPart(a: ComplexMatrix): ComplexMatrix {
-  if (!a.isSquare) throw new RangeError('hermitianPart: matrix is not square');
+  return plusAdjoint(a, 0.5, 'hermitianPart');
+}
+
+/** A + A† in one pass, without forming A† (bit-identical to add(a, adjoint(a))). */
+export function hermitianSum(a: ComplexMatrix): ComplexMatrix {
+  return plusAdjoint(a, 1, 'hermitianSum');
+}
+
+/** s·(A + A†); s = 1 skips the multiplication so the sum is exactly that of add(a, adjoint(a)). */
+function plusAdjoint(a: ComplexMatrix, s: number, op: string): ComplexMatrix {
+  if (!a.isSquare) throw new RangeError(`${op}: matrix is not square`);
   const n = a.rows;
   const c = new ComplexMatrix(n, n);
   for (let i = 0; i < n; i++) {
     for (let j = 0; j < n; j++) {
-      c.re[i * n + j] = 0.5 * (a.re[i * n + j] + a.re[j * n + i]);
-      c.im[i * n + j] = 0.5 * (a.im[i * n + j] - a.im[j * n + i]);
+      const re = a.re[i * n + j] + a.re[j * n + i];
+      const im = a.im[i * n + j] - a.im[j * n + i];
+      c.re[i * n + j] = s === 1 ? re : s * re;
+      c.im[i * n + j] = s === 1 ? im : s * im;
     }
   }
   return c;

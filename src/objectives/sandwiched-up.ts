@@ -1,9 +1,8 @@
 import {
-  add,
   addScaledInPlace,
-  adjoint,
   ComplexMatrix,
   hermitianPart,
+  hermitianSum,
   multiply,
   scale,
   traceProductReal,
@@ -12,7 +11,7 @@ import { eigh, eigvalsh, type HermitianEigen } from '../linear-algebra/eigen.js'
 import { spectralFunction } from '../linear-algebra/matrix-functions.js';
 import { isKeyless, type BranchSupport } from './branch-supports.js';
 import {
-  blockFrechet,
+  blockFrechetParts,
   blockSpectralFunction,
   eigenBlocks,
   outputRoot,
@@ -31,13 +30,13 @@ import {
 export type ReferenceBlocks = ComplexMatrix[][];
 
 export interface SandwichedBranchTerm {
-  quasiEntropy: number;
-  /** ∇_X Q̃_β(X‖τ) = τ^s W τ^s (with respect to the weighted branch output). */
-  gradientState: ComplexMatrix;
+  readonly quasiEntropy: number;
+  /** ∇_X Q̃_β(X‖τ) = τ^s W τ^s (with respect to the weighted branch output); shared, so callers do not write to it. */
+  readonly gradientState: ComplexMatrix;
   /** Pinched ∇_τ Q̃_β(X‖τ), block by block. */
-  gradientReference: ComplexMatrix[];
+  readonly gradientReference: ComplexMatrix[];
   /** Z(M^β): the fixed-point map's image before normalisation. */
-  pinchedPower: ComplexMatrix[];
+  readonly pinchedPower: ComplexMatrix[];
   /**
    * ∇_X Q̃/β − 1 = (τ^{2s} − 1) + τ^s·(M^{β−1} − 1)·τ^s, each difference through expm1 of a logarithm, so it is
    * accurate relative to its own size (it vanishes as α → 1, where ∇_X Q̃ → 1). Only when asked for.
@@ -65,22 +64,43 @@ export function sandwichedBranchTerm(
   const ts = blockSpectralFunction(referenceEigs, (t) => Math.max(t, 0) ** s);
   const power = sandwichedPowerOfRoot(ts, root ?? outputRoot(weightedState, support.outputRange), beta, betaMinusOne);
   const { quasiEntropy, weight, powerOfM } = power;
-  const gradientState = multiply(multiply(ts, weight), ts);
-  const xtsW = multiply(multiply(weightedState, ts), weight);
-  const direction = add(xtsW, adjoint(xtsW));
-  const gradientFull = blockFrechet(referenceEigs, powerFunction(s), direction, sizes, offsets);
-  const term: SandwichedBranchTerm = {
+  const direction = hermitianSum(multiply(multiply(weightedState, ts), weight));
+  const term = new FormedBranchTerm(
     quasiEntropy,
-    gradientState,
-    gradientReference: pinchedBlocks(gradientFull, sizes, offsets),
-    pinchedPower: pinchedBlocks(powerOfM, sizes, offsets),
-  };
+    ts,
+    weight,
+    blockFrechetParts(referenceEigs, powerFunction(s), direction, sizes, offsets),
+    pinchedBlocks(powerOfM, sizes, offsets),
+  );
   if (betaMinusOne === undefined || !power.weightDefect) return term;
   // 2s = (1 − β)/β with 1 − β = −(β − 1) exact.
   const twoS = -betaMinusOne / (1 + betaMinusOne);
   const defect = blockSpectralFunction(referenceEigs, (t) => Math.expm1(twoS * Math.log(t)));
   addScaledInPlace(defect, multiply(multiply(ts, power.weightDefect), ts), 1);
-  return { ...term, gradientStateDefect: defect };
+  term.gradientStateDefect = defect;
+  return term;
+}
+
+/**
+ * A branch term whose ∇_X Q̃ = τ^s·W·τ^s is formed on first use: the inner loop needs only ∇_τ Q̃ and the map's
+ * image at each τ, and ∇_X Q̃ only at the τ it returns (two d×d products per branch and inner step saved).
+ */
+class FormedBranchTerm implements SandwichedBranchTerm {
+  private formedGradientState: ComplexMatrix | undefined;
+  gradientStateDefect?: ComplexMatrix;
+
+  constructor(
+    readonly quasiEntropy: number,
+    private readonly ts: ComplexMatrix,
+    private readonly weight: ComplexMatrix,
+    readonly gradientReference: ComplexMatrix[],
+    readonly pinchedPower: ComplexMatrix[],
+  ) {}
+
+  get gradientState(): ComplexMatrix {
+    this.formedGradientState ??= multiply(multiply(this.ts, this.weight), this.ts);
+    return this.formedGradientState;
+  }
 }
 
 /** Q = t^{1−β}·(Tr X)^β with ∂_X Q = β·t^{1−β}(Tr X)^{β−1}·1 and ∂_t Q = (1−β)·t^{−β}(Tr X)^β. */

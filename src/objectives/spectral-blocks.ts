@@ -12,6 +12,7 @@ import {
   dividedDifferences,
   frechetDerivative,
   spectralFunction,
+  spectralFunctionInto,
   type ScalarFunction,
 } from '../linear-algebra/matrix-functions.js';
 
@@ -80,9 +81,16 @@ export function eigenBlocks(blocks: readonly ComplexMatrix[]): HermitianEigen[] 
   return blocks.map((b) => positiveEigen(b));
 }
 
-/** ⊕_k f(Y_k) from the blocks' eigendecompositions. */
+/** ⊕_k f(Y_k) from the blocks' eigendecompositions, each block written in place. */
 export function blockSpectralFunction(eigs: readonly HermitianEigen[], f: (x: number) => number): ComplexMatrix {
-  return directSum(eigs.map((e) => spectralFunction(e, f)));
+  const n = eigs.reduce((total, e) => total + e.vectors.rows, 0);
+  const out = new ComplexMatrix(n, n);
+  let offset = 0;
+  for (const e of eigs) {
+    spectralFunctionInto(out, offset, e, f);
+    offset += e.vectors.rows;
+  }
+  return out;
 }
 
 /** ⊕_k Df(Y_k)[H_kk]: the Fréchet derivative of a block-diagonal function, applied to the pinched direction. */
@@ -93,10 +101,19 @@ export function blockFrechet(
   sizes: readonly number[],
   offsets: readonly number[],
 ): ComplexMatrix {
-  return directSum(
-    eigs.map((e, k) =>
-      frechetDerivative(e, dividedDifferences(e.values, f.value, f.derivative, f.difference), diagonalBlock(direction, offsets[k], sizes[k])),
-    ),
+  return directSum(blockFrechetParts(eigs, f, direction, sizes, offsets));
+}
+
+/** The blocks Df(Y_k)[H_kk] of blockFrechet one by one (what its pinching would copy back out). */
+export function blockFrechetParts(
+  eigs: readonly HermitianEigen[],
+  f: ScalarFunction,
+  direction: ComplexMatrix,
+  sizes: readonly number[],
+  offsets: readonly number[],
+): ComplexMatrix[] {
+  return eigs.map((e, k) =>
+    frechetDerivative(e, dividedDifferences(e.values, f.value, f.derivative, f.difference), diagonalBlock(direction, offsets[k], sizes[k])),
   );
 }
 
