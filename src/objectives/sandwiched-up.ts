@@ -5,6 +5,7 @@ import {
   hermitianSum,
   multiply,
   scale,
+  scaleInPlace,
   traceProductReal,
 } from '../linear-algebra/complex-matrix.js';
 import { eigh, eigvalsh, type HermitianEigen } from '../linear-algebra/eigen.js';
@@ -37,6 +38,8 @@ export interface SandwichedBranchTerm {
   readonly gradientReference: ComplexMatrix[];
   /** Z(M^β): the fixed-point map's image before normalisation. */
   readonly pinchedPower: ComplexMatrix[];
+  /** The eigendecompositions of τ's blocks this term was formed from (absent for a branch without key). */
+  readonly referenceEigen?: HermitianEigen[];
   /**
    * ∇_X Q̃/β − 1 = (τ^{2s} − 1) + τ^s·(M^{β−1} − 1)·τ^s, each difference through expm1 of a logarithm, so it is
    * accurate relative to its own size (it vanishes as α → 1, where ∇_X Q̃ → 1). Only when asked for.
@@ -71,6 +74,7 @@ export function sandwichedBranchTerm(
     weight,
     blockFrechetParts(referenceEigs, powerFunction(s), direction, sizes, offsets),
     pinchedBlocks(powerOfM, sizes, offsets),
+    referenceEigs,
   );
   if (betaMinusOne === undefined || !power.weightDefect) return term;
   // 2s = (1 − β)/β with 1 − β = −(β − 1) exact.
@@ -95,6 +99,7 @@ class FormedBranchTerm implements SandwichedBranchTerm {
     private readonly weight: ComplexMatrix,
     readonly gradientReference: ComplexMatrix[],
     readonly pinchedPower: ComplexMatrix[],
+    readonly referenceEigen: HermitianEigen[],
   ) {}
 
   get gradientState(): ComplexMatrix {
@@ -216,16 +221,22 @@ function innerPoint(
  * Z(X^β)^{1/β} up to normalisation; in general the plain map contracts by about 1−β near its fixed point
  * (docs/convergence.md) and this removes that mode. Null when a block of T is not positive definite.
  */
-export function extrapolatedReference(reference: ReferenceBlocks, mapped: ReferenceBlocks, beta: number): ReferenceBlocks | null {
+export function extrapolatedReference(
+  reference: ReferenceBlocks,
+  mapped: ReferenceBlocks,
+  beta: number,
+  /** τ's blocks already decomposed (per branch, where the caller has them): eigh is deterministic, so reused. */
+  referenceEigen: readonly (readonly HermitianEigen[] | undefined)[] = [],
+): ReferenceBlocks | null {
   const exponents: HermitianEigen[][] = [];
   let top = -Infinity;
   for (let c = 0; c < reference.length; c++) {
     const branch: HermitianEigen[] = [];
     for (let k = 0; k < reference[c].length; k++) {
       const image = eigh(mapped[c][k]);
-      const current = eigh(reference[c][k]);
+      const current = referenceEigen[c]?.[k] ?? eigh(reference[c][k]);
       if (!(image.values[0] > 0 && current.values[0] > 0)) return null;
-      const exponent = scale(spectralFunction(image, Math.log), 1 / beta);
+      const exponent = scaleInPlace(spectralFunction(image, Math.log), 1 / beta);
       addScaledInPlace(exponent, spectralFunction(current, Math.log), -(1 - beta) / beta);
       const e = eigh(hermitianPart(exponent));
       top = Math.max(top, e.values[e.values.length - 1]);
@@ -278,7 +289,7 @@ export function optimalReference(
     const mapped = point.terms.map((t) => t.pinchedPower.map((b) => scale(b, 1 / point.quasiEntropy)));
     let next: InnerPoint | null = null;
     if (extrapolate) {
-      const candidate = extrapolatedReference(point.reference, mapped, beta);
+      const candidate = extrapolatedReference(point.reference, mapped, beta, point.terms.map((t) => t.referenceEigen));
       const tried = candidate && atIfRegular(at, candidate);
       if (tried && tried.innerGap < point.innerGap) next = tried;
       else extrapolate = false;
@@ -323,8 +334,10 @@ function atIfRegular(at: (reference: ReferenceBlocks) => InnerPoint, reference: 
   }
 }
 
+/** Scales the blocks to unit total trace in place: its callers pass blocks they have just formed. */
 function normalise(blocks: ReferenceBlocks): ReferenceBlocks {
   let total = 0;
   for (const branch of blocks) for (const b of branch) for (let i = 0; i < b.rows; i++) total += b.re[i * b.cols + i];
-  return blocks.map((branch) => branch.map((b) => scale(b, 1 / total)));
+  for (const branch of blocks) for (const b of branch) scaleInPlace(b, 1 / total);
+  return blocks;
 }
