@@ -6,7 +6,7 @@ const SERVICE_MODULE = './service.js';
 const SECTIONS: Record<string, () => Promise<BenchTable[]>> = {
   'linear-algebra': async () => (await import('./linear-algebra.js')).benchLinearAlgebra(),
   oracle: async () => (await import('./oracle.js')).benchOracle(),
-  objectives: async () => [(await import('./solver.js')).benchObjectives()],
+  objectives: async () => [(await import('./solver.js')).benchObjectives(), (await import('./objectives.js')).benchObjectiveWalk()],
   solver: async () => {
     const solver = await import('./solver.js');
     return [solver.benchSolves(), solver.benchBoundaryOptima()];

@@ -24,28 +24,26 @@ export interface ScalarFunction {
 
 /** f(A) = V·f(Λ)·V† for A = V·Λ·V†; the result is exactly Hermitian (lower triangle mirrored). */
 export function spectralFunction(eig: HermitianEigen, f: (x: number) => number): ComplexMatrix {
-  const { values, vectors } = eig;
-  const n = values.length;
-  const vr = vectors.re;
-  const vi = vectors.im;
-  const cols = vectors.cols;
-  const rows = vectors.rows;
-  if (cols !== n) throw new RangeError(`spectralFunction: ${n} eigenvalues but ${cols} eigenvectors`);
-  const fv = new Float64Array(n);
-  for (let k = 0; k < n; k++) fv[k] = f(values[k]);
-  // F = V·diag(f), then f(A) = F·V†, Hermitian, so only its lower triangle is computed.
-  const scaled = new ComplexMatrix(rows, n);
-  const fr = scaled.re;
-  const fi = scaled.im;
-  for (let i = 0; i < rows; i++) {
-    for (let k = 0; k < n; k++) {
-      fr[i * n + k] = vr[i * n + k] * fv[k];
-      fi[i * n + k] = vi[i * n + k] * fv[k];
-    }
-  }
-  return lowerTimesAdjoint(scaled, vectors);
+  const rows = eig.vectors.rows;
+  const out = new ComplexMatrix(rows, rows);
+  spectralFunctionInto(out, 0, eig, f);
+  return out;
 }
 
+/**
+ * Writes f(A) into the square block of `out` at (offset, offset), leaving the rest of `out` as it is: a
+ * block-diagonal ⊕_k f(A_k) is assembled in place instead of copied from one matrix per block.
+ */
+export function spectralFunctionInto(out: ComplexMatrix, offset: number, eig: HermitianEigen, f: (x: number) => number): void {
+  const { values, vectors } = eig;
+  const n = values.length;
+  if (vectors.cols !== n) throw new RangeError(`spectralFunction: ${n} eigenvalues but ${vectors.cols} eigenvectors`);
+  if (offset + vectors.rows > Math.min(out.rows, out.cols)) throw new RangeError('spectralFunctionInto: block outside the output');
+  const fv = new Float64Array(n);
+  for (let k = 0; k < n; k++) fv[k] = f(values[k]);
+  // f(A) = (V·diag(f))·V†, Hermitian, so only its lower triangle is computed.
+  lowerTimesAdjointInto(out, offset, vectors, vectors, fv);
+}
 /**
  * The first divided differences Γ_ij = (f(λ_i) − f(λ_j))/(λ_i − λ_j), n×n row-major, symmetric.
  * Γ_ii = f'(λ_i). For |λ_i − λ_j| ≤ DIVIDED_DIFFERENCE_RELATIVE_GAP·max(|λ_i|, |λ_j|) the quotient
@@ -125,18 +123,46 @@ function isExactlyHermitian(h: ComplexMatrix): boolean {
 
 /** X·Y† for a product known to be Hermitian: lower triangle by row dot products, then mirrored. */
 function lowerTimesAdjoint(x: ComplexMatrix, y: ComplexMatrix): ComplexMatrix {
+  const out = new ComplexMatrix(x.rows, x.rows);
+  lowerTimesAdjointInto(out, 0, x, y);
+  return out;
+}
+
+/** One row of X (times diag(columnScale)) while its dot products are formed; grown on demand, never shared by two calls. */
+let rowRe = new Float64Array(0);
+let rowIm = new Float64Array(0);
+
+/**
+ * lowerTimesAdjoint written into the block of `out` at (offset, offset); with `columnScale` it forms
+ * (X·diag(columnScale))·Y†, scaling each row of X once into a reused buffer (the products are those of the scaled
+ * matrix, so the result is bit-identical to forming it first). No callback runs while the buffer is in use.
+ */
+function lowerTimesAdjointInto(out: ComplexMatrix, offset: number, x: ComplexMatrix, y: ComplexMatrix, columnScale?: Float64Array): void {
   const n = x.rows;
   const p = x.cols;
   pollAtOrder(Math.max(n, p));
-  const out = new ComplexMatrix(n, n);
+  const stride = out.cols;
   const or = out.re;
   const oi = out.im;
-  const xr = x.re;
-  const xi = x.im;
   const yr = y.re;
   const yi = y.im;
+  if (columnScale !== undefined && rowRe.length < p) {
+    rowRe = new Float64Array(p);
+    rowIm = new Float64Array(p);
+  }
+  // Unscaled, the rows are read where they are.
+  const xr = columnScale === undefined ? x.re : rowRe;
+  const xi = columnScale === undefined ? x.im : rowIm;
   for (let i = 0; i < n; i++) {
-    const ri = i * p;
+    let ri = i * p;
+    if (columnScale !== undefined) {
+      for (let k = 0; k < p; k++) {
+        xr[k] = x.re[ri + k] * columnScale[k];
+        xi[k] = x.im[ri + k] * columnScale[k];
+      }
+      ri = 0;
+    }
+    const row = (offset + i) * stride + offset;
     // Two rows of Y per pass share each load of row i of X.
     let j = 0;
     for (; j + 1 <= i; j += 2) {
@@ -158,14 +184,14 @@ function lowerTimesAdjoint(x: ComplexMatrix, y: ComplexMatrix): ComplexMatrix {
         s1r += ar * b1r + ai * b1i;
         s1i += ai * b1r - ar * b1i;
       }
-      or[i * n + j] = s0r;
-      oi[i * n + j] = s0i;
-      or[j * n + i] = s0r;
-      oi[j * n + i] = -s0i;
-      or[i * n + j + 1] = s1r;
-      oi[i * n + j + 1] = s1i;
-      or[(j + 1) * n + i] = s1r;
-      oi[(j + 1) * n + i] = -s1i;
+      or[row + j] = s0r;
+      oi[row + j] = s0i;
+      or[(offset + j) * stride + offset + i] = s0r;
+      oi[(offset + j) * stride + offset + i] = -s0i;
+      or[row + j + 1] = s1r;
+      oi[row + j + 1] = s1i;
+      or[(offset + j + 1) * stride + offset + i] = s1r;
+      oi[(offset + j + 1) * stride + offset + i] = -s1i;
     }
     for (; j <= i; j++) {
       const rj = j * p;
@@ -179,14 +205,13 @@ function lowerTimesAdjoint(x: ComplexMatrix, y: ComplexMatrix): ComplexMatrix {
         sr += ar * br + ai * bi;
         si += ai * br - ar * bi;
       }
-      or[i * n + j] = sr;
-      oi[i * n + j] = si;
-      or[j * n + i] = sr;
-      oi[j * n + i] = -si;
+      or[row + j] = sr;
+      oi[row + j] = si;
+      or[(offset + j) * stride + offset + i] = sr;
+      oi[(offset + j) * stride + offset + i] = -si;
     }
-    oi[i * n + i] = 0;
+    oi[row + i] = 0;
   }
-  return out;
 }
 
 /**

@@ -1,4 +1,4 @@
-import { add, adjoint, ComplexMatrix, multiply } from '../linear-algebra/complex-matrix.js';
+import { add, ComplexMatrix, hermitianSum, multiply } from '../linear-algebra/complex-matrix.js';
 import { isKeyless, type BranchSupport } from './branch-supports.js';
 import {
   blockFrechet,
@@ -32,7 +32,7 @@ export function petzUpQuasiEntropy(
   if (!withGradient) return { value: quasiEntropy, gradient: null };
   const ysWys = multiply(multiply(ys, weight), ys);
   const xysW = multiply(multiply(x, ys), weight);
-  const symmetric = add(xysW, adjoint(xysW));
+  const symmetric = hermitianSum(xysW);
   const gradientY = blockFrechet(blockEigs, powerFunction(s), symmetric, sizes, offsets);
   return { value: quasiEntropy, gradient: add(ysWys, gradientY) };
 }

@@ -1,18 +1,18 @@
 import {
-  add,
   addScaledInPlace,
-  adjoint,
   ComplexMatrix,
   hermitianPart,
+  hermitianSum,
   multiply,
   scale,
+  scaleInPlace,
   traceProductReal,
 } from '../linear-algebra/complex-matrix.js';
 import { eigh, eigvalsh, type HermitianEigen } from '../linear-algebra/eigen.js';
 import { spectralFunction } from '../linear-algebra/matrix-functions.js';
 import { isKeyless, type BranchSupport } from './branch-supports.js';
 import {
-  blockFrechet,
+  blockFrechetParts,
   blockSpectralFunction,
   eigenBlocks,
   outputRoot,
@@ -31,13 +31,15 @@ import {
 export type ReferenceBlocks = ComplexMatrix[][];
 
 export interface SandwichedBranchTerm {
-  quasiEntropy: number;
-  /** ∇_X Q̃_β(X‖τ) = τ^s W τ^s (with respect to the weighted branch output). */
-  gradientState: ComplexMatrix;
+  readonly quasiEntropy: number;
+  /** ∇_X Q̃_β(X‖τ) = τ^s W τ^s (with respect to the weighted branch output); shared, so callers do not write to it. */
+  readonly gradientState: ComplexMatrix;
   /** Pinched ∇_τ Q̃_β(X‖τ), block by block. */
-  gradientReference: ComplexMatrix[];
+  readonly gradientReference: ComplexMatrix[];
   /** Z(M^β): the fixed-point map's image before normalisation. */
-  pinchedPower: ComplexMatrix[];
+  readonly pinchedPower: ComplexMatrix[];
+  /** The eigendecompositions of τ's blocks this term was formed from (absent for a branch without key). */
+  readonly referenceEigen?: HermitianEigen[];
   /**
    * ∇_X Q̃/β − 1 = (τ^{2s} − 1) + τ^s·(M^{β−1} − 1)·τ^s, each difference through expm1 of a logarithm, so it is
    * accurate relative to its own size (it vanishes as α → 1, where ∇_X Q̃ → 1). Only when asked for.
@@ -65,22 +67,45 @@ export function sandwichedBranchTerm(
   const ts = blockSpectralFunction(referenceEigs, (t) => Math.max(t, 0) ** s);
   const power = sandwichedPowerOfRoot(ts, root ?? outputRoot(weightedState, support.outputRange), beta, betaMinusOne);
   const { quasiEntropy, weight, powerOfM } = power;
-  const gradientState = multiply(multiply(ts, weight), ts);
-  const xtsW = multiply(multiply(weightedState, ts), weight);
-  const direction = add(xtsW, adjoint(xtsW));
-  const gradientFull = blockFrechet(referenceEigs, powerFunction(s), direction, sizes, offsets);
-  const term: SandwichedBranchTerm = {
+  const direction = hermitianSum(multiply(multiply(weightedState, ts), weight));
+  const term = new FormedBranchTerm(
     quasiEntropy,
-    gradientState,
-    gradientReference: pinchedBlocks(gradientFull, sizes, offsets),
-    pinchedPower: pinchedBlocks(powerOfM, sizes, offsets),
-  };
+    ts,
+    weight,
+    blockFrechetParts(referenceEigs, powerFunction(s), direction, sizes, offsets),
+    pinchedBlocks(powerOfM, sizes, offsets),
+    referenceEigs,
+  );
   if (betaMinusOne === undefined || !power.weightDefect) return term;
   // 2s = (1 − β)/β with 1 − β = −(β − 1) exact.
   const twoS = -betaMinusOne / (1 + betaMinusOne);
   const defect = blockSpectralFunction(referenceEigs, (t) => Math.expm1(twoS * Math.log(t)));
   addScaledInPlace(defect, multiply(multiply(ts, power.weightDefect), ts), 1);
-  return { ...term, gradientStateDefect: defect };
+  term.gradientStateDefect = defect;
+  return term;
+}
+
+/**
+ * A branch term whose ∇_X Q̃ = τ^s·W·τ^s is formed on first use: the inner loop needs only ∇_τ Q̃ and the map's
+ * image at each τ, and ∇_X Q̃ only at the τ it returns (two d×d products per branch and inner step saved).
+ */
+class FormedBranchTerm implements SandwichedBranchTerm {
+  private formedGradientState: ComplexMatrix | undefined;
+  gradientStateDefect?: ComplexMatrix;
+
+  constructor(
+    readonly quasiEntropy: number,
+    private readonly ts: ComplexMatrix,
+    private readonly weight: ComplexMatrix,
+    readonly gradientReference: ComplexMatrix[],
+    readonly pinchedPower: ComplexMatrix[],
+    readonly referenceEigen: HermitianEigen[],
+  ) {}
+
+  get gradientState(): ComplexMatrix {
+    this.formedGradientState ??= multiply(multiply(this.ts, this.weight), this.ts);
+    return this.formedGradientState;
+  }
 }
 
 /** Q = t^{1−β}·(Tr X)^β with ∂_X Q = β·t^{1−β}(Tr X)^{β−1}·1 and ∂_t Q = (1−β)·t^{−β}(Tr X)^β. */
@@ -196,16 +221,22 @@ function innerPoint(
  * Z(X^β)^{1/β} up to normalisation; in general the plain map contracts by about 1−β near its fixed point
  * (docs/convergence.md) and this removes that mode. Null when a block of T is not positive definite.
  */
-export function extrapolatedReference(reference: ReferenceBlocks, mapped: ReferenceBlocks, beta: number): ReferenceBlocks | null {
+export function extrapolatedReference(
+  reference: ReferenceBlocks,
+  mapped: ReferenceBlocks,
+  beta: number,
+  /** τ's blocks already decomposed (per branch, where the caller has them): eigh is deterministic, so reused. */
+  referenceEigen: readonly (readonly HermitianEigen[] | undefined)[] = [],
+): ReferenceBlocks | null {
   const exponents: HermitianEigen[][] = [];
   let top = -Infinity;
   for (let c = 0; c < reference.length; c++) {
     const branch: HermitianEigen[] = [];
     for (let k = 0; k < reference[c].length; k++) {
       const image = eigh(mapped[c][k]);
-      const current = eigh(reference[c][k]);
+      const current = referenceEigen[c]?.[k] ?? eigh(reference[c][k]);
       if (!(image.values[0] > 0 && current.values[0] > 0)) return null;
-      const exponent = scale(spectralFunction(image, Math.log), 1 / beta);
+      const exponent = scaleInPlace(spectralFunction(image, Math.log), 1 / beta);
       addScaledInPlace(exponent, spectralFunction(current, Math.log), -(1 - beta) / beta);
       const e = eigh(hermitianPart(exponent));
       top = Math.max(top, e.values[e.values.length - 1]);
@@ -258,7 +289,7 @@ export function optimalReference(
     const mapped = point.terms.map((t) => t.pinchedPower.map((b) => scale(b, 1 / point.quasiEntropy)));
     let next: InnerPoint | null = null;
     if (extrapolate) {
-      const candidate = extrapolatedReference(point.reference, mapped, beta);
+      const candidate = extrapolatedReference(point.reference, mapped, beta, point.terms.map((t) => t.referenceEigen));
       const tried = candidate && atIfRegular(at, candidate);
       if (tried && tried.innerGap < point.innerGap) next = tried;
       else extrapolate = false;
@@ -303,8 +334,10 @@ function atIfRegular(at: (reference: ReferenceBlocks) => InnerPoint, reference: 
   }
 }
 
+/** Scales the blocks to unit total trace in place: its callers pass blocks they have just formed. */
 function normalise(blocks: ReferenceBlocks): ReferenceBlocks {
   let total = 0;
   for (const branch of blocks) for (const b of branch) for (let i = 0; i < b.rows; i++) total += b.re[i * b.cols + i];
-  return blocks.map((branch) => branch.map((b) => scale(b, 1 / total)));
+  for (const branch of blocks) for (const b of branch) scaleInPlace(b, 1 / total);
+  return blocks;
 }
