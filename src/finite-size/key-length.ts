@@ -191,7 +191,6 @@ export async function keyLength(
   };
   // Bare α comparisons skip the rank-manifold Newton steps (their Hessians are costly and only the bound counts);
   // the chosen point is solved once more with them and a larger cap (docs/finite-size.md §5).
-  const comparisonSettings: Partial<SolverSettings> = { ...settings, rankManifoldSteps: false };
   const finalSettings: Partial<SolverSettings> = { ...settings, maxIterations: KEY_LENGTH_DEFAULTS.finalMaxIterations };
   const fixedCost = (alpha: number) =>
     errorCorrectionBits +
@@ -206,7 +205,6 @@ export async function keyLength(
     honest: honest.branchProbabilities,
     fixedCost,
     settings,
-    comparisonSettings,
     solver: inPhase('alpha-search'),
     onProgress: options.onProgress,
   };

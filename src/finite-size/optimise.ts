@@ -36,8 +36,6 @@ export interface SearchContext {
   fixedCost: (alpha: number) => number;
   /** The ascents' solves: their final states give the supergradients every step follows. */
   settings: Partial<SolverSettings>;
-  /** Bare comparisons of α at given scores: only their bound counts, so they skip the costly rank-manifold steps. */
-  comparisonSettings: Partial<SolverSettings>;
   solver: SingleRoundSolver;
   onProgress?: (progress: SearchProgress) => void;
 }
@@ -70,8 +68,11 @@ export interface AscentBudget {
 }
 
 const FULL_ASCENT: AscentBudget = { solves: MAX_ASCENT_SOLVES, bundles: MAX_BUNDLE_STEPS };
-/** Only the starting point: one certified value (how the α search compares orders). */
-const NO_ASCENT: AscentBudget = { solves: 0, bundles: 0 };
+/**
+ * Every further α continues the nearest α's ascent without bundle steps: comparing α at borrowed scores alone lost
+ * up to 40 % of the rate at n = 1e6 (0.034 against 0.056, docs/finite-size.md §5).
+ */
+const CONTINUED_ASCENT: AscentBudget = { solves: MAX_ASCENT_SOLVES, bundles: 0 };
 
 async function evaluate(
   context: SearchContext,
@@ -199,8 +200,7 @@ export async function ascendScores(
   // Inverse curvature of −G (row-major m×m).
   let inverse = new Float64Array(m * m);
   for (let c = 0; c < m; c++) inverse[c * m + c] = 1 / (Math.max(context.honest[c], 1e-6) * kappa * Math.LN2);
-  // A bare comparison needs no supergradient: its solve may skip the steps that only sharpen the final state.
-  let current = await evaluate(context, state, alpha, initialScores, warmStart, budget.solves > 0 ? context.settings : context.comparisonSettings);
+  let current = await evaluate(context, state, alpha, initialScores, warmStart);
   let gradient = supergradient(context, current);
   const firstSolve = state.solves;
   const withinBudget = () => state.solves - firstSolve < budget.solves;
@@ -271,8 +271,8 @@ export function rate(context: SearchContext, point: ScorePoint): number {
 /**
  * Maximises the rate over α ∈ [1 + 1e−4, 2] in x = log10(α − 1): start near α − 1 ≈ 2/√n (the optimum shrinks
  * like 1/√n, docs/finite-size.md), walk uphill in steps of 0.5 until the rate falls, then golden-section search
- * inside the bracket. Only the first α's scores are ascended; every other α is compared at the scores and state of
- * the nearest α already solved (one solve each), and the best α, when it is not the first, is ascended last.
+ * inside the bracket. The first α's scores are ascended with bundle steps; every other α continues the ascent from the
+ * scores and state of the nearest α already solved, and the best α, when it is not the first, is ascended last.
  */
 export async function searchAlpha(context: SearchContext, state: SearchState, initialScores: number[]): Promise<ScorePoint> {
   const lowest = Math.log10(MIN_ALPHA_EXCESS);
@@ -290,7 +290,7 @@ export async function searchAlpha(context: SearchContext, state: SearchState, in
         nearest = p;
       }
     }
-    const budget = solved.size === 0 ? FULL_ASCENT : NO_ASCENT;
+    const budget = solved.size === 0 ? FULL_ASCENT : CONTINUED_ASCENT;
     const point = await ascendScores(context, state, 1 + 10 ** key, nearest?.scores ?? initialScores, nearest?.single.finalState, budget);
     solved.set(key, point);
     return point;
