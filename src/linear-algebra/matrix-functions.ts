@@ -227,10 +227,22 @@ export function closePositive(x: number, y: number): boolean {
 
 /** x^p for x > 0 with f', and a cancellation-free x^p − y^p = y^p·expm1(p·log1p((x−y)/y)). */
 export function powerFunction(p: number): ScalarFunction {
+  const cancellationFree = (x: number, y: number) => y ** p * Math.expm1(p * Math.log1p((x - y) / y));
+  if (!(p > 0)) {
+    return {
+      value: (x) => x ** p,
+      derivative: (x) => p * x ** (p - 1),
+      difference: (x, y) => (closePositive(x, y) ? cancellationFree(x, y) : x ** p - y ** p),
+    };
+  }
+  // p > 0 at a singular argument (a state without full rank): rounding-level negative eigenvalues count as 0 and the
+  // slope at 0 (infinite for p < 1) as 0, so Fréchet derivatives stay on the support (0·∞ would be NaN), as von
+  // Neumann's ln does on X's support. Positive arguments are unchanged.
+  const value = (x: number) => (x > 0 ? x ** p : 0);
   return {
-    value: (x) => x ** p,
-    derivative: (x) => p * x ** (p - 1),
-    difference: (x, y) => (closePositive(x, y) ? y ** p * Math.expm1(p * Math.log1p((x - y) / y)) : x ** p - y ** p),
+    value,
+    derivative: (x) => (x > 0 ? p * x ** (p - 1) : p === 1 ? 1 : 0),
+    difference: (x, y) => (closePositive(x, y) ? cancellationFree(x, y) : value(x) - value(y)),
   };
 }
 

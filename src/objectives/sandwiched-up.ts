@@ -40,6 +40,8 @@ export interface SandwichedBranchTerm {
   readonly pinchedPower: ComplexMatrix[];
   /** The eigendecompositions of τ's blocks this term was formed from (absent for a branch without key). */
   readonly referenceEigen?: HermitianEigen[];
+  /** M = τ^s X τ^s has an eigenvalue at 0 (X or τ singular to rounding): the inner loop stops before such a τ. */
+  readonly singular?: boolean;
   /**
    * ∇_X Q̃/β − 1 = (τ^{2s} − 1) + τ^s·(M^{β−1} − 1)·τ^s, each difference through expm1 of a logarithm, so it is
    * accurate relative to its own size (it vanishes as α → 1, where ∇_X Q̃ → 1). Only when asked for.
@@ -75,6 +77,7 @@ export function sandwichedBranchTerm(
     blockFrechetParts(referenceEigs, powerFunction(s), direction, sizes, offsets),
     pinchedBlocks(powerOfM, sizes, offsets),
     referenceEigs,
+    power.singular,
   );
   if (betaMinusOne === undefined || !power.weightDefect) return term;
   // 2s = (1 − β)/β with 1 − β = −(β − 1) exact.
@@ -100,6 +103,7 @@ class FormedBranchTerm implements SandwichedBranchTerm {
     readonly gradientReference: ComplexMatrix[],
     readonly pinchedPower: ComplexMatrix[],
     readonly referenceEigen: HermitianEigen[],
+    readonly singular: boolean,
   ) {}
 
   get gradientState(): ComplexMatrix {
@@ -322,16 +326,19 @@ function startingPoint(
 }
 
 /**
- * The inner point at τ, or null when a block of τ is singular to rounding: ∇_τQ then has non-finite entries
- * (∂τ^s grows like τ^{s−1}) and the eigensolver refuses it with a RangeError.
+ * The inner point at τ, or null when it is singular to rounding: M = τ^s X τ^s with an eigenvalue at 0, or ∇_τQ
+ * with non-finite entries (∂τ^s grows like τ^{s−1}), which the eigensolver refuses with a RangeError.
  */
 function atIfRegular(at: (reference: ReferenceBlocks) => InnerPoint, reference: ReferenceBlocks): InnerPoint | null {
+  let point: InnerPoint;
   try {
-    return at(reference);
+    point = at(reference);
   } catch (error) {
     if (error instanceof RangeError) return null;
     throw error;
   }
+  // M singular to rounding: before the gradients took their weights on M's support this showed as a NaN.
+  return point.terms.some((t) => t.singular) ? null : point;
 }
 
 /** Scales the blocks to unit total trace in place: its callers pass blocks they have just formed. */

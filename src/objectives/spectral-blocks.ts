@@ -184,7 +184,7 @@ export function sandwichedPowerOfRoot(
   { left, right, onRange }: OutputRoot,
   gamma: number,
   gammaMinusOne?: number,
-): { quasiEntropy: number; weight: ComplexMatrix; powerOfM: ComplexMatrix; weightDefect?: ComplexMatrix } {
+): { quasiEntropy: number; weight: ComplexMatrix; powerOfM: ComplexMatrix; weightDefect?: ComplexMatrix; singular: boolean } {
   const factor = multiply(multiply(ys, left), right);
   if (!onRange) {
     // M = G·G† with G = Y^s·V·Λ^{1/2} (X = V·Λ·V†): the spectrum of M comes from G's singular values, which one-sided
@@ -196,21 +196,26 @@ export function sandwichedPowerOfRoot(
     for (let j = 0; j < squares.length; j++) squares[j] = singularValues[j] * singularValues[j];
     const quasiEntropy = traceFunction(squares, (t) => (t > 0 ? t ** gamma : 0));
     const me = { values: squares, vectors };
-    const weight = spectralFunction(me, (t) => gamma * t ** (gamma - 1));
+    // On ker M (a state without full rank) the weight is taken on M's support, as von Neumann's gradient takes ln X on
+    // X's; the certificate re-evaluates at a full-rank linearization point. Full-rank inputs are unchanged.
+    const weight = spectralFunction(me, (t) => (t > 0 ? gamma * t ** (gamma - 1) : 0));
     const powerOfM = spectralFunction(me, (t) => (t > 0 ? t ** gamma : 0));
-    if (gammaMinusOne === undefined) return { quasiEntropy, weight, powerOfM };
-    const weightDefect = spectralFunction(me, (t) => Math.expm1(gammaMinusOne * Math.log(t)));
-    return { quasiEntropy, weight, powerOfM, weightDefect };
+    const singular = squares.some((t) => !(t > 0));
+    if (gammaMinusOne === undefined) return { quasiEntropy, weight, powerOfM, singular };
+    const weightDefect = spectralFunction(me, (t) => (t > 0 ? Math.expm1(gammaMinusOne * Math.log(t)) : -1));
+    return { quasiEntropy, weight, powerOfM, weightDefect, singular };
   }
   const ne = positiveEigen(multiplyAdjointLeft(factor, factor));
   const quasiEntropy = traceFunction(ne.values, (t) => (t > 0 ? t ** gamma : 0));
-  const weight = expand(factor, spectralFunction(ne, (t) => gamma * t ** (gamma - 2)));
-  const powerOfM = expand(factor, spectralFunction(ne, (t) => t ** (gamma - 1)));
-  if (gammaMinusOne === undefined) return { quasiEntropy, weight, powerOfM };
+  // A·v = 0 on ker N (‖A·v‖² = v†N·v), so those terms vanish exactly; 0 there avoids 0·∞.
+  const weight = expand(factor, spectralFunction(ne, (t) => (t > 0 ? gamma * t ** (gamma - 2) : 0)));
+  const powerOfM = expand(factor, spectralFunction(ne, (t) => (t > 0 ? t ** (gamma - 1) : 0)));
+  const singular = ne.values.some((t) => !(t > 0));
+  if (gammaMinusOne === undefined) return { quasiEntropy, weight, powerOfM, singular };
   // M is singular here: W/γ is far from 1 (zero on ker M), so subtracting 1 cancels nothing.
   const weightDefect = scale(weight, 1 / gamma);
   for (let i = 0; i < weightDefect.rows; i++) weightDefect.re[i * weightDefect.cols + i] -= 1;
-  return { quasiEntropy, weight, powerOfM, weightDefect };
+  return { quasiEntropy, weight, powerOfM, weightDefect, singular };
 }
 
 function diagonalRoot(values: Float64Array): ComplexMatrix {

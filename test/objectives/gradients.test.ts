@@ -3,7 +3,8 @@ import { describe, expect, it } from 'vitest';
 import { addScaledInPlace, ComplexMatrix, frobeniusNorm, traceProductReal } from '../../src/linear-algebra/complex-matrix.js';
 import { createObjective } from '../../src/objectives/index.js';
 import type { EntropyKind, Problem } from '../../src/problem/model.js';
-import { randomDensity, randomHermitian, seededRandom } from '../helpers/random.js';
+import { randomDensity, randomHermitian, randomIsometry, seededRandom } from '../helpers/random.js';
+import { multiply, multiplyAdjointRight } from '../../src/linear-algebra/complex-matrix.js';
 import { randomInstrumentProblem } from './fixtures.js';
 
 const STEP = 1e-5;
@@ -52,6 +53,30 @@ describe('gradients match central finite differences', () => {
     it(`${kind}: qutrit ⊗ qubit with α close to 1`, () => {
       const problem = randomInstrumentProblem(3, 2, [4, 4, 3], [2, 2, 3], [0, 0.1, 0], seededRandom(9));
       checkGradient(problem, kind, 1.1, 303);
+    });
+  }
+
+  // A state without full rank (the optimiser's iterates on a face with no full-rank feasible state): the gradient the
+  // optimiser reads (assumeFullRank) must be finite, and along directions inside the state's support it must give the
+  // derivative of F — the central difference of values computed by the other path (F restricted to the support).
+  // Before, the Petz kinds' gradient was NaN there and sandwiched-up threw (0·∞ on the kernel).
+  // (Von Neumann keeps ln 0 = −∞ on an exact kernel: its iterates carry rounding-level eigenvalues there instead.)
+  for (const kind of ['petz-up', 'petz-down', 'sandwiched-up'] as EntropyKind[]) {
+    it(`${kind}: a rank-2 state of a 6-dimensional space, directions inside its support`, () => {
+      const rng = seededRandom(17);
+      const problem = randomInstrumentProblem(3, 2, [4, 3], [2, 3], [0.1, 0], rng);
+      const v = randomIsometry(6, 2, rng);
+      const rho = multiplyAdjointRight(multiply(v, randomDensity(2, rng)), v);
+      const objective = createObjective(problem, { kind, alpha: 1.5 }, TIGHT_REFERENCE);
+      const gradient = objective.evaluate(rho, { assumeFullRank: true }).gradient as ComplexMatrix;
+      for (let k = 0; k < gradient.re.length; k++) expect(Number.isFinite(gradient.re[k]) && Number.isFinite(gradient.im[k])).toBe(true);
+      for (let trial = 0; trial < 3; trial++) {
+        const direction = multiplyAdjointRight(multiply(v, randomHermitian(2, rng)), v);
+        const value = (t: number) => objective.evaluate(shifted(rho, direction, t), { withGradient: false }).value;
+        const finite = (value(STEP) - value(-STEP)) / (2 * STEP);
+        const analytic = traceProductReal(gradient, direction);
+        expect(Math.abs(analytic - finite)).toBeLessThanOrEqual(1e-6 * Math.max(Math.abs(finite), frobeniusNorm(gradient) * frobeniusNorm(direction)));
+      }
     });
   }
 
