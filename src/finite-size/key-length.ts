@@ -189,8 +189,7 @@ export async function keyLength(
     gapTolerance: options.gapTolerance ?? KEY_LENGTH_DEFAULTS.gapTolerance,
     maxIterations: KEY_LENGTH_DEFAULTS.maxIterations,
   };
-  // Bare α comparisons skip the rank-manifold Newton steps (their Hessians are costly and only the bound counts);
-  // the chosen point is solved once more with them and a larger cap (docs/finite-size.md §5).
+  // The chosen point is solved once more with a larger cap (docs/finite-size.md §5).
   const finalSettings: Partial<SolverSettings> = { ...settings, maxIterations: KEY_LENGTH_DEFAULTS.finalMaxIterations };
   const fixedCost = (alpha: number) =>
     errorCorrectionBits +

@@ -106,8 +106,8 @@ export function pointOf(context: SearchContext, single: SingleRoundValue): Score
 }
 
 /**
- * The search's best point solved once more with `settings` (the search's own solves skip the costly steps that
- * only tighten a bound), warm-started where it stopped; the higher of the two certified values is kept.
+ * The search's best point solved once more with `settings` (a larger iteration cap), warm-started where it stopped;
+ * the higher of the two certified values is kept.
  */
 export async function finalSolve(context: SearchContext, state: SearchState, point: ScorePoint, settings: Partial<SolverSettings>): Promise<ScorePoint> {
   const again = await evaluate(context, state, point.alpha, point.scores, point.single.finalState, settings);

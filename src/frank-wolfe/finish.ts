@@ -84,11 +84,7 @@ export function assembleResult(setup: SolverSetup, state: SolverState): SolveRes
       certificate = {
         inputHash: base.inputHash,
         solverVersion: SOLVER_VERSION,
-        settings: {
-          gapTolerance: settings.gapTolerance,
-          maxIterations: settings.maxIterations,
-          ...(settings.rankManifoldSteps ? {} : { rankManifoldSteps: false as const }),
-        },
+        settings: { gapTolerance: settings.gapTolerance, maxIterations: settings.maxIterations },
         entropy: base.entropy,
         alpha: base.alpha,
         ...stored,

@@ -197,8 +197,7 @@ function faceNewtonMove(setup: SolverSetup, state: SolverState, multipliers: Mul
   // leaves, when the face was wrong); they stop once the predicted decrease is far below the requested gap.
   const options = { ...DEFAULT_FACE_NEWTON, stopDecrement: FACE_NEWTON_SCHEDULE.converged * setup.settings.gapTolerance };
   const args = [state.x, state.evaluation, setup.restricted.constraints, held, evaluate, options] as const;
-  const manifold = setup.settings.rankManifoldSteps && state.oracleCalls >= FACE_NEWTON_SCHEDULE.firstManifoldOracleCall;
-  const onManifold = manifold ? rankManifoldStep(...args) : null;
+  const onManifold = state.oracleCalls >= FACE_NEWTON_SCHEDULE.firstManifoldOracleCall ? rankManifoldStep(...args) : null;
   // Sides a manifold step ran into stay candidates for the next attempt (the multipliers may not weight them yet).
   state.manifoldHeld = onManifold?.holding ?? state.manifoldHeld;
   const moved = onManifold ?? faceNewtonStep(...args);

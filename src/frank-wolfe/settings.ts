@@ -6,12 +6,6 @@ export interface SolverSettings {
   gapTolerance: number;
   maxIterations: number;
   timeLimitMs: number;
-  /**
-   * Newton steps on the rank-r states (rotating the support) from the tenth oracle call. They certify rotating-support
-   * optima but cost a forward-difference Hessian each; callers that only rank candidates (iteration-capped search
-   * solves) switch them off. The bound is valid either way; only how close it gets within the limits changes.
-   */
-  rankManifoldSteps: boolean;
 }
 
 export interface SolveControl {
@@ -29,16 +23,15 @@ export const DEFAULT_SETTINGS: Readonly<SolverSettings> = Object.freeze({
   gapTolerance: 1e-6,
   maxIterations: 20000,
   timeLimitMs: 120000,
-  rankManifoldSteps: true,
 });
 
 /** Fills defaults and range-checks every field; errors name the field. */
 export function resolveSolverSettings(partial: Partial<SolverSettings> = {}, path = 'settings'): SolverSettings {
   const settings: SolverSettings = { ...DEFAULT_SETTINGS };
   for (const [key, value] of Object.entries(partial)) {
-    if (value !== undefined && value !== null) (settings as unknown as Record<string, unknown>)[key] = value;
+    if (value !== undefined && value !== null) (settings as unknown as Record<string, number>)[key] = value as number;
   }
-  const { gapTolerance, maxIterations, timeLimitMs, rankManifoldSteps } = settings;
+  const { gapTolerance, maxIterations, timeLimitMs } = settings;
   if (typeof gapTolerance !== 'number' || !(gapTolerance >= 1e-12 && gapTolerance <= 1)) {
     throw new SettingsError(`${path}.gapTolerance`, `must be a number in [1e-12, 1], got ${String(gapTolerance)}`);
   }
@@ -47,9 +40,6 @@ export function resolveSolverSettings(partial: Partial<SolverSettings> = {}, pat
   }
   if (typeof timeLimitMs !== 'number' || !(timeLimitMs > 0 && timeLimitMs <= 86_400_000)) {
     throw new SettingsError(`${path}.timeLimitMs`, `must be a number of milliseconds in (0, 86400000], got ${String(timeLimitMs)}`);
-  }
-  if (typeof rankManifoldSteps !== 'boolean') {
-    throw new SettingsError(`${path}.rankManifoldSteps`, `must be true or false, got ${String(rankManifoldSteps)}`);
   }
   return settings;
 }

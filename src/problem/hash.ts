@@ -6,8 +6,7 @@
 //   "constraints" count, then per constraint (in order): matrix, lower, upper (an absent side is "none");
 //   "branches" count, then per branch (in order): "kraus" count, matrices; "keyProjectors" count, matrices; score;
 //   "entropy" kind (string); "alpha" double, or "null" for von Neumann; "gapTolerance" double;
-//   "maxIterations" double; only when the solver's rank-manifold steps were switched off, "rankManifoldSteps" then
-//   "false" (so every hash of a default solve is unchanged); "solverVersion" string.
+//   "maxIterations" double; "solverVersion" string.
 // A matrix is "matrix" rows cols, then one token of 8·2·rows·cols raw bytes: the big-endian binary64 bits of the
 // rows·cols real parts, then of the rows·cols imaginary parts (row-major, −0 written as +0).
 // Every double is the 16 lower-case hex digits of its IEEE-754 binary64 bits, big-endian, with −0 written as +0,
@@ -23,8 +22,6 @@ import type { EntropyRequest, Problem } from './model.js';
 export interface HashedSettings {
   gapTolerance: number;
   maxIterations: number;
-  /** false when the solve skipped its rank-manifold steps (a looser result may come out within the same caps). */
-  rankManifoldSteps?: boolean;
 }
 
 export const INPUT_HASH_VERSION = 'renyi-bound/input-hash/v2';
@@ -138,10 +135,6 @@ export function inputHash(
   w.double(settings.gapTolerance);
   w.token('maxIterations');
   w.double(settings.maxIterations);
-  if (settings.rankManifoldSteps === false) {
-    w.token('rankManifoldSteps');
-    w.token('false');
-  }
   w.token('solverVersion');
   w.string(solverVersion);
   return w.digest();

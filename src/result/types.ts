@@ -24,7 +24,7 @@ export interface Certificate {
   inputHash: string;
   solverVersion: string;
   /** The result-relevant settings that enter the input hash. */
-  settings: { gapTolerance: number; maxIterations: number; rankManifoldSteps?: false };
+  settings: { gapTolerance: number; maxIterations: number };
   entropy: string;
   alpha: number | null;
   /** Full-rank linearization point ρ' on H_A ⊗ H_B. */

@@ -27,9 +27,4 @@ describe('FieldError', () => {
     expect(thrown).toBeInstanceOf(FieldError);
     expect((thrown as FieldError).field).toMatch(/gapTolerance$/);
   });
-
-  it('names settings.rankManifoldSteps when it is not a boolean', () => {
-    expect(() => resolveSolverSettings({ rankManifoldSteps: 'no' as never })).toThrow(/^settings\.rankManifoldSteps: must be true or false, got no$/);
-    expect(resolveSolverSettings({ rankManifoldSteps: false }).rankManifoldSteps).toBe(false);
-  });
 });
