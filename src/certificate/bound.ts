@@ -234,7 +234,14 @@ export function certificateBreakdown(
     read.reference,
   );
   // On an exposed face: the continuity margin for feasible states off the face (docs/faces.md).
-  const faceMargin = faceContinuityMargin(face, restricted, objective.request.kind, certificate.multipliersLower, certificate.multipliersUpper);
+  const faceMargin = faceContinuityMargin(
+    face,
+    restricted,
+    objective.request.kind,
+    certificate.multipliersLower,
+    certificate.multipliersUpper,
+    breakdown.lowerBound,
+  );
   if (faceMargin === 0) return breakdown;
   return { ...breakdown, margin: breakdown.margin + faceMargin, lowerBound: breakdown.lowerBound - faceMargin };
 }

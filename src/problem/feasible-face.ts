@@ -11,6 +11,7 @@ import { eigh } from '../linear-algebra/eigen.js';
 import { rangeIsometry } from '../linear-algebra/support.js';
 import { BACKWARD_ERROR_CONSTANT, UNIT_ROUNDOFF } from '../linear-algebra/rounding.js';
 import { ValidationError } from './errors.js';
+import { compensatedLeak, isometryDefect } from './exposure-leak.js';
 import type { AnnouncementBranch, LinearConstraint, Problem } from './model.js';
 
 /**
@@ -47,11 +48,14 @@ export interface FeasibleFace {
   /** The exposures applied after the exact reductions (empty when none were given). */
   exposures: FaceExposure[];
   /**
-   * ε with Tr((1 − PP†)ρ) ≤ ε for every feasible ρ: the exposed kernel is exact only up to rounding, so a feasible
-   * state may carry this much weight off the face (docs/faces.md). 0 without exposures; Infinity after more than
-   * one exposure (a second one is checked on the face only, which bounds the leak only to the fourth root).
+   * ε with Tr((1 − Π)ρ) ≤ ε for every feasible ρ, Π the orthogonal projector onto range P: the exposed kernel is
+   * exact only up to rounding, so a feasible state may carry this much weight off the face (docs/faces.md). 0
+   * without exposures; Infinity after more than one exposure (a second one is checked on the face only, which
+   * bounds the leak only to the fourth root).
    */
   leak?: number;
+  /** g ≥ ‖P†P − 1‖₂, recorded with exposures: P is an isometry only to rounding (the continuity margin pays for it). */
+  gramDefect?: number;
   /** ‖Γ_i‖_F on H_A ⊗ H_B per constraint, recorded with exposures (the continuity margin pays for each). */
   constraintNorms?: number[];
 }
@@ -116,11 +120,13 @@ export function feasibleFace(problem: Problem, options: FeasibleFaceOptions = {}
   }
   const exposures = options.exposures ?? [];
   let leak = 0;
+  let gramDefect = 0;
   exposures.forEach((exposure, k) => {
     checkpoint?.();
     const exposed = exposedKernel(problem, isometry, exposure, `exposures[${k}]`);
     isometry = isometry ? multiply(isometry, exposed.keep) : exposed.keep;
     leak = k === 0 ? exposed.leak : Infinity;
+    gramDefect = isometryDefect(isometry);
     reasons.push(`exposing direction ${k} (a positive semidefinite combination of equalities) confines ρ to a face of dimension ${exposed.keep.cols}`);
   });
   return {
@@ -129,6 +135,7 @@ export function feasibleFace(problem: Problem, options: FeasibleFaceOptions = {}
     reasons,
     exposures: exposures.map((e) => ({ multipliers: [...e.multipliers] })),
     leak,
+    ...(exposures.length > 0 ? { gramDefect } : {}),
     ...(exposures.length > 0 ? { constraintNorms: problem.constraints.map((c) => frobeniusNorm(c.operator)) } : {}),
   };
 }
@@ -180,8 +187,13 @@ function exposedKernel(
   for (let k = 0; k < count; k++) kernelSize = Math.max(kernelSize, Math.abs(values[k]));
   const terms = y.filter((v) => v !== 0).length;
   const eta = kernelSize + 2 * EDGE_CONSTANT * n * UNIT_ROUNDOFF * frobeniusNorm(z) + (terms + 1) * UNIT_ROUNDOFF * scale;
-  return { keep: columns(vectors, 0, count), leak: Math.min(1, eta / values[count]) };
+  const keep = columns(vectors, 0, count);
+  const leak = Math.min(1, eta / values[count]);
+  // On the full space the kernel block is also read in double-double, at the data's own rounding (docs/faces.md).
+  const compensated = isometry ? null : compensatedLeak(problem.constraints, y, z, keep);
+  return { keep, leak: compensated === null ? leak : Math.min(leak, compensated) };
 }
+
 
 /** The problem seen on the face: Kraus operators K·P, constraint operators P†ΓP (ρ̃ of size r × r). */
 export function restrictToFace(problem: Problem, face: FeasibleFace): Problem {
@@ -219,10 +231,12 @@ function binaryEntropy(p: number): number {
 /**
  * What a linearization bound computed on an exposed face gives up for feasible states that leave the face
  * (docs/faces.md, "The continuity margin"): with t = √ε + ε/2 ≥ ½‖ρ − ρ̃‖₁ (gentle measurement) for ρ̃ the
- * normalised compression of a feasible ρ onto the face,
- *   Σ_i (y⁺_i + y⁻_i)·‖Γ_i‖_F·2t            (ρ̃ meets each constraint only to ‖Γ_i‖_∞·‖ρ − ρ̃‖₁)
+ * normalised projection of a feasible ρ onto the face, and g' = g/(1 − g) for the isometry's Gram defect g
+ * (ρ̃ = P·X·P† with Tr X within g' of 1),
+ *   Σ_i (y⁺_i + y⁻_i)·‖Γ_i‖_F·(2t + g')     (X/Tr X meets each constraint only to ‖Γ_i‖_∞·‖ρ − P(X/Tr X)P†‖₁)
  *   + 2·(t·log₂(D − 1) + h(t))              (Fannes–Audenaert, for H(ω) and H(Z(ω)) of ω = ⊕_c X_c ⊕ rest)
- *   + 2t·max_c |f(c)|                       (the scores, linear in the branch weights).
+ *   + 2t·max_c |f(c)|                       (the scores, linear in the branch weights)
+ *   + g'·(|bound| + the first line)          (F is homogeneous of degree 1: F(ρ̃) = Tr X·F(P(X/Tr X)P†)).
  * 0 on a face without exposures; Infinity where no margin is derived (Rényi kinds, several exposures, t too large).
  */
 export function faceContinuityMargin(
@@ -231,12 +245,16 @@ export function faceContinuityMargin(
   kind: string,
   multipliersLower: ArrayLike<number>,
   multipliersUpper: ArrayLike<number>,
+  /** The linearization bound on the face before this margin. */
+  bound: number,
 ): number {
   const leak = face.leak ?? 0;
   if (face.exposures.length === 0 || leak === 0) return 0;
   const norms = face.constraintNorms;
-  if (kind !== 'von-neumann' || !Number.isFinite(leak) || !norms) return Infinity;
+  const gram = face.gramDefect;
+  if (kind !== 'von-neumann' || !Number.isFinite(leak) || !norms || gram === undefined || !(gram < 0.5)) return Infinity;
   const t = Math.sqrt(leak) + leak / 2;
+  const renormalised = gram / (1 - gram);
   // D: the dimension of ω = ⊕_c K_c ρ K_c† ⊕ Tr((1 − Σ K†K)ρ), which ρ ↦ ω maps trace-preservingly.
   let outputs = 1;
   let largestScore = 0;
@@ -245,7 +263,9 @@ export function faceContinuityMargin(
     largestScore = Math.max(largestScore, Math.abs(branch.score));
   }
   if (!(t <= 1 - 1 / outputs)) return Infinity;
-  let constraintShift = 0;
-  for (let i = 0; i < norms.length; i++) constraintShift += (multipliersLower[i] + multipliersUpper[i]) * norms[i];
-  return constraintShift * 2 * t + 2 * (t * Math.log2(Math.max(outputs - 1, 1)) + binaryEntropy(t)) + 2 * t * largestScore;
+  let constraintWeight = 0;
+  for (let i = 0; i < norms.length; i++) constraintWeight += (multipliersLower[i] + multipliersUpper[i]) * norms[i];
+  const constraintShift = constraintWeight * (2 * t + renormalised);
+  const continuity = 2 * (t * Math.log2(Math.max(outputs - 1, 1)) + binaryEntropy(t)) + 2 * t * largestScore;
+  return constraintShift + continuity + renormalised * (Math.abs(bound) + constraintShift);
 }

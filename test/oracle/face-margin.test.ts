@@ -34,7 +34,7 @@ function pinch(rho: ComplexMatrix, k: number): ComplexMatrix {
 function syntheticFace(leak: number): { face: FeasibleFace; problem: Problem } {
   const isometry = new ComplexMatrix(4, 3);
   for (let i = 0; i < 3; i++) isometry.re[i * 3 + i] = 1;
-  const face: FeasibleFace = { isometry, dimension: 3, reasons: [], exposures: [{ multipliers: [1] }], leak, constraintNorms: [2] };
+  const face: FeasibleFace = { isometry, dimension: 3, reasons: [], exposures: [{ multipliers: [1] }], leak, gramDefect: 0, constraintNorms: [2] };
   const problem = {
     dimensionA: 2,
     dimensionB: 2,
@@ -49,7 +49,7 @@ describe('continuity margin on an exposed face', () => {
     const leak = 1e-6;
     const { face, problem } = syntheticFace(leak);
     // With zero multipliers only the Fannes–Audenaert part remains: 2·(t·log2(D − 1) + h(t)), D = 4 + 1.
-    const margin = faceContinuityMargin(face, problem, 'von-neumann', [0], [0]);
+    const margin = faceContinuityMargin(face, problem, 'von-neumann', [0], [0], 0);
     const t = Math.sqrt(leak) + leak / 2;
     const h = -t * Math.log2(t) - (1 - t) * Math.log2(1 - t);
     expect(margin).toBeCloseTo(2 * (t * Math.log2(4) + h), 15);
@@ -69,11 +69,15 @@ describe('continuity margin on an exposed face', () => {
   it('charges the constraint shift Σ(y⁺ + y⁻)‖Γ‖_F·2t, is 0 without exposures and Infinity where nothing is derived', () => {
     const { face, problem } = syntheticFace(1e-10);
     const t = 1e-5 + 0.5e-10;
-    const base = faceContinuityMargin(face, problem, 'von-neumann', [0], [0]);
-    expect(faceContinuityMargin(face, problem, 'von-neumann', [3], [0]) - base).toBeCloseTo(3 * 2 * 2 * t, 15);
-    expect(faceContinuityMargin({ ...face, exposures: [], leak: 0 }, problem, 'von-neumann', [3], [0])).toBe(0);
-    expect(faceContinuityMargin(face, problem, 'petz-up', [0], [0])).toBe(Infinity);
-    expect(faceContinuityMargin({ ...face, leak: Infinity }, problem, 'von-neumann', [0], [0])).toBe(Infinity);
+    const base = faceContinuityMargin(face, problem, 'von-neumann', [0], [0], 0);
+    expect(faceContinuityMargin(face, problem, 'von-neumann', [3], [0], 0) - base).toBeCloseTo(3 * 2 * 2 * t, 15);
+    expect(faceContinuityMargin({ ...face, exposures: [], leak: 0 }, problem, 'von-neumann', [3], [0], 0)).toBe(0);
+    expect(faceContinuityMargin(face, problem, 'petz-up', [0], [0], 0)).toBe(Infinity);
+    expect(faceContinuityMargin({ ...face, leak: Infinity }, problem, 'von-neumann', [0], [0], 0)).toBe(Infinity);
+    // An isometry orthonormal only to g: the bound is scaled by Tr X ∈ [1/(1 + g), 1/(1 − g)] (homogeneity of F).
+    const g = 1e-3;
+    expect(faceContinuityMargin({ ...face, gramDefect: g }, problem, 'von-neumann', [0], [0], -2) - base).toBeCloseTo((g / (1 - g)) * 2, 12);
+    expect(faceContinuityMargin({ ...face, gramDefect: undefined }, problem, 'von-neumann', [0], [0], 0)).toBe(Infinity);
   });
 });
 
@@ -132,11 +136,13 @@ describe('d16#2 of the random suite, von Neumann: the face is used where its con
     expect(feasibleFace(model.problem, { exposures: result.certificate!.faceExposures }).dimension).toBe(model.traits.truthRank);
   });
 
-  it('at gap 1e-6 the face cannot certify (its margin alone is 6.7e-5), so the full space gives the bound', () => {
+  it('at gap 1e-6 the face keeps the smaller gap: its margin is 2.3e-6 with the leak read in double-double (1.7e-4 before)', () => {
     const result = solve(model.problem, request, { gapTolerance: 1e-6, timeLimitMs: 3000 });
-    expect(result.certificate?.faceExposures).toBeUndefined();
+    expect(result.certificate?.faceExposures?.length).toBe(1);
     const report = verifyResult(model.problem, request, result);
     expect(report.valid, report.reason).toBe(true);
     expect(result.certifiedLowerBound as number).toBeLessThanOrEqual(atTruth + 1e-9);
+    // The eigensolver-scale leak (1.7e-12) gave a margin of 1.7e-4; the double-double leak (2.7e-16) gives 2.3e-6.
+    expect(result.gap as number).toBeLessThan(1e-5);
   });
 });
