@@ -294,4 +294,31 @@ describe('step limits', () => {
     for (let k = 0; k < 9; k++) expect(d.re[k]).toBeCloseTo(reference.re[k], 12);
     expect(traceProductReal(g1, d)).toBeCloseTo(0, 12);
   });
+
+  it('alongActiveIntervals projects off dependent blocking operators as mathjs pinv does', () => {
+    // Four operators blocking at once, the fourth the sum of the first two: the Gram matrix is singular, and the
+    // minimum-norm least-squares solve must still give the projection onto span{g}⊥ (reference: A·A⁺ from mathjs).
+    const x = randomDensity(3, rng);
+    const g = [randomHermitian(3, rng), randomHermitian(3, rng), randomHermitian(3, rng)];
+    const sum = g[0].clone();
+    addScaledInPlace(sum, g[1], 1);
+    g.push(sum);
+    const direction = randomHermitian(3, rng);
+    for (const op of g) addScaledInPlace(direction, op, 3);
+    const problem = {
+      dimensionA: 3,
+      dimensionB: 1,
+      constraints: g.map((op, i) => ({ label: `g${i}`, operator: op, lower: -10, upper: traceProductReal(op, x) })),
+      branches: [],
+    } as unknown as Problem;
+    for (const op of g) expect(traceProductReal(op, direction)).toBeGreaterThan(0);
+    const d = alongActiveIntervals(problem, x, direction, g, 1e-3);
+    // Real coordinates (Re, Im of the 9 entries) of each operator as the columns of A; P = 1 − A·pinv(A).
+    const coordinates = (m: ComplexMatrix) => [...Array.from(m.re), ...Array.from(m.im)];
+    const a = math.transpose(math.matrix(g.map(coordinates)));
+    const projector = math.subtract(math.identity(18), math.multiply(a, math.pinv(a))) as math.Matrix;
+    const reference = math.multiply(projector, coordinates(direction)) as math.Matrix;
+    const ours = coordinates(d);
+    (reference.toArray() as number[]).forEach((v, k) => expect(ours[k]).toBeCloseTo(v, 10));
+  });
 });
