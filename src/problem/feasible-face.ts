@@ -58,6 +58,8 @@ export interface FeasibleFace {
   gramDefect?: number;
   /** ‖Γ_i‖_F on H_A ⊗ H_B per constraint, recorded with exposures (the continuity margin pays for each). */
   constraintNorms?: number[];
+  /** The constraint operators on H_A ⊗ H_B, recorded with exposures (the margin's shift uses their combination). */
+  constraintOperators?: ComplexMatrix[];
 }
 
 export interface FeasibleFaceOptions {
@@ -136,7 +138,9 @@ export function feasibleFace(problem: Problem, options: FeasibleFaceOptions = {}
     exposures: exposures.map((e) => ({ multipliers: [...e.multipliers] })),
     leak,
     ...(exposures.length > 0 ? { gramDefect } : {}),
-    ...(exposures.length > 0 ? { constraintNorms: problem.constraints.map((c) => frobeniusNorm(c.operator)) } : {}),
+    ...(exposures.length > 0
+      ? { constraintNorms: problem.constraints.map((c) => frobeniusNorm(c.operator)), constraintOperators: problem.constraints.map((c) => c.operator) }
+      : {}),
   };
 }
 
@@ -265,7 +269,31 @@ export function faceContinuityMargin(
   if (!(t <= 1 - 1 / outputs)) return Infinity;
   let constraintWeight = 0;
   for (let i = 0; i < norms.length; i++) constraintWeight += (multipliersLower[i] + multipliersUpper[i]) * norms[i];
+  // |Σ_i (y⁺_i − y⁻_i)·Tr Γ_i(ρ − σ)| ≤ ‖Σ_i (y⁺_i − y⁻_i)Γ_i‖_F·‖ρ − σ‖₁ too: the combination often cancels.
+  if (face.constraintOperators) constraintWeight = Math.min(constraintWeight, combinationNorm(face.constraintOperators, multipliersLower, multipliersUpper, constraintWeight));
   const constraintShift = constraintWeight * (2 * t + renormalised);
   const continuity = 2 * (t * Math.log2(Math.max(outputs - 1, 1)) + binaryEntropy(t)) + 2 * t * largestScore;
   return constraintShift + continuity + renormalised * (Math.abs(bound) + constraintShift);
+}
+
+/** An upper bound on ‖Σ_i (y⁺_i − y⁻_i)·Γ_i‖_F: the sum in doubles plus its rounding, (terms + 1)·u·Σ|y|‖Γ‖ per entry. */
+function combinationNorm(
+  operators: readonly ComplexMatrix[],
+  multipliersLower: ArrayLike<number>,
+  multipliersUpper: ArrayLike<number>,
+  weight: number,
+): number {
+  const n = operators[0]?.rows ?? 0;
+  const sum = ComplexMatrix.zeros(n);
+  let terms = 0;
+  operators.forEach((op, i) => {
+    const y = multipliersLower[i] - multipliersUpper[i];
+    if (y === 0) return;
+    terms++;
+    for (let t = 0; t < n * n; t++) {
+      sum.re[t] += y * op.re[t];
+      sum.im[t] += y * op.im[t];
+    }
+  });
+  return frobeniusNorm(sum) * (1 + 2 * n * UNIT_ROUNDOFF) + 2 * n * (terms + 1) * UNIT_ROUNDOFF * weight;
 }

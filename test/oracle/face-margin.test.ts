@@ -74,6 +74,13 @@ describe('continuity margin on an exposed face', () => {
     expect(faceContinuityMargin({ ...face, exposures: [], leak: 0 }, problem, 'von-neumann', [3], [0], 0)).toBe(0);
     expect(faceContinuityMargin(face, problem, 'petz-up', [0], [0], 0)).toBe(Infinity);
     expect(faceContinuityMargin({ ...face, leak: Infinity }, problem, 'von-neumann', [0], [0], 0)).toBe(Infinity);
+    // Multipliers whose combination cancels (the same operator with y⁺ = y⁻ = 3) shift by ‖Σ(y⁺ − y⁻)Γ‖_F = 0 plus
+    // its rounding allowance, not by Σ(y⁺ + y⁻)‖Γ‖_F.
+    const twice = { ...face, constraintNorms: [2, 2], constraintOperators: [ComplexMatrix.identity(4), ComplexMatrix.identity(4)] };
+    const cancelled = faceContinuityMargin(twice, problem, 'von-neumann', [3, 0], [0, 3], 0) - base;
+    expect(cancelled).toBeGreaterThanOrEqual(0);
+    expect(cancelled).toBeLessThan(1e-18);
+    expect(faceContinuityMargin({ ...twice, constraintOperators: undefined }, problem, 'von-neumann', [3, 0], [0, 3], 0) - base).toBeCloseTo(12 * 2 * t, 15);
     // An isometry orthonormal only to g: the bound is scaled by Tr X ∈ [1/(1 + g), 1/(1 − g)] (homogeneity of F).
     const g = 1e-3;
     expect(faceContinuityMargin({ ...face, gramDefect: g }, problem, 'von-neumann', [0], [0], -2) - base).toBeCloseTo((g / (1 - g)) * 2, 12);
@@ -136,13 +143,13 @@ describe('d16#2 of the random suite, von Neumann: the face is used where its con
     expect(feasibleFace(model.problem, { exposures: result.certificate!.faceExposures }).dimension).toBe(model.traits.truthRank);
   });
 
-  it('at gap 1e-6 the face keeps the smaller gap: its margin is 2.3e-6 with the leak read in double-double (1.7e-4 before)', () => {
+  it('at gap 1e-6 the face keeps the smaller gap: its margin is 1.5e-6 with the leak read in double-double (1.7e-4 before)', () => {
     const result = solve(model.problem, request, { gapTolerance: 1e-6, timeLimitMs: 3000 });
     expect(result.certificate?.faceExposures?.length).toBe(1);
     const report = verifyResult(model.problem, request, result);
     expect(report.valid, report.reason).toBe(true);
     expect(result.certifiedLowerBound as number).toBeLessThanOrEqual(atTruth + 1e-9);
-    // The eigensolver-scale leak (1.7e-12) gave a margin of 1.7e-4; the double-double leak (2.7e-16) gives 2.3e-6.
+    // The eigensolver-scale leak (1.7e-12) gave a margin of 1.7e-4; the double-double leak (2.7e-16) gives 1.5e-6.
     expect(result.gap as number).toBeLessThan(1e-5);
   });
 });
