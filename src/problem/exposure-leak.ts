@@ -1,11 +1,20 @@
 // How far off an exposed face a feasible state can be, bounded in double-double arithmetic (docs/faces.md,
 // "The leak in double-double"): the exposing combination's kernel block is read at about u² instead of the
 // eigensolver's backward-error scale c·n·u.
-import { ddAddDd, ddMultDouble2, twoProduct } from 'double-double';
+import { createRequire } from 'node:module';
+import type * as DoubleDouble from 'double-double';
 import { ComplexMatrix, frobeniusNorm, multiplyAdjointLeft } from '../linear-algebra/complex-matrix.js';
 import { eigvalsh } from '../linear-algebra/eigen.js';
 import { BACKWARD_ERROR_CONSTANT, UNIT_ROUNDOFF } from '../linear-algebra/rounding.js';
 import type { LinearConstraint } from './model.js';
+
+let doubleDouble: typeof DoubleDouble | undefined;
+
+/** The package, required on the first exposure checked: commands that never meet a face do not load it at start. */
+function arithmetic(): typeof DoubleDouble {
+  doubleDouble ??= createRequire(import.meta.url)('double-double') as typeof DoubleDouble;
+  return doubleDouble;
+}
 
 /** A double-double number as the library stores it: [low, high]. */
 type Dd = number[];
@@ -27,6 +36,7 @@ export function compensatedLeak(
   computed: ComplexMatrix,
   kernel: ComplexMatrix,
 ): number | null {
+  const { ddAddDd, ddMultDouble2, twoProduct } = arithmetic();
   const n = computed.rows;
   const k = kernel.cols;
   const u = UNIT_ROUNDOFF;
