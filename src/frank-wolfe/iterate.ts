@@ -255,35 +255,11 @@ function pairwiseStep(setup: SolverSetup, state: SolverState, vertex: ComplexMat
   const slope = traceProductReal(gradient, direction);
   if (!(slope < 0) || !Number.isFinite(slope)) return;
   const maxStep = stepToEigenvalueFloor(state.x, iterateEigen(state), direction, TUNING.eigenvalueFloor, away.weight);
-  if (maxStep < BLOCKED_PAIRWISE_SHARE * away.weight && frankWolfeStepBelowFloor(setup, state, toward)) return;
   const moved = lineStep(setup, state, direction, slope, maxStep);
   if (!moved) return;
   state.atoms.pairwiseStep(away.index, toward, moved.step);
   state.x = moved.point;
   state.evaluation = moved.evaluation;
-}
-
-/** A pairwise step held to less than this share of its away atom's weight is blocked by the eigenvalue floor. */
-const BLOCKED_PAIRWISE_SHARE = 1e-3;
-
-/**
- * Where the iterate sits at the eigenvalue floor and the pairwise direction would lower it, the classic step
- * x + t·(v − x) toward the vertex may take the smallest eigenvalues down to half their value: without it the
- * iterate stays put at a boundary optimum whose Frank–Wolfe gap is still large (d8#1, von Neumann, measured:
- * hundreds of iterations at the same point, docs/convergence.md "Blocked at the floor").
- */
-function frankWolfeStepBelowFloor(setup: SolverSetup, state: SolverState, toward: ComplexMatrix): boolean {
-  const direction = subtract(toward, state.x);
-  const slope = traceProductReal(state.evaluation.gradient, direction);
-  if (!(slope < 0) || !Number.isFinite(slope)) return false;
-  const eigen = iterateEigen(state);
-  const maxStep = stepToEigenvalueFloor(state.x, eigen, direction, 0.5 * Math.min(TUNING.eigenvalueFloor, eigen.values[0]), 1);
-  const moved = lineStep(setup, state, direction, slope, maxStep);
-  if (!moved) return false;
-  state.atoms.reset(moved.point);
-  state.x = moved.point;
-  state.evaluation = moved.evaluation;
-  return true;
 }
 
 /** Exact line search along x + t·d on [0, maxStep]; null when F does not decrease. */

@@ -1,15 +1,15 @@
 // How far a step may go: the eigenvalue floor of the cone, the room left in interval constraints, and sliding
 // along the intervals a step pushes against.
+import { Matrix, solve as solveLinear } from '../linear-algebra/ml-matrix.js';
 import {
   addScaledInPlace,
-  ComplexMatrix as Hermitian,
   largestEntry,
   multiply,
   multiplyAdjointLeft,
   traceProductReal,
   type ComplexMatrix,
 } from '../linear-algebra/complex-matrix.js';
-import { eigh, eigvalsh, type HermitianEigen } from '../linear-algebra/eigen.js';
+import { eigvalsh, type HermitianEigen } from '../linear-algebra/eigen.js';
 import type { LinearConstraint, Problem } from '../problem/model.js';
 
 /** Halvings of the estimated step before it is given up (2^-60 is below every step the line search can resolve). */
@@ -117,40 +117,18 @@ export function alongActiveIntervals(
     });
     if (!added) break;
     const m = active.length;
-    const gram = Hermitian.zeros(m);
+    const gram = new Matrix(m, m);
     for (let i = 0; i < m; i++) {
-      for (let j = 0; j <= i; j++) gram.re[i * m + j] = gram.re[j * m + i] = products[i][j];
+      for (let j = 0; j <= i; j++) {
+        gram.set(i, j, products[i][j]);
+        gram.set(j, i, products[i][j]);
+      }
     }
-    const coefficients = gramLeastSquares(gram, rhs);
+    // The SVD's minimum-norm solution: G is singular when blocking tangents are dependent (docs/convergence.md, "Sliding").
+    const coefficients = solveLinear(gram, Matrix.columnVector(rhs), true).getColumn(0);
     d = direction.clone();
     active.forEach((a, i) => addScaledInPlace(d, a, -coefficients[i]));
   }
   return d;
-}
-
-/**
- * The minimum-norm least-squares solution of G·c = r for a positive semidefinite Gram matrix G, with the
- * pseudo-inverse cut-off of an SVD solve (eigenvalues up to u·m·λ_max count as zero): the project's Hermitian
- * eigensolver on m ≤ d² − 1 rows costs a fraction of a general SVD (measured: docs/convergence.md, "Sliding").
- */
-function gramLeastSquares(gram: ComplexMatrix, rhs: readonly number[]): number[] {
-  const m = rhs.length;
-  const { values, vectors } = eigh(gram);
-  const cutoff = (Number.EPSILON / 2) * m * Math.max(Math.abs(values[0]), Math.abs(values[m - 1]));
-  const solution = new Array<number>(m).fill(0);
-  for (let k = 0; k < m; k++) {
-    if (Math.abs(values[k]) <= cutoff) continue;
-    // The eigenvectors of a real symmetric G may carry a complex phase; v·v† is real all the same.
-    let projectionRe = 0;
-    let projectionIm = 0;
-    for (let i = 0; i < m; i++) {
-      projectionRe += vectors.re[i * m + k] * rhs[i];
-      projectionIm -= vectors.im[i * m + k] * rhs[i];
-    }
-    for (let i = 0; i < m; i++) {
-      solution[i] += (vectors.re[i * m + k] * projectionRe - vectors.im[i * m + k] * projectionIm) / values[k];
-    }
-  }
-  return solution;
 }
 
