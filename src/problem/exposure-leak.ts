@@ -3,7 +3,7 @@
 // eigensolver's backward-error scale c·n·u.
 import { createRequire } from 'node:module';
 import type * as DoubleDouble from 'double-double';
-import { ComplexMatrix, frobeniusNorm, multiplyAdjointLeft } from '../linear-algebra/complex-matrix.js';
+import { addScaledInPlace, ComplexMatrix, frobeniusNorm, multiplyAdjointLeft, multiplyAdjointRight } from '../linear-algebra/complex-matrix.js';
 import { eigvalsh } from '../linear-algebra/eigen.js';
 import { BACKWARD_ERROR_CONSTANT, UNIT_ROUNDOFF } from '../linear-algebra/rounding.js';
 import type { LinearConstraint } from './model.js';
@@ -126,18 +126,7 @@ export function compensatedLeak(
   // λ ≤ min of x†Zx over unit x ⊥ range V: λ_min(Ẑ + γVV†), less its entrywise error and eigvalsh's backward error.
   const shifted = computed.clone();
   const gamma = Math.max(frobeniusNorm(computed), Number.MIN_VALUE);
-  for (let a = 0; a < n; a++) {
-    for (let b = 0; b < n; b++) {
-      let re = 0;
-      let im = 0;
-      for (let j = 0; j < k; j++) {
-        re += kernel.re[a * k + j] * kernel.re[b * k + j] + kernel.im[a * k + j] * kernel.im[b * k + j];
-        im += kernel.im[a * k + j] * kernel.re[b * k + j] - kernel.re[a * k + j] * kernel.im[b * k + j];
-      }
-      shifted.re[a * n + b] += gamma * re;
-      shifted.im[a * n + b] += gamma * im;
-    }
-  }
+  addScaledInPlace(shifted, multiplyAdjointRight(kernel, kernel), gamma);
   // Entrywise (|Re| + |Im|) error of the computed Ẑ + γVV† against Z + γVV†: Ẑ against the double-double Z, that Z's
   // own error, the k-term products of V and the final additions.
   let zHatError = 0;
