@@ -108,8 +108,7 @@ export function alongActiveIntervals(
       const tangent = tangents[i];
       if (tangent === null || active.includes(tangent)) return;
       if (intervalRoom(c, x, d) < shortestStep) {
-        products.push(active.map((a) => traceProductReal(a, tangent)));
-        products[active.length].push(traceProductReal(tangent, tangent));
+        products.push([...active.map((a) => traceProductReal(a, tangent)), traceProductReal(tangent, tangent)]);
         rhs.push(traceProductReal(tangent, direction));
         active.push(tangent);
         added = true;
@@ -131,4 +130,3 @@ export function alongActiveIntervals(
   }
   return d;
 }
-

@@ -44,6 +44,7 @@ export function spectralFunctionInto(out: ComplexMatrix, offset: number, eig: He
   // f(A) = (V·diag(f))·V†, Hermitian, so only its lower triangle is computed.
   lowerTimesAdjointInto(out, offset, vectors, vectors, fv);
 }
+
 /**
  * The first divided differences Γ_ij = (f(λ_i) − f(λ_j))/(λ_i − λ_j), n×n row-major, symmetric.
  * Γ_ii = f'(λ_i). For |λ_i − λ_j| ≤ DIVIDED_DIFFERENCE_RELATIVE_GAP·max(|λ_i|, |λ_j|) the quotient

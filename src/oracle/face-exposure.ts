@@ -68,15 +68,17 @@ export function exposeFeasibleFace(problem: Problem, options: ExposeOptions = {}
     const { feasible, face } = current;
     // A point from a run that stalled on the missing interior still shows the face; the exposure is checked anyway.
     if (feasible.status === 'INFEASIBLE' || !feasible.point) return current;
-    const multipliers = exposingMultipliers(restrictToFace(problem, face).constraints, feasible.point, checkpoint);
+    const restated = restrictToFace(problem, face).constraints;
+    const multipliers = exposingMultipliers(restated, feasible.point, checkpoint);
     if (!multipliers) return current;
     // Sparse exposures first (their kernels are not tilted by the noise on the small weights): among those that
     // feasibleFace accepts and whose face's centre meets the original constraints, the one whose centre meets them
     // best, stopping at rounding; otherwise the exposure as found.
-    const restated = restrictToFace(problem, face).constraints;
+    const directions = equalityDirections(restated, feasible.point.rows);
+    const rank = feasible.point.rows - vanishingEigenvalues(eigvalsh(feasible.point));
     let sparse: { multipliers: number[]; onFace: ExposedFace; violation: number } | null = null;
     for (const support of SPARSE_SUPPORTS) {
-      const candidate = sparseExposure(restated, multipliers, feasible.point, support, checkpoint);
+      const candidate = sparseExposure(restated.length, directions, multipliers, rank, support, checkpoint);
       if (candidate === 'not smaller') break;
       const sparseFace = candidate && tryExposure(problem, exposures, candidate, checkpoint);
       if (!candidate || !sparseFace) continue;
@@ -189,25 +191,25 @@ function vanishingEigenvalues(values: Float64Array): number {
  * their rounding, so no refinement from Z alone sees it (measured on d16#2: weights of 2e-8 to 5e-7 of the largest,
  * a tilt of 1.5e-6). Where an exposure on few equalities exists, dropping the rest removes that noise, and on the
  * kept directions any remaining error moves Z's kernel block at first order, which the refinement removes.
+ * `directions` and the centre's `rank` are the caller's, computed once for every support tried.
  */
-export function sparseExposure(
-  constraints: readonly LinearConstraint[],
+function sparseExposure(
+  constraintCount: number,
+  directions: readonly EqualityDirection[],
   multipliers: readonly number[],
-  centre: ComplexMatrix,
+  rank: number,
   support: number,
   checkpoint?: Checkpoint,
 ): number[] | null | 'not smaller' {
-  const n = centre.rows;
-  const kernel = vanishingEigenvalues(eigvalsh(centre));
-  const nonzero = equalityDirections(constraints, n).filter((d) => multipliers[d.index] !== 0);
+  const nonzero = directions.filter((d) => multipliers[d.index] !== 0);
   if (nonzero.length <= support) return 'not smaller';
   const kept = nonzero
     .map((d) => ({ d, weight: multipliers[d.index] * d.norm }))
     .sort((a, b) => Math.abs(b.weight) - Math.abs(a.weight))
     .slice(0, support);
   const weights = Float64Array.from(kept, (k) => k.weight);
-  refineWeights(kept.map((k) => k.d.matrix), weights, n - kernel, checkpoint);
-  return multipliersFromWeights(constraints.length, kept.map((k) => k.d), weights);
+  refineWeights(kept.map((k) => k.d.matrix), weights, rank, checkpoint);
+  return multipliersFromWeights(constraintCount, kept.map((k) => k.d), weights);
 }
 
 /**

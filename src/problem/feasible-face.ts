@@ -1,4 +1,5 @@
 import {
+  addScaledInPlace,
   ComplexMatrix,
   conjugate,
   conjugateAdjoint,
@@ -56,9 +57,7 @@ export interface FeasibleFace {
   leak?: number;
   /** g ≥ ‖P†P − 1‖₂, recorded with exposures: P is an isometry only to rounding (the continuity margin pays for it). */
   gramDefect?: number;
-  /** ‖Γ_i‖_F on H_A ⊗ H_B per constraint, recorded with exposures (the continuity margin pays for each). */
-  constraintNorms?: number[];
-  /** The constraint operators on H_A ⊗ H_B, recorded with exposures (the margin's shift uses their combination). */
+  /** The constraint operators Γ_i on H_A ⊗ H_B, recorded with exposures (the continuity margin pays for them). */
   constraintOperators?: ComplexMatrix[];
 }
 
@@ -137,10 +136,7 @@ export function feasibleFace(problem: Problem, options: FeasibleFaceOptions = {}
     reasons,
     exposures: exposures.map((e) => ({ multipliers: [...e.multipliers] })),
     leak,
-    ...(exposures.length > 0 ? { gramDefect } : {}),
-    ...(exposures.length > 0
-      ? { constraintNorms: problem.constraints.map((c) => frobeniusNorm(c.operator)), constraintOperators: problem.constraints.map((c) => c.operator) }
-      : {}),
+    ...(exposures.length > 0 ? { gramDefect, constraintOperators: problem.constraints.map((c) => c.operator) } : {}),
   };
 }
 
@@ -198,7 +194,6 @@ function exposedKernel(
   return { keep, leak: compensated === null ? leak : Math.min(leak, compensated) };
 }
 
-
 /** The problem seen on the face: Kraus operators K·P, constraint operators P†ΓP (ρ̃ of size r × r). */
 export function restrictToFace(problem: Problem, face: FeasibleFace): Problem {
   const p = face.isometry;
@@ -254,9 +249,9 @@ export function faceContinuityMargin(
 ): number {
   const leak = face.leak ?? 0;
   if (face.exposures.length === 0 || leak === 0) return 0;
-  const norms = face.constraintNorms;
+  const operators = face.constraintOperators;
   const gram = face.gramDefect;
-  if (kind !== 'von-neumann' || !Number.isFinite(leak) || !norms || gram === undefined || !(gram < 0.5)) return Infinity;
+  if (kind !== 'von-neumann' || !Number.isFinite(leak) || !operators || gram === undefined || !(gram < 0.5)) return Infinity;
   const t = Math.sqrt(leak) + leak / 2;
   const renormalised = gram / (1 - gram);
   // D: the dimension of ω = ⊕_c K_c ρ K_c† ⊕ Tr((1 − Σ K†K)ρ), which ρ ↦ ω maps trace-preservingly.
@@ -267,10 +262,10 @@ export function faceContinuityMargin(
     largestScore = Math.max(largestScore, Math.abs(branch.score));
   }
   if (!(t <= 1 - 1 / outputs)) return Infinity;
-  let constraintWeight = 0;
-  for (let i = 0; i < norms.length; i++) constraintWeight += (multipliersLower[i] + multipliersUpper[i]) * norms[i];
+  let normWeight = 0;
+  operators.forEach((op, i) => (normWeight += (multipliersLower[i] + multipliersUpper[i]) * frobeniusNorm(op)));
   // |Σ_i (y⁺_i − y⁻_i)·Tr Γ_i(ρ − σ)| ≤ ‖Σ_i (y⁺_i − y⁻_i)Γ_i‖_F·‖ρ − σ‖₁ too: the combination often cancels.
-  if (face.constraintOperators) constraintWeight = Math.min(constraintWeight, combinationNorm(face.constraintOperators, multipliersLower, multipliersUpper, constraintWeight));
+  const constraintWeight = Math.min(normWeight, combinationNorm(operators, multipliersLower, multipliersUpper, normWeight));
   const constraintShift = constraintWeight * (2 * t + renormalised);
   const continuity = 2 * (t * Math.log2(Math.max(outputs - 1, 1)) + binaryEntropy(t)) + 2 * t * largestScore;
   return constraintShift + continuity + renormalised * (Math.abs(bound) + constraintShift);
@@ -290,10 +285,7 @@ function combinationNorm(
     const y = multipliersLower[i] - multipliersUpper[i];
     if (y === 0) return;
     terms++;
-    for (let t = 0; t < n * n; t++) {
-      sum.re[t] += y * op.re[t];
-      sum.im[t] += y * op.im[t];
-    }
+    addScaledInPlace(sum, op, y);
   });
   return frobeniusNorm(sum) * (1 + 2 * n * UNIT_ROUNDOFF) + 2 * n * (terms + 1) * UNIT_ROUNDOFF * weight;
 }

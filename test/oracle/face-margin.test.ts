@@ -4,7 +4,7 @@ import { describe, expect, it } from 'vitest';
 import { randomModel } from '../../src/bench/random-models.js';
 import { verifyResult } from '../../src/certificate/verify.js';
 import { solve } from '../../src/frank-wolfe/solve.js';
-import { ComplexMatrix, traceProductReal } from '../../src/linear-algebra/complex-matrix.js';
+import { ComplexMatrix, scale, traceProductReal } from '../../src/linear-algebra/complex-matrix.js';
 import { createObjective } from '../../src/objectives/index.js';
 import { faceContinuityMargin, feasibleFace, type FeasibleFace } from '../../src/problem/feasible-face.js';
 import type { Problem } from '../../src/problem/model.js';
@@ -34,7 +34,7 @@ function pinch(rho: ComplexMatrix, k: number): ComplexMatrix {
 function syntheticFace(leak: number): { face: FeasibleFace; problem: Problem } {
   const isometry = new ComplexMatrix(4, 3);
   for (let i = 0; i < 3; i++) isometry.re[i * 3 + i] = 1;
-  const face: FeasibleFace = { isometry, dimension: 3, reasons: [], exposures: [{ multipliers: [1] }], leak, gramDefect: 0, constraintNorms: [2] };
+  const face: FeasibleFace = { isometry, dimension: 3, reasons: [], exposures: [{ multipliers: [1] }], leak, gramDefect: 0, constraintOperators: [ComplexMatrix.identity(4)] };
   const problem = {
     dimensionA: 2,
     dimensionB: 2,
@@ -75,12 +75,16 @@ describe('continuity margin on an exposed face', () => {
     expect(faceContinuityMargin(face, problem, 'petz-up', [0], [0], 0)).toBe(Infinity);
     expect(faceContinuityMargin({ ...face, leak: Infinity }, problem, 'von-neumann', [0], [0], 0)).toBe(Infinity);
     // Multipliers whose combination cancels (the same operator with y⁺ = y⁻ = 3) shift by ‖Σ(y⁺ − y⁻)Γ‖_F = 0 plus
-    // its rounding allowance, not by Σ(y⁺ + y⁻)‖Γ‖_F.
-    const twice = { ...face, constraintNorms: [2, 2], constraintOperators: [ComplexMatrix.identity(4), ComplexMatrix.identity(4)] };
-    const cancelled = faceContinuityMargin(twice, problem, 'von-neumann', [3, 0], [0, 3], 0) - base;
-    expect(cancelled).toBeGreaterThanOrEqual(0);
-    expect(cancelled).toBeLessThan(1e-18);
-    expect(faceContinuityMargin({ ...twice, constraintOperators: undefined }, problem, 'von-neumann', [3, 0], [0, 3], 0) - base).toBeCloseTo(12 * 2 * t, 15);
+    // its rounding allowance, not by Σ(y⁺ + y⁻)‖Γ‖_F = 12.
+    const identity = ComplexMatrix.identity(4);
+    const cancelling = faceContinuityMargin({ ...face, constraintOperators: [identity, identity] }, problem, 'von-neumann', [3, 0], [0, 3], 0) - base;
+    expect(cancelling).toBeGreaterThanOrEqual(0);
+    expect(cancelling).toBeLessThan(1e-18);
+    // Γ = (1, 2·1) with y = (3, −3): ‖3·1 − 6·1‖_F = 6 against Σ(y⁺ + y⁻)‖Γ‖_F = 6 + 12; the smaller is charged.
+    const doubled = scale(identity, 2);
+    const partly = faceContinuityMargin({ ...face, constraintOperators: [identity, doubled] }, problem, 'von-neumann', [3, 0], [0, 3], 0) - base;
+    expect(partly).toBeCloseTo(6 * 2 * t, 12);
+    expect(partly).toBeGreaterThanOrEqual(6 * 2 * t);
     // An isometry orthonormal only to g: the bound is scaled by Tr X ∈ [1/(1 + g), 1/(1 − g)] (homogeneity of F).
     const g = 1e-3;
     expect(faceContinuityMargin({ ...face, gramDefect: g }, problem, 'von-neumann', [0], [0], -2) - base).toBeCloseTo((g / (1 - g)) * 2, 12);
