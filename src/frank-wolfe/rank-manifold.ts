@@ -168,7 +168,7 @@ export class RankChart {
  * Coordinates of a Hermitian r×r matrix in the orthonormal basis of hermitianBasis (face-newton.ts), in its order:
  * E_ii, then for j > i (E_ij + E_ji)/√2 and i(E_ij − E_ji)/√2 — i.e. p_ii, √2·Re p_ij, −√2·Im p_ij.
  */
-function hermitianCoordinates(p: ComplexMatrix, out: Float64Array): void {
+export function hermitianCoordinates(p: ComplexMatrix, out: Float64Array): void {
   const r = p.rows;
   let at = 0;
   for (let i = 0; i < r; i++) {
@@ -182,7 +182,7 @@ function hermitianCoordinates(p: ComplexMatrix, out: Float64Array): void {
 }
 
 /** target += Σ z_b·basis_b over the first r² coordinates (the inverse of hermitianCoordinates). */
-function addHermitianCoordinates(target: ComplexMatrix, z: ArrayLike<number>): void {
+export function addHermitianCoordinates(target: ComplexMatrix, z: ArrayLike<number>): void {
   const r = target.rows;
   let at = 0;
   for (let i = 0; i < r; i++) {

@@ -130,6 +130,8 @@ export interface SolverState {
   manifoldHeld?: readonly HeldSide[];
   /** Objective evaluations spent in face-Newton steps so far. */
   faceNewtonEvaluations: number;
+  /** Whether the central path has been followed (at most once). */
+  centralPathTried?: boolean;
   /** Whether the zero-entropy test has run (it runs at most once). */
   zeroEntropyTried?: boolean;
   /** The iterate's eigendecomposition, computed at most once per iterate. */

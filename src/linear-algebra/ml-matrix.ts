@@ -7,7 +7,10 @@ import type * as MlMatrix from 'ml-matrix';
 
 const mlMatrix = createRequire(import.meta.url)('ml-matrix') as typeof MlMatrix;
 
-export const { CholeskyDecomposition, EigenvalueDecomposition, Matrix, pseudoInverse, solve } = mlMatrix;
+export const { CholeskyDecomposition, EigenvalueDecomposition, Matrix, QrDecomposition, SingularValueDecomposition, pseudoInverse, solve } =
+  mlMatrix;
 export type CholeskyDecomposition = MlMatrix.CholeskyDecomposition;
 export type EigenvalueDecomposition = MlMatrix.EigenvalueDecomposition;
 export type Matrix = MlMatrix.Matrix;
+export type QrDecomposition = MlMatrix.QrDecomposition;
+export type SingularValueDecomposition = MlMatrix.SingularValueDecomposition;

@@ -1,0 +1,292 @@
+// Newton steps along the central path of F − μ·(log det ρ + Σ log interval slacks) on the equalities' affine set:
+// for optima with no clear rank gap (eigenvalues tapering towards zero), where Frank–Wolfe crawls and the
+// rank-manifold steps have no rank to choose (docs/convergence.md, "The central path").
+import { Matrix, QrDecomposition, SingularValueDecomposition } from '../linear-algebra/ml-matrix.js';
+import { eigh, eigvalsh } from '../linear-algebra/eigen.js';
+import {
+  addScaledInPlace,
+  ComplexMatrix,
+  conjugate,
+  hermitianPart,
+  multiply,
+  traceProductReal,
+} from '../linear-algebra/complex-matrix.js';
+import type { LinearConstraint } from '../problem/model.js';
+import { dampedNewton, meetsHeldRows, type FaceEvaluation } from './face-newton.js';
+import { addHermitianCoordinates, hermitianCoordinates } from './rank-manifold.js';
+
+export interface CentralPathOptions {
+  /** The barrier weight of the first centring. */
+  startWeight: number;
+  /** The path is followed until the weight is at most this. */
+  endWeight: number;
+  /** Each centring multiplies the weight by this. */
+  reduction: number;
+  /** Newton steps per weight at most. */
+  stepsPerWeight: number;
+  /** Largest number of real tangent coordinates for which the Hessian is formed (one evaluation each). */
+  maxTangentDimension: number;
+}
+
+export const DEFAULT_CENTRAL_PATH: Readonly<Omit<CentralPathOptions, 'startWeight' | 'endWeight'>> = Object.freeze({
+  reduction: 0.1,
+  stepsPerWeight: 3,
+  maxTangentDimension: 256,
+});
+
+/** Forward-difference step in the scaled coordinates: ρ + h·ρ^½Dρ^½ moves every eigenvalue by at most a share h. */
+const DIFFERENCE_STEP = 1e-4;
+/** A step goes at most this share of the way to the cone's or an interval's boundary. */
+const TO_BOUNDARY = 0.95;
+/** Armijo's sufficient-decrease share of the Newton decrement. */
+const ARMIJO = 0.25;
+/** Halvings of a Newton step before the centring gives up. */
+const BACKTRACKS = 30;
+/** A centring ends once the Newton decrement is below this share of the weight. */
+const CENTRED = 0.1;
+
+/**
+ * The barrier parameter ν of the log-det barrier of an n×n state plus one per finite interval side: on the
+ * central path the Frank–Wolfe gap is at most μ·ν (derived in docs/convergence.md).
+ */
+export function barrierParameter(n: number, constraints: readonly LinearConstraint[]): number {
+  let sides = 0;
+  for (const c of constraints) {
+    if (c.lower === c.upper) continue;
+    if (Number.isFinite(c.lower)) sides++;
+    if (Number.isFinite(c.upper)) sides++;
+  }
+  return n + sides;
+}
+
+/** At least n² − (equalities + 1) tangent coordinates: decided before any n³ work (d = 128 has 16,384). */
+export function tooManyCoordinates(n: number, constraints: readonly LinearConstraint[], maxTangentDimension: number): boolean {
+  const equalities = constraints.filter((c) => c.lower === c.upper).length;
+  return n * n - (equalities + 1) > maxTangentDimension;
+}
+
+/** One interval side as the barrier sees it: ⟨Γ, ρ⟩ − lower (sign +1) or upper − ⟨Γ, ρ⟩ (sign −1). */
+interface Side {
+  operator: ComplexMatrix;
+  sign: 1 | -1;
+  bound: number;
+}
+
+function intervalSides(constraints: readonly LinearConstraint[]): Side[] {
+  const sides: Side[] = [];
+  for (const c of constraints) {
+    if (c.lower === c.upper) continue;
+    if (Number.isFinite(c.lower)) sides.push({ operator: c.operator, sign: 1, bound: c.lower });
+    if (Number.isFinite(c.upper)) sides.push({ operator: c.operator, sign: -1, bound: c.upper });
+  }
+  return sides;
+}
+
+function slackOf(side: Side, state: ComplexMatrix): number {
+  return side.sign * (traceProductReal(side.operator, state) - side.bound);
+}
+
+function dot(a: Float64Array, b: Float64Array): number {
+  let s = 0;
+  for (let i = 0; i < a.length; i++) s += a[i] * b[i];
+  return s;
+}
+
+/** What the path reached: the last centred point, and how many weights were centred. */
+export interface CentralPathOutcome<E extends FaceEvaluation> {
+  point: ComplexMatrix;
+  evaluation: E;
+  weight: number;
+  centrings: number;
+}
+
+/**
+ * Follows the central path from a feasible, positive definite x: for each weight μ (from startWeight down by
+ * `reduction`), damped Newton steps on φ_μ = F − μ·(log det ρ + Σ log slacks) in the tangent space of the
+ * equalities. The coordinates are scaled, D ↦ ρ^½·D·ρ^½ (the barrier's Hessian at ρ is E ↦ ρ⁻¹Eρ⁻¹), so that the
+ * log-det barrier's Hessian is the identity and a forward difference of ∇F moves every eigenvalue by the same
+ * share however small it is. Each centred point is handed to `accept` (so a time limit keeps the progress);
+ * returns the last one, or null when no step lowered φ.
+ */
+export function followCentralPath<E extends FaceEvaluation>(
+  x: ComplexMatrix,
+  current: E,
+  constraints: readonly LinearConstraint[],
+  evaluate: (state: ComplexMatrix) => E | null,
+  options: CentralPathOptions,
+  accept: (point: ComplexMatrix, evaluation: E) => void,
+): CentralPathOutcome<E> | null {
+  if (tooManyCoordinates(x.rows, constraints, options.maxTangentDimension)) return null;
+  const equalities = constraints.filter((c) => c.lower === c.upper);
+  const sides = intervalSides(constraints);
+  const held = constraints.map(() => null);
+  let here = { point: x, evaluation: current };
+  let outcome: CentralPathOutcome<E> | null = null;
+  for (let weight = options.startWeight, centrings = 0; ; weight *= options.reduction) {
+    const centred = centre(here.point, here.evaluation, equalities, sides, evaluate, weight, options);
+    if (centred === 'too-large') return null;
+    if (centred !== null) here = centred;
+    // Rounding in the steps must not move ρ off its equalities: a point that no longer meets them ends the path.
+    if (!meetsHeldRows(constraints, held, here.point)) return outcome;
+    if (centred !== null) {
+      outcome = { ...here, weight, centrings: ++centrings };
+      accept(here.point, here.evaluation);
+    }
+    if (weight <= options.endWeight) return outcome;
+  }
+}
+
+/** Newton steps on φ_μ from x; null when none lowered it, 'too-large' when the tangent space is too large. */
+function centre<E extends FaceEvaluation>(
+  x: ComplexMatrix,
+  current: E,
+  equalities: readonly LinearConstraint[],
+  sides: readonly Side[],
+  evaluate: (state: ComplexMatrix) => E | null,
+  weight: number,
+  options: CentralPathOptions,
+): { point: ComplexMatrix; evaluation: E } | null | 'too-large' {
+  const n = x.rows;
+  const m = n * n;
+  let point = x;
+  let evaluation = current;
+  let moved = false;
+  for (let step = 0; step < options.stepsPerWeight; step++) {
+    const { values, vectors } = eigh(point);
+    if (!(values[0] > 0)) return moved ? { point, evaluation } : null;
+    const half = conjugate(vectors, ComplexMatrix.diagonal(Array.from(values, Math.sqrt)));
+    const scaled = (a: ComplexMatrix) => {
+      const out = new Float64Array(m);
+      hermitianCoordinates(hermitianPart(multiply(multiply(half, a), half)), out);
+      return out;
+    };
+    // Trace (ρ^½·1·ρ^½ = ρ) and the equalities, in scaled coordinates; their null space is the tangent space.
+    const rows = [scaled(ComplexMatrix.identity(n)), ...equalities.map((c) => scaled(c.operator))];
+    const tangent = nullSpace(rows, m);
+    const k = tangent.length;
+    if (k > options.maxTangentDimension) return 'too-large';
+    if (k === 0) return moved ? { point, evaluation } : null;
+    const reduce = (full: Float64Array) => {
+      const out = new Float64Array(k);
+      for (let j = 0; j < k; j++) out[j] = dot(tangent[j], full);
+      return out;
+    };
+    const outer = (coordinates: ArrayLike<number>) => {
+      const inner = ComplexMatrix.zeros(n);
+      addHermitianCoordinates(inner, coordinates);
+      return { inner, outer: hermitianPart(multiply(multiply(half, inner), half)) };
+    };
+
+    // ∇φ in the scaled tangent coordinates: ρ^½∇Fρ^½ − μ·1 − μ·Σ sign·ρ^½Γρ^½/slack.
+    const slacks = sides.map((s) => slackOf(s, point));
+    if (!slacks.every((s) => s > 0)) return moved ? { point, evaluation } : null;
+    const sideRows = sides.map((s) => reduce(scaled(s.operator)));
+    const gradient = reduce(scaled(evaluation.gradient));
+    // d/dt log det(ρ + t·ρ^½Dρ^½) = Tr D: the barrier's gradient is the identity's (unscaled) coordinates.
+    const identityCoordinates = new Float64Array(m);
+    hermitianCoordinates(ComplexMatrix.identity(n), identityCoordinates);
+    const identityRow = reduce(identityCoordinates);
+    for (let j = 0; j < k; j++) {
+      gradient[j] -= weight * identityRow[j];
+      sides.forEach((s, q) => (gradient[j] -= (weight * s.sign * sideRows[q][j]) / slacks[q]));
+    }
+
+    // Hessian: forward differences of ∇F along each scaled tangent direction, plus the barrier's, exactly.
+    const hessian = new Matrix(k, k);
+    for (let j = 0; j < k; j++) {
+      const probe = point.clone();
+      addScaledInPlace(probe, outer(tangent[j]).outer, DIFFERENCE_STEP);
+      const e = evaluate(probe);
+      if (!e) return moved ? { point, evaluation } : null;
+      const difference = e.gradient.clone();
+      addScaledInPlace(difference, evaluation.gradient, -1);
+      const column = reduce(scaled(difference));
+      for (let i = 0; i < k; i++) hessian.set(i, j, column[i] / DIFFERENCE_STEP);
+    }
+    const symmetric = new Matrix(k, k);
+    for (let i = 0; i < k; i++) {
+      for (let j = i; j < k; j++) {
+        let entry = 0.5 * (hessian.get(i, j) + hessian.get(j, i));
+        if (i === j) entry += weight;
+        sides.forEach((_, q) => (entry += (weight * sideRows[q][i] * sideRows[q][j]) / slacks[q] ** 2));
+        // One triangle mirrored: the Cholesky factorisation insists on exact symmetry.
+        symmetric.set(i, j, entry);
+        symmetric.set(j, i, entry);
+      }
+    }
+    // Rounding at a nearly singular point can make a difference non-finite: the centring stops there.
+    if (!symmetric.to1DArray().every(Number.isFinite) || !gradient.every(Number.isFinite)) return moved ? { point, evaluation } : null;
+    const newton = dampedNewton(symmetric)?.solve(gradient);
+    if (!newton || !(newton.decrement > 0)) return moved ? { point, evaluation } : null;
+    const combined = new Float64Array(m);
+    tangent.forEach((t, j) => {
+      for (let i = 0; i < m; i++) combined[i] += newton.coefficients[j] * t[i];
+    });
+    const { inner, outer: move } = outer(combined);
+
+    // The longest step keeping ρ^½(1 + tD)ρ^½ and every slack positive, then halved until φ_μ decreases enough.
+    const innerValues = eigvalsh(inner);
+    let longest = 1;
+    if (innerValues[0] < 0) longest = Math.min(longest, -TO_BOUNDARY / innerValues[0]);
+    const sideRates = sides.map((s) => s.sign * traceProductReal(s.operator, move));
+    sideRates.forEach((rate, q) => {
+      if (rate < 0) longest = Math.min(longest, (-TO_BOUNDARY * slacks[q]) / rate);
+    });
+    const barrierChange = (t: number) => {
+      let change = 0;
+      for (const v of innerValues) change += Math.log1p(t * v);
+      sideRates.forEach((rate, q) => (change += Math.log1p((t * rate) / slacks[q])));
+      return change;
+    };
+    let accepted: { point: ComplexMatrix; evaluation: E } | null = null;
+    for (let t = longest, tries = 0; tries <= BACKTRACKS && accepted === null; tries++, t /= 2) {
+      const candidate = point.clone();
+      addScaledInPlace(candidate, move, t);
+      const e = evaluate(candidate);
+      if (!e) continue;
+      const decrease = evaluation.value - e.value + weight * barrierChange(t);
+      if (decrease >= ARMIJO * t * newton.decrement) accepted = { point: candidate, evaluation: e };
+    }
+    if (accepted === null) return moved ? { point, evaluation } : null;
+    point = accepted.point;
+    evaluation = accepted.evaluation;
+    moved = true;
+    if (newton.decrement <= CENTRED * weight) break;
+  }
+  return moved ? { point, evaluation } : null;
+}
+
+/** Rows whose singular value is below this share of the largest are dependent (the rows are scaled to unit length). */
+const DEPENDENT_ROW = 1e-10;
+
+/**
+ * An orthonormal basis of the vectors orthogonal to every row, from one Householder QR of the rows as columns
+ * (padded to a square matrix, so that the orthogonal factor is complete): its columns past the rows' count, plus
+ * the directions dependent rows leave among the first ones (left null vectors of the triangular factor).
+ */
+export function nullSpace(rows: readonly Float64Array[], m: number): Float64Array[] {
+  const r = rows.length;
+  const padded = new Matrix(m, m);
+  rows.forEach((row, j) => {
+    const length = Math.sqrt(dot(row, row)) || 1;
+    for (let i = 0; i < m; i++) padded.set(i, j, row[i] / length);
+  });
+  const qr = new QrDecomposition(padded);
+  const q = qr.orthogonalMatrix;
+  const basis: Float64Array[] = [];
+  for (let j = r; j < m; j++) basis.push(Float64Array.from(q.getColumn(j)));
+  const triangular = qr.upperTriangularMatrix.subMatrix(0, r - 1, 0, r - 1);
+  const svd = new SingularValueDecomposition(triangular, { computeRightSingularVectors: false });
+  const largest = svd.diagonal[0];
+  const left = svd.leftSingularVectors;
+  svd.diagonal.forEach((sigma, a) => {
+    if (sigma > DEPENDENT_ROW * largest) return;
+    const v = new Float64Array(m);
+    for (let j = 0; j < r; j++) {
+      const w = left.get(j, a);
+      for (let i = 0; i < m; i++) v[i] += w * q.get(i, j);
+    }
+    basis.push(v);
+  });
+  return basis;
+}
