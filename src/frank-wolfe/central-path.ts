@@ -146,68 +146,120 @@ function centre<E extends FaceEvaluation>(
   weight: number,
   options: CentralPathOptions,
 ): { point: ComplexMatrix; evaluation: E } | null | 'too-large' {
+  let here: { point: ComplexMatrix; evaluation: E } | null = null;
+  for (let taken = 0; taken < options.stepsPerWeight; ) {
+    const from: { point: ComplexMatrix; evaluation: E } = here ?? { point: x, evaluation: current };
+    const budget = options.stepsPerWeight - taken;
+    const framed: ReturnType<typeof stepsInFrame<E>> = stepsInFrame(
+      from.point,
+      from.evaluation,
+      { equalities, sides, evaluate, weight, budget },
+      options,
+    );
+    if (framed === 'too-large') return framed;
+    if (framed.taken === 0) break;
+    here = framed;
+    taken += framed.taken;
+    if (framed.centred) break;
+  }
+  return here;
+}
+
+/** What one frame works on: the rows, the barrier's sides, the weight μ and how many steps are left. */
+interface FrameTask<E extends FaceEvaluation> {
+  equalities: readonly LinearConstraint[];
+  sides: readonly Side[];
+  evaluate: (state: ComplexMatrix) => E | null;
+  weight: number;
+  budget: number;
+}
+
+/**
+ * Newton steps of one weight in one frame, built at x: the scaling ρ_x^½, the tangent basis and F's Hessian by
+ * differences (k evaluations). Full steps reuse the frame (F's Hessian changes little in these coordinates while
+ * Newton converges); a step the line search cut, or a small decrement from the reused Hessian, ends it, so that
+ * the next frame is built where the steps have led.
+ */
+function stepsInFrame<E extends FaceEvaluation>(
+  x: ComplexMatrix,
+  current: E,
+  { equalities, sides, evaluate, weight, budget }: FrameTask<E>,
+  options: CentralPathOptions,
+): { point: ComplexMatrix; evaluation: E; taken: number; centred: boolean } | 'too-large' {
+  const none = { point: x, evaluation: current, taken: 0, centred: false };
   const n = x.rows;
   const m = n * n;
+  const { values, vectors } = eigh(x);
+  if (!(values[0] > 0)) return none;
+  const half = conjugate(vectors, ComplexMatrix.diagonal(Array.from(values, Math.sqrt)));
+  const coordinatesOf = (a: ComplexMatrix) => {
+    const out = new Float64Array(m);
+    hermitianCoordinates(a, out);
+    return out;
+  };
+  const scaled = (a: ComplexMatrix) => coordinatesOf(hermitianPart(multiply(multiply(half, a), half)));
+  // Trace (ρ^½·1·ρ^½ = ρ) and the equalities, in scaled coordinates; their null space is the tangent space.
+  const rows = [scaled(ComplexMatrix.identity(n)), ...equalities.map((c) => scaled(c.operator))];
+  const tangent = nullSpace(rows, m);
+  const k = tangent.length;
+  if (k > options.maxTangentDimension) return 'too-large';
+  if (k === 0) return none;
+  const reduce = (full: Float64Array) => {
+    const out = new Float64Array(k);
+    for (let j = 0; j < k; j++) out[j] = dot(tangent[j], full);
+    return out;
+  };
+  const innerOf = (coordinates: ArrayLike<number>) => {
+    const inner = ComplexMatrix.zeros(n);
+    addHermitianCoordinates(inner, coordinates);
+    return inner;
+  };
+  const outerOf = (inner: ComplexMatrix) => hermitianPart(multiply(multiply(half, inner), half));
+  const directions = tangent.map(innerOf);
+  const sideRows = sides.map((s) => reduce(scaled(s.operator)));
+
+  // Forward differences of ∇F along each scaled tangent direction.
+  const differences = new Matrix(k, k);
+  for (let j = 0; j < k; j++) {
+    const probe = x.clone();
+    addScaledInPlace(probe, outerOf(directions[j]), DIFFERENCE_STEP);
+    const e = evaluate(probe);
+    if (!e) return none;
+    const difference = e.gradient.clone();
+    addScaledInPlace(difference, current.gradient, -1);
+    const column = reduce(scaled(difference));
+    for (let i = 0; i < k; i++) differences.set(i, j, column[i] / DIFFERENCE_STEP);
+  }
+
   let point = x;
   let evaluation = current;
-  let moved = false;
-  for (let step = 0; step < options.stepsPerWeight; step++) {
-    const { values, vectors } = eigh(point);
-    if (!(values[0] > 0)) return moved ? { point, evaluation } : null;
-    const half = conjugate(vectors, ComplexMatrix.diagonal(Array.from(values, Math.sqrt)));
-    const scaled = (a: ComplexMatrix) => {
-      const out = new Float64Array(m);
-      hermitianCoordinates(hermitianPart(multiply(multiply(half, a), half)), out);
-      return out;
-    };
-    // Trace (ρ^½·1·ρ^½ = ρ) and the equalities, in scaled coordinates; their null space is the tangent space.
-    const rows = [scaled(ComplexMatrix.identity(n)), ...equalities.map((c) => scaled(c.operator))];
-    const tangent = nullSpace(rows, m);
-    const k = tangent.length;
-    if (k > options.maxTangentDimension) return 'too-large';
-    if (k === 0) return moved ? { point, evaluation } : null;
-    const reduce = (full: Float64Array) => {
-      const out = new Float64Array(k);
-      for (let j = 0; j < k; j++) out[j] = dot(tangent[j], full);
-      return out;
-    };
-    const outer = (coordinates: ArrayLike<number>) => {
-      const inner = ComplexMatrix.zeros(n);
-      addHermitianCoordinates(inner, coordinates);
-      return { inner, outer: hermitianPart(multiply(multiply(half, inner), half)) };
-    };
-
-    // ∇φ in the scaled tangent coordinates: ρ^½∇Fρ^½ − μ·1 − μ·Σ sign·ρ^½Γρ^½/slack.
+  let taken = 0;
+  let centred = false;
+  // A = ρ_x^{-½}·ρ·ρ_x^{-½} = 1 + Σ t·D over the steps taken in this frame (never formed from an inverse of ρ):
+  // at ρ the barrier's gradient is Tr(A⁻¹D) and its Hessian Tr(A⁻¹D_iA⁻¹D_j); at x both are those of A = 1.
+  const shape = ComplexMatrix.identity(n);
+  for (let step = 0; step < budget; step++) {
+    const shapeEigen = eigh(shape);
+    if (!(shapeEigen.values[0] > 0)) break;
+    const inverse = conjugate(shapeEigen.vectors, ComplexMatrix.diagonal(Array.from(shapeEigen.values, (v) => 1 / v)));
+    const inverseHalf = conjugate(shapeEigen.vectors, ComplexMatrix.diagonal(Array.from(shapeEigen.values, (v) => 1 / Math.sqrt(v))));
     const slacks = sides.map((s) => slackOf(s, point));
-    if (!slacks.every((s) => s > 0)) return moved ? { point, evaluation } : null;
-    const sideRows = sides.map((s) => reduce(scaled(s.operator)));
+    if (!slacks.every((v) => v > 0)) break;
+
+    // ∇φ in the frame's tangent coordinates: ρ_x^½∇Fρ_x^½ − μ·A⁻¹ − μ·Σ sign·ρ_x^½Γρ_x^½/slack.
     const gradient = reduce(scaled(evaluation.gradient));
-    // d/dt log det(ρ + t·ρ^½Dρ^½) = Tr D: the barrier's gradient is the identity's (unscaled) coordinates.
-    const identityCoordinates = new Float64Array(m);
-    hermitianCoordinates(ComplexMatrix.identity(n), identityCoordinates);
-    const identityRow = reduce(identityCoordinates);
+    const barrierRow = reduce(coordinatesOf(inverse));
     for (let j = 0; j < k; j++) {
-      gradient[j] -= weight * identityRow[j];
+      gradient[j] -= weight * barrierRow[j];
       sides.forEach((s, q) => (gradient[j] -= (weight * s.sign * sideRows[q][j]) / slacks[q]));
     }
-
-    // Hessian: forward differences of ∇F along each scaled tangent direction, plus the barrier's, exactly.
-    const hessian = new Matrix(k, k);
-    for (let j = 0; j < k; j++) {
-      const probe = point.clone();
-      addScaledInPlace(probe, outer(tangent[j]).outer, DIFFERENCE_STEP);
-      const e = evaluate(probe);
-      if (!e) return moved ? { point, evaluation } : null;
-      const difference = e.gradient.clone();
-      addScaledInPlace(difference, evaluation.gradient, -1);
-      const column = reduce(scaled(difference));
-      for (let i = 0; i < k; i++) hessian.set(i, j, column[i] / DIFFERENCE_STEP);
-    }
+    // The barrier's Hessian: the identity in the frame's own step, Tr(A⁻¹D_iA⁻¹D_j) after it.
+    const barrier = step === 0 ? null : directions.map((d) => reduce(coordinatesOf(hermitianPart(multiply(multiply(inverse, d), inverse)))));
     const symmetric = new Matrix(k, k);
     for (let i = 0; i < k; i++) {
       for (let j = i; j < k; j++) {
-        let entry = 0.5 * (hessian.get(i, j) + hessian.get(j, i));
-        if (i === j) entry += weight;
+        let entry = 0.5 * (differences.get(i, j) + differences.get(j, i));
+        entry += weight * (barrier === null ? (i === j ? 1 : 0) : 0.5 * (barrier[j][i] + barrier[i][j]));
         sides.forEach((_, q) => (entry += (weight * sideRows[q][i] * sideRows[q][j]) / slacks[q] ** 2));
         // One triangle mirrored: the Cholesky factorisation insists on exact symmetry.
         symmetric.set(i, j, entry);
@@ -215,17 +267,19 @@ function centre<E extends FaceEvaluation>(
       }
     }
     // Rounding at a nearly singular point can make a difference non-finite: the centring stops there.
-    if (!symmetric.to1DArray().every(Number.isFinite) || !gradient.every(Number.isFinite)) return moved ? { point, evaluation } : null;
+    if (!symmetric.to1DArray().every(Number.isFinite) || !gradient.every(Number.isFinite)) break;
     const newton = dampedNewton(symmetric)?.solve(gradient);
-    if (!newton || !(newton.decrement > 0)) return moved ? { point, evaluation } : null;
+    if (!newton || !(newton.decrement > 0)) break;
     const combined = new Float64Array(m);
     tangent.forEach((t, j) => {
       for (let i = 0; i < m; i++) combined[i] += newton.coefficients[j] * t[i];
     });
-    const { inner, outer: move } = outer(combined);
+    const inner = innerOf(combined);
+    const move = outerOf(inner);
 
-    // The longest step keeping ρ^½(1 + tD)ρ^½ and every slack positive, then halved until φ_μ decreases enough.
-    const innerValues = eigvalsh(inner);
+    // ρ + t·ρ_x^½Dρ_x^½ = ρ_x^½(A + tD)ρ_x^½: the longest step keeping it and every slack positive, from the
+    // eigenvalues of A^{-½}DA^{-½}, then halved until φ_μ decreases enough.
+    const innerValues = eigvalsh(hermitianPart(multiply(multiply(inverseHalf, inner), inverseHalf)));
     let longest = 1;
     if (innerValues[0] < 0) longest = Math.min(longest, -TO_BOUNDARY / innerValues[0]);
     const sideRates = sides.map((s) => s.sign * traceProductReal(s.operator, move));
@@ -238,22 +292,25 @@ function centre<E extends FaceEvaluation>(
       sideRates.forEach((rate, q) => (change += Math.log1p((t * rate) / slacks[q])));
       return change;
     };
-    let accepted: { point: ComplexMatrix; evaluation: E } | null = null;
+    let accepted: { point: ComplexMatrix; evaluation: E; t: number } | null = null;
     for (let t = longest, tries = 0; tries <= BACKTRACKS && accepted === null; tries++, t /= 2) {
       const candidate = point.clone();
       addScaledInPlace(candidate, move, t);
       const e = evaluate(candidate);
       if (!e) continue;
       const decrease = evaluation.value - e.value + weight * barrierChange(t);
-      if (decrease >= ARMIJO * t * newton.decrement) accepted = { point: candidate, evaluation: e };
+      if (decrease >= ARMIJO * t * newton.decrement) accepted = { point: candidate, evaluation: e, t };
     }
-    if (accepted === null) return moved ? { point, evaluation } : null;
+    if (accepted === null) break;
     point = accepted.point;
     evaluation = accepted.evaluation;
-    moved = true;
-    if (newton.decrement <= CENTRED * weight) break;
+    addScaledInPlace(shape, inner, accepted.t);
+    taken++;
+    // Only a fresh frame's decrement says the point is centred; a small one from a reused Hessian asks for a new frame.
+    centred = step === 0 && newton.decrement <= CENTRED * weight;
+    if (newton.decrement <= CENTRED * weight || accepted.t < longest) break;
   }
-  return moved ? { point, evaluation } : null;
+  return { point, evaluation, taken, centred };
 }
 
 /** Rows whose singular value is below this share of the largest are dependent (the rows are scaled to unit length). */
