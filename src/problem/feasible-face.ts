@@ -8,7 +8,7 @@ import {
   multiply,
   columns,
 } from '../linear-algebra/complex-matrix.js';
-import { eigh } from '../linear-algebra/eigen.js';
+import { eigh, eigvalsh } from '../linear-algebra/eigen.js';
 import { rangeIsometry } from '../linear-algebra/support.js';
 import { BACKWARD_ERROR_CONSTANT, UNIT_ROUNDOFF } from '../linear-algebra/rounding.js';
 import { ValidationError } from './errors.js';
@@ -232,8 +232,10 @@ function binaryEntropy(p: number): number {
  * (docs/faces.md, "The continuity margin"): with t = √ε + ε/2 ≥ ½‖ρ − ρ̃‖₁ (gentle measurement) for ρ̃ the
  * normalised projection of a feasible ρ onto the face, and g' = g/(1 − g) for the isometry's Gram defect g
  * (ρ̃ = P·X·P† with Tr X within g' of 1),
- *   Σ_i (y⁺_i + y⁻_i)·‖Γ_i‖_F·(2t + g')     (X/Tr X meets each constraint only to ‖Γ_i‖_∞·‖ρ − P(X/Tr X)P†‖₁)
- *   + 2·(t·log₂(D − 1) + h(t))              (Fannes–Audenaert, for H(ω) and H(Z(ω)) of ω = ⊕_c X_c ⊕ rest)
+ *   min(Σ_i (y⁺_i + y⁻_i)·‖Γ_i‖_F, ‖Σ_i (y⁺_i − y⁻_i)Γ_i‖_∞)·(2t + g')
+ *                                           (X/Tr X meets each constraint only to ‖Γ_i‖_∞·‖ρ − P(X/Tr X)P†‖₁)
+ *   + min(2·(t·log₂(D − 1) + h(t)),         (Fannes–Audenaert, for H(ω) and H(Z(ω)) of ω = ⊕_c X_c ⊕ rest)
+ *         2t·log₂ d_K + (1 + t)·h(t/(1 + t)))  (Alicki–Fannes–Winter, for H(ω) − H(Z(ω)) = H(K|S) of a key copy K)
  *   + 2t·max_c |f(c)|                       (the scores, linear in the branch weights)
  *   + g'·(|bound| + the first line)          (F is homogeneous of degree 1: F(ρ̃) = Tr X·F(P(X/Tr X)P†)).
  * 0 on a face without exposures; Infinity where no margin is derived (Rényi kinds, several exposures, t too large).
@@ -254,24 +256,34 @@ export function faceContinuityMargin(
   if (kind !== 'von-neumann' || !Number.isFinite(leak) || !operators || gram === undefined || !(gram < 0.5)) return Infinity;
   const t = Math.sqrt(leak) + leak / 2;
   const renormalised = gram / (1 - gram);
-  // D: the dimension of ω = ⊕_c K_c ρ K_c† ⊕ Tr((1 − Σ K†K)ρ), which ρ ↦ ω maps trace-preservingly.
+  // D: the dimension of ω = ⊕_c K_c ρ K_c† ⊕ Tr((1 − Σ K†K)ρ), which ρ ↦ ω maps trace-preservingly; d_K: the
+  // most key values of a branch (the pinchings of all branches are one pinching of ω with that many projectors).
   let outputs = 1;
+  let keyValues = 1;
   let largestScore = 0;
   for (const branch of restricted.branches) {
     outputs += branch.krausOperators[0]?.rows ?? 0;
+    keyValues = Math.max(keyValues, branch.keyProjectors.length);
     largestScore = Math.max(largestScore, Math.abs(branch.score));
   }
   if (!(t <= 1 - 1 / outputs)) return Infinity;
   let normWeight = 0;
   operators.forEach((op, i) => (normWeight += (multipliersLower[i] + multipliersUpper[i]) * frobeniusNorm(op)));
-  // |Σ_i (y⁺_i − y⁻_i)·Tr Γ_i(ρ − σ)| ≤ ‖Σ_i (y⁺_i − y⁻_i)Γ_i‖_F·‖ρ − σ‖₁ too: the combination often cancels.
+  // |Σ_i (y⁺_i − y⁻_i)·Tr Γ_i(ρ − σ)| ≤ ‖Σ_i (y⁺_i − y⁻_i)Γ_i‖_∞·‖ρ − σ‖₁ too: the combination often cancels.
   const constraintWeight = Math.min(normWeight, combinationNorm(operators, multipliersLower, multipliersUpper, normWeight));
   const constraintShift = constraintWeight * (2 * t + renormalised);
-  const continuity = 2 * (t * Math.log2(Math.max(outputs - 1, 1)) + binaryEntropy(t)) + 2 * t * largestScore;
+  const fannes = 2 * (t * Math.log2(Math.max(outputs - 1, 1)) + binaryEntropy(t));
+  // Both bound the same change; the conditional-entropy form pays h once and log₂ of the key alphabet, not of D.
+  const conditional = 2 * t * Math.log2(keyValues) + (1 + t) * binaryEntropy(t / (1 + t));
+  const continuity = Math.min(fannes, conditional) + 2 * t * largestScore;
   return constraintShift + continuity + renormalised * (Math.abs(bound) + constraintShift);
 }
 
-/** An upper bound on ‖Σ_i (y⁺_i − y⁻_i)·Γ_i‖_F: the sum in doubles plus its rounding, (terms + 1)·u·Σ|y|‖Γ‖ per entry. */
+/**
+ * An upper bound on the operator norm ‖Σ_i (y⁺_i − y⁻_i)·Γ_i‖_∞ (|Tr(YΔ)| ≤ ‖Y‖_∞·‖Δ‖₁): the largest |eigenvalue|
+ * of the sum in doubles, plus the eigensolver's backward error c·n·u·‖Y‖_F (docs/math.md §5) and the sum's
+ * rounding, (terms + 1)·u·Σ|y|‖Γ‖ per entry, whose Frobenius norm bounds its operator norm.
+ */
 function combinationNorm(
   operators: readonly ComplexMatrix[],
   multipliersLower: ArrayLike<number>,
@@ -287,5 +299,8 @@ function combinationNorm(
     terms++;
     addScaledInPlace(sum, op, y);
   });
-  return frobeniusNorm(sum) * (1 + 2 * n * UNIT_ROUNDOFF) + 2 * n * (terms + 1) * UNIT_ROUNDOFF * weight;
+  const frobenius = frobeniusNorm(sum) * (1 + 2 * n * UNIT_ROUNDOFF);
+  const values = eigvalsh(sum);
+  const largest = Math.max(Math.abs(values[0] ?? 0), Math.abs(values[values.length - 1] ?? 0));
+  return largest + BACKWARD_ERROR_CONSTANT * n * UNIT_ROUNDOFF * frobenius + 2 * n * (terms + 1) * UNIT_ROUNDOFF * weight;
 }
