@@ -222,7 +222,13 @@ function centralPathMove(setup: SolverSetup, state: SolverState): boolean {
     const mixed = evaluateSafely(setup.objective, point);
     if (mixed) start = { point, evaluation: mixed };
   }
-  followCentralPath(start.point, start.evaluation, constraints, evaluate, options, accept);
+  try {
+    followCentralPath(start.point, start.evaluation, constraints, evaluate, options, accept);
+  } catch (error) {
+    // A kernel's RangeError (non-finite numbers in a Newton step) ends the path, not the solve: every point it
+    // handed over was evaluated and checked.
+    if (!(error instanceof RangeError)) throw error;
+  }
   return improved;
 }
 
