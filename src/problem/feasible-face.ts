@@ -6,6 +6,8 @@ import {
   frobeniusNorm,
   kron,
   multiply,
+  multiplyAdjointLeft,
+  multiplyAdjointRight,
   columns,
 } from '../linear-algebra/complex-matrix.js';
 import { eigh, eigvalsh } from '../linear-algebra/eigen.js';
@@ -232,8 +234,9 @@ function binaryEntropy(p: number): number {
  * (docs/faces.md, "The continuity margin"): with t = √ε + ε/2 ≥ ½‖ρ − ρ̃‖₁ (gentle measurement) for ρ̃ the
  * normalised projection of a feasible ρ onto the face, and g' = g/(1 − g) for the isometry's Gram defect g
  * (ρ̃ = P·X·P† with Tr X within g' of 1),
- *   min(Σ_i (y⁺_i + y⁻_i)·‖Γ_i‖_F, ‖Σ_i (y⁺_i − y⁻_i)Γ_i‖_∞)·(2t + g')
- *                                           (X/Tr X meets each constraint only to ‖Γ_i‖_∞·‖ρ − P(X/Tr X)P†‖₁)
+ *   min(Σ_i (y⁺_i + y⁻_i)·‖Γ_i‖_F·(2t + g'), ‖Y‖_∞·(2t + g'), 2√ε·‖ΠYQ‖_∞ + (2ε + g')·‖Y‖_∞)
+ *                                           (X/Tr X meets each constraint only to ‖Γ_i‖_∞·‖ρ − P(X/Tr X)P†‖₁;
+ *                                            Y = Σ_i (y⁺_i − y⁻_i)Γ_i, and by blocks only ΠYQ pays √ε)
  *   + min(2·(t·log₂(D − 1) + h(t)),         (Fannes–Audenaert, for H(ω) and H(Z(ω)) of ω = ⊕_c X_c ⊕ rest)
  *         2t·log₂ d_K + (1 + t)·h(t/(1 + t)))  (Alicki–Fannes–Winter, for H(ω) − H(Z(ω)) = H(K|S) of a key copy K)
  *   + 2t·max_c |f(c)|                       (the scores, linear in the branch weights)
@@ -270,8 +273,13 @@ export function faceContinuityMargin(
   let normWeight = 0;
   operators.forEach((op, i) => (normWeight += (multipliersLower[i] + multipliersUpper[i]) * frobeniusNorm(op)));
   // |Σ_i (y⁺_i − y⁻_i)·Tr Γ_i(ρ − σ)| ≤ ‖Σ_i (y⁺_i − y⁻_i)Γ_i‖_∞·‖ρ − σ‖₁ too: the combination often cancels.
-  const constraintWeight = Math.min(normWeight, combinationNorm(operators, multipliersLower, multipliersUpper, normWeight));
-  const constraintShift = constraintWeight * (2 * t + renormalised);
+  const combination = constraintCombination(operators, multipliersLower, multipliersUpper, normWeight);
+  const whole = Math.min(normWeight, combination.operatorNorm) * (2 * t + renormalised);
+  // By blocks only the cross block pays √ε: 2√ε·‖ΠYQ‖_∞ + (2ε + g')·‖Y‖_∞ (docs/faces.md).
+  const byBlocks = face.isometry
+    ? 2 * Math.sqrt(leak) * crossBlockNorm(face.isometry, combination, gram) + (2 * leak + renormalised) * combination.operatorNorm
+    : Infinity;
+  const constraintShift = Math.min(whole, byBlocks);
   const fannes = 2 * (t * Math.log2(Math.max(outputs - 1, 1)) + binaryEntropy(t));
   // Both bound the same change; the conditional-entropy form pays h once and log₂ of the key alphabet, not of D.
   const conditional = 2 * t * Math.log2(keyValues) + (1 + t) * binaryEntropy(t / (1 + t));
@@ -279,17 +287,27 @@ export function faceContinuityMargin(
   return constraintShift + continuity + renormalised * (Math.abs(bound) + constraintShift);
 }
 
+/** Y = Σ_i (y⁺_i − y⁻_i)·Γ_i as summed in doubles, with bounds on its rounding and on the exact Y's norms. */
+interface ConstraintCombination {
+  /** Ŷ, the sum in doubles. */
+  sum: ComplexMatrix;
+  /** R ≥ ‖Y − Ŷ‖_F: (terms + 1)·u·Σ|y|‖Γ‖ per entry. */
+  rounding: number;
+  /** ≥ ‖Y‖_∞ (|Tr(YΔ)| ≤ ‖Y‖_∞·‖Δ‖₁). */
+  operatorNorm: number;
+}
+
 /**
- * An upper bound on the operator norm ‖Σ_i (y⁺_i − y⁻_i)·Γ_i‖_∞ (|Tr(YΔ)| ≤ ‖Y‖_∞·‖Δ‖₁): the largest |eigenvalue|
- * of the sum in doubles, plus the eigensolver's backward error c·n·u·‖Y‖_F (docs/math.md §5) and the sum's
- * rounding, (terms + 1)·u·Σ|y|‖Γ‖ per entry, whose Frobenius norm bounds its operator norm.
+ * The combination of the certificate's multipliers: ‖Y‖_∞ is bounded by the largest |eigenvalue| of Ŷ plus the
+ * eigensolver's backward error c·n·u·‖Ŷ‖_F (docs/math.md §5) and the rounding R, whose Frobenius bound also bounds
+ * its operator norm.
  */
-function combinationNorm(
+function constraintCombination(
   operators: readonly ComplexMatrix[],
   multipliersLower: ArrayLike<number>,
   multipliersUpper: ArrayLike<number>,
   weight: number,
-): number {
+): ConstraintCombination {
   const n = operators[0]?.rows ?? 0;
   const sum = ComplexMatrix.zeros(n);
   let terms = 0;
@@ -299,8 +317,43 @@ function combinationNorm(
     terms++;
     addScaledInPlace(sum, op, y);
   });
+  const rounding = 2 * n * (terms + 1) * UNIT_ROUNDOFF * weight;
   const frobenius = frobeniusNorm(sum) * (1 + 2 * n * UNIT_ROUNDOFF);
   const values = eigvalsh(sum);
   const largest = Math.max(Math.abs(values[0] ?? 0), Math.abs(values[values.length - 1] ?? 0));
-  return largest + BACKWARD_ERROR_CONSTANT * n * UNIT_ROUNDOFF * frobenius + 2 * n * (terms + 1) * UNIT_ROUNDOFF * weight;
+  return { sum, rounding, operatorNorm: largest + BACKWARD_ERROR_CONSTANT * n * UNIT_ROUNDOFF * frobenius + rounding };
+}
+
+/**
+ * An upper bound on ‖ΠYQ‖_∞, the block of Y between the face (Π, the orthogonal projector onto range P) and its
+ * complement Q = 1 − Π (docs/faces.md, "The continuity margin", step 3). With G = P†P, ‖G − 1‖ ≤ g:
+ * ΠYQ = P·G⁻¹·P†Y(1 − Π), ‖P·G⁻¹‖ = ‖G⁻¹‖^½ ≤ (1 − g)^−½, and P†Y(1 − Π) differs from B = P†Y(1 − PP†) by
+ * P†Y·P(G⁻¹ − 1)P†, at most (1 + g)^{3/2}·g/(1 − g)·‖Y‖_∞. B is formed from Ŷ in three products, each charged
+ * c·m·u·‖A‖_F‖B‖_F for inner dimension m (the standard product bound with the project's generous c; Higham,
+ * Accuracy and Stability of Numerical Algorithms, 2nd ed., §3.5; from memory), Y − Ŷ costs √(1 + g)·(2 + g)·R, and
+ * ‖B̂‖_∞ comes from the eigenvalues of B̂B̂† with their backward error and the product's rounding.
+ */
+function crossBlockNorm(isometry: ComplexMatrix, combination: ConstraintCombination, gram: number): number {
+  const n = isometry.rows;
+  const k = isometry.cols;
+  const scale = BACKWARD_ERROR_CONSTANT * UNIT_ROUNDOFF;
+  const isometryFrobenius = frobeniusNorm(isometry);
+  const faceRows = multiplyAdjointLeft(isometry, combination.sum); // P†Ŷ, k × n
+  const faceBlock = multiply(faceRows, isometry); // P†ŶP, k × k
+  const back = multiplyAdjointRight(faceBlock, isometry); // P†ŶPP†, k × n
+  const cross = faceRows.clone();
+  addScaledInPlace(cross, back, -1);
+  const rowsFrobenius = frobeniusNorm(faceRows);
+  const blockFrobenius = frobeniusNorm(faceBlock);
+  const productRounding =
+    scale * n * isometryFrobenius * frobeniusNorm(combination.sum) * (1 + 2 * (1 + gram)) +
+    scale * n * rowsFrobenius * isometryFrobenius * Math.sqrt(1 + gram) +
+    scale * k * blockFrobenius * isometryFrobenius +
+    UNIT_ROUNDOFF * (rowsFrobenius + frobeniusNorm(back));
+  const gramian = multiplyAdjointRight(cross, cross);
+  const top = eigvalsh(gramian);
+  const crossFrobenius = frobeniusNorm(cross);
+  const squared = Math.max(0, top[top.length - 1] ?? 0) + scale * k * frobeniusNorm(gramian) + scale * n * crossFrobenius ** 2;
+  const computed = Math.sqrt(squared) + productRounding + Math.sqrt(1 + gram) * (2 + gram) * combination.rounding;
+  return (computed + (1 + gram) ** 1.5 * (gram / (1 - gram)) * combination.operatorNorm) / Math.sqrt(1 - gram);
 }

@@ -9,7 +9,7 @@ import { ComplexMatrix, scale, traceProductReal } from '../../src/linear-algebra
 import { createObjective } from '../../src/objectives/index.js';
 import { faceContinuityMargin, feasibleFace, type FeasibleFace } from '../../src/problem/feasible-face.js';
 import type { Problem } from '../../src/problem/model.js';
-import { randomDensity, seededRandom } from '../helpers/random.js';
+import { randomDensity, randomHermitian, seededRandom } from '../helpers/random.js';
 import { referenceEigenvalues } from './reference.js';
 
 /** Von Neumann entropy in bits from mathjs eigenvalues (reference.ts). */
@@ -99,34 +99,70 @@ describe('continuity margin on an exposed face', () => {
     }
   });
 
-  it('charges the constraint shift min(Σ(y⁺ + y⁻)‖Γ‖_F, ‖Σ(y⁺ − y⁻)Γ‖_∞)·2t, is 0 without exposures and Infinity where nothing is derived', () => {
-    const { face, problem } = syntheticFace(1e-10);
+  it('charges the constraint shift min(Σ(y⁺ + y⁻)‖Γ‖_F·2t, ‖Y‖_∞·2t, 2√ε‖ΠYQ‖_∞ + 2ε‖Y‖_∞), is 0 without exposures and Infinity where nothing is derived', () => {
+    const leak = 1e-10;
+    const { face, problem } = syntheticFace(leak);
     const t = 1e-5 + 0.5e-10;
     const base = faceContinuityMargin(face, problem, 'von-neumann', [0], [0], 0);
-    // Γ = 1 on C^4, y = 3: ‖3·1‖_∞ = 3 against Σ(y⁺ + y⁻)‖Γ‖_F = 3·2.
-    expect(faceContinuityMargin(face, problem, 'von-neumann', [3], [0], 0) - base).toBeCloseTo(3 * 2 * t, 15);
+    const shift = (operators: ComplexMatrix[], lower: number[], upper: number[]) =>
+      faceContinuityMargin({ ...face, constraintOperators: operators }, problem, 'von-neumann', lower, upper, 0) - base;
+    // The face is span{|0⟩, |1⟩, |2⟩} of C^4. Y = 3·1 has no block between the face and |3⟩: only 2ε·‖Y‖_∞ = 6ε.
+    const identity = ComplexMatrix.identity(4);
+    expect(shift([identity], [3], [0])).toBeCloseTo(6 * leak, 15);
     expect(faceContinuityMargin({ ...face, exposures: [], leak: 0 }, problem, 'von-neumann', [3], [0], 0)).toBe(0);
     expect(faceContinuityMargin(face, problem, 'petz-up', [0], [0], 0)).toBe(Infinity);
     expect(faceContinuityMargin({ ...face, leak: Infinity }, problem, 'von-neumann', [0], [0], 0)).toBe(Infinity);
-    // Multipliers whose combination cancels (the same operator with y⁺ = y⁻ = 3) shift by ‖Σ(y⁺ − y⁻)Γ‖_F = 0 plus
-    // its rounding allowance, not by Σ(y⁺ + y⁻)‖Γ‖_F = 12.
-    const identity = ComplexMatrix.identity(4);
-    const cancelling = faceContinuityMargin({ ...face, constraintOperators: [identity, identity] }, problem, 'von-neumann', [3, 0], [0, 3], 0) - base;
+    // Multipliers whose combination cancels (the same operator with y⁺ = y⁻ = 3): only the rounding allowances.
+    const cancelling = shift([identity, identity], [3, 0], [0, 3]);
     expect(cancelling).toBeGreaterThanOrEqual(0);
     expect(cancelling).toBeLessThan(1e-18);
-    // Γ = (1, 2·1) with y = (3, −3): ‖3·1 − 6·1‖_∞ = 3 against Σ(y⁺ + y⁻)‖Γ‖_F = 6 + 12; the smaller is charged.
-    const doubled = scale(identity, 2);
-    const partly = faceContinuityMargin({ ...face, constraintOperators: [identity, doubled] }, problem, 'von-neumann', [3, 0], [0, 3], 0) - base;
-    expect(partly).toBeCloseTo(3 * 2 * t, 12);
-    expect(partly).toBeGreaterThanOrEqual(3 * 2 * t);
-    // A combination whose operator norm is below its Frobenius norm: Y = 3·diag(1, −1, 0, 0), ‖Y‖_∞ = 3, ‖Y‖_F = 3√2.
-    const traceless = faceContinuityMargin({ ...face, constraintOperators: [diagonal([1, -1, 0, 0])] }, problem, 'von-neumann', [3], [0], 0) - base;
-    expect(traceless).toBeCloseTo(3 * 2 * t, 12);
-    expect(traceless).toBeGreaterThanOrEqual(3 * 2 * t);
+    // A block across the face, Y = 3·(|0⟩⟨3| + |3⟩⟨0|): ‖ΠYQ‖_∞ = ‖Y‖_∞ = 3, so the whole-operator charge 3·2t is
+    // the smaller one.
+    const across = new ComplexMatrix(4, 4);
+    across.re[0 * 4 + 3] = 1;
+    across.re[3 * 4 + 0] = 1;
+    expect(shift([across], [3], [0])).toBeCloseTo(3 * 2 * t, 12);
+    expect(shift([across], [3], [0])).toBeGreaterThanOrEqual(3 * 2 * t);
+    // Both: Y = |0⟩⟨3| + |3⟩⟨0| + 10·|3⟩⟨3|, ‖ΠYQ‖_∞ = 1, ‖Y‖_∞ = 5 + √26 (eigenvalues of [[0, 1], [1, 10]]):
+    // by blocks 2√ε·1 + 2ε·(5 + √26), far below (5 + √26)·2t.
+    const mixed = across.clone();
+    mixed.re[3 * 4 + 3] = 10;
+    const byBlocks = 2 * Math.sqrt(leak) + 2 * leak * (5 + Math.sqrt(26));
+    expect(shift([mixed], [1], [0])).toBeCloseTo(byBlocks, 12);
+    expect(shift([mixed], [1], [0])).toBeGreaterThanOrEqual(byBlocks);
     // An isometry orthonormal only to g: the bound is scaled by Tr X ∈ [1/(1 + g), 1/(1 − g)] (homogeneity of F).
     const g = 1e-3;
     expect(faceContinuityMargin({ ...face, gramDefect: g }, problem, 'von-neumann', [0], [0], -2) - base).toBeCloseTo((g / (1 - g)) * 2, 12);
     expect(faceContinuityMargin({ ...face, gramDefect: undefined }, problem, 'von-neumann', [0], [0], 0)).toBe(Infinity);
+  });
+
+  it('the block split holds: |Tr Y(ρ − σ)| ≤ 2√ε·‖ΠYQ‖_∞ + 2ε·‖Y‖_∞ for states tilted off the face (mathjs norms)', () => {
+    // ρ = |ψ⟩⟨ψ| with ψ = √(1 − ε)·a + √ε·e₃ (a a unit vector on the face span{e₀, e₁, e₂}), σ = |a⟩⟨a| its
+    // normalised projection; Y random Hermitian. Operator norms from mathjs eigenvalues, not the project's code.
+    const rng = seededRandom(23);
+    for (let trial = 0; trial < 30; trial++) {
+      const leak = 10 ** -(2 + (trial % 8));
+      const y = randomHermitian(4, rng);
+      const a = [rng() - 0.5, rng() - 0.5, rng() - 0.5];
+      const norm = Math.hypot(...a);
+      const psi = [...a.map((v) => (Math.sqrt(1 - leak) * v) / norm), Math.sqrt(leak)];
+      const rho = new ComplexMatrix(4, 4);
+      const sigma = new ComplexMatrix(4, 4);
+      for (let i = 0; i < 4; i++) {
+        for (let j = 0; j < 4; j++) {
+          rho.re[i * 4 + j] = psi[i] * psi[j];
+          if (i < 3 && j < 3) sigma.re[i * 4 + j] = (a[i] * a[j]) / norm ** 2;
+        }
+      }
+      const difference = rho.clone();
+      for (let i = 0; i < 16; i++) difference.re[i] -= sigma.re[i];
+      const pairing = Math.abs(traceProductReal(y, difference));
+      // ΠYQ is the column e₃ of Y restricted to rows 0..2: its operator norm is that column's length.
+      const crossColumn = Math.hypot(...[0, 1, 2].flatMap((i) => [y.re[i * 4 + 3], y.im[i * 4 + 3]]));
+      const values = referenceEigenvalues(y);
+      const yNorm = Math.max(Math.abs(values[0]), Math.abs(values[values.length - 1]));
+      expect(pairing).toBeLessThanOrEqual(2 * Math.sqrt(leak) * crossColumn + 2 * leak * yNorm + 1e-15);
+    }
   });
 });
 
