@@ -13,7 +13,7 @@ import {
 } from '../linear-algebra/complex-matrix.js';
 import type { LinearConstraint } from '../problem/model.js';
 import { dampedNewton, meetsHeldRows, type FaceEvaluation } from './face-newton.js';
-import { addHermitianCoordinates, hermitianCoordinates } from './rank-manifold.js';
+import { addHermitianCoordinates, dot, hermitianCoordinates } from './rank-manifold.js';
 
 export interface CentralPathOptions {
   /** The barrier weight of the first centring. */
@@ -50,13 +50,7 @@ const CENTRED = 0.1;
  * central path the Frank–Wolfe gap is at most μ·ν (derived in docs/convergence.md).
  */
 export function barrierParameter(n: number, constraints: readonly LinearConstraint[]): number {
-  let sides = 0;
-  for (const c of constraints) {
-    if (c.lower === c.upper) continue;
-    if (Number.isFinite(c.lower)) sides++;
-    if (Number.isFinite(c.upper)) sides++;
-  }
-  return n + sides;
+  return n + intervalSides(constraints).length;
 }
 
 /** At least n² − (equalities + 1) tangent coordinates: decided before any n³ work (d = 128 has 16,384). */
@@ -82,14 +76,13 @@ function intervalSides(constraints: readonly LinearConstraint[]): Side[] {
   return sides;
 }
 
-function slackOf(side: Side, state: ComplexMatrix): number {
-  return side.sign * (traceProductReal(side.operator, state) - side.bound);
+/** a·m·a for Hermitian a and m (the scalings of this module), made exactly Hermitian. */
+function sandwich(a: ComplexMatrix, m: ComplexMatrix): ComplexMatrix {
+  return hermitianPart(multiply(multiply(a, m), a));
 }
 
-function dot(a: Float64Array, b: Float64Array): number {
-  let s = 0;
-  for (let i = 0; i < a.length; i++) s += a[i] * b[i];
-  return s;
+function slackOf(side: Side, state: ComplexMatrix): number {
+  return side.sign * (traceProductReal(side.operator, state) - side.bound);
 }
 
 /** What the path reached: the last centred point, and how many weights were centred. */
@@ -197,7 +190,7 @@ function stepsInFrame<E extends FaceEvaluation>(
     hermitianCoordinates(a, out);
     return out;
   };
-  const scaled = (a: ComplexMatrix) => coordinatesOf(hermitianPart(multiply(multiply(half, a), half)));
+  const scaled = (a: ComplexMatrix) => coordinatesOf(sandwich(half, a));
   // Trace (ρ^½·1·ρ^½ = ρ) and the equalities, in scaled coordinates; their null space is the tangent space.
   const rows = [scaled(ComplexMatrix.identity(n)), ...equalities.map((c) => scaled(c.operator))];
   const tangent = nullSpace(rows, m);
@@ -214,7 +207,7 @@ function stepsInFrame<E extends FaceEvaluation>(
     addHermitianCoordinates(inner, coordinates);
     return inner;
   };
-  const outerOf = (inner: ComplexMatrix) => hermitianPart(multiply(multiply(half, inner), half));
+  const outerOf = (inner: ComplexMatrix) => sandwich(half, inner);
   const directions = tangent.map(innerOf);
   const sideRows = sides.map((s) => reduce(scaled(s.operator)));
 
@@ -254,7 +247,7 @@ function stepsInFrame<E extends FaceEvaluation>(
       sides.forEach((s, q) => (gradient[j] -= (weight * s.sign * sideRows[q][j]) / slacks[q]));
     }
     // The barrier's Hessian: the identity in the frame's own step, Tr(A⁻¹D_iA⁻¹D_j) after it.
-    const barrier = step === 0 ? null : directions.map((d) => reduce(coordinatesOf(hermitianPart(multiply(multiply(inverse, d), inverse)))));
+    const barrier = step === 0 ? null : directions.map((d) => reduce(coordinatesOf(sandwich(inverse, d))));
     const symmetric = new Matrix(k, k);
     for (let i = 0; i < k; i++) {
       for (let j = i; j < k; j++) {
@@ -279,7 +272,7 @@ function stepsInFrame<E extends FaceEvaluation>(
 
     // ρ + t·ρ_x^½Dρ_x^½ = ρ_x^½(A + tD)ρ_x^½: the longest step keeping it and every slack positive, from the
     // eigenvalues of A^{-½}DA^{-½}, then halved until φ_μ decreases enough.
-    const innerValues = eigvalsh(hermitianPart(multiply(multiply(inverseHalf, inner), inverseHalf)));
+    const innerValues = eigvalsh(sandwich(inverseHalf, inner));
     let longest = 1;
     if (innerValues[0] < 0) longest = Math.min(longest, -TO_BOUNDARY / innerValues[0]);
     const sideRates = sides.map((s) => s.sign * traceProductReal(s.operator, move));

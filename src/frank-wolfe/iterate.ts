@@ -125,7 +125,7 @@ function iterateOnce(setup: SolverSetup, state: SolverState): IterationOutcome {
     const consulted = consultOracle(setup, state, split);
     if (consulted === 'stop' || 'failure' in consulted) return consulted;
     answer = consulted.answer;
-    if (zeroEntropyMove(setup, state) || centralPathMove(setup, state) || faceNewtonMove(setup, state, consulted.multipliers)) return 'continue';
+    if (moveAfterOracle(setup, state, consulted.multipliers)) return 'continue';
   }
 
   if (tryQuasiNewton && quasiNewtonStep(setup, state, split)) return 'continue';
@@ -136,10 +136,15 @@ function iterateOnce(setup: SolverSetup, state: SolverState): IterationOutcome {
     const consulted = consultOracle(setup, state, split);
     if (consulted === 'stop' || 'failure' in consulted) return consulted;
     answer = consulted.answer;
-    if (zeroEntropyMove(setup, state) || centralPathMove(setup, state) || faceNewtonMove(setup, state, consulted.multipliers)) return 'continue';
+    if (moveAfterOracle(setup, state, consulted.multipliers)) return 'continue';
   }
   pairwiseStep(setup, state, answer.point as ComplexMatrix);
   return 'continue';
+}
+
+/** After an oracle call: the moves that leave Frank–Wolfe's step for a better point, in the order they are tried. */
+function moveAfterOracle(setup: SolverSetup, state: SolverState, multipliers: Multipliers): boolean {
+  return zeroEntropyMove(setup, state) || centralPathMove(setup, state) || faceNewtonMove(setup, state, multipliers);
 }
 
 /** The zero-entropy test waits for this many oracle calls: by then Frank–Wolfe's gap estimate excludes most problems. */

@@ -211,7 +211,7 @@ function heldRows(constraints: readonly LinearConstraint[], held: readonly HeldS
   return rows;
 }
 
-function dot(a: ArrayLike<number>, b: ArrayLike<number>): number {
+export function dot(a: ArrayLike<number>, b: ArrayLike<number>): number {
   let s = 0;
   for (let i = 0; i < a.length; i++) s += a[i] * b[i];
   return s;
