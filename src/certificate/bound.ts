@@ -1,18 +1,19 @@
 import {
-  addScaledInPlace,
   ComplexMatrix,
   conjugate,
   conjugateAdjoint,
   directSum,
   frobeniusNorm,
   hermiticityDefect,
-  traceProductReal,
 } from '../linear-algebra/complex-matrix.js';
 import { eigh, eigvalsh } from '../linear-algebra/eigen.js';
 import type { Objective, ObjectiveEvaluation, ReferenceBlocks, BranchSupport, IdentitySplit } from '../objectives/index.js';
 import type { Problem } from '../problem/model.js';
 import { compressToFace, faceContinuityMargin, type FeasibleFace } from '../problem/feasible-face.js';
 import { matrixFromJson } from '../problem/json.js';
+import { liftedFaceBound } from './lifted-face.js';
+import { dualPart } from './dual-term.js';
+import type { BoundBreakdown } from './breakdown.js';
 import type { Certificate } from '../result/types.js';
 import { pinchedBlocks } from '../objectives/spectral-blocks.js';
 import { isKeyless } from '../objectives/branch-supports.js';
@@ -21,26 +22,7 @@ import { logCoefficient } from '../objectives/objective.js';
 // The margin uses the eigensolver backward-error scale c·n·u·‖A‖_F (docs/math.md §5).
 import { BACKWARD_ERROR_CONSTANT as MARGIN_CONSTANT, UNIT_ROUNDOFF } from '../linear-algebra/rounding.js';
 
-/** Every term of LB = F(ρ') − ⟨∇F, ρ'⟩ + Σy⁺ℓ − Σy⁻u + λ_min(∇F − Σ yΓ) [+ τ terms] − margin. */
-export interface BoundBreakdown {
-  objectiveValue: number;
-  /** ⟨∇F(ρ'), ρ'⟩ (sandwiched-up: jointly with ⟨∇_τF, τ'⟩), by Euler's identity for homogeneous functions. */
-  gradientInnerProduct: number;
-  dualConstant: number;
-  smallestEigenvalue: number;
-  /** Sandwiched-up: min over blocks λ_min(∇_τF); 0 otherwise. */
-  referenceTerm: number;
-  /** Floating-point allowance (a conservative estimate, not interval arithmetic). */
-  margin: number;
-  /**
-   * The part of the margin for the branch outputs' conditioning: the Weyl charge, or less when the curvature of F on
-   * the smallest eigenvectors of ∇F − Σ yΓ shows that those errors do not reach λ_min (docs/convergence.md).
-   */
-  conditioningCharge: number;
-  lowerBound: number;
-  /** Σ (y⁺ + y⁻)·(upper − lower)/2: what the statistical tolerance intervals cost the bound. */
-  statisticalSlack: number;
-}
+export type { BoundBreakdown } from './breakdown.js';
 
 /**
  * The certified lower bound from a full-rank linearization point on the feasible face (docs/math.md §5 restated in
@@ -93,26 +75,7 @@ export function linearizationBound(
     evaluationConditioning = evaluation.conditioning ?? 1;
     derivedConditioning = evaluation.derivedConditioning;
   }
-  const shifted = gradient.clone();
-  let dualConstant = 0;
-  let statisticalSlack = 0;
-  let multiplierWeight = 0;
-  restricted.constraints.forEach((constraint, i) => {
-    const yLower = multipliersLower[i];
-    const yUpper = multipliersUpper[i];
-    if (yLower === 0 && yUpper === 0) return;
-    addScaledInPlace(shifted, constraint.operator, -(yLower - yUpper));
-    // An open side (±∞) carries a zero multiplier; skipping it avoids 0·∞.
-    if (yLower !== 0) dualConstant += yLower * constraint.lower;
-    if (yUpper !== 0) dualConstant -= yUpper * constraint.upper;
-    // A one-sided constraint has no tolerance interval to pay for, and only its finite bound enters the scale.
-    const lower = Number.isFinite(constraint.lower) ? constraint.lower : 0;
-    const upper = Number.isFinite(constraint.upper) ? constraint.upper : 0;
-    if (Number.isFinite(constraint.lower) && Number.isFinite(constraint.upper)) {
-      statisticalSlack += ((yLower + yUpper) * (constraint.upper - constraint.lower)) / 2;
-    }
-    multiplierWeight += (yLower + yUpper) * (frobeniusNorm(constraint.operator) + Math.abs(lower) + Math.abs(upper));
-  });
+  const { shifted, dualConstant, statisticalSlack, multiplierWeight } = dualPart(restricted, gradient, multipliersLower, multipliersUpper);
   const spectrum = eigh(shifted);
   const gradientInnerProduct = eulerInnerProduct(objective, objectiveValue);
   // The stated λ_min(∇F − Σ yΓ) keeps its meaning; the bound itself adds the split's parts without cancellation.
@@ -196,13 +159,14 @@ const STATE_HERMITICITY_TOLERANCE = 1e-12;
 export function readStoredLinearization(
   face: FeasibleFace,
   objective: Objective,
-  certificate: Pick<Certificate, 'linearizationState' | 'referenceStates'>,
+  certificate: Pick<Certificate, 'linearizationState' | 'referenceStates' | 'linearizationOffFace'>,
 ): StoredLinearization {
   const stored = matrixFromJson(certificate.linearizationState, 'certificate.linearizationState');
   const d = face.isometry ? face.isometry.rows : face.dimension;
   if (stored.rows !== d || stored.cols !== d) throw new RangeError(`linearization state must be ${d}x${d}`);
   if (hermiticityDefect(stored) > STATE_HERMITICITY_TOLERANCE) throw new RangeError('linearization state is not Hermitian');
-  const state = compressToFace(face, stored);
+  // A lifted point is used as stored, on the whole space (docs/faces.md, "The lifted linearization bound").
+  const state = certificate.linearizationOffFace ? stored : compressToFace(face, stored);
   const references = certificate.referenceStates;
   const reference =
     objective.request.kind === 'sandwiched-up' && references
@@ -222,9 +186,19 @@ export function certificateBreakdown(
   face: FeasibleFace,
   restricted: Problem,
   objective: Objective,
-  certificate: Pick<Certificate, 'linearizationState' | 'referenceStates' | 'multipliersLower' | 'multipliersUpper'>,
-  read: StoredLinearization = readStoredLinearization(face, objective, certificate),
+  certificate: Pick<Certificate, 'linearizationState' | 'referenceStates' | 'multipliersLower' | 'multipliersUpper' | 'linearizationOffFace'>,
+  stored?: StoredLinearization,
+  /** The problem and objective on the whole space, for a lifted point (`linearizationOffFace`). */
+  whole?: { problem: Problem; objective: Objective },
 ): BoundBreakdown {
+  if (certificate.linearizationOffFace) {
+    if (!whole) throw new Error('certificateBreakdown: a lifted point needs the whole-space problem');
+    // τ' of a lifted point lives on the whole space's output supports.
+    const lifted = stored ?? readStoredLinearization(face, whole.objective, certificate);
+    const { multipliersLower, multipliersUpper } = certificate;
+    return liftedFaceBound(face, whole.problem, whole.objective, lifted.state, multipliersLower, multipliersUpper, lifted.reference);
+  }
+  const read = stored ?? readStoredLinearization(face, objective, certificate);
   const breakdown = linearizationBound(
     restricted,
     objective,

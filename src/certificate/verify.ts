@@ -1,6 +1,5 @@
 // Independent re-check of a certificate: no optimiser code is imported here (a test enforces it).
 import { eigvalsh } from '../linear-algebra/eigen.js';
-import { BACKWARD_ERROR_CONSTANT, UNIT_ROUNDOFF } from '../linear-algebra/rounding.js';
 import { createObjective } from '../objectives/index.js';
 import { dropInactiveBounds, reduceProblem } from '../problem/inactive-bounds.js';
 import { FaceExposureError, feasibleFace, restrictToFace, type FeasibleFace } from '../problem/feasible-face.js';
@@ -10,6 +9,7 @@ import { matrixFromJson } from '../problem/json.js';
 import { FEASIBILITY_TOLERANCE, relativeConstraintViolation } from '../problem/violation.js';
 import type { EntropyRequest, Problem } from '../problem/model.js';
 import type { Certificate, FarkasCertificate, SolveResult } from '../result/types.js';
+import { hasLiftedFaceBound } from './lifted-face.js';
 import { certificateBreakdown, readStoredLinearization, type BoundBreakdown, type StoredLinearization } from './bound.js';
 import { hasMinTradeoff, minTradeoffFromBreakdown, minTradeoffMismatch } from './min-tradeoff.js';
 import { trivialLowerBound } from './trivial-bound.js';
@@ -138,12 +138,15 @@ function checkUpperBound(problem: Problem, request: EntropyRequest, result: Resu
  * The feasible face as the verifier recomputes it: the exact reductions, then the certificate's exposing
  * directions, each re-checked (FaceExposureError when one is not positive semidefinite or exposes nothing).
  */
-function reduceOnFace(problem: Problem, exposures: Certificate['faceExposures']): { face: FeasibleFace; restricted: Problem } {
-  if (exposures === undefined || exposures.length === 0) return reduceProblem(problem);
+function reduceOnFace(problem: Problem, exposures: Certificate['faceExposures']): { face: FeasibleFace; restricted: Problem; active: Problem } {
+  if (exposures === undefined || exposures.length === 0) {
+    const reduced = reduceProblem(problem);
+    return { ...reduced, active: reduced.active.problem };
+  }
   if (!Array.isArray(exposures)) throw new FaceExposureError('faceExposures', 'must be a list of exposures');
   const active = dropInactiveBounds(problem).problem;
   const face = feasibleFace(active, { exposures });
-  return { face, restricted: restrictToFace(active, face) };
+  return { face, restricted: restrictToFace(active, face), active };
 }
 
 /** Null when the stated min-tradeoff function is the certificate's (or none is stated); otherwise why not. */
@@ -189,25 +192,33 @@ export function verifyCertificate(
     if (error instanceof FaceExposureError) return reject(`faceExposures: ${error.message}`);
     throw error;
   }
-  const { face, restricted } = reduced;
+  const { face, restricted, active } = reduced;
   const objective = createObjective(restricted, request);
+  if (certificate.linearizationOffFace !== undefined) {
+    if (certificate.linearizationOffFace !== true) return reject('linearizationOffFace: must be true or absent');
+    if (!face.isometry || face.exposures.length === 0) return reject('linearizationOffFace: needs a face from faceExposures');
+    if (!hasLiftedFaceBound(request.kind)) return reject(`linearizationOffFace: no lifted face bound is derived for ${request.kind}`);
+  }
   const references = certificate.referenceStates;
   if (objective.request.kind === 'sandwiched-up' && (!references || references.length !== objective.supports.length)) {
     return reject(`sandwiched-up needs ${objective.supports.length} reference states`);
   }
+  const whole = certificate.linearizationOffFace ? { problem: active, objective: createObjective(active, request) } : undefined;
   let read: StoredLinearization;
   try {
-    read = readStoredLinearization(face, objective, certificate);
+    read = readStoredLinearization(face, whole?.objective ?? objective, certificate);
   } catch (error) {
     return reject((error as Error).message);
   }
-  if (!(eigvalsh(read.state)[0] > 0)) return reject('linearization state is not full rank on the feasible face');
+  if (!(eigvalsh(read.state)[0] > 0)) {
+    return reject(`linearization state is not full rank on ${certificate.linearizationOffFace ? 'H_A ⊗ H_B' : 'the feasible face'}`);
+  }
   for (const blocks of read.reference ?? []) {
     for (const block of blocks) {
       if (!(eigvalsh(block)[0] > 0)) return reject('reference state τ is not full rank on every key block');
     }
   }
-  const breakdown = certificateBreakdown(face, restricted, objective, certificate, read);
+  const breakdown = certificateBreakdown(face, restricted, objective, certificate, read, whole);
   if (!Number.isFinite(breakdown.lowerBound)) return reject('recomputed bound is not finite');
   if (breakdown.lowerBound < claimed) {
     return reject(`recomputed bound ${breakdown.lowerBound} is below the claimed ${claimed}`, breakdown.lowerBound);

@@ -3,13 +3,15 @@ import { liftFromFace } from '../problem/feasible-face.js';
 import { matrixFromJson, matrixToJson } from '../problem/json.js';
 import type { Problem } from '../problem/model.js';
 import { constraintViolations, FEASIBILITY_TOLERANCE } from '../problem/violation.js';
-import { certificateBreakdown, referenceFromSupport } from '../certificate/bound.js';
+import { certificateBreakdown, referenceFromSupport, type BoundBreakdown } from '../certificate/bound.js';
+import { faceBlocks, hasLiftedFaceBound, liftedPoint, LIFT_WEIGHTS } from '../certificate/lifted-face.js';
+import { createObjective } from '../objectives/index.js';
 import { hasMinTradeoff, minTradeoffFromBreakdown } from '../certificate/min-tradeoff.js';
 import { trivialLowerBound } from '../certificate/trivial-bound.js';
 import { upperBoundAt } from '../certificate/upper-bound.js';
 import { SOLVER_VERSION } from '../certificate/version.js';
 import type { Certificate, MinTradeoffFunction, SolveResult } from '../result/types.js';
-import type { CertifiedPoint, ResultBase, RunClock, SolverSetup, SolverState } from './state.js';
+import { evaluateSafely, type CertifiedPoint, type ResultBase, type RunClock, type SolverSetup, type SolverState } from './state.js';
 
 /** A result without a bound (the status is overridden for infeasible data and early cancellation). */
 export function resultWithoutBound(base: ResultBase, clock: RunClock, message: string, iterations: number): SolveResult {
@@ -58,6 +60,52 @@ export function infeasibleResult(
  * from the stored numbers), raised to the trivial bound when lower or missing. The upper bound is F at the final
  * state when that state meets every constraint within FEASIBILITY_TOLERANCE; CERTIFIED needs it, and 0 ≤ gap ≤ request.
  */
+type StoredCertificate = Pick<
+  Certificate,
+  'linearizationState' | 'referenceStates' | 'multipliersLower' | 'multipliersUpper' | 'linearizationOffFace'
+>;
+
+/**
+ * On an exposed face, the lifted linearization bound at the certified face state lifted off the face by each of
+ * LIFT_WEIGHTS (docs/faces.md, "The lifted linearization bound"); the best, when it beats the continuity margin's.
+ */
+function liftedCertificate(
+  setup: SolverSetup,
+  certified: CertifiedPoint,
+  onFace: StoredCertificate,
+  faceBound: number,
+): { stored: StoredCertificate; claimed: BoundBreakdown } | null {
+  const { face, restricted, objective, entropy, activeProblem } = setup;
+  if (face.exposures.length === 0 || !face.isometry || !hasLiftedFaceBound(entropy.kind)) return null;
+  const whole = { problem: activeProblem, objective: createObjective(activeProblem, entropy) };
+  const blocks = faceBlocks(face);
+  let best: { stored: StoredCertificate; claimed: BoundBreakdown } | null = null;
+  for (const weight of LIFT_WEIGHTS) {
+    const point = liftedPoint(face, blocks, certified.state, weight);
+    // Sandwiched-up: τ' is the inner optimum at the lifted point, on the whole space's output supports.
+    const reference = entropy.kind === 'sandwiched-up' ? evaluateSafely(whole.objective, point)?.reference : undefined;
+    if (entropy.kind === 'sandwiched-up' && !reference) continue;
+    const stored = {
+      ...onFace,
+      linearizationState: matrixToJson(point),
+      referenceStates: reference
+        ? whole.objective.supports.map((support, c) => matrixToJson(referenceFromSupport(support, reference[c])))
+        : undefined,
+      linearizationOffFace: true,
+    };
+    let claimed: BoundBreakdown;
+    try {
+      claimed = certificateBreakdown(face, restricted, objective, stored, undefined, whole);
+    } catch (error) {
+      // A kernel's RangeError at one lifted point (non-finite data) leaves the others.
+      if (error instanceof RangeError) continue;
+      throw error;
+    }
+    if (claimed.lowerBound > (best?.claimed.lowerBound ?? faceBound)) best = { stored, claimed };
+  }
+  return best;
+}
+
 export function assembleResult(setup: SolverSetup, state: SolverState): SolveResult {
   const { base, clock, face, restricted, objective, settings, problem } = setup;
   const trivialBound = trivialLowerBound(problem);
@@ -68,7 +116,7 @@ export function assembleResult(setup: SolverSetup, state: SolverState): SolveRes
   let minTradeoff: MinTradeoffFunction | undefined;
   if (state.best !== null) {
     const certified: CertifiedPoint = state.best;
-    const stored = {
+    let stored: StoredCertificate = {
       linearizationState: matrixToJson(liftFromFace(face, certified.state)),
       referenceStates: certified.reference
         ? objective.supports.map((support, c) => matrixToJson(referenceFromSupport(support, certified.reference![c])))
@@ -76,7 +124,9 @@ export function assembleResult(setup: SolverSetup, state: SolverState): SolveRes
       multipliersLower: Array.from(certified.multipliersLower),
       multipliersUpper: Array.from(certified.multipliersUpper),
     };
-    const claimed = certificateBreakdown(face, restricted, objective, stored);
+    let claimed = certificateBreakdown(face, restricted, objective, stored);
+    const lifted = liftedCertificate(setup, certified, stored, claimed.lowerBound);
+    if (lifted) ({ stored, claimed } = lifted);
     if (Number.isFinite(claimed.lowerBound)) {
       certifiedBound = claimed.lowerBound;
       margin = claimed.margin;

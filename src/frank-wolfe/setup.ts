@@ -5,6 +5,7 @@ import { eigvalsh } from '../linear-algebra/eigen.js';
 import { numericalRank } from '../linear-algebra/support.js';
 import { createObjective, normaliseRequest } from '../objectives/index.js';
 import { exposeIfRankDeficient, LinearOracle } from '../oracle/index.js';
+import { faceBoundApplies } from '../certificate/lifted-face.js';
 import { compressToFace, liftFromFace, type FeasibleFace } from '../problem/feasible-face.js';
 import { farkasTest } from '../problem/farkas.js';
 import { equalityFarkas } from '../problem/equality-farkas.js';
@@ -54,7 +55,7 @@ export function setUp(
   // No full-rank feasible state: restate the problem on the face its exposing direction finds (docs/faces.md).
   const exposed = exposeFace
     ? clock.timeOracle(() =>
-        exposeIfRankDeficient(active.problem, entropy.kind, feasible, { checkpoint, settings: { relativeAccuracy: TUNING.initialOracleAccuracy } }),
+        exposeIfRankDeficient(active.problem, () => faceBoundApplies(active.problem, entropy), feasible, { checkpoint, settings: { relativeAccuracy: TUNING.initialOracleAccuracy } }),
       )
     : null;
   // The exposed face replaces the full space even when its continuity margin keeps it from certifying the request:
@@ -113,6 +114,7 @@ export function setUp(
   }
   const setup: SolverSetup = {
     problem,
+    activeProblem: active.problem,
     settings,
     control,
     entropy,

@@ -77,6 +77,8 @@ export class RunClock {
 /** Fixed by set-up for the whole run. */
 export interface SolverSetup {
   problem: Problem;
+  /** The problem with inactive bounds dropped, on the whole space (the lifted face bound linearizes there). */
+  activeProblem: Problem;
   settings: SolverSettings;
   control: SolveControl;
   entropy: Required<EntropyRequest>;

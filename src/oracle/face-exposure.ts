@@ -120,20 +120,22 @@ function centreViolation(problem: Problem, exposed: ExposedFace): number {
 
 /**
  * The solver's entry: when the most interior feasible point found is rank deficient, the face exposed in one step
- * with a finite leak and a full-rank analytic centre on it (the only case docs/faces.md derives a continuity margin
- * for, and only for von Neumann); null otherwise, and the caller keeps its face.
+ * with a finite leak and a full-rank analytic centre on it (the only case docs/faces.md derives a bound on a face
+ * for); null otherwise, and the caller keeps its face.
  */
 export function exposeIfRankDeficient(
   problem: Problem,
-  kind: string,
+  /** Whether a bound on an exposed face is derived for this problem and kind (the caller knows; docs/faces.md). */
+  faceBoundDerived: () => boolean,
   feasible: OracleResult,
   options: ExposeOptions = {},
 ): ExposedFace | null {
-  if (kind !== 'von-neumann' || feasible.status === 'INFEASIBLE' || !feasible.point) return null;
+  if (feasible.status === 'INFEASIBLE' || !feasible.point) return null;
   // A run that failed on the missing interior (NUMERICAL_ERROR, ITERATION_LIMIT) still shows the face in its point.
   const values = eigvalsh(feasible.point);
   const n = values.length;
   if (feasible.status === 'OPTIMAL' && values[0] > FACE_EIGENVALUE_RATIO * values[n - 1]) return null;
+  if (!faceBoundDerived()) return null;
   const exposed = exposeFeasibleFace(problem, options);
   const { face, feasible: onFace } = exposed;
   if (face.exposures.length !== 1 || !Number.isFinite(face.leak ?? Infinity)) return null;

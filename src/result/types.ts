@@ -43,6 +43,12 @@ export interface Certificate {
    * continuity margin (docs/faces.md). Absent when the exact reductions suffice.
    */
   faceExposures?: { multipliers: number[] }[];
+  /**
+   * With faceExposures: the linearization state is the full-rank point itself, lifted off the face, and the bound
+   * is taken by blocks over the face and its complement (docs/faces.md, "The lifted linearization bound"); absent
+   * when the state lies on the face and the continuity margin applies.
+   */
+  linearizationOffFace?: boolean;
 }
 
 /** The stored proof that no density operator meets the constraints (renyibound.v1.InfeasibilityCertificate). */

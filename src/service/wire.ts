@@ -116,6 +116,7 @@ function certificateToWire(certificate: Certificate): WireCertificate {
     solverVersion: certificate.solverVersion,
     settings: settingsToWire(certificate.settings),
     faceExposures: (certificate.faceExposures ?? []).map((e) => ({ multipliers: e.multipliers })),
+    linearizationOffFace: certificate.linearizationOffFace === true,
   };
 }
 
@@ -134,6 +135,7 @@ function certificateFromWire(wire: Certificate__Output): Certificate {
   };
   if (wire.referenceStates.length > 0) certificate.referenceStates = wire.referenceStates.map(matrixFromWire);
   if (wire.faceExposures.length > 0) certificate.faceExposures = wire.faceExposures.map((e) => ({ multipliers: [...e.multipliers] }));
+  if (wire.linearizationOffFace) certificate.linearizationOffFace = true;
   return certificate;
 }
 

@@ -1,5 +1,6 @@
 // Results survive the wire: solver result → SolveResult message → bytes → message → the same result.
 import { describe, expect, it } from 'vitest';
+import { randomModel } from '../../src/bench/random-models.js';
 import { solve } from '../../src/frank-wolfe/solve.js';
 import type { SolveResult } from '../../src/result/types.js';
 import { problemFromJson } from '../../src/problem/validate.js';
@@ -26,6 +27,13 @@ describe('wire conversion', () => {
     const infeasible = solve(problemFromJson(buildExample('chsh-tested', { 'win-probability': 0.9 })), { kind: 'von-neumann' });
     expect(infeasible.status).toBe('INFEASIBLE');
     expect(roundTrip(infeasible, false)).toEqual({ ...infeasible, fromCache: false });
+  });
+
+  it('round-trips a certificate lifted off an exposed face (faceExposures, linearizationOffFace)', () => {
+    const model = randomModel(16, 2);
+    const lifted = solve(model.problem, { kind: 'von-neumann' }, { gapTolerance: 1e-6 });
+    expect(lifted.certificate?.linearizationOffFace).toBe(true);
+    expect(roundTrip(lifted, false)).toEqual({ ...lifted, fromCache: false });
   });
 
   it('maps entropy kinds both ways and leaves UNSPECIFIED to the problem', () => {

@@ -18,6 +18,7 @@ export interface Certificate {
   'solverVersion'?: (string);
   'settings'?: (_renyibound_v1_SolverSettings | null);
   'faceExposures'?: (_renyibound_v1_FaceExposure)[];
+  'linearizationOffFace'?: (boolean);
   '_alpha'?: "alpha";
 }
 
@@ -34,5 +35,6 @@ export interface Certificate__Output {
   'solverVersion': (string);
   'settings': (_renyibound_v1_SolverSettings__Output | null);
   'faceExposures': (_renyibound_v1_FaceExposure__Output)[];
+  'linearizationOffFace': (boolean);
   '_alpha'?: "alpha";
 }

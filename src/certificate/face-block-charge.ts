@@ -1,0 +1,211 @@
+// What the branch outputs' rounding does to the face block of ∇F at a point lifted off an exposed face (docs/faces.md,
+// "The lifted linearization bound"): Daleckii–Krein over the clusters of large and small eigenvalues of the matrix
+// whose logarithm or negative power is taken. Used by the lifted face bound only.
+import {
+  addScaledInPlace,
+  ComplexMatrix,
+  conjugate,
+  conjugateAdjoint,
+  directSum,
+  frobeniusNorm,
+  hermitianPart,
+  multiply,
+  multiplyAdjointLeft,
+} from '../linear-algebra/complex-matrix.js';
+import { pinchedBlocks } from '../objectives/spectral-blocks.js';
+import { eigh } from '../linear-algebra/eigen.js';
+import { isKeyless, type BranchSupport } from '../objectives/branch-supports.js';
+import { branchWeight, sandwichedOrder, type Objective, type ReferenceBlocks } from '../objectives/index.js';
+
+/**
+ * The branch outputs' share of the error of the face block of ∇F (von Neumann). A backward error Δ of X = X_c's
+ * eigendecomposition (‖Δ‖_F ≤ scale·size_c, as in the curvature charge of docs/convergence.md) moves ln X by the
+ * Daleckii–Krein map U(Γ ∘ U†ΔU)U†, and the face block by Σ_j A_j†(Γ ∘ U†ΔU)A_j with A_j = U†K_jP̂.
+ */
+export function vonNeumannFaceCharge(objective: Objective, rho: ComplexMatrix, faceBasis: ComplexMatrix, scaleN: number): number {
+  const rhoNorm = frobeniusNorm(rho);
+  let total = 0;
+  for (const support of objective.supports) {
+    if (isKeyless(support)) continue;
+    const output = branchOutput(support, rho, 1);
+    const range = support.outputRange;
+    const eigen = eigh(hermitianPart(range ? conjugateAdjoint(range, output) : output));
+    const size = frobeniusNorm(output) + rhoNorm * support.krausOperators.reduce((w, k) => w + frobeniusNorm(k) ** 2, 0);
+    const maps = support.krausOperators.map((k) => (range ? multiplyAdjointLeft(range, multiply(k, faceBasis)) : multiply(k, faceBasis)));
+    total += clusterCharge(eigen, maps, logDividedDifference, scaleN * size) / Math.LN2;
+  }
+  return total;
+}
+
+/** w·Σ_j K_j·ρ·K_j† on the branch's support. */
+function branchOutput(support: BranchSupport, rho: ComplexMatrix, weight: number): ComplexMatrix {
+  const output = ComplexMatrix.zeros(support.dimension);
+  for (const k of support.krausOperators) addScaledInPlace(output, conjugate(k, rho), weight);
+  return output;
+}
+
+/** |ln^[1](a, b)|, decreasing in both arguments. */
+function logDividedDifference(a: number, b: number): number {
+  return a === b ? 1 / a : Math.log(a / b) / (a - b);
+}
+
+/**
+ * Bound on ‖Σ_j N_j†·Df(M)[E]·N_j‖ over Hermitian E with ‖E‖_F ≤ `error` (first order; Daleckii–Krein), for a scalar f
+ * whose divided difference |f^[1]| decreases in both arguments (ln, and t^p with −1 < p < 0). For a congruence
+ * E = F·M + M·F† (‖F‖_F ≤ error/2) pass `divided` = min(a, b)^p, which bounds |f^[1](a, b)·b| for t^p. In M's eigenbasis U,
+ * split the spectrum into the large eigenvalues B and the small ones S: |f^[1]| ≤ γ_BB = |f^[1](λ_B, λ_B)| on B×B,
+ * γ_BS = |f^[1](λ_B, λ_0)| across, γ_SS = |f^[1](λ_0, λ_0)| on S×S (λ_B the smallest of B, λ_0 of all), and
+ * ‖Γ ∘ Ẽ‖_F ≤ max|Γ|·‖E‖_F on each block, so the sum is at most error·Σ_j (b_j·γ_BB + 2√(b_j s_j)·γ_BS + s_j·γ_SS)
+ * with b_j, s_j the squared Frobenius norms of U†N_j's rows in B and in S. The split giving the least is taken.
+ * Infinity when the error is not well below λ_0 (first order would not hold).
+ */
+export function clusterCharge(
+  eigen: { values: Float64Array; vectors: ComplexMatrix },
+  maps: readonly ComplexMatrix[],
+  divided: (a: number, b: number) => number,
+  error: number,
+  /** The error is a congruence (1 + F)·M·(1 + F)† with ‖F‖ ≤ error instead of an additive one. */
+  relative = false,
+): number {
+  const { vectors } = eigen;
+  if (!(relative ? error < 0.1 : eigen.values[0] > 10 * error)) return Infinity;
+  // The exact matrix's eigenvalues lie within the error of the computed ones (Weyl; Ostrowski for a congruence), and
+  // the bounds decrease in both arguments, so lower them.
+  const values = Float64Array.from(eigen.values, (v) => (relative ? v * (1 - error) ** 2 : v - error));
+  const rowSquares = maps.map((map) => {
+    const a = multiplyAdjointLeft(vectors, map);
+    return Array.from({ length: a.rows }, (_, r) => {
+      let s = 0;
+      for (let c = 0; c < a.cols; c++) s += a.re[r * a.cols + c] ** 2 + a.im[r * a.cols + c] ** 2;
+      return s;
+    });
+  });
+  let best = Infinity;
+  for (let split = 0; split < values.length; split++) {
+    const large = values[split];
+    const within = divided(large, large);
+    const across = split === 0 ? 0 : divided(large, values[0]);
+    const small = split === 0 ? 0 : divided(values[0], values[0]);
+    let sum = 0;
+    for (const rows of rowSquares) {
+      let b = 0;
+      let s = 0;
+      rows.forEach((v, r) => (r < split ? (s += v) : (b += v)));
+      sum += b * within + 2 * Math.sqrt(b * s) * across + s * small;
+    }
+    best = Math.min(best, sum);
+  }
+  return error * best;
+}
+
+/** |(t^p)^[1](a, b)| for −1 < p < 0: convex and decreasing, so it decreases in both arguments. */
+function powerDividedDifference(p: number): (a: number, b: number) => number {
+  return (a, b) => {
+    const [low, high] = a < b ? [a, b] : [b, a];
+    // Close arguments: the derivative at the smaller one bounds the quotient and avoids its cancellation.
+    return high > low * (1 + 1e-6) ? (low ** p - high ** p) / (high - low) : -p * low ** (p - 1);
+  };
+}
+
+/** The shares of the lifted bound's margin that M_c = Y_c^s·X̂_c·Y_c^s carries (Petz-up and sandwiched-up). */
+export interface QuasiEntropyCharges {
+  /** On the face block of the matrix paired with σ (∇_ρF, or G = ∇_ρF − a·1 for sandwiched-up). */
+  face: number;
+  /** Sandwiched-up: on each λ_min of ∇_τF, formed from X̂τ^sW + Wτ^sX̂ with X̂τ^sW = τ^{−s}·M·W. */
+  reference: number;
+  /** On |δQ|/Q, Q = Σ_c w_c·Tr M_c^ω (branches without key take no negative power). */
+  relativeQuasiEntropy: number;
+}
+
+/**
+ * Both Rényi kinds built on M = Y^s·X̂·Y^s with W = ω·M^{ω−1}, s = (1 − ω)/(2ω): sandwiched-up with the fixed τ' as Y,
+ * X̂ = w_c·X_c and ω = β; Petz-up with Y = Z(X_c), X̂ = X_c and ω = 1/α (its gradient also holds Z(∇_Y q), ∇_Y q =
+ * D(t^s)(Y)[X̂Y^sW + WY^sX̂], pulled back to the face without grading). M's errors come in two forms:
+ * - additive, Y^s·Δ·Y^s from the backward error Δ of X̂'s eigendecomposition (‖Δ‖_F ≤ scale·size_c);
+ * - a congruence (1 + F)·M·(1 + F)†: Y^s's own error, F = δ(Y^s)·Y^{−s} with ‖δ(Y^s)‖ ≤ s·λ_min(Y)^{s−1}·‖δY‖ (for
+ *   Petz-up Y = Z(X̂) moves with Δ too), and the one-sided Jacobi factorisation of M = G·G†, G = Y^s·V·Λ^{1/2}, whose
+ *   columnwise relative backward error is a congruence with ‖F‖ ≤ scale·κ(Y^s) (Demmel & Veselić 1992).
+ * The face block takes `clusterCharge` for each (f = t^{ω−1}); the products X̂Y^sW = ω·Y^{−s}·M^ω − Δ·Y^s·W move with
+ * M^ω, Y^{−s} and Δ (below), then through D(t^s) at Y; Q moves by ω·λ_0^{ω−1}·‖E‖_1 and by the factor (1 + ‖F‖)^{2ω}. X_c must have full rank on its support
+ * (Infinity otherwise: the factor of M would then carry X's own small eigenvalues).
+ */
+export function quasiEntropyFaceCharges(
+  objective: Objective,
+  rho: ComplexMatrix,
+  faceBasis: ComplexMatrix,
+  scaleN: number,
+  quasiEntropy: number,
+  /** c/(Q·ln 2): ∇_ρF = factor·Σ_c w_c·(pulled-back branch gradient) for Petz-up; ∇_τF = factor·(…) for sandwiched-up. */
+  gradientFactor: number,
+  /** Sandwiched-up: τ' per branch (blocks on the support) and a, the coefficient of G's τ^s·(M^{β−1} − 1)·τ^s terms. */
+  sandwiched?: { references: ReferenceBlocks; identityCoefficient: number },
+): QuasiEntropyCharges {
+  const { alpha } = objective.request;
+  const order = sandwiched ? sandwichedOrder(alpha) : 1 / alpha;
+  const p = order - 1;
+  const s = (1 - order) / (2 * order);
+  const rhoNorm = frobeniusNorm(rho);
+  const divided = powerDividedDifference(p);
+  const congruence = (a: number, b: number) => Math.min(a, b) ** p;
+  let face = 0;
+  let referenceCharge = 0;
+  let quasiEntropyError = 0;
+  objective.supports.forEach((support, c) => {
+    if (isKeyless(support)) return;
+    if (support.outputRange) {
+      face = Infinity;
+      return;
+    }
+    const weight = branchWeight(objective.request, support.score);
+    const stateWeight = sandwiched ? weight : 1;
+    const output = branchOutput(support, rho, stateWeight);
+    const referenceBlocks = sandwiched ? sandwiched.references[c] : pinchedBlocks(output, support.blockSizes, support.blockOffsets);
+    const referenceEigen = referenceBlocks.map((block) => eigh(hermitianPart(block)));
+    const referenceValues = referenceEigen.flatMap((e) => Array.from(e.values));
+    const referenceMin = Math.min(...referenceValues);
+    const referenceMax = Math.max(...referenceValues);
+    if (!(referenceMin > 0)) {
+      face = Infinity;
+      return;
+    }
+    const root = directSum(referenceEigen.map((e) => conjugate(e.vectors, ComplexMatrix.diagonal(Array.from(e.values, (t) => t ** s)))));
+    const m = hermitianPart(conjugate(root, output));
+    const size = frobeniusNorm(output) + stateWeight * rhoNorm * support.krausOperators.reduce((w, k) => w + frobeniusNorm(k) ** 2, 0);
+    const rootNorm = referenceMax ** s;
+    const rootConditioning = (referenceMax / referenceMin) ** s;
+    const referenceNorm = Math.sqrt(referenceValues.reduce((sum, t) => sum + t * t, 0));
+    // Y's own eigendecomposition, and for Petz-up Y = Z(X̂) moving with Δ (the pinching does not grow ‖·‖_F).
+    const referenceError = scaleN * (referenceNorm + (sandwiched ? 0 : size));
+    const additive = scaleN * rootNorm ** 2 * size;
+    const relative = 2 * scaleN * rootConditioning + s * referenceMin ** (s - 1) * referenceError * referenceMin ** -s;
+    const eigenM = eigh(m);
+    const smallest = Math.min(eigenM.values[0] - additive, eigenM.values[0] * (1 - relative) ** 2);
+    if (!(smallest > 0)) {
+      face = Infinity;
+      return;
+    }
+    const maps = support.krausOperators.map((k) => multiply(root, multiply(k, faceBasis)));
+    const faceCoefficient = sandwiched ? Math.abs(sandwiched.identityCoefficient) * weight : Math.abs(gradientFactor) * weight * order;
+    face += faceCoefficient * (clusterCharge(eigenM, maps, divided, additive) + clusterCharge(eigenM, maps, congruence, 2 * relative, true));
+    // X̂·Y^s·W = ω·Y^{−s}·M^ω − Δ·Y^s·W: M^ω is concave in M, so an additive E moves it by at most ω·λ_0^{ω−1}·‖E‖_F
+    // and a congruence by 2·λ_max^ω·‖F‖_F (|(t^ω)^[1](a, b)·b| ≤ max(a, b)^ω); Y^{−s} moves by s·λ_min(Y)^{−s−1}·‖δY‖.
+    // Then twice (the Hermitian sum), and D(t^s) at Y.
+    const largest = eigenM.values[eigenM.values.length - 1];
+    const movedPower = order * (order * smallest ** p * additive + 2 * largest ** order * relative);
+    const movedInverseRoot = s * referenceMin ** (-s - 1) * referenceError * order * largest ** order;
+    const direction = 2 * (referenceMin ** -s * movedPower + movedInverseRoot + rootNorm * order * smallest ** p * scaleN * size);
+    const referenceGradient = s * referenceMin ** (s - 1) * direction;
+    if (sandwiched) {
+      referenceCharge = Math.max(referenceCharge, Math.abs(gradientFactor) * referenceGradient);
+    } else {
+      // Petz-up: Z(∇_Y q) is pulled back to the face block through Σ_j (K_jP̂)†(·)(K_jP̂).
+      const faceMaps = support.krausOperators.reduce((w, k) => w + frobeniusNorm(multiply(k, faceBasis)) ** 2, 0);
+      face += Math.abs(gradientFactor) * weight * referenceGradient * faceMaps;
+    }
+    let traceOfPower = 0;
+    for (const t of eigenM.values) traceOfPower += Math.max(t, 0) ** order;
+    const branchError = order * smallest ** p * Math.sqrt(m.rows) * additive + ((1 + relative) ** (2 * order) - 1) * traceOfPower;
+    quasiEntropyError += (sandwiched ? 1 : weight) * branchError;
+  });
+  return { face, reference: referenceCharge, relativeQuasiEntropy: quasiEntropyError / quasiEntropy };
+}

@@ -1,0 +1,260 @@
+// The lifted linearization bound on an exposed face (docs/faces.md, "The lifted linearization bound"): F is
+// linearized on the whole space at a full-rank point lifted off the face, and ⟨S, σ⟩ is bounded by blocks over the
+// face and its complement for every state with weight at most ε off the face. No Fannes-type continuity step, so
+// the bound is not floored by h(√ε). Shared by the solver's result assembly and the verifier; no optimiser code.
+import {
+  addScaledInPlace,
+  ComplexMatrix,
+  columns,
+  conjugate,
+  conjugateAdjoint,
+  frobeniusNorm,
+  hermitianPart,
+  multiply,
+  multiplyAdjointLeft,
+  multiplyAdjointRight,
+  scale,
+  trace,
+} from '../linear-algebra/complex-matrix.js';
+import { eigh, eigvalsh } from '../linear-algebra/eigen.js';
+import { BACKWARD_ERROR_CONSTANT, UNIT_ROUNDOFF } from '../linear-algebra/rounding.js';
+import { isKeyless } from '../objectives/branch-supports.js';
+import { createObjective, type IdentitySplit, type Objective, type ReferenceBlocks } from '../objectives/index.js';
+import { logCoefficient } from '../objectives/objective.js';
+import type { FeasibleFace } from '../problem/feasible-face.js';
+import type { EntropyRequest, Problem } from '../problem/model.js';
+import type { BoundBreakdown } from './breakdown.js';
+import { dualPart } from './dual-term.js';
+import { quasiEntropyFaceCharges, vonNeumannFaceCharge } from './face-block-charge.js';
+
+/** Weights μ of the complement in the lifted points the solver tries (the verifier takes whatever point is stored). */
+// Half-decades: the linearization loss grows like μ (or μ^{1−ω}) and the face charge like 1/λ_0 ∝ 1/μ, and they cross
+// steeply near the best μ.
+export const LIFT_WEIGHTS: readonly number[] = [1e-6, 1e-7, 1e-8, 1e-9, 1e-10].flatMap((w) => [w, w / Math.sqrt(10)]);
+
+/** The kinds whose gradient error on the face block is bounded (docs/faces.md): all but Petz-down. */
+export function hasLiftedFaceBound(kind: string): boolean {
+  return kind === 'von-neumann' || kind === 'sandwiched-up' || kind === 'petz-up';
+}
+
+/**
+ * Whether a bound on an exposed face can come out finite for this problem: von Neumann always (continuity margin or
+ * lifted bound); the Rényi kinds with a lifted bound only when every branch with key has full-rank outputs on its
+ * support (face-block-charge.ts), otherwise the face would only take time from the whole space.
+ */
+export function faceBoundApplies(problem: Problem, request: Required<EntropyRequest>): boolean {
+  if (request.kind === 'von-neumann') return true;
+  if (!hasLiftedFaceBound(request.kind)) return false;
+  return createObjective(problem, request).supports.every((support) => isKeyless(support) || support.outputRange === null);
+}
+
+/** Orthonormal bases of the face and of its complement from one eigendecomposition of P·P†. */
+export interface FaceBlocks {
+  face: ComplexMatrix;
+  complement: ComplexMatrix;
+  /** δ ≥ ‖V†V − 1‖ for V = [face | complement]: the bases are unitary only to rounding. */
+  defect: number;
+  /** θ ≥ the angle between range(face) and range(P): the eigenvectors' backward error over the spectral gap. */
+  angle: number;
+}
+
+export function faceBlocks(face: FeasibleFace): FaceBlocks {
+  const p = face.isometry;
+  if (!p) throw new RangeError('faceBlocks: the face is the whole space');
+  const n = p.rows;
+  const k = p.cols;
+  const projector = hermitianPart(multiplyAdjointRight(p, p));
+  const { values, vectors } = eigh(projector);
+  const scaleN = BACKWARD_ERROR_CONSTANT * n * UNIT_ROUNDOFF;
+  const gram = multiplyAdjointLeft(vectors, vectors);
+  for (let i = 0; i < n; i++) gram.re[i * n + i] -= 1;
+  // The eigenvalues of P·P† are 1 ± g on the face and 0 off it: the gap is at least 1/2 while g < 1/4.
+  const gap = values[n - k] - values[n - k - 1];
+  return {
+    face: columns(vectors, n - k, n),
+    complement: columns(vectors, 0, n - k),
+    defect: frobeniusNorm(gram) + scaleN * n,
+    angle: gap > 0.5 ? (scaleN * frobeniusNorm(projector)) / (gap - scaleN * frobeniusNorm(projector)) : Infinity,
+  };
+}
+
+/** x_μ = (1 − μ)·P·X·P†/Tr(P·X·P†) + μ·(1 − Π)/(n − k): full rank, with weight μ off the face. */
+export function liftedPoint(face: FeasibleFace, blocks: FaceBlocks, faceState: ComplexMatrix, weight: number): ComplexMatrix {
+  const p = face.isometry as ComplexMatrix;
+  const onFace = conjugate(p, faceState);
+  const x = scale(onFace, (1 - weight) / trace(onFace).re);
+  const m = blocks.complement.cols;
+  addScaledInPlace(x, multiplyAdjointRight(blocks.complement, blocks.complement), weight / m);
+  return hermitianPart(x);
+}
+
+/**
+ * The bound at a full-rank point ρ' of the whole space: for every state σ with Tr((1 − Π)σ) ≤ ε',
+ *   ⟨S, σ⟩ ≥ s_P − ε'·max(0, s_P − s_Q) − 2c·√ε',   S = ∇F(ρ') − Σ yΓ,
+ * with s_P, s_Q the smallest eigenvalues of S on the face and on its complement and c the norm of the block between
+ * them; by convexity and Euler's identity F(σ) ≥ [F(ρ') − ⟨∇F(ρ'), ρ'⟩] + Σy⁺ℓ − Σy⁻u + that for every feasible σ
+ * (sandwiched-up: jointly with τ', as in docs/math.md §5, with ∇_ρF split as a·1 + G). The margin grades the
+ * gradient's error by blocks: the face block pays the branch outputs' error through the divided differences over
+ * the clusters of large and small eigenvalues (face-block-charge.ts), the other blocks the full charge times √ε'
+ * or ε'.
+ */
+export function liftedFaceBound(
+  face: FeasibleFace,
+  active: Problem,
+  objective: Objective,
+  rho: ComplexMatrix,
+  multipliersLower: ArrayLike<number>,
+  multipliersUpper: ArrayLike<number>,
+  reference?: ReferenceBlocks,
+): BoundBreakdown {
+  const { kind } = objective.request;
+  if (!hasLiftedFaceBound(kind)) throw new RangeError(`a lifted face bound is not derived for ${kind}`);
+  const n = rho.rows;
+  const scaleN = BACKWARD_ERROR_CONSTANT * n * UNIT_ROUNDOFF;
+  const blocks = faceBlocks(face);
+  const leak = face.leak ?? 0;
+  const offFace = (Math.sqrt(leak) + blocks.angle) ** 2;
+  const root = Math.sqrt(offFace);
+  const point = pointTerms(objective, rho, reference);
+  const { shifted, dualConstant, statisticalSlack, multiplierWeight } = dualPart(active, point.gradient, multipliersLower, multipliersUpper);
+  const { faceSmallest, complementSmallest, crossNorm, bound: blockBound, norms: blockNorms } = faceBlockBound(shifted, blocks, offFace);
+  const rhoSmallest = eigvalsh(rho)[0];
+  const weyl = (scaleN * Math.max(frobeniusNorm(rho) / Math.max(rhoSmallest, Number.MIN_VALUE), point.conditioning)) / Math.LN2;
+  const derived = (scaleN * point.derivedConditioning) / Math.LN2;
+  let faceCharge: number;
+  let otherCharge = 0;
+  if (kind === 'von-neumann') {
+    faceCharge = derived + vonNeumannFaceCharge(objective, rho, blocks.face, scaleN);
+  } else {
+    const coefficient = logCoefficient(objective.request);
+    const quasiEntropy = 2 ** (point.value / coefficient);
+    const gradientFactor = coefficient / (quasiEntropy * Math.LN2);
+    const charges = quasiEntropyFaceCharges(
+      objective,
+      rho,
+      blocks.face,
+      scaleN,
+      quasiEntropy,
+      gradientFactor,
+      point.split ? { references: reference as ReferenceBlocks, identityCoefficient: point.split.identityCoefficient } : undefined,
+    );
+    // A relative error of Q scales the paired matrix (∝ 1/Q) and moves the constant: F − c/ln 2 by |c|/ln 2 per unit,
+    // sandwiched-up's split constant by its constantSensitivity.
+    const relative = charges.relativeQuasiEntropy;
+    const sensitivity = point.split ? point.split.constantSensitivity : Math.abs(coefficient) / Math.LN2;
+    faceCharge = derived + charges.face + relative * (Math.abs(faceSmallest) + 2 * crossNorm * root + offFace * Math.abs(complementSmallest));
+    otherCharge = charges.reference + relative * sensitivity;
+  }
+  // Eigenvalues of the three blocks, the multipliers' sum and the gradient's assembly (not graded), the bases.
+  const rounding =
+    scaleN * (blockNorms.face + multiplierWeight + frobeniusNorm(point.gradient) + point.constantScale) +
+    point.referenceError +
+    // c = √λ_max(C·C†): an error e of λ_max moves c by at most √e.
+    2 * root * Math.sqrt(scaleN) * blockNorms.cross +
+    offFace * scaleN * blockNorms.complement +
+    blocks.defect * (Math.abs(faceSmallest) + Math.abs(complementSmallest) + 2 * crossNorm + 3 * frobeniusNorm(shifted));
+  const conditioningCharge = faceCharge + otherCharge + (2 * root + offFace) * weyl;
+  const margin = rounding + conditioningCharge;
+  return {
+    objectiveValue: point.value,
+    // Euler's identity, as in bound.ts: F for von Neumann, c/ln 2 for F = c·log₂ Q.
+    gradientInnerProduct: kind === 'von-neumann' ? point.value : logCoefficient(objective.request) / Math.LN2,
+    dualConstant,
+    smallestEigenvalue: blockBound + (point.split ? point.split.identityCoefficient : 0),
+    referenceTerm: point.referenceTerm,
+    margin,
+    conditioningCharge,
+    lowerBound: Number.isFinite(margin) ? point.constant + dualConstant + blockBound + point.referenceTerm - margin : -Infinity,
+    statisticalSlack,
+  };
+}
+
+/** F at ρ', the matrix paired with σ, the linearization's constant and (sandwiched-up) the τ terms. */
+function pointTerms(
+  objective: Objective,
+  rho: ComplexMatrix,
+  reference: ReferenceBlocks | undefined,
+): {
+  value: number;
+  gradient: ComplexMatrix;
+  /** F(ρ') − ⟨∇F(ρ'), ρ'⟩ [− ⟨∇_τF, τ'⟩ + a] by Euler's identity. */
+  constant: number;
+  /** The constant's rounding scale (its size plus what Q's relative error does to it). */
+  constantScale: number;
+  referenceTerm: number;
+  referenceError: number;
+  conditioning: number;
+  derivedConditioning: number;
+  split?: IdentitySplit;
+} {
+  if (objective.request.kind === 'sandwiched-up') {
+    if (!reference) throw new Error('liftedFaceBound: sandwiched-up needs reference states τ');
+    const joint = objective.evaluateAtReference(rho, reference);
+    let referenceTerm = Infinity;
+    let referenceError = 0;
+    joint.gradientReference.forEach((blocks) =>
+      blocks.forEach((g) => {
+        referenceTerm = Math.min(referenceTerm, eigvalsh(g)[0]);
+        referenceError += BACKWARD_ERROR_CONSTANT * g.rows * UNIT_ROUNDOFF * frobeniusNorm(g);
+      }),
+    );
+    const split = joint.split;
+    return {
+      value: joint.value,
+      gradient: split.remainder,
+      constant: split.constant,
+      constantScale: Math.abs(split.constant) + split.constantSensitivity,
+      referenceTerm,
+      referenceError: referenceError + split.defectError,
+      conditioning: joint.conditioning,
+      derivedConditioning: joint.derivedConditioning,
+      split,
+    };
+  }
+  const evaluation = objective.evaluate(rho, { withGradient: true, assumeFullRank: true });
+  const vonNeumann = objective.request.kind === 'von-neumann';
+  return {
+    value: evaluation.value,
+    gradient: evaluation.gradient as ComplexMatrix,
+    // Euler: F − ⟨∇F, ρ'⟩ is 0 for von Neumann and F − c/ln 2 for F = c·log₂ Q.
+    constant: vonNeumann ? 0 : evaluation.value - logCoefficient(objective.request) / Math.LN2,
+    constantScale: vonNeumann ? 0 : Math.abs(evaluation.value),
+    referenceTerm: 0,
+    referenceError: 0,
+    conditioning: evaluation.conditioning ?? 1,
+    derivedConditioning: evaluation.derivedConditioning ?? evaluation.conditioning ?? 1,
+  };
+}
+
+/**
+ * For unit x = a + b (a on the face, b off it), x†Sx ≥ s_P|a|² − 2c|a||b| + s_Q|b|²; summed over a state with weight
+ * w ≤ ε' off the face (Σ p|a||b| ≤ √w by Cauchy–Schwarz) this is at least s_P − ε'·max(0, s_P − s_Q) − 2c√ε'.
+ */
+export function faceBlockBound(
+  shifted: ComplexMatrix,
+  blocks: FaceBlocks,
+  offFace: number,
+): {
+  faceSmallest: number;
+  complementSmallest: number;
+  crossNorm: number;
+  bound: number;
+  /** Frobenius norms of the three blocks (their eigenvalues' rounding scale). */
+  norms: { face: number; cross: number; complement: number };
+} {
+  const onFace = conjugateAdjoint(blocks.face, shifted);
+  const offFaceBlock = conjugateAdjoint(blocks.complement, shifted);
+  const cross = multiply(multiplyAdjointLeft(blocks.face, shifted), blocks.complement);
+  const faceSmallest = eigvalsh(onFace)[0];
+  const complementSmallest = eigvalsh(offFaceBlock)[0];
+  const crossNorm = Math.sqrt(Math.max(0, eigvalsh(multiplyAdjointRight(cross, cross)).at(-1) as number));
+  const bound = faceSmallest - offFace * Math.max(0, faceSmallest - complementSmallest) - 2 * crossNorm * Math.sqrt(offFace);
+  return {
+    faceSmallest,
+    complementSmallest,
+    crossNorm,
+    bound,
+    norms: { face: frobeniusNorm(onFace), cross: frobeniusNorm(cross), complement: frobeniusNorm(offFaceBlock) },
+  };
+}
+

@@ -1,0 +1,265 @@
+// The lifted linearization bound on an exposed face (docs/faces.md, "The lifted linearization bound"): the block
+// inequality against mathjs eigenvalues, the cluster charge against matrix functions from ml-matrix's symmetric
+// eigendecomposition, and certificates of the random suite's face model d16#2 that verify re-checks.
+import { EigenvalueDecomposition, Matrix } from 'ml-matrix';
+import { describe, expect, it } from 'vitest';
+import { randomModel } from '../../src/bench/random-models.js';
+import { certificateBreakdown } from '../../src/certificate/bound.js';
+import { clusterCharge } from '../../src/certificate/face-block-charge.js';
+import { faceBlockBound, faceBlocks } from '../../src/certificate/lifted-face.js';
+import { verifyResult } from '../../src/certificate/verify.js';
+import { solve } from '../../src/frank-wolfe/solve.js';
+import {
+  addScaledInPlace,
+  adjoint,
+  ComplexMatrix,
+  conjugate,
+  conjugateAdjoint,
+  frobeniusNorm,
+  hermitianPart,
+  multiply,
+  scale,
+} from '../../src/linear-algebra/complex-matrix.js';
+import { eigh } from '../../src/linear-algebra/eigen.js';
+import { createObjective } from '../../src/objectives/index.js';
+import { feasibleFace, restrictToFace, type FeasibleFace } from '../../src/problem/feasible-face.js';
+import { dropInactiveBounds } from '../../src/problem/inactive-bounds.js';
+import { matrixFromJson, matrixToJson } from '../../src/problem/json.js';
+import type { EntropyRequest, Problem } from '../../src/problem/model.js';
+import type { Certificate } from '../../src/result/types.js';
+import { randomComplexGaussian, randomHermitian, randomIsometry, randomUnitary, seededRandom } from '../helpers/random.js';
+import { referenceEigenvalues, traceOfProduct } from '../oracle/reference.js';
+import { rotated } from './rotation.js';
+
+/** f(H) for Hermitian H from ml-matrix's symmetric eigendecomposition of [[Re H, −Im H], [Im H, Re H]] (a *-homomorphism). */
+function referenceFunction(h: ComplexMatrix, f: (t: number) => number): ComplexMatrix {
+  const n = h.rows;
+  const embedded = Matrix.zeros(2 * n, 2 * n);
+  for (let i = 0; i < n; i++) {
+    for (let j = 0; j < n; j++) {
+      const re = 0.5 * (h.re[i * n + j] + h.re[j * n + i]);
+      const im = 0.5 * (h.im[i * n + j] - h.im[j * n + i]);
+      embedded.set(i, j, re);
+      embedded.set(i + n, j + n, re);
+      embedded.set(i, j + n, -im);
+      embedded.set(i + n, j, im);
+    }
+  }
+  const e = new EigenvalueDecomposition(embedded, { assumeSymmetric: true });
+  const v = e.eigenvectorMatrix;
+  const applied = v.mmul(Matrix.diag(e.realEigenvalues.map(f))).mmul(v.transpose());
+  const out = new ComplexMatrix(n, n);
+  for (let i = 0; i < n; i++) {
+    for (let j = 0; j < n; j++) {
+      out.re[i * n + j] = applied.get(i, j);
+      out.im[i * n + j] = applied.get(i + n, j);
+    }
+  }
+  return out;
+}
+
+/** Largest singular value from mathjs eigenvalues of A·A†. */
+function operatorNorm(a: ComplexMatrix): number {
+  return Math.sqrt(Math.max(0, ...referenceEigenvalues(multiply(a, adjoint(a)))));
+}
+
+function syntheticFace(n: number, k: number, seed: number, leak: number): FeasibleFace {
+  return { isometry: randomIsometry(n, k, seededRandom(seed)), dimension: k, reasons: [], exposures: [{ multipliers: [] }], leak };
+}
+
+/** √(1 − w)·a + √w·b with a on the face and b off it, both unit vectors. */
+function tilted(a: ComplexMatrix, b: ComplexMatrix, weight: number): ComplexMatrix {
+  const x = scale(a, Math.sqrt(1 - weight));
+  addScaledInPlace(x, b, Math.sqrt(weight));
+  return multiply(x, adjoint(x));
+}
+
+function unit(v: ComplexMatrix): ComplexMatrix {
+  return scale(v, 1 / frobeniusNorm(v));
+}
+
+describe('the block bound over a face and its complement (derived; docs/faces.md)', () => {
+  it('⟨S, σ⟩ ≥ s_P − ε·max(0, s_P − s_Q) − 2c√ε for states with weight ε off the face (mathjs eigenvalues)', () => {
+    const rng = seededRandom(41);
+    for (let trial = 0; trial < 6; trial++) {
+      const n = 6;
+      const k = 2 + (trial % 3);
+      const face = syntheticFace(n, k, 100 + trial, 0);
+      const blocks = faceBlocks(face);
+      const s = randomHermitian(n, rng);
+      // The three numbers from mathjs: face and complement blocks' smallest eigenvalues, the cross block's norm.
+      const faceSmallest = referenceEigenvalues(conjugateAdjoint(blocks.face, s))[0];
+      const complementSmallest = referenceEigenvalues(conjugateAdjoint(blocks.complement, s))[0];
+      const crossNorm = operatorNorm(multiply(multiply(adjoint(blocks.face), s), blocks.complement));
+      const leak = 1e-4;
+      const computed = faceBlockBound(s, blocks, leak);
+      expect(computed.faceSmallest).toBeCloseTo(faceSmallest, 12);
+      expect(computed.complementSmallest).toBeCloseTo(complementSmallest, 12);
+      expect(computed.crossNorm).toBeCloseTo(crossNorm, 12);
+      for (let sample = 0; sample < 20; sample++) {
+        const a = unit(multiply(blocks.face, randomComplexGaussian(k, 1, rng)));
+        const b = unit(multiply(blocks.complement, randomComplexGaussian(n - k, 1, rng)));
+        const weight = leak * rng();
+        expect(traceOfProduct(s, tilted(a, b, weight))).toBeGreaterThanOrEqual(computed.bound - 1e-12);
+      }
+    }
+  });
+
+  it('is attained to first order by the state tilted along the cross block: halving 2c√ε fails there', () => {
+    // S = [[0, c·e₁f₁†], [c·f₁e₁†, 0]] in the basis [face | complement]: x = √(1−ε)e₁ − √ε·f₁ gives −2c√(ε(1−ε)).
+    const n = 5;
+    const face = syntheticFace(n, 2, 7, 0);
+    const blocks = faceBlocks(face);
+    const c = 3;
+    const e1 = multiply(blocks.face, ComplexMatrix.from([[1], [0]]));
+    const f1 = multiply(blocks.complement, ComplexMatrix.from([[1], [0], [0]]));
+    const s = scale(hermitianPart(multiply(e1, adjoint(f1))), 2 * c);
+    const leak = 1e-8;
+    const { bound } = faceBlockBound(s, blocks, leak);
+    const value = traceOfProduct(s, tilted(e1, scale(f1, -1), leak));
+    expect(value).toBeGreaterThanOrEqual(bound - 1e-15);
+    expect(value).toBeLessThan(-c * Math.sqrt(leak));
+  });
+});
+
+describe('the cluster charge of the face block (Daleckii–Krein; ml-matrix eigendecomposition as reference)', () => {
+  const rng = seededRandom(5);
+  const n = 5;
+  const u = randomUnitary(n, rng);
+  const values = [0.9, 0.5, 0.2, 3e-8, 1e-8];
+  const x = hermitianPart(conjugate(u, ComplexMatrix.diagonal(values)));
+  const large = multiply(u, ComplexMatrix.from([[1, 0], [0, 1], [0.3, -0.2], [0, 0], [0, 0]]));
+  // Maps N_j mostly on the large eigenvalues, with a 1e-4 share on the small ones (as a lifted face's outputs have).
+  const maps = [large, multiply(u, ComplexMatrix.from([[0.2, 0.1], [0, 0.7], [0.1, 0], [1e-4, 0], [0, 2e-4]]))];
+  const faceBlockChange = (f: (t: number) => number, perturbation: ComplexMatrix, on = maps) => {
+    const change = referenceFunction(hermitianPart(addScaled(x, perturbation)), f);
+    addScaledInPlace(change, referenceFunction(x, f), -1);
+    const total = ComplexMatrix.zeros(2);
+    for (const m of on) addScaledInPlace(total, conjugateAdjoint(m, change), 1);
+    return operatorNorm(total);
+  };
+  const eigen = eigh(x);
+  const log = (a: number, b: number) => (a === b ? 1 / a : Math.log(a / b) / (a - b));
+  const power = (p: number) => (a: number, b: number) => (a === b ? -p * a ** (p - 1) : (Math.min(a, b) ** p - Math.max(a, b) ** p) / Math.abs(a - b));
+  const size = 1e-11;
+  const perturbations = [
+    scale(unitHermitian(randomHermitian(n, rng)), size),
+    // Concentrated on the small eigenvalues, where 1/λ amplifies most.
+    scale(unitHermitian(conjugate(columnsOf(u, 3, 5), randomHermitian(2, rng))), size),
+  ];
+
+  it('bounds the change of ln at first order for random and small-block perturbations, far below the Weyl charge', () => {
+    const charge = clusterCharge(eigen, maps, log, size);
+    const weyl = (size / values[4]) * maps.reduce((w, m) => w + frobeniusNorm(m) ** 2, 0);
+    for (const e of perturbations) expect(faceBlockChange(Math.log, e)).toBeLessThanOrEqual(charge);
+    expect(charge).toBeLessThan(weyl / 1000);
+    // The small-block terms matter: with a 1e-2 share on the small eigenvalues, the large cluster's term alone
+    // (error·Σ_j ‖U_B†N_j‖_F²/λ_B) misses the change a small-block perturbation makes; the full charge does not.
+    const wide = [multiply(u, ComplexMatrix.from([[1, 0], [0, 1], [0, 0], [1e-2, 0], [0, 1e-2]]))];
+    const largeOnly = (size / values[2]) * 2;
+    const change = faceBlockChange(Math.log, perturbations[1], wide);
+    expect(change).toBeGreaterThan(largeOnly);
+    expect(change).toBeLessThanOrEqual(clusterCharge(eigen, wide, log, size));
+  });
+
+  it('bounds the change of t^{−1/3} for additive errors and for a congruence (1 + F)·X·(1 + F)†', () => {
+    const p = -1 / 3;
+    const f = (t: number) => t ** p;
+    const charge = clusterCharge(eigen, maps, power(p), size);
+    for (const e of perturbations) expect(faceBlockChange(f, e)).toBeLessThanOrEqual(charge);
+    const shift = scale(unitHermitian(randomComplexGaussian(n, n, rng)), 1e-9);
+    const congruence = addScaled(multiply(shift, x), multiply(x, adjoint(shift)));
+    const relative = clusterCharge(eigen, maps, (a, b) => Math.min(a, b) ** p, 2e-9, true);
+    expect(faceBlockChange(f, congruence)).toBeLessThanOrEqual(relative);
+  });
+});
+
+function addScaled(a: ComplexMatrix, b: ComplexMatrix): ComplexMatrix {
+  const out = a.clone();
+  addScaledInPlace(out, b, 1);
+  return out;
+}
+
+function unitHermitian(m: ComplexMatrix): ComplexMatrix {
+  return scale(m, 1 / frobeniusNorm(m));
+}
+
+function columnsOf(m: ComplexMatrix, start: number, end: number): ComplexMatrix {
+  const out = new ComplexMatrix(m.rows, end - start);
+  for (let r = 0; r < m.rows; r++) {
+    for (let c = start; c < end; c++) {
+      out.re[r * (end - start) + c - start] = m.re[r * m.cols + c];
+      out.im[r * (end - start) + c - start] = m.im[r * m.cols + c];
+    }
+  }
+  return out;
+}
+
+/** The breakdown of a certificate recomputed in another problem basis, with the leak held at `leak`. */
+function breakdownIn(problem: Problem, request: EntropyRequest, certificate: Certificate, leak: number) {
+  const active = dropInactiveBounds(problem).problem;
+  const face = feasibleFace(active, { exposures: certificate.faceExposures });
+  // A rotated problem is another problem at the level of rounding, with its own leak; hold it to compare arithmetic.
+  face.leak = leak;
+  const restricted = restrictToFace(active, face);
+  return certificateBreakdown(face, restricted, createObjective(restricted, request), certificate, undefined, {
+    problem: active,
+    objective: createObjective(active, request),
+  });
+}
+
+describe('d16#2 of the random suite (no full-rank feasible state): lifted certificates', () => {
+  const model = randomModel(16, 2);
+  const leak = feasibleFace(dropInactiveBounds(model.problem).problem, {
+    exposures: solve(model.problem, { kind: 'von-neumann' }, { gapTolerance: 1e-3 }).certificate!.faceExposures,
+  }).leak as number;
+
+  for (const request of [{ kind: 'von-neumann' }, { kind: 'sandwiched-up', alpha: 1.5 }, { kind: 'sandwiched-up', alpha: 1.2 }] as EntropyRequest[]) {
+    it(`${request.kind}${request.alpha ? ` α = ${request.alpha}` : ''}: CERTIFIED at gap 1e-6, verified, below F at the generating state, stable across bases`, () => {
+      const result = solve(model.problem, request, { gapTolerance: 1e-6, timeLimitMs: 30000 });
+      expect(result.status).toBe('CERTIFIED');
+      const certificate = result.certificate!;
+      expect(certificate.linearizationOffFace).toBe(true);
+      const report = verifyResult(model.problem, request, result);
+      expect(report.valid, report.reason).toBe(true);
+      // The generating state meets every constraint it produced, so the minimum is at most F there.
+      const atTruth = createObjective(model.problem, request).evaluate(model.truth).value;
+      expect(result.certifiedLowerBound as number).toBeLessThanOrEqual(atTruth);
+      // Mathematically the same bound in any basis: the recomputed value before the margin moves less than the margin.
+      const base = breakdownIn(model.problem, request, certificate, leak);
+      const rng = seededRandom(17);
+      for (let r = 0; r < 3; r++) {
+        const u = randomUnitary(16, rng);
+        const moved = { ...certificate, linearizationState: matrixToJson(conjugate(u, matrixFromJson(certificate.linearizationState, 'state'))) };
+        const b = breakdownIn(rotated(model.problem, u), request, moved, leak);
+        expect(Math.abs(b.lowerBound + b.margin - (base.lowerBound + base.margin))).toBeLessThan(base.margin);
+      }
+    });
+  }
+
+  it('Petz-up: the lifted bound verifies and narrows the gap, though its margin keeps it above 1e-6', () => {
+    const request = { kind: 'petz-up', alpha: 1.5 } as const;
+    const result = solve(model.problem, request, { gapTolerance: 1e-6, timeLimitMs: 2000 });
+    expect(result.certificate?.linearizationOffFace).toBe(true);
+    expect(verifyResult(model.problem, request, result).valid).toBe(true);
+    expect(result.certifiedLowerBound as number).toBeLessThanOrEqual(createObjective(model.problem, request).evaluate(model.truth).value);
+    // The whole-space path ended at 1.0e-4 on this model (README, before the lifted bound).
+    expect(result.gap as number).toBeLessThan(1e-5);
+  });
+
+  it('verify rejects the flag where it claims nothing it can check', () => {
+    const request = { kind: 'von-neumann' } as const;
+    const result = solve(model.problem, request, { gapTolerance: 1e-6, timeLimitMs: 30000 });
+    const certificate = result.certificate!;
+    const check = (changed: Partial<Certificate> & Record<string, unknown>) => verifyResult(model.problem, request, { ...result, certificate: { ...certificate, ...changed } as Certificate });
+    expect(check({ linearizationOffFace: 'yes' as unknown as boolean }).reason).toMatch(/linearizationOffFace/);
+    const { faceExposures: _dropped, ...withoutFace } = certificate;
+    expect(verifyResult(model.problem, request, { ...result, certificate: withoutFace }).valid).toBe(false);
+    // Without the flag the lifted point would be compressed onto the face: not the certified bound any more.
+    const { linearizationOffFace: _flag, ...onFace } = certificate;
+    expect(verifyResult(model.problem, request, { ...result, certificate: onFace }).valid).toBe(false);
+    const petzDown = { kind: 'petz-down', alpha: 1.5 } as const;
+    const foreign = verifyResult(model.problem, petzDown, { ...result, entropy: 'petz-down', alpha: 1.5, certificate: { ...certificate, entropy: 'petz-down', alpha: 1.5 } });
+    expect(foreign.valid).toBe(false);
+  });
+});
