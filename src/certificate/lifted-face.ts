@@ -27,9 +27,10 @@ import type { BoundBreakdown } from './breakdown.js';
 import { dualPart } from './dual-term.js';
 import { quasiEntropyFaceCharges, vonNeumannFaceCharge } from './face-block-charge.js';
 
-/** Weights μ of the complement in the lifted points the solver tries (the verifier takes whatever point is stored). */
-// Half-decades: the linearization loss grows like μ (or μ^{1−ω}) and the face charge like 1/λ_0 ∝ 1/μ, and they cross
-// steeply near the best μ.
+/**
+ * Weights μ of the complement in the lifted points the solver tries (the verifier takes whatever point is stored).
+ * Half-decades: the linearization loss grows with μ and the face charge like 1/λ_0 ∝ 1/μ; they cross steeply.
+ */
 export const LIFT_WEIGHTS: readonly number[] = [1e-6, 1e-7, 1e-8, 1e-9, 1e-10].flatMap((w) => [w, w / Math.sqrt(10)]);
 
 /** The kinds whose gradient error on the face block is bounded (docs/faces.md): all but Petz-down. */
