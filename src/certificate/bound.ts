@@ -12,17 +12,17 @@ import type { Problem } from '../problem/model.js';
 import { compressToFace, faceContinuityMargin, type FeasibleFace } from '../problem/feasible-face.js';
 import { matrixFromJson } from '../problem/json.js';
 import { liftedFaceBound } from './lifted-face.js';
-import { dualPart } from './dual-term.js';
+import { dualPart, eulerInnerProduct, referenceTerm as referenceTermOf } from './dual-term.js';
 import type { BoundBreakdown } from './breakdown.js';
 import type { Certificate } from '../result/types.js';
 import { pinchedBlocks } from '../objectives/spectral-blocks.js';
 import { isKeyless } from '../objectives/branch-supports.js';
-import { logCoefficient } from '../objectives/objective.js';
 
 // The margin uses the eigensolver backward-error scale c·n·u·‖A‖_F (docs/math.md §5).
 import { BACKWARD_ERROR_CONSTANT as MARGIN_CONSTANT, UNIT_ROUNDOFF } from '../linear-algebra/rounding.js';
 
 export type { BoundBreakdown } from './breakdown.js';
+export { eulerInnerProduct } from './dual-term.js';
 
 /**
  * The certified lower bound from a full-rank linearization point on the feasible face (docs/math.md §5 restated in
@@ -59,15 +59,8 @@ export function linearizationBound(
     gradient = split.remainder;
     evaluationConditioning = joint.conditioning;
     derivedConditioning = joint.derivedConditioning;
-    let smallest = Infinity;
-    joint.gradientReference.forEach((blocks) =>
-      blocks.forEach((g) => {
-        smallest = Math.min(smallest, eigvalsh(g)[0]);
-        referenceError += MARGIN_CONSTANT * g.rows * UNIT_ROUNDOFF * frobeniusNorm(g);
-      }),
-    );
     // −⟨∇_τF, τ'⟩ is carried by the joint Euler term below.
-    referenceTerm = smallest;
+    ({ smallest: referenceTerm, error: referenceError } = referenceTermOf(joint.gradientReference));
   } else {
     const evaluation = precomputed?.gradient ? precomputed : objective.evaluate(rho, { withGradient: true, assumeFullRank: true });
     objectiveValue = evaluation.value;
@@ -220,17 +213,6 @@ export function certificateBreakdown(
   return { ...breakdown, margin: breakdown.margin + faceMargin, lowerBound: breakdown.lowerBound - faceMargin };
 }
 
-/**
- * ⟨∇F(ρ), ρ⟩ in closed form (docs/convergence.md). Every kind is built from functions of the branch outputs that
- * are positively homogeneous — D(X‖Z(X)) and the scores of degree 1 in ρ; Q̃, Q̄ of degree 1 in ρ, and
- * Q̃_β(X‖τ) of degree 1 jointly in (ρ, τ) — so Euler's identity gives ⟨∇F, ρ⟩ = F for von Neumann and
- * c/ln 2 for F = c·log₂ Q (sandwiched-up: the joint pairing ⟨∇_ρF, ρ⟩ + ⟨∇_τF, τ⟩). Using the exact value
- * removes the rounding of that pairing, whose error the gradient's conditioning would otherwise amplify.
- */
-export function eulerInnerProduct(objective: Objective, objectiveValue: number): number {
-  const request = objective.request;
-  return request.kind === 'von-neumann' ? objectiveValue : logCoefficient(request) / Math.LN2;
-}
 
 /** Largest cluster of smallest eigenvectors of ∇F − Σ yΓ whose curvature is measured (k² difference quotients). */
 const CURVATURE_CLUSTER = 4;

@@ -2,7 +2,6 @@
 // "The lifted linearization bound"): Daleckii–Krein over the clusters of large and small eigenvalues of the matrix
 // whose logarithm or negative power is taken. Used by the lifted face bound only.
 import {
-  addScaledInPlace,
   ComplexMatrix,
   conjugate,
   conjugateAdjoint,
@@ -11,6 +10,7 @@ import {
   hermitianPart,
   multiply,
   multiplyAdjointLeft,
+  scale,
 } from '../linear-algebra/complex-matrix.js';
 import { pinchedBlocks } from '../objectives/spectral-blocks.js';
 import { eigh } from '../linear-algebra/eigen.js';
@@ -24,24 +24,26 @@ import { branchWeight, sandwichedOrder, type Objective, type ReferenceBlocks } f
  */
 export function vonNeumannFaceCharge(objective: Objective, rho: ComplexMatrix, faceBasis: ComplexMatrix, scaleN: number): number {
   const rhoNorm = frobeniusNorm(rho);
+  const outputs = objective.branchOutputs(rho);
   let total = 0;
-  for (const support of objective.supports) {
-    if (isKeyless(support)) continue;
-    const output = branchOutput(support, rho, 1);
+  objective.supports.forEach((support, c) => {
+    if (isKeyless(support)) return;
+    const output = outputs[c];
     const range = support.outputRange;
     const eigen = eigh(hermitianPart(range ? conjugateAdjoint(range, output) : output));
-    const size = frobeniusNorm(output) + rhoNorm * support.krausOperators.reduce((w, k) => w + frobeniusNorm(k) ** 2, 0);
+    const size = outputSize(support, output, rhoNorm);
     const maps = support.krausOperators.map((k) => (range ? multiplyAdjointLeft(range, multiply(k, faceBasis)) : multiply(k, faceBasis)));
     total += clusterCharge(eigen, maps, logDividedDifference, scaleN * size) / Math.LN2;
-  }
+  });
   return total;
 }
 
-/** w·Σ_j K_j·ρ·K_j† on the branch's support. */
-function branchOutput(support: BranchSupport, rho: ComplexMatrix, weight: number): ComplexMatrix {
-  const output = ComplexMatrix.zeros(support.dimension);
-  for (const k of support.krausOperators) addScaledInPlace(output, conjugate(k, rho), weight);
-  return output;
+/**
+ * ‖X_c‖_F + ‖ρ‖_F·Σ_j ‖K_j‖_F²: the outputs' perturbation that one rounding of ρ and of X_c's eigendecomposition
+ * stands for, in units of the backward-error scale (as the curvature charge's `sizes`, objective.ts).
+ */
+function outputSize(support: BranchSupport, output: ComplexMatrix, rhoNorm: number): number {
+  return frobeniusNorm(output) + rhoNorm * support.krausOperators.reduce((w, k) => w + frobeniusNorm(k) ** 2, 0);
 }
 
 /** |ln^[1](a, b)|, decreasing in both arguments. */
@@ -147,6 +149,7 @@ export function quasiEntropyFaceCharges(
   const rhoNorm = frobeniusNorm(rho);
   const divided = powerDividedDifference(p);
   const congruence = (a: number, b: number) => Math.min(a, b) ** p;
+  const outputs = objective.branchOutputs(rho);
   let face = 0;
   let referenceCharge = 0;
   let quasiEntropyError = 0;
@@ -158,7 +161,7 @@ export function quasiEntropyFaceCharges(
     }
     const weight = branchWeight(objective.request, support.score);
     const stateWeight = sandwiched ? weight : 1;
-    const output = branchOutput(support, rho, stateWeight);
+    const output = scale(outputs[c], stateWeight);
     const referenceBlocks = sandwiched ? sandwiched.references[c] : pinchedBlocks(output, support.blockSizes, support.blockOffsets);
     const referenceEigen = referenceBlocks.map((block) => eigh(hermitianPart(block)));
     const referenceValues = referenceEigen.flatMap((e) => Array.from(e.values));
@@ -170,7 +173,7 @@ export function quasiEntropyFaceCharges(
     }
     const root = directSum(referenceEigen.map((e) => conjugate(e.vectors, ComplexMatrix.diagonal(Array.from(e.values, (t) => t ** s)))));
     const m = hermitianPart(conjugate(root, output));
-    const size = frobeniusNorm(output) + stateWeight * rhoNorm * support.krausOperators.reduce((w, k) => w + frobeniusNorm(k) ** 2, 0);
+    const size = stateWeight * outputSize(support, outputs[c], rhoNorm);
     const rootNorm = referenceMax ** s;
     const rootConditioning = (referenceMax / referenceMin) ** s;
     const referenceNorm = Math.sqrt(referenceValues.reduce((sum, t) => sum + t * t, 0));

@@ -24,7 +24,7 @@ import { logCoefficient } from '../objectives/objective.js';
 import type { FeasibleFace } from '../problem/feasible-face.js';
 import type { EntropyRequest, Problem } from '../problem/model.js';
 import type { BoundBreakdown } from './breakdown.js';
-import { dualPart } from './dual-term.js';
+import { dualPart, eulerInnerProduct, referenceTerm } from './dual-term.js';
 import { quasiEntropyFaceCharges, vonNeumannFaceCharge } from './face-block-charge.js';
 
 /**
@@ -158,8 +158,7 @@ export function liftedFaceBound(
   const margin = rounding + conditioningCharge;
   return {
     objectiveValue: point.value,
-    // Euler's identity, as in bound.ts: F for von Neumann, c/ln 2 for F = c·log₂ Q.
-    gradientInnerProduct: kind === 'von-neumann' ? point.value : logCoefficient(objective.request) / Math.LN2,
+    gradientInnerProduct: eulerInnerProduct(objective, point.value),
     dualConstant,
     smallestEigenvalue: blockBound + (point.split ? point.split.identityCoefficient : 0),
     referenceTerm: point.referenceTerm,
@@ -191,22 +190,15 @@ function pointTerms(
   if (objective.request.kind === 'sandwiched-up') {
     if (!reference) throw new Error('liftedFaceBound: sandwiched-up needs reference states τ');
     const joint = objective.evaluateAtReference(rho, reference);
-    let referenceTerm = Infinity;
-    let referenceError = 0;
-    joint.gradientReference.forEach((blocks) =>
-      blocks.forEach((g) => {
-        referenceTerm = Math.min(referenceTerm, eigvalsh(g)[0]);
-        referenceError += BACKWARD_ERROR_CONSTANT * g.rows * UNIT_ROUNDOFF * frobeniusNorm(g);
-      }),
-    );
+    const tau = referenceTerm(joint.gradientReference);
     const split = joint.split;
     return {
       value: joint.value,
       gradient: split.remainder,
       constant: split.constant,
       constantScale: Math.abs(split.constant) + split.constantSensitivity,
-      referenceTerm,
-      referenceError: referenceError + split.defectError,
+      referenceTerm: tau.smallest,
+      referenceError: tau.error + split.defectError,
       conditioning: joint.conditioning,
       derivedConditioning: joint.derivedConditioning,
       split,
@@ -217,8 +209,8 @@ function pointTerms(
   return {
     value: evaluation.value,
     gradient: evaluation.gradient as ComplexMatrix,
-    // Euler: F − ⟨∇F, ρ'⟩ is 0 for von Neumann and F − c/ln 2 for F = c·log₂ Q.
-    constant: vonNeumann ? 0 : evaluation.value - logCoefficient(objective.request) / Math.LN2,
+    // Euler: F − ⟨∇F, ρ'⟩ is exactly 0 for von Neumann.
+    constant: vonNeumann ? 0 : evaluation.value - eulerInnerProduct(objective, evaluation.value),
     constantScale: vonNeumann ? 0 : Math.abs(evaluation.value),
     referenceTerm: 0,
     referenceError: 0,

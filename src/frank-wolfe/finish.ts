@@ -55,11 +55,6 @@ export function infeasibleResult(
   };
 }
 
-/**
- * The result of a run that has a bound. The lower bound is the certificate's (exactly what a verifier recomputes
- * from the stored numbers), raised to the trivial bound when lower or missing. The upper bound is F at the final
- * state when that state meets every constraint within FEASIBILITY_TOLERANCE; CERTIFIED needs it, and 0 ≤ gap ≤ request.
- */
 type StoredCertificate = Pick<
   Certificate,
   'linearizationState' | 'referenceStates' | 'multipliersLower' | 'multipliersUpper' | 'linearizationOffFace'
@@ -106,6 +101,11 @@ function liftedCertificate(
   return best;
 }
 
+/**
+ * The result of a run that has a bound. The lower bound is the certificate's (exactly what a verifier recomputes
+ * from the stored numbers), raised to the trivial bound when lower or missing. The upper bound is F at the final
+ * state when that state meets every constraint within FEASIBILITY_TOLERANCE; CERTIFIED needs it, and 0 ≤ gap ≤ request.
+ */
 export function assembleResult(setup: SolverSetup, state: SolverState): SolveResult {
   const { base, clock, face, restricted, objective, settings, problem } = setup;
   const trivialBound = trivialLowerBound(problem);

@@ -93,6 +93,8 @@ export interface Objective {
   readonly dimension: number;
   readonly supports: readonly BranchSupport[];
   evaluate(rho: ComplexMatrix, options?: EvaluateOptions): ObjectiveEvaluation;
+  /** X_c = Σ_j K_j·ρ·K_j† per branch, on the branch's support (before the branch weights). */
+  branchOutputs(rho: ComplexMatrix): ComplexMatrix[];
   /** Sandwiched-up at a given τ (no inner optimisation); throws for other kinds. */
   evaluateAtReference(rho: ComplexMatrix, reference: ReferenceBlocks): JointEvaluation;
   /** Null when ρ has no positive definite outputs to differentiate at. Sandwiched-up needs τ (held fixed). */
@@ -185,7 +187,7 @@ class EntropyObjective implements Objective {
     this.weightsMinusOne = this.supports.map((s) => branchWeightMinusOne(request, s.score));
   }
 
-  private branchStates(rho: ComplexMatrix): ComplexMatrix[] {
+  branchOutputs(rho: ComplexMatrix): ComplexMatrix[] {
     return this.supports.map((support) => {
       const out = ComplexMatrix.zeros(support.dimension);
       for (const k of support.krausOperators) addScaledInPlace(out, conjugate(k, rho), 1);
@@ -217,7 +219,7 @@ class EntropyObjective implements Objective {
       if (support.rank < this.dimension) return this.evaluateOnSupport(rho, support.range);
     }
     const withGradient = options.withGradient ?? true;
-    const states = this.branchStates(rho);
+    const states = this.branchOutputs(rho);
     const { kind, alpha } = this.request;
     if (kind !== 'sandwiched-up') {
       const { value, gradients } = this.fromOutputs(states, withGradient);
@@ -315,7 +317,7 @@ class EntropyObjective implements Objective {
   evaluateAtReference(rho: ComplexMatrix, reference: ReferenceBlocks): JointEvaluation {
     if (this.request.kind !== 'sandwiched-up') throw new Error('evaluateAtReference: only for sandwiched-up');
     resetConditioning();
-    const joint = this.fromOutputsAtReference(this.branchStates(rho), reference, true);
+    const joint = this.fromOutputsAtReference(this.branchOutputs(rho), reference, true);
     return {
       value: joint.value,
       gradientState: this.pullBack(joint.gradients),
@@ -365,7 +367,7 @@ class EntropyObjective implements Objective {
         ? this.fromOutputsAtReference(states, reference).gradients
         : (this.fromOutputs(states, true).gradients as ComplexMatrix[]);
     resetConditioning();
-    const states = this.branchStates(rho);
+    const states = this.branchOutputs(rho);
     const base = gradientsAt(states);
     const floor = readOutputFloor();
     const krausWeights = this.supports.map((s) => s.krausOperators.reduce((w, k) => w + frobeniusNorm(k) ** 2, 0));
@@ -377,7 +379,7 @@ class EntropyObjective implements Objective {
     return {
       sizes: states.map((x, c) => frobeniusNorm(x) + rhoNorm * krausWeights[c]),
       measure: (direction) => {
-        const moved = this.branchStates(direction).map((change, c) => {
+        const moved = this.branchOutputs(direction).map((change, c) => {
           const out = states[c].clone();
           addScaledInPlace(out, change, step);
           return out;
