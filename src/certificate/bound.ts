@@ -17,6 +17,7 @@ import type { BoundBreakdown } from './breakdown.js';
 import type { Certificate } from '../result/types.js';
 import { pinchedBlocks } from '../objectives/spectral-blocks.js';
 import { isKeyless } from '../objectives/branch-supports.js';
+import { vonNeumannLeadingCharges } from './face-block-charge.js';
 
 // The margin uses the eigensolver backward-error scale c·n·u·‖A‖_F (docs/math.md §5).
 import { BACKWARD_ERROR_CONSTANT as MARGIN_CONSTANT, UNIT_ROUNDOFF } from '../linear-algebra/rounding.js';
@@ -100,9 +101,17 @@ export function linearizationBound(
   let conditioningCharge = weyl;
   let margin = unamplified + weyl;
   const base = linearizationConstant + dualConstant + spectrum.values[0] + referenceTerm;
-  if (weyl > derivedCharge + unamplified && base - unamplified - derivedCharge > curvatureWorthAbove) {
-    const graded = derivedCharge + curvatureCharge(objective, rho, reference, spectrum, weyl, scale, checkpoint);
-    if (graded < weyl) {
+  // von Neumann: the closed form over outputs and pinched blocks alike (no evaluations, any cluster size).
+  if (objective.request.kind === 'von-neumann' && weyl > unamplified && base - unamplified > curvatureWorthAbove) {
+    const clustered = clusterSplitCharge(objective, rho, spectrum, weyl + derivedCharge, scale);
+    if (clustered < conditioningCharge) {
+      conditioningCharge = clustered;
+      margin = unamplified + clustered;
+    }
+  }
+  if (conditioningCharge > derivedCharge + unamplified && base - unamplified - derivedCharge > curvatureWorthAbove) {
+    const graded = derivedCharge + curvatureCharge(objective, rho, reference, spectrum, weyl, scale, checkpoint, conditioningCharge - derivedCharge);
+    if (graded < conditioningCharge) {
       conditioningCharge = graded;
       margin = unamplified + graded;
     }
@@ -234,10 +243,12 @@ function curvatureCharge(
   weyl: number,
   scale: number,
   checkpoint: () => void,
+  /** A charge already established (the closed form below): returned when the curvature does no better. */
+  ceiling = weyl,
 ): number {
   const { values, vectors } = spectrum;
   const clusters = Math.min(values.length - 1, CURVATURE_CLUSTER);
-  let best = weyl;
+  let best = Math.min(weyl, ceiling);
   let curvature: ReturnType<Objective['outputCurvature']> | undefined;
   let squares: number[] = [];
   for (let k = 1; k <= clusters; k++) {
@@ -266,6 +277,34 @@ function curvatureCharge(
     const second = (whole * whole) / (gap - whole + a);
     best = Math.min(best, a + second);
     if (second <= a) return best;
+  }
+  return best;
+}
+
+/**
+ * The same Schur-complement split with a ≥ ‖E_WW‖ in closed form (von Neumann): Daleckii–Krein over the clusters of
+ * large and small eigenvalues of each output and of its pinched blocks (`vonNeumannLeadingCharges`, docs/faces.md),
+ * which needs no difference quotients, so W may be any number k of smallest eigenvectors of S. At an optimum of
+ * rank r on the boundary S has about r eigenvalues near σ_0 (complementary slackness) and the gap opens only after
+ * them, beyond the curvature's four; the small eigenvalues are then seen by W only through its small overlap with
+ * them. `wholeCharge` bounds ‖E‖ for every matrix together (the outputs' and the pinched blocks' Weyl charges).
+ */
+function clusterSplitCharge(
+  objective: Objective,
+  rho: ComplexMatrix,
+  spectrum: { values: Float64Array; vectors: ComplexMatrix },
+  wholeCharge: number,
+  scale: number,
+): number {
+  const { values, vectors } = spectrum;
+  const leading = vonNeumannLeadingCharges(objective, rho, vectors, scale);
+  let best = Infinity;
+  for (let k = 1; k < values.length; k++) {
+    const a = leading[k];
+    const gap = values[k] - values[0];
+    const whole = Math.max(wholeCharge, a);
+    if (!Number.isFinite(a) || gap <= whole) continue;
+    best = Math.min(best, a + (whole * whole) / (gap - whole + a));
   }
   return best;
 }

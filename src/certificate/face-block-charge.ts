@@ -1,6 +1,7 @@
 // What the branch outputs' rounding does to the face block of ∇F at a point lifted off an exposed face (docs/faces.md,
 // "The lifted linearization bound"): Daleckii–Krein over the clusters of large and small eigenvalues of the matrix
-// whose logarithm or negative power is taken. Used by the lifted face bound only.
+// whose logarithm or negative power is taken. Used by the lifted face bound and, for von Neumann, by the margin's
+// split over the smallest eigenvectors of S (bound.ts).
 import {
   ComplexMatrix,
   conjugate,
@@ -69,18 +70,35 @@ export function clusterCharge(
   /** The error is a congruence (1 + F)·M·(1 + F)† with ‖F‖ ≤ error instead of an additive one. */
   relative = false,
 ): number {
-  const { vectors } = eigen;
-  if (!(relative ? error < 0.1 : eigen.values[0] > 10 * error)) return Infinity;
+  return clusterChargeOfRows(eigen.values, maps.map((map) => rowSquares(multiplyAdjointLeft(eigen.vectors, map))), divided, error, relative);
+}
+
+/** Squared Frobenius norms of a matrix's rows. */
+function rowSquares(a: ComplexMatrix): Float64Array {
+  const out = new Float64Array(a.rows);
+  for (let r = 0; r < a.rows; r++) {
+    for (let c = 0; c < a.cols; c++) out[r] += a.re[r * a.cols + c] ** 2 + a.im[r * a.cols + c] ** 2;
+  }
+  return out;
+}
+
+/** `clusterCharge` from M's eigenvalues (ascending) and the squared row norms of each U†N_j. */
+function clusterChargeOfRows(
+  eigenvalues: Float64Array,
+  rows: readonly Float64Array[],
+  divided: (a: number, b: number) => number,
+  error: number,
+  relative: boolean,
+): number {
+  if (!(relative ? error < 0.1 : eigenvalues[0] > 10 * error)) return Infinity;
   // The exact matrix's eigenvalues lie within the error of the computed ones (Weyl; Ostrowski for a congruence), and
   // the bounds decrease in both arguments, so lower them.
-  const values = Float64Array.from(eigen.values, (v) => (relative ? v * (1 - error) ** 2 : v - error));
-  const rowSquares = maps.map((map) => {
-    const a = multiplyAdjointLeft(vectors, map);
-    return Array.from({ length: a.rows }, (_, r) => {
-      let s = 0;
-      for (let c = 0; c < a.cols; c++) s += a.re[r * a.cols + c] ** 2 + a.im[r * a.cols + c] ** 2;
-      return s;
-    });
+  const values = Float64Array.from(eigenvalues, (v) => (relative ? v * (1 - error) ** 2 : v - error));
+  // Prefix sums over rows: the small cluster's share below each split.
+  const below = rows.map((r) => {
+    const sums = new Float64Array(r.length + 1);
+    r.forEach((v, i) => (sums[i + 1] = sums[i] + v));
+    return sums;
   });
   let best = Infinity;
   for (let split = 0; split < values.length; split++) {
@@ -89,15 +107,60 @@ export function clusterCharge(
     const across = split === 0 ? 0 : divided(large, values[0]);
     const small = split === 0 ? 0 : divided(values[0], values[0]);
     let sum = 0;
-    for (const rows of rowSquares) {
-      let b = 0;
-      let s = 0;
-      rows.forEach((v, r) => (r < split ? (s += v) : (b += v)));
+    for (const sums of below) {
+      const s = sums[split];
+      const b = sums[sums.length - 1] - s;
       sum += b * within + 2 * Math.sqrt(b * s) * across + s * small;
     }
     best = Math.min(best, sum);
   }
   return error * best;
+}
+
+/**
+ * The error of W_k†∇F·W_k for every leading block W_k (the first k columns of `basis`; entry 0 is 0), von Neumann:
+ * `vonNeumannFaceCharge`'s Daleckii–Krein cluster bound for each output X_c and, with the same error size, for each
+ * of its pinched blocks Z_b(X_c) (∇F holds −ln Z(X_c) too; its maps are the block's rows of K_jW). One
+ * eigendecomposition per matrix serves every k. Used by the margin's split over the smallest eigenvectors of S
+ * (bound.ts, docs/convergence.md).
+ */
+export function vonNeumannLeadingCharges(objective: Objective, rho: ComplexMatrix, basis: ComplexMatrix, scaleN: number): Float64Array {
+  const charges = new Float64Array(basis.cols + 1);
+  const rhoNorm = frobeniusNorm(rho);
+  const outputs = objective.branchOutputs(rho);
+  objective.supports.forEach((support, c) => {
+    if (isKeyless(support)) return;
+    const output = outputs[c];
+    const range = support.outputRange;
+    const error = scaleN * outputSize(support, output, rhoNorm);
+    const images = support.krausOperators.map((k) => multiply(k, basis));
+    const matrices = [
+      { eigen: eigh(hermitianPart(range ? conjugateAdjoint(range, output) : output)), maps: range ? images.map((a) => multiplyAdjointLeft(range, a)) : images },
+      ...pinchedBlocks(output, support.blockSizes, support.blockOffsets).map((block, b) => ({
+        eigen: eigh(hermitianPart(block)),
+        maps: images.map((a) => rowBlock(a, support.blockOffsets[b], support.blockSizes[b])),
+      })),
+    ];
+    for (const { eigen, maps } of matrices) {
+      const rotated = maps.map((map) => multiplyAdjointLeft(eigen.vectors, map));
+      const rows = rotated.map((a) => new Float64Array(a.rows));
+      for (let k = 1; k <= basis.cols; k++) {
+        rotated.forEach((a, j) => {
+          for (let r = 0; r < a.rows; r++) rows[j][r] += a.re[r * a.cols + k - 1] ** 2 + a.im[r * a.cols + k - 1] ** 2;
+        });
+        charges[k] += clusterChargeOfRows(eigen.values, rows, logDividedDifference, error, false) / Math.LN2;
+      }
+    }
+  });
+  return charges;
+}
+
+/** Rows start … start + size − 1 of a matrix. */
+function rowBlock(a: ComplexMatrix, start: number, size: number): ComplexMatrix {
+  const out = ComplexMatrix.zeros(size, a.cols);
+  out.re.set(a.re.subarray(start * a.cols, (start + size) * a.cols));
+  out.im.set(a.im.subarray(start * a.cols, (start + size) * a.cols));
+  return out;
 }
 
 /** |(t^p)^[1](a, b)| for −1 < p < 0: convex and decreasing, so it decreases in both arguments. */

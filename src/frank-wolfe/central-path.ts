@@ -31,7 +31,9 @@ export interface CentralPathOptions {
 export const DEFAULT_CENTRAL_PATH: Readonly<Omit<CentralPathOptions, 'startWeight' | 'endWeight'>> = Object.freeze({
   reduction: 0.1,
   stepsPerWeight: 3,
-  maxTangentDimension: 256,
+  // n² at n = 20: the d = 64 face models' 20-dimensional faces (300 tangent coordinates once dependent equalities
+  // are dropped) need the path; Frank–Wolfe alone crawled to a gap of 1.3e-2 in 60 s there (docs/convergence.md).
+  maxTangentDimension: 400,
 });
 
 /** Forward-difference step in the scaled coordinates: ρ + h·ρ^½Dρ^½ moves every eigenvalue by at most a share h. */
@@ -98,7 +100,8 @@ export interface CentralPathOutcome<E extends FaceEvaluation> {
  * `reduction`), damped Newton steps on φ_μ = F − μ·(log det ρ + Σ log slacks) in the tangent space of the
  * equalities. The coordinates are scaled, D ↦ ρ^½·D·ρ^½ (the barrier's Hessian at ρ is E ↦ ρ⁻¹Eρ⁻¹), so that the
  * log-det barrier's Hessian is the identity and a forward difference of ∇F moves every eigenvalue by the same
- * share however small it is. Each centred point is handed to `accept` (so a time limit keeps the progress);
+ * share however small it is. Each centred point is handed to `accept` with its weight (so a time limit keeps the
+ * progress);
  * returns the last one, or null when no step lowered φ.
  */
 export function followCentralPath<E extends FaceEvaluation>(
@@ -107,7 +110,7 @@ export function followCentralPath<E extends FaceEvaluation>(
   constraints: readonly LinearConstraint[],
   evaluate: (state: ComplexMatrix) => E | null,
   options: CentralPathOptions,
-  accept: (point: ComplexMatrix, evaluation: E) => void,
+  accept: (point: ComplexMatrix, evaluation: E, weight: number) => void,
 ): CentralPathOutcome<E> | null {
   if (tooManyCoordinates(x.rows, constraints, options.maxTangentDimension)) return null;
   const equalities = constraints.filter((c) => c.lower === c.upper);
@@ -123,7 +126,7 @@ export function followCentralPath<E extends FaceEvaluation>(
     if (!meetsHeldRows(constraints, held, here.point)) return outcome;
     if (centred !== null) {
       outcome = { ...here, weight, centrings: ++centrings };
-      accept(here.point, here.evaluation);
+      accept(here.point, here.evaluation, weight);
     }
     if (weight <= options.endWeight) return outcome;
   }

@@ -208,7 +208,9 @@ function centralPathMove(setup: SolverSetup, state: SolverState): boolean {
     return evaluateSafely(setup.objective, point);
   };
   let improved = false;
-  const accept = (point: ComplexMatrix, evaluation: SolverState['evaluation']) => {
+  const accept = (point: ComplexMatrix, evaluation: SolverState['evaluation'], weight: number) => {
+    // Well-conditioned by the barrier, with linearization gap ≈ w·ν: kept as certification neighbours (certify.ts).
+    if (weight * nu <= setup.settings.gapTolerance) state.centredPoints.push({ point, evaluation, pathGap: weight * nu });
     if (!(evaluation.value < state.evaluation.value)) return;
     restartAt(state, point, evaluation);
     improved = true;

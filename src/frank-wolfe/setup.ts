@@ -152,6 +152,7 @@ export function setUp(
     lastOracleGap: Infinity,
     noProgressCause: undefined,
     faceNewtonEvaluations: 0,
+    centredPoints: [],
     eigenOf: null,
   };
   return { ready: true, setup, state, evaluationMs };

@@ -134,6 +134,11 @@ export interface SolverState {
   faceNewtonEvaluations: number;
   /** Whether the central path has been followed (at most once). */
   centralPathTried?: boolean;
+  /**
+   * Centred points of that path whose path gap w·ν is within the requested gap, not yet certified: the barrier keeps
+   * them off the cone's boundary, so they are the neighbours to certify first (each once).
+   */
+  centredPoints: { point: ComplexMatrix; evaluation: ObjectiveEvaluation & { gradient: ComplexMatrix }; pathGap: number }[];
   /** Whether the zero-entropy test has run (it runs at most once). */
   zeroEntropyTried?: boolean;
   /** The iterate's eigendecomposition, computed at most once per iterate. */
