@@ -2,7 +2,6 @@
 // "Where the conditioning reaches the bound"): for every leading block W_k of a basis, the change of W_k†∇F·W_k under
 // backward errors of the outputs and of their pinched blocks stays below `vonNeumannLeadingCharges`, with ln taken
 // from ml-matrix's symmetric eigendecomposition of the real embedding as the outside reference.
-import { EigenvalueDecomposition, Matrix } from 'ml-matrix';
 import { describe, expect, it } from 'vitest';
 import { vonNeumannLeadingCharges } from '../../src/certificate/face-block-charge.js';
 import {
@@ -20,34 +19,12 @@ import { eigh } from '../../src/linear-algebra/eigen.js';
 import { createObjective } from '../../src/objectives/index.js';
 import { pinchedBlocks } from '../../src/objectives/spectral-blocks.js';
 import { randomHermitian, randomUnitary, seededRandom } from '../helpers/random.js';
-import { referenceEigenvalues } from '../oracle/reference.js';
 import { randomInstrumentProblem } from '../objectives/fixtures.js';
+import { operatorNorm, referenceFunction } from './reference-functions.js';
 
-/** ln H for positive definite H from ml-matrix's symmetric eigendecomposition of [[Re H, −Im H], [Im H, Re H]]. */
+/** ln H for positive definite H (the outside reference). */
 function referenceLog(h: ComplexMatrix): ComplexMatrix {
-  const n = h.rows;
-  const embedded = Matrix.zeros(2 * n, 2 * n);
-  for (let i = 0; i < n; i++) {
-    for (let j = 0; j < n; j++) {
-      const re = 0.5 * (h.re[i * n + j] + h.re[j * n + i]);
-      const im = 0.5 * (h.im[i * n + j] - h.im[j * n + i]);
-      embedded.set(i, j, re);
-      embedded.set(i + n, j + n, re);
-      embedded.set(i, j + n, -im);
-      embedded.set(i + n, j, im);
-    }
-  }
-  const e = new EigenvalueDecomposition(embedded, { assumeSymmetric: true });
-  const v = e.eigenvectorMatrix;
-  const applied = v.mmul(Matrix.diag(e.realEigenvalues.map(Math.log))).mmul(v.transpose());
-  const out = new ComplexMatrix(n, n);
-  for (let i = 0; i < n; i++) {
-    for (let j = 0; j < n; j++) {
-      out.re[i * n + j] = applied.get(i, j);
-      out.im[i * n + j] = applied.get(i + n, j);
-    }
-  }
-  return out;
+  return referenceFunction(h, Math.log);
 }
 
 /** ln X − ln Z(X) on the support (Z the key-map pinching, embedded block-diagonally). */
@@ -63,11 +40,6 @@ function outputGradient(x: ComplexMatrix, sizes: readonly number[], offsets: rea
     }
   });
   return g;
-}
-
-/** Largest singular value from mathjs eigenvalues of A·A†. */
-function operatorNorm(a: ComplexMatrix): number {
-  return Math.sqrt(Math.max(0, ...referenceEigenvalues(multiply(a, adjoint(a)))));
 }
 
 function unitHermitian(h: ComplexMatrix): ComplexMatrix {

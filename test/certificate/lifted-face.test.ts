@@ -1,7 +1,6 @@
 // The lifted linearization bound on an exposed face (docs/faces.md, "The lifted linearization bound"): the block
 // inequality against mathjs eigenvalues, the cluster charge against matrix functions from ml-matrix's symmetric
 // eigendecomposition, and certificates of the random suite's face model d16#2 that verify re-checks.
-import { EigenvalueDecomposition, Matrix } from 'ml-matrix';
 import { describe, expect, it } from 'vitest';
 import { randomModel } from '../../src/bench/random-models.js';
 import { certificateBreakdown } from '../../src/certificate/bound.js';
@@ -29,39 +28,8 @@ import type { EntropyRequest, Problem } from '../../src/problem/model.js';
 import type { Certificate } from '../../src/result/types.js';
 import { randomComplexGaussian, randomHermitian, randomIsometry, randomUnitary, seededRandom } from '../helpers/random.js';
 import { referenceEigenvalues, traceOfProduct } from '../oracle/reference.js';
+import { operatorNorm, referenceFunction } from './reference-functions.js';
 import { rotated } from './rotation.js';
-
-/** f(H) for Hermitian H from ml-matrix's symmetric eigendecomposition of [[Re H, −Im H], [Im H, Re H]] (a *-homomorphism). */
-function referenceFunction(h: ComplexMatrix, f: (t: number) => number): ComplexMatrix {
-  const n = h.rows;
-  const embedded = Matrix.zeros(2 * n, 2 * n);
-  for (let i = 0; i < n; i++) {
-    for (let j = 0; j < n; j++) {
-      const re = 0.5 * (h.re[i * n + j] + h.re[j * n + i]);
-      const im = 0.5 * (h.im[i * n + j] - h.im[j * n + i]);
-      embedded.set(i, j, re);
-      embedded.set(i + n, j + n, re);
-      embedded.set(i, j + n, -im);
-      embedded.set(i + n, j, im);
-    }
-  }
-  const e = new EigenvalueDecomposition(embedded, { assumeSymmetric: true });
-  const v = e.eigenvectorMatrix;
-  const applied = v.mmul(Matrix.diag(e.realEigenvalues.map(f))).mmul(v.transpose());
-  const out = new ComplexMatrix(n, n);
-  for (let i = 0; i < n; i++) {
-    for (let j = 0; j < n; j++) {
-      out.re[i * n + j] = applied.get(i, j);
-      out.im[i * n + j] = applied.get(i + n, j);
-    }
-  }
-  return out;
-}
-
-/** Largest singular value from mathjs eigenvalues of A·A†. */
-function operatorNorm(a: ComplexMatrix): number {
-  return Math.sqrt(Math.max(0, ...referenceEigenvalues(multiply(a, adjoint(a)))));
-}
 
 function syntheticFace(n: number, k: number, seed: number, leak: number): FeasibleFace {
   return { isometry: randomIsometry(n, k, seededRandom(seed)), dimension: k, reasons: [], exposures: [{ multipliers: [] }], leak };
