@@ -174,6 +174,17 @@ export function assembleResult(setup: SolverSetup, state: SolverState): SolveRes
         : `the certificate's bound ${certifiedBound} lies below the trivial bound ${trivialBound}, which holds for every state and is reported instead`,
     );
   }
+  // On an exposed face the face's own bound may meet the request while the cost of states off the face does not:
+  // say how much of the gap that cost is, so a floor set by the data's leak is not mistaken for slow convergence.
+  if (status === 'LIMIT_REACHED' && face.exposures.length > 0 && state.best !== null && certificate !== null) {
+    const offFace = state.best.breakdown.lowerBound - certifiedBound;
+    const route = certificate.linearizationOffFace ? 'the lifted linearization bound' : 'the continuity margin';
+    notes.push(
+      `on the exposed face the certificate's own bound is ${(state.evaluation.value - state.best.breakdown.lowerBound).toExponential(3)} ` +
+        `below F; states off the face (weight at most ${(face.leak ?? 0).toExponential(2)}) cost ${offFace.toExponential(3)} more ` +
+        `through ${route} (docs/faces.md)`,
+    );
+  }
   let message: string | undefined;
   if (status === 'LIMIT_REACHED') {
     message =

@@ -213,6 +213,11 @@ describe('d16#2 of the random suite (no full-rank feasible state): lifted certif
     expect(result.certifiedLowerBound as number).toBeLessThanOrEqual(createObjective(model.problem, request).evaluate(model.truth).value);
     // The whole-space path ended at 1.0e-4 on this model (README, before the lifted bound).
     expect(result.gap as number).toBeLessThan(1e-5);
+    // The result says how much of its gap the states off the face cost: the face's own gap plus that cost is the gap.
+    const note = result.notes?.find((n) => n.startsWith('on the exposed face'));
+    expect(note).toContain('through the lifted linearization bound');
+    const [own, cost] = [...(note as string).matchAll(/(\d\.\d+e[-+]\d+) (?:below F|more)/g)].map((m) => Number(m[1]));
+    expect(Math.abs(own + cost - (result.gap as number))).toBeLessThan(1e-3 * (result.gap as number));
   });
 
   it('verify rejects the flag where it claims nothing it can check', () => {
