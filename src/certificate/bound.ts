@@ -101,7 +101,8 @@ export function linearizationBound(
   let conditioningCharge = weyl;
   let margin = unamplified + weyl;
   const base = linearizationConstant + dualConstant + spectrum.values[0] + referenceTerm;
-  // von Neumann: the closed form over outputs and pinched blocks alike (no evaluations, any cluster size).
+  // von Neumann: the closed form over outputs and pinched blocks alike (no evaluations, any cluster size); its derived
+  // ledger holds only the pinched blocks, so no separate derived charge remains.
   if (objective.request.kind === 'von-neumann' && weyl > unamplified && base - unamplified > curvatureWorthAbove) {
     const clustered = clusterSplitCharge(objective, rho, spectrum, weyl + derivedCharge, scale);
     if (clustered < conditioningCharge) {

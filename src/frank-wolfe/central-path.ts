@@ -31,8 +31,8 @@ export interface CentralPathOptions {
 export const DEFAULT_CENTRAL_PATH: Readonly<Omit<CentralPathOptions, 'startWeight' | 'endWeight'>> = Object.freeze({
   reduction: 0.1,
   stepsPerWeight: 3,
-  // n² at n = 20: the d = 64 face models' 20-dimensional faces (300 tangent coordinates once dependent equalities
-  // are dropped) need the path; Frank–Wolfe alone crawled to a gap of 1.3e-2 in 60 s there (docs/convergence.md).
+  // n² at n = 20: d64#4's 20-dimensional face (284 tangent coordinates, its 169 rows being dependent) needs the path;
+  // Frank–Wolfe alone crawled to a gap of 1.3e-2 in 60 s there (docs/convergence.md).
   maxTangentDimension: 400,
 });
 

@@ -176,8 +176,8 @@ export function assembleResult(setup: SolverSetup, state: SolverState): SolveRes
   }
   // On an exposed face the face's own bound may meet the request while the cost of states off the face does not:
   // say how much of the gap that cost is, so a floor set by the data's leak is not mistaken for slow convergence.
-  if (status === 'LIMIT_REACHED' && face.exposures.length > 0 && state.best !== null && certificate !== null) {
-    const offFace = state.best.breakdown.lowerBound - certifiedBound;
+  const offFace = state.best !== null ? state.best.breakdown.lowerBound - certifiedBound : 0;
+  if (status === 'LIMIT_REACHED' && face.exposures.length > 0 && state.best !== null && certificate !== null && offFace > 0) {
     const route = certificate.linearizationOffFace ? 'the lifted linearization bound' : 'the continuity margin';
     notes.push(
       `on the exposed face the certificate's own bound is ${(state.evaluation.value - state.best.breakdown.lowerBound).toExponential(3)} ` +

@@ -8,7 +8,7 @@ import { verifyResult } from '../../src/certificate/verify.js';
 import { solve } from '../../src/frank-wolfe/solve.js';
 import { createObjective } from '../../src/objectives/index.js';
 
-describe('d = 32 model pinned to an 18-dimensional face (324 − 87 coordinates before dependent equalities)', () => {
+describe('d = 32 model pinned to an 18-dimensional face (266 tangent coordinates for the central path)', () => {
   // The random suite's generator with the face trait forced: rank-18 generating state, full POVM tables, source
   // marginal, one branch. Before the central path took 400 coordinates: gap 2.7e-6 after 1259 iterations (30 s).
   const model = randomModel(32, 3, { face: true, truthRank: 18, table: 'full', intervals: false, branches: 1, keylessBranch: false, sourceMarginal: true });
