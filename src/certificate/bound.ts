@@ -283,12 +283,14 @@ function curvatureCharge(
 }
 
 /**
- * The same Schur-complement split with a ≥ ‖E_WW‖ in closed form (von Neumann): Daleckii–Krein over the clusters of
- * large and small eigenvalues of each output and of its pinched blocks (`vonNeumannLeadingCharges`, docs/faces.md),
- * which needs no difference quotients, so W may be any number k of smallest eigenvectors of S. At an optimum of
- * rank r on the boundary S has about r eigenvalues near σ_0 (complementary slackness) and the gap opens only after
- * them, beyond the curvature's four; the small eigenvalues are then seen by W only through its small overlap with
- * them. `wholeCharge` bounds ‖E‖ for every matrix together (the outputs' and the pinched blocks' Weyl charges).
+ * The same Schur-complement split in closed form (von Neumann): a ≥ ‖E_WW‖ and c ≥ ‖E_⊥W‖ from Daleckii–Krein over
+ * the clusters of large and small eigenvalues of each output and of its pinched blocks (`vonNeumannLeadingCharges`,
+ * docs/faces.md), e ≥ ‖E_⊥⊥‖ the whole charge; then λ_min(S) ≥ σ_0 − a − c²/(g − e + a) when g > e (the 2×2 form
+ * over (W, W⊥) with diagonal σ_0 − a, σ_k − e and off-diagonal c). No difference quotients are needed, so W may be
+ * any number k of smallest eigenvectors of S. At an optimum of rank r on the boundary S has about r eigenvalues near
+ * σ_0 (complementary slackness) and the gap opens only after them, beyond the curvature's four; the small
+ * eigenvalues are then seen by W only through its small overlap with them, and by the cross block only on one side.
+ * `wholeCharge` bounds ‖E‖ for every matrix together (the outputs' and the pinched blocks' Weyl charges).
  */
 function clusterSplitCharge(
   objective: Objective,
@@ -298,14 +300,16 @@ function clusterSplitCharge(
   scale: number,
 ): number {
   const { values, vectors } = spectrum;
-  const leading = vonNeumannLeadingCharges(objective, rho, vectors, scale);
+  const { within, cross } = vonNeumannLeadingCharges(objective, rho, vectors, scale);
   let best = Infinity;
   for (let k = 1; k < values.length; k++) {
-    const a = leading[k];
+    const a = within[k];
     const gap = values[k] - values[0];
-    const whole = Math.max(wholeCharge, a);
-    if (!Number.isFinite(a) || gap <= whole) continue;
-    best = Math.min(best, a + (whole * whole) / (gap - whole + a));
+    // e ≥ ‖E_⊥⊥‖ (the whole charge), c ≥ ‖E_⊥W‖ (the cross clusters, never above the whole charge).
+    const e = Math.max(wholeCharge, a);
+    const c = Math.min(e, cross[k]);
+    if (!Number.isFinite(a) || gap <= e) continue;
+    best = Math.min(best, a + (c * c) / (gap - e + a));
   }
   return best;
 }

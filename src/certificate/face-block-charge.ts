@@ -117,15 +117,25 @@ function clusterChargeOfRows(
   return error * best;
 }
 
+/** Cluster charges of the blocks of ∇F over a split basis [W_k | W_k⊥], for every k (entry 0 unused). */
+export interface LeadingCharges {
+  /** Bounds on the error of W_k†∇F·W_k. */
+  within: Float64Array;
+  /** Bounds on the error of W_k⊥†∇F·W_k (the cross block). */
+  cross: Float64Array;
+}
+
 /**
- * The error of W_k†∇F·W_k for every leading block W_k (the first k columns of `basis`; entry 0 is 0), von Neumann:
+ * The error of the blocks of ∇F over [W_k | W_k⊥] for every k (W_k the first k columns of `basis`), von Neumann:
  * `vonNeumannFaceCharge`'s Daleckii–Krein cluster bound for each output X_c and, with the same error size, for each
- * of its pinched blocks Z_b(X_c) (∇F holds −ln Z(X_c) too; its maps are the block's rows of K_jW). One
- * eigendecomposition per matrix serves every k. Used by the margin's split over the smallest eigenvectors of S
- * (bound.ts, docs/convergence.md).
+ * of its pinched blocks Z_b(X_c) (∇F holds −ln Z(X_c) too; its maps are the block's rows of K_jW). The cross block
+ * pairs maps L_j = U†K_jW_k⊥ with R_j = U†K_jW_k: Σ_j [l_B r_B·γ_BB + (l_B r_S + l_S r_B)·γ_BS + l_S r_S·γ_SS], l and r
+ * the Frobenius norms of their rows in the large (B) and small (S) clusters. One eigendecomposition per matrix
+ * serves every k. Used by the margin's split over the smallest eigenvectors of S (bound.ts, docs/convergence.md).
  */
-export function vonNeumannLeadingCharges(objective: Objective, rho: ComplexMatrix, basis: ComplexMatrix, scaleN: number): Float64Array {
-  const charges = new Float64Array(basis.cols + 1);
+export function vonNeumannLeadingCharges(objective: Objective, rho: ComplexMatrix, basis: ComplexMatrix, scaleN: number): LeadingCharges {
+  const within = new Float64Array(basis.cols + 1);
+  const cross = new Float64Array(basis.cols + 1);
   const rhoNorm = frobeniusNorm(rho);
   const outputs = objective.branchOutputs(rho);
   objective.supports.forEach((support, c) => {
@@ -143,16 +153,57 @@ export function vonNeumannLeadingCharges(objective: Objective, rho: ComplexMatri
     ];
     for (const { eigen, maps } of matrices) {
       const rotated = maps.map((map) => multiplyAdjointLeft(eigen.vectors, map));
+      const totals = rotated.map(rowSquares);
       const rows = rotated.map((a) => new Float64Array(a.rows));
       for (let k = 1; k <= basis.cols; k++) {
         rotated.forEach((a, j) => {
           for (let r = 0; r < a.rows; r++) rows[j][r] += a.re[r * a.cols + k - 1] ** 2 + a.im[r * a.cols + k - 1] ** 2;
         });
-        charges[k] += clusterChargeOfRows(eigen.values, rows, logDividedDifference, error, false) / Math.LN2;
+        within[k] += clusterChargeOfRows(eigen.values, rows, logDividedDifference, error, false) / Math.LN2;
+        const rest = rows.map((r, j) => Float64Array.from(r, (v, i) => Math.max(0, totals[j][i] - v)));
+        cross[k] += crossChargeOfRows(eigen.values, rest, rows, logDividedDifference, error) / Math.LN2;
       }
     }
   });
-  return charges;
+  return { within, cross };
+}
+
+/** The cross-block analogue of `clusterChargeOfRows` (additive errors): left and right maps' squared row norms. */
+function crossChargeOfRows(
+  eigenvalues: Float64Array,
+  left: readonly Float64Array[],
+  right: readonly Float64Array[],
+  divided: (a: number, b: number) => number,
+  error: number,
+): number {
+  if (!(eigenvalues[0] > 10 * error)) return Infinity;
+  const values = Float64Array.from(eigenvalues, (v) => v - error);
+  const prefix = (rows: readonly Float64Array[]) =>
+    rows.map((r) => {
+      const sums = new Float64Array(r.length + 1);
+      r.forEach((v, i) => (sums[i + 1] = sums[i] + v));
+      return sums;
+    });
+  const leftBelow = prefix(left);
+  const rightBelow = prefix(right);
+  let best = Infinity;
+  for (let split = 0; split < values.length; split++) {
+    const large = values[split];
+    const withinLarge = divided(large, large);
+    const across = split === 0 ? 0 : divided(large, values[0]);
+    const small = split === 0 ? 0 : divided(values[0], values[0]);
+    let sum = 0;
+    leftBelow.forEach((l, j) => {
+      const r = rightBelow[j];
+      const lS = Math.sqrt(l[split]);
+      const lB = Math.sqrt(Math.max(0, l[l.length - 1] - l[split]));
+      const rS = Math.sqrt(r[split]);
+      const rB = Math.sqrt(Math.max(0, r[r.length - 1] - r[split]));
+      sum += lB * rB * withinLarge + (lB * rS + lS * rB) * across + lS * rS * small;
+    });
+    best = Math.min(best, sum);
+  }
+  return error * best;
 }
 
 /** Rows start … start + size − 1 of a matrix. */

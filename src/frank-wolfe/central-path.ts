@@ -1,7 +1,7 @@
 // Newton steps along the central path of F − μ·(log det ρ + Σ log interval slacks) on the equalities' affine set:
 // for optima with no clear rank gap (eigenvalues tapering towards zero), where Frank–Wolfe crawls and the
 // rank-manifold steps have no rank to choose (docs/convergence.md, "The central path").
-import { Matrix, QrDecomposition, SingularValueDecomposition } from '../linear-algebra/ml-matrix.js';
+import { Matrix, pseudoInverse, QrDecomposition, SingularValueDecomposition } from '../linear-algebra/ml-matrix.js';
 import { eigh, eigvalsh } from '../linear-algebra/eigen.js';
 import {
   addScaledInPlace,
@@ -26,6 +26,11 @@ export interface CentralPathOptions {
   stepsPerWeight: number;
   /** Largest number of real tangent coordinates for which the Hessian is formed (one evaluation each). */
   maxTangentDimension: number;
+  /**
+   * Largest n² for which frames with more tangent coordinates than that take Hessian-free steps instead (conjugate
+   * gradients on difference products, one evaluation each); larger problems are not attempted.
+   */
+  maxHessianFreeDimension: number;
 }
 
 export const DEFAULT_CENTRAL_PATH: Readonly<Omit<CentralPathOptions, 'startWeight' | 'endWeight'>> = Object.freeze({
@@ -34,6 +39,8 @@ export const DEFAULT_CENTRAL_PATH: Readonly<Omit<CentralPathOptions, 'startWeigh
   // n² at n = 20: d64#4's 20-dimensional face (284 tangent coordinates, its 169 rows being dependent) needs the path;
   // Frank–Wolfe alone crawled to a gap of 1.3e-2 in 60 s there (docs/convergence.md).
   maxTangentDimension: 400,
+  // n = 32 on the whole space (d32#3 of the suite: about 1000 tangent coordinates; formed Hessians took all of 30 s).
+  maxHessianFreeDimension: 1024,
 });
 
 /** Forward-difference step in the scaled coordinates: ρ + h·ρ^½Dρ^½ moves every eigenvalue by at most a share h. */
@@ -46,6 +53,12 @@ const ARMIJO = 0.25;
 const BACKTRACKS = 30;
 /** A centring ends once the Newton decrement is below this share of the weight. */
 const CENTRED = 0.1;
+/** Conjugate-gradient iterations per Hessian-free Newton step at most (each one evaluation of F). */
+const CG_ITERATIONS = 100;
+/** Hessian-free Newton steps per weight at most (each costs up to CG_ITERATIONS evaluations, not k). */
+const HESSIAN_FREE_STEPS = 10;
+/** …stopping once the residual is below this share of the gradient (an inexact Newton step). */
+const CG_TOLERANCE = 0.01;
 
 /**
  * The barrier parameter ν of the log-det barrier of an n×n state plus one per finite interval side: on the
@@ -59,6 +72,11 @@ export function barrierParameter(n: number, constraints: readonly LinearConstrai
 export function tooManyCoordinates(n: number, constraints: readonly LinearConstraint[], maxTangentDimension: number): boolean {
   const equalities = constraints.filter((c) => c.lower === c.upper).length;
   return n * n - (equalities + 1) > maxTangentDimension;
+}
+
+/** Whether neither kind of frame can take the problem: too many tangent coordinates and n² above the Hessian-free cap. */
+export function beyondCentralPath(n: number, constraints: readonly LinearConstraint[], options: Pick<CentralPathOptions, 'maxTangentDimension' | 'maxHessianFreeDimension'>): boolean {
+  return tooManyCoordinates(n, constraints, options.maxTangentDimension) && n * n > options.maxHessianFreeDimension;
 }
 
 /** One interval side as the barrier sees it: ⟨Γ, ρ⟩ − lower (sign +1) or upper − ⟨Γ, ρ⟩ (sign −1). */
@@ -112,7 +130,7 @@ export function followCentralPath<E extends FaceEvaluation>(
   options: CentralPathOptions,
   accept: (point: ComplexMatrix, evaluation: E, weight: number) => void,
 ): CentralPathOutcome<E> | null {
-  if (tooManyCoordinates(x.rows, constraints, options.maxTangentDimension)) return null;
+  if (beyondCentralPath(x.rows, constraints, options)) return null;
   const equalities = constraints.filter((c) => c.lower === c.upper);
   const sides = intervalSides(constraints);
   const held = constraints.map(() => null);
@@ -123,7 +141,6 @@ export function followCentralPath<E extends FaceEvaluation>(
     if (centred === 'too-large') return null;
     if (centred !== null) here = centred;
     // Rounding in the steps must not move ρ off its equalities: a point that no longer meets them ends the path.
-    if (!meetsHeldRows(constraints, held, here.point)) return outcome;
     if (centred !== null) {
       outcome = { ...here, weight, centrings: ++centrings };
       accept(here.point, here.evaluation, weight);
@@ -196,9 +213,15 @@ function stepsInFrame<E extends FaceEvaluation>(
   const scaled = (a: ComplexMatrix) => coordinatesOf(sandwich(half, a));
   // Trace (ρ^½·1·ρ^½ = ρ) and the equalities, in scaled coordinates; their null space is the tangent space.
   const rows = [scaled(ComplexMatrix.identity(n)), ...equalities.map((c) => scaled(c.operator))];
+  // Too many coordinates to form the Hessian (decided before the m×m QR when the count alone says so).
+  const hessianFree = () =>
+    m <= options.maxHessianFreeDimension
+      ? hessianFreeSteps(x, current, { equalities, sides, evaluate, weight, budget }, { half, rows, coordinatesOf })
+      : 'too-large';
+  if (m - rows.length > options.maxTangentDimension) return hessianFree();
   const tangent = nullSpace(rows, m);
   const k = tangent.length;
-  if (k > options.maxTangentDimension) return 'too-large';
+  if (k > options.maxTangentDimension) return hessianFree();
   if (k === 0) return none;
   const reduce = (full: Float64Array) => {
     const out = new Float64Array(k);
@@ -271,32 +294,7 @@ function stepsInFrame<E extends FaceEvaluation>(
       for (let i = 0; i < m; i++) combined[i] += newton.coefficients[j] * t[i];
     });
     const inner = innerOf(combined);
-    const move = outerOf(inner);
-
-    // ρ + t·ρ_x^½Dρ_x^½ = ρ_x^½(A + tD)ρ_x^½: the longest step keeping it and every slack positive, from the
-    // eigenvalues of A^{-½}DA^{-½}, then halved until φ_μ decreases enough.
-    const innerValues = eigvalsh(sandwich(inverseHalf, inner));
-    let longest = 1;
-    if (innerValues[0] < 0) longest = Math.min(longest, -TO_BOUNDARY / innerValues[0]);
-    const sideRates = sides.map((s) => s.sign * traceProductReal(s.operator, move));
-    sideRates.forEach((rate, q) => {
-      if (rate < 0) longest = Math.min(longest, (-TO_BOUNDARY * slacks[q]) / rate);
-    });
-    const barrierChange = (t: number) => {
-      let change = 0;
-      for (const v of innerValues) change += Math.log1p(t * v);
-      sideRates.forEach((rate, q) => (change += Math.log1p((t * rate) / slacks[q])));
-      return change;
-    };
-    let accepted: { point: ComplexMatrix; evaluation: E; t: number } | null = null;
-    for (let t = longest, tries = 0; tries <= BACKTRACKS && accepted === null; tries++, t /= 2) {
-      const candidate = point.clone();
-      addScaledInPlace(candidate, move, t);
-      const e = evaluate(candidate);
-      if (!e) continue;
-      const decrease = evaluation.value - e.value + weight * barrierChange(t);
-      if (decrease >= ARMIJO * t * newton.decrement) accepted = { point: candidate, evaluation: e, t };
-    }
+    const accepted = barrierLineStep({ point, evaluation, inner, decrement: newton.decrement, weight, sides, slacks, inverseHalf, half, evaluate });
     if (accepted === null) break;
     point = accepted.point;
     evaluation = accepted.evaluation;
@@ -304,7 +302,176 @@ function stepsInFrame<E extends FaceEvaluation>(
     taken++;
     // Only a fresh frame's decrement says the point is centred; a small one from a reused Hessian asks for a new frame.
     centred = step === 0 && newton.decrement <= CENTRED * weight;
-    if (newton.decrement <= CENTRED * weight || accepted.t < longest) break;
+    if (newton.decrement <= CENTRED * weight || accepted.t < accepted.longest) break;
+  }
+  return { point, evaluation, taken, centred };
+}
+
+/** What one damped step along a Newton direction needs (the frame's scaling ρ_x^½ and A's inverse square root). */
+interface LineStepTask<E extends FaceEvaluation> {
+  point: ComplexMatrix;
+  evaluation: E;
+  /** The direction D in the frame's scaled coordinates (the move is ρ_x^½·D·ρ_x^½). */
+  inner: ComplexMatrix;
+  decrement: number;
+  weight: number;
+  sides: readonly Side[];
+  slacks: readonly number[];
+  inverseHalf: ComplexMatrix;
+  half: ComplexMatrix;
+  evaluate: (state: ComplexMatrix) => E | null;
+}
+
+/**
+ * ρ + t·ρ_x^½Dρ_x^½ = ρ_x^½(A + tD)ρ_x^½: the longest step keeping it and every slack positive, from the eigenvalues
+ * of A^{-½}DA^{-½}, then halved until φ_μ decreases by ARMIJO·t·decrement; null when no halving does.
+ */
+function barrierLineStep<E extends FaceEvaluation>(task: LineStepTask<E>): { point: ComplexMatrix; evaluation: E; t: number; longest: number } | null {
+  const { point, evaluation, inner, decrement, weight, sides, slacks, inverseHalf, half, evaluate } = task;
+  const move = sandwich(half, inner);
+  const innerValues = eigvalsh(sandwich(inverseHalf, inner));
+  let longest = 1;
+  if (innerValues[0] < 0) longest = Math.min(longest, -TO_BOUNDARY / innerValues[0]);
+  const sideRates = sides.map((s) => s.sign * traceProductReal(s.operator, move));
+  sideRates.forEach((rate, q) => {
+    if (rate < 0) longest = Math.min(longest, (-TO_BOUNDARY * slacks[q]) / rate);
+  });
+  const barrierChange = (t: number) => {
+    let change = 0;
+    for (const v of innerValues) change += Math.log1p(t * v);
+    sideRates.forEach((rate, q) => (change += Math.log1p((t * rate) / slacks[q])));
+    return change;
+  };
+  for (let t = longest, tries = 0; tries <= BACKTRACKS; tries++, t /= 2) {
+    const candidate = point.clone();
+    addScaledInPlace(candidate, move, t);
+    const e = evaluate(candidate);
+    if (!e) continue;
+    const decrease = evaluation.value - e.value + weight * barrierChange(t);
+    if (decrease >= ARMIJO * t * decrement) return { point: candidate, evaluation: e, t, longest };
+  }
+  return null;
+}
+
+/** The frame's scaling and rows, shared with the Hessian-free steps. */
+interface FrameBasics {
+  half: ComplexMatrix;
+  /** Trace and equality rows in scaled coordinates (their orthogonal complement is the tangent space). */
+  rows: readonly Float64Array[];
+  coordinatesOf: (a: ComplexMatrix) => Float64Array;
+}
+
+/**
+ * Newton steps of one weight where the tangent space is too large to form F's Hessian (docs/convergence.md, "The
+ * central path"): the same scaled coordinates, the tangent space as the projection P = 1 − Rᵀ(RRᵀ)⁺R onto the
+ * rows' complement, and each Newton system (H_F + μ·H_barrier + side terms)·d = −g solved inexactly by conjugate
+ * gradients on P, with H_F·v a forward difference of ∇F at the current point (one evaluation per product). A
+ * direction of non-positive curvature ends the iteration with the step so far (Steihaug). The line search and the
+ * bookkeeping of A are those of the formed frames.
+ */
+function hessianFreeSteps<E extends FaceEvaluation>(
+  x: ComplexMatrix,
+  current: E,
+  { sides, evaluate, weight }: FrameTask<E>,
+  { half, rows, coordinatesOf }: FrameBasics,
+): { point: ComplexMatrix; evaluation: E; taken: number; centred: boolean } {
+  const n = x.rows;
+  const none = { point: x, evaluation: current, taken: 0, centred: false };
+  // Unit rows (as nullSpace scales them), and the projection applied twice: one pass leaves rounding of the order
+  // of the Gram matrix's condition, which moved ρ off its equalities and ended the path.
+  const units = rows.map((row) => {
+    const length = Math.sqrt(dot(row, row)) || 1;
+    return Float64Array.from(row, (v) => v / length);
+  });
+  const r = new Matrix(units.map((row) => Array.from(row)));
+  const gramInverse = pseudoInverse(r.mmul(r.transpose()));
+  const projectOnce = (v: Float64Array) => {
+    const w = gramInverse.mmul(Matrix.columnVector(units.map((row) => dot(row, v)))).getColumn(0);
+    const out = Float64Array.from(v);
+    units.forEach((row, q) => {
+      for (let i = 0; i < out.length; i++) out[i] -= w[q] * row[i];
+    });
+    return out;
+  };
+  const project = (v: Float64Array) => projectOnce(projectOnce(v));
+  const innerOf = (coordinates: ArrayLike<number>) => {
+    const inner = ComplexMatrix.zeros(n);
+    addHermitianCoordinates(inner, coordinates);
+    return inner;
+  };
+  const sideRows = sides.map((s) => coordinatesOf(sandwich(half, s.operator)));
+  let point = x;
+  let evaluation = current;
+  let taken = 0;
+  let centred = false;
+  const shape = ComplexMatrix.identity(n);
+  for (let step = 0; step < HESSIAN_FREE_STEPS; step++) {
+    const shapeEigen = eigh(shape);
+    if (!(shapeEigen.values[0] > 0)) break;
+    const inverse = conjugate(shapeEigen.vectors, ComplexMatrix.diagonal(Array.from(shapeEigen.values, (v) => 1 / v)));
+    const inverseHalf = conjugate(shapeEigen.vectors, ComplexMatrix.diagonal(Array.from(shapeEigen.values, (v) => 1 / Math.sqrt(v))));
+    const slacks = sides.map((s) => slackOf(s, point));
+    if (!slacks.every((v) => v > 0)) break;
+    const full = coordinatesOf(sandwich(half, evaluation.gradient));
+    const barrierRow = coordinatesOf(inverse);
+    for (let i = 0; i < full.length; i++) full[i] -= weight * barrierRow[i];
+    sides.forEach((s, q) => {
+      for (let i = 0; i < full.length; i++) full[i] -= (weight * s.sign * sideRows[q][i]) / slacks[q];
+    });
+    const gradient = project(full);
+    if (!gradient.every(Number.isFinite)) break;
+    const here = evaluation;
+    const from = point;
+    const product = (v: Float64Array): Float64Array | null => {
+      const length = Math.sqrt(dot(v, v));
+      const inner = innerOf(v);
+      const probe = from.clone();
+      addScaledInPlace(probe, sandwich(half, inner), DIFFERENCE_STEP / length);
+      const e = evaluate(probe);
+      if (!e) return null;
+      const difference = e.gradient.clone();
+      addScaledInPlace(difference, here.gradient, -1);
+      const out = coordinatesOf(sandwich(half, difference));
+      for (let i = 0; i < out.length; i++) out[i] *= length / DIFFERENCE_STEP;
+      const barrier = step === 0 ? v : coordinatesOf(sandwich(inverse, inner));
+      for (let i = 0; i < out.length; i++) out[i] += weight * barrier[i];
+      sides.forEach((_, q) => {
+        const along = (weight * dot(sideRows[q], v)) / slacks[q] ** 2;
+        for (let i = 0; i < out.length; i++) out[i] += along * sideRows[q][i];
+      });
+      return project(out);
+    };
+    // Conjugate gradients from d = 0 on (H)·d = −g in the tangent space.
+    const d = new Float64Array(gradient.length);
+    const residual = Float64Array.from(gradient, (g) => -g);
+    const direction = Float64Array.from(residual);
+    let rr = dot(residual, residual);
+    const stop = CG_TOLERANCE * Math.sqrt(rr);
+    for (let it = 0; it < CG_ITERATIONS && Math.sqrt(rr) > stop; it++) {
+      const hp = product(direction);
+      if (!hp || !hp.every(Number.isFinite)) break;
+      const curvature = dot(direction, hp);
+      if (!(curvature > 0)) break;
+      const alpha = rr / curvature;
+      for (let i = 0; i < d.length; i++) {
+        d[i] += alpha * direction[i];
+        residual[i] -= alpha * hp[i];
+      }
+      const next = dot(residual, residual);
+      for (let i = 0; i < d.length; i++) direction[i] = residual[i] + (next / rr) * direction[i];
+      rr = next;
+    }
+    const decrement = -dot(gradient, d);
+    if (!(decrement > 0)) break;
+    const inner = innerOf(d);
+    const accepted = barrierLineStep({ point, evaluation, inner, decrement, weight, sides, slacks, inverseHalf, half, evaluate });
+    if (accepted === null) break;
+    point = accepted.point;
+    evaluation = accepted.evaluation;
+    addScaledInPlace(shape, inner, accepted.t);
+    taken++;
+    centred = decrement <= CENTRED * weight;
+    if (centred) break;
   }
   return { point, evaluation, taken, centred };
 }

@@ -12,7 +12,7 @@ import type { ObjectiveEvaluation } from '../objectives/index.js';
 import type { LinearOracle, OracleResult } from '../oracle/index.js';
 import type { NoProgressCause, StopLimit } from '../result/types.js';
 import { trivialLowerBound } from '../certificate/trivial-bound.js';
-import { barrierParameter, DEFAULT_CENTRAL_PATH, followCentralPath, tooManyCoordinates } from './central-path.js';
+import { barrierParameter, beyondCentralPath, DEFAULT_CENTRAL_PATH, followCentralPath } from './central-path.js';
 import { certify, restoreMultipliers } from './certify.js';
 import { DEFAULT_FACE_NEWTON, faceNewtonStep, FACE_NEWTON_SCHEDULE, heldIntervalSides } from './face-newton.js';
 import { derivativeLineSearch } from './line-search.js';
@@ -199,7 +199,7 @@ function centralPathMove(setup: SolverSetup, state: SolverState): boolean {
   if (state.centralPathTried || state.oracleCalls < CENTRAL_PATH_FIRST_ORACLE_CALL) return false;
   state.centralPathTried = true;
   const constraints = setup.restricted.constraints;
-  if (tooManyCoordinates(state.x.rows, constraints, DEFAULT_CENTRAL_PATH.maxTangentDimension)) return false;
+  if (beyondCentralPath(state.x.rows, constraints, DEFAULT_CENTRAL_PATH)) return false;
   const nu = barrierParameter(state.x.rows, constraints);
   const endWeight = (CENTRAL_PATH_END_SHARE * setup.settings.gapTolerance) / nu;
   const startWeight = Math.max(endWeight, state.lastEstimatedGap / nu);
@@ -208,10 +208,12 @@ function centralPathMove(setup: SolverSetup, state: SolverState): boolean {
     return evaluateSafely(setup.objective, point);
   };
   let improved = false;
+  const trivial = trivialLowerBound(setup.problem);
   const accept = (point: ComplexMatrix, evaluation: SolverState['evaluation'], weight: number) => {
     // Well-conditioned by the barrier, with linearization gap ≈ w·ν: kept as certification neighbours (certify.ts).
     if (weight * nu <= setup.settings.gapTolerance) state.centredPoints.push({ point, evaluation, pathGap: weight * nu });
-    if (!(evaluation.value < state.evaluation.value)) return;
+    // Not a point whose F rounds below the trivial bound: the result could state no upper bound there (d32#7).
+    if (!(evaluation.value < state.evaluation.value) || evaluation.value < trivial + ABOVE_ROUNDING) return;
     restartAt(state, point, evaluation);
     improved = true;
   };

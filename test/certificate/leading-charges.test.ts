@@ -71,7 +71,7 @@ describe('the leading-block charges of ∇F (von Neumann; Daleckii–Krein over 
   const scaleN = 64 * 4 * 2 ** -53;
   // The backward-error size the charge assumes (face-block-charge.ts, outputSize): ‖X‖_F + ‖ρ‖_F·Σ_j ‖K_j‖_F².
   const error = scaleN * (frobeniusNorm(output) + frobeniusNorm(rho) * kraus.reduce((w, k) => w + frobeniusNorm(k) ** 2, 0));
-  const charges = vonNeumannLeadingCharges(objective, rho, basis, scaleN);
+  const { within: charges, cross } = vonNeumannLeadingCharges(objective, rho, basis, scaleN);
   const outputEigen = eigh(output);
   const smallest = conjugate(outputEigen.vectors, ComplexMatrix.diagonal([1, 0, 0, 0]));
   // Errors of X (they move ln X and, through the pinching, ln Z(X))…
@@ -82,26 +82,35 @@ describe('the leading-block charges of ∇F (von Neumann; Daleckii–Krein over 
   // Frobenius norm: the reference logs' own rounding (u·‖X‖/λ_min ≈ 2e-8 each) then costs a relative 2e-6 of the
   // quotient, and the second-order remainder (step/λ_min)² ≈ 1e-5; FIRST_ORDER_SLACK is ten times their sum.
   const step = 3e-11 / error;
-  const leadingBlock = (change: ComplexMatrix, k: number) => {
-    const leading = ComplexMatrix.zeros(k, basis.rows);
-    for (let r = 0; r < k; r++) {
-      for (let c = 0; c < basis.rows; c++) {
-        leading.re[r * basis.rows + c] = basis.re[c * basis.cols + r];
-        leading.im[r * basis.rows + c] = -basis.im[c * basis.cols + r];
-      }
-    }
-    const total = ComplexMatrix.zeros(k);
-    for (const kj of kraus) addScaledInPlace(total, conjugate(multiply(leading, adjoint(kj)), change), 1 / (2 * step * Math.LN2));
+  /** W_rows†·(Σ_j K_j†·change·K_j)·W_cols / (2·step·ln 2), W_rows and W_cols the basis' columns listed. */
+  const blockNorm = (change: ComplexMatrix, rowsOf: number[], colsOf: number[]) => {
+    const pick = (columns: number[]) => {
+      const out = ComplexMatrix.zeros(basis.rows, columns.length);
+      columns.forEach((col, j) => {
+        for (let r = 0; r < basis.rows; r++) {
+          out.re[r * columns.length + j] = basis.re[r * basis.cols + col];
+          out.im[r * columns.length + j] = basis.im[r * basis.cols + col];
+        }
+      });
+      return out;
+    };
+    const [left, right] = [pick(rowsOf), pick(colsOf)];
+    const total = ComplexMatrix.zeros(rowsOf.length, colsOf.length);
+    for (const kj of kraus) addScaledInPlace(total, multiply(multiply(adjoint(multiply(kj, left)), change), multiply(kj, right)), 1 / (2 * step * Math.LN2));
     return operatorNorm(total);
   };
-  const outputChange = (perturbation: ComplexMatrix, k: number) => {
+  const first = (k: number) => Array.from({ length: k }, (_, i) => i);
+  const after = (k: number) => Array.from({ length: 4 - k }, (_, i) => k + i);
+  const leadingBlock = (change: ComplexMatrix, k: number) => blockNorm(change, first(k), first(k));
+  const crossBlock = (change: ComplexMatrix, k: number) => blockNorm(change, after(k), first(k));
+  const outputChange = (perturbation: ComplexMatrix, k: number, block = leadingBlock) => {
     const change = outputGradient(hermitianPart(addScaled(output, perturbation, step)), support.blockSizes, support.blockOffsets);
     addScaledInPlace(change, outputGradient(hermitianPart(addScaled(output, perturbation, -step)), support.blockSizes, support.blockOffsets), -1);
-    return leadingBlock(change, k);
+    return block(change, k);
   };
   // Separate backward errors of X's eigendecomposition (moving ln X only) and of the first pinched block's (moving
   // ln Z_0 only), as the error model has them.
-  const separateChange = (ofX: ComplexMatrix | null, ofZ: ComplexMatrix | null, k: number) => {
+  const separateChange = (ofX: ComplexMatrix | null, ofZ: ComplexMatrix | null, k: number, block = leadingBlock) => {
     const change = ComplexMatrix.zeros(4);
     if (ofX) {
       addScaledInPlace(change, referenceLog(hermitianPart(addScaled(output, ofX, step))), 1);
@@ -119,7 +128,7 @@ describe('the leading-block charges of ∇F (von Neumann; Daleckii–Krein over 
         }
       }
     }
-    return leadingBlock(change, k);
+    return block(change, k);
   };
 
   it('bound the change of every leading block W_k†∇F·W_k for errors of the output and of its pinched block', () => {
@@ -131,6 +140,19 @@ describe('the leading-block charges of ∇F (von Neumann; Daleckii–Krein over 
       for (const e of ofBlock) expect(separateChange(null, e, k)).toBeLessThanOrEqual(charges[k] * (1 + FIRST_ORDER_SLACK));
       expect(separateChange(ofOutput[2], scale(ofBlock[1], -1), k)).toBeLessThanOrEqual(charges[k] * (1 + FIRST_ORDER_SLACK));
     }
+  });
+
+  it('bound the cross block W_k⊥†∇F·W_k the same way, far below the Weyl charge although W_k⊥ holds the small eigenvalue', () => {
+    for (let k = 1; k <= 3; k++) {
+      for (const e of ofOutput) expect(outputChange(e, k, crossBlock)).toBeLessThanOrEqual(cross[k] * (1 + FIRST_ORDER_SLACK));
+      for (const e of ofBlock) expect(separateChange(null, e, k, crossBlock)).toBeLessThanOrEqual(cross[k] * (1 + FIRST_ORDER_SLACK));
+      expect(separateChange(ofOutput[2], scale(ofBlock[1], -1), k, crossBlock)).toBeLessThanOrEqual(cross[k] * (1 + FIRST_ORDER_SLACK));
+    }
+    const weyl = (2 * error * kraus.reduce((w, k) => w + frobeniusNorm(k) ** 2, 0)) / outputEigen.values[0] / Math.LN2;
+    expect(cross[3]).toBeLessThan(weyl / 1000);
+    // A cross perturbation between the small eigenvector and the large ones reaches a sizeable share of it.
+    const between = scale(unitHermitian(hermitianPart(multiply(outputEigen.vectors, multiply(ComplexMatrix.from([[0, 1, 1, 1], [1, 0, 0, 0], [1, 0, 0, 0], [1, 0, 0, 0]]), adjoint(outputEigen.vectors))))), error);
+    expect(outputChange(between, 3, crossBlock)).toBeGreaterThan(cross[3] / 100);
   });
 
   it('stay far below the Weyl charge while W_k avoids the small eigenvalue, and reach its scale once W_k takes it in', () => {
