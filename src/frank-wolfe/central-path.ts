@@ -258,12 +258,9 @@ function stepsInFrame<E extends FaceEvaluation>(
   // at ρ the barrier's gradient is Tr(A⁻¹D) and its Hessian Tr(A⁻¹D_iA⁻¹D_j); at x both are those of A = 1.
   const shape = ComplexMatrix.identity(n);
   for (let step = 0; step < budget; step++) {
-    const shapeEigen = eigh(shape);
-    if (!(shapeEigen.values[0] > 0)) break;
-    const inverse = conjugate(shapeEigen.vectors, ComplexMatrix.diagonal(Array.from(shapeEigen.values, (v) => 1 / v)));
-    const inverseHalf = conjugate(shapeEigen.vectors, ComplexMatrix.diagonal(Array.from(shapeEigen.values, (v) => 1 / Math.sqrt(v))));
-    const slacks = sides.map((s) => slackOf(s, point));
-    if (!slacks.every((v) => v > 0)) break;
+    const terms = barrierTerms(shape, sides, point);
+    if (terms === null) break;
+    const { inverse, inverseHalf, slacks } = terms;
 
     // ∇φ in the frame's tangent coordinates: ρ_x^½∇Fρ_x^½ − μ·A⁻¹ − μ·Σ sign·ρ_x^½Γρ_x^½/slack.
     const gradient = reduce(scaled(evaluation.gradient));
@@ -305,6 +302,17 @@ function stepsInFrame<E extends FaceEvaluation>(
     if (newton.decrement <= CENTRED * weight || accepted.t < accepted.longest) break;
   }
   return { point, evaluation, taken, centred };
+}
+
+/** A⁻¹, A^{-½} and the sides' slacks at ρ; null when A or a slack is no longer positive. */
+function barrierTerms(shape: ComplexMatrix, sides: readonly Side[], point: ComplexMatrix): { inverse: ComplexMatrix; inverseHalf: ComplexMatrix; slacks: number[] } | null {
+  const shapeEigen = eigh(shape);
+  if (!(shapeEigen.values[0] > 0)) return null;
+  const slacks = sides.map((s) => slackOf(s, point));
+  if (!slacks.every((v) => v > 0)) return null;
+  const inverse = conjugate(shapeEigen.vectors, ComplexMatrix.diagonal(Array.from(shapeEigen.values, (v) => 1 / v)));
+  const inverseHalf = conjugate(shapeEigen.vectors, ComplexMatrix.diagonal(Array.from(shapeEigen.values, (v) => 1 / Math.sqrt(v))));
+  return { inverse, inverseHalf, slacks };
 }
 
 /** What one damped step along a Newton direction needs (the frame's scaling ρ_x^½ and A's inverse square root). */
@@ -406,12 +414,9 @@ function hessianFreeSteps<E extends FaceEvaluation>(
   let centred = false;
   const shape = ComplexMatrix.identity(n);
   for (let step = 0; step < HESSIAN_FREE_STEPS; step++) {
-    const shapeEigen = eigh(shape);
-    if (!(shapeEigen.values[0] > 0)) break;
-    const inverse = conjugate(shapeEigen.vectors, ComplexMatrix.diagonal(Array.from(shapeEigen.values, (v) => 1 / v)));
-    const inverseHalf = conjugate(shapeEigen.vectors, ComplexMatrix.diagonal(Array.from(shapeEigen.values, (v) => 1 / Math.sqrt(v))));
-    const slacks = sides.map((s) => slackOf(s, point));
-    if (!slacks.every((v) => v > 0)) break;
+    const terms = barrierTerms(shape, sides, point);
+    if (terms === null) break;
+    const { inverse, inverseHalf, slacks } = terms;
     const full = coordinatesOf(sandwich(half, evaluation.gradient));
     const barrierRow = coordinatesOf(inverse);
     for (let i = 0; i < full.length; i++) full[i] -= weight * barrierRow[i];
