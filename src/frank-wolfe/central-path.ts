@@ -53,12 +53,12 @@ const ARMIJO = 0.25;
 const BACKTRACKS = 30;
 /** A centring ends once the Newton decrement is below this share of the weight. */
 const CENTRED = 0.1;
-/** Conjugate-gradient iterations per Hessian-free Newton step at most (each one evaluation of F). */
+/** Conjugate-gradient iterations per Hessian-free Newton step at most (each one evaluation of F)… */
 const CG_ITERATIONS = 100;
-/** Hessian-free Newton steps per weight at most (each costs up to CG_ITERATIONS evaluations, not k). */
-const HESSIAN_FREE_STEPS = 10;
 /** …stopping once the residual is below this share of the gradient (an inexact Newton step). */
 const CG_TOLERANCE = 0.01;
+/** Hessian-free Newton steps per weight at most (each costs up to CG_ITERATIONS evaluations, not k). */
+const HESSIAN_FREE_STEPS = 10;
 
 /**
  * The barrier parameter ν of the log-det barrier of an n×n state plus one per finite interval side: on the
@@ -119,8 +119,7 @@ export interface CentralPathOutcome<E extends FaceEvaluation> {
  * equalities. The coordinates are scaled, D ↦ ρ^½·D·ρ^½ (the barrier's Hessian at ρ is E ↦ ρ⁻¹Eρ⁻¹), so that the
  * log-det barrier's Hessian is the identity and a forward difference of ∇F moves every eigenvalue by the same
  * share however small it is. Each centred point is handed to `accept` with its weight (so a time limit keeps the
- * progress);
- * returns the last one, or null when no step lowered φ.
+ * progress); returns the last one, or null when no step lowered φ.
  */
 export function followCentralPath<E extends FaceEvaluation>(
   x: ComplexMatrix,

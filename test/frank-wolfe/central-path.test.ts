@@ -21,7 +21,7 @@ import { example } from './helpers.js';
 const Q = 0.05;
 const SHOR_PRESKILL = 1 - binaryEntropy(Q);
 /** Options of the runs below: from μ = 1e-2 to 1e-10, three Newton steps per weight. */
-const PATH = { startWeight: 1e-2, endWeight: 1e-10, reduction: 0.1, stepsPerWeight: 3, maxTangentDimension: 256 };
+const PATH = { startWeight: 1e-2, endWeight: 1e-10, reduction: 0.1, stepsPerWeight: 3, maxTangentDimension: 256, maxHessianFreeDimension: 0 };
 
 function run(problem: Problem, start: ComplexMatrix) {
   const objective = createObjective(problem, { kind: 'von-neumann' });
