@@ -1,7 +1,7 @@
 // Seeded random device models for the benchmark suite and the tests: random instruments and key maps, scores,
 // joint POVM tables (full and partial) from a known state, equalities and ±1e-3 intervals, fixed source marginals,
 // and feasible sets with no full-rank state. Same (dimension, seed) ⇒ same model on every platform.
-import { adjoint, ComplexMatrix, hermitianPart, kron, multiply, partialTraceB, traceProductReal } from '../linear-algebra/complex-matrix.js';
+import { adjoint, columns, ComplexMatrix, hermitianPart, kron, multiply, partialTraceB, traceProductReal } from '../linear-algebra/complex-matrix.js';
 import { eigh } from '../linear-algebra/eigen.js';
 import { matrixPower } from '../linear-algebra/matrix-functions.js';
 import { matrixToJson, type LinearConstraintJson, type ObservedStatisticsJson, type ProblemJson } from '../problem/json.js';
@@ -79,17 +79,6 @@ function randomUnitary(n: number, rng: Rng): ComplexMatrix {
   return eigh(hermitianPart(gaussianMatrix(n, n, rng))).vectors;
 }
 
-/** Columns `start..end` of a matrix as a new matrix. */
-function columnBlock(m: ComplexMatrix, start: number, end: number): ComplexMatrix {
-  const out = new ComplexMatrix(m.rows, end - start);
-  for (let i = 0; i < m.rows; i++) {
-    for (let j = start; j < end; j++) {
-      out.re[i * (end - start) + j - start] = m.re[i * m.cols + j];
-      out.im[i * (end - start) + j - start] = m.im[i * m.cols + j];
-    }
-  }
-  return out;
-}
 
 /** Rows `start..end` of a matrix as a new matrix (one branch's Kraus operator from the instrument's isometry). */
 function rowBlock(m: ComplexMatrix, start: number, end: number): ComplexMatrix {
@@ -98,7 +87,7 @@ function rowBlock(m: ComplexMatrix, start: number, end: number): ComplexMatrix {
 
 /** U·diag(w)·U† for the first w.length columns of U. */
 function weightedProjection(u: ComplexMatrix, weights: readonly number[], first = 0): ComplexMatrix {
-  const block = columnBlock(u, first, first + weights.length);
+  const block = columns(u, first, first + weights.length);
   const scaled = block.clone();
   for (let i = 0; i < scaled.rows; i++) {
     for (let j = 0; j < weights.length; j++) {
@@ -144,7 +133,7 @@ function randomBranches(d: number, count: number, keyless: boolean, scored: bool
   const outputs = Array.from({ length: count }, (_, c) => Math.max(2, Math.ceil(d / count) + (c === 0 ? 1 : 0)));
   const total = Math.max(d, outputs.reduce((s, n) => s + n, 0));
   outputs[0] += total - outputs.reduce((s, n) => s + n, 0);
-  const isometry = columnBlock(randomUnitary(total, rng), 0, d);
+  const isometry = columns(randomUnitary(total, rng), 0, d);
   let offset = 0;
   return outputs.map((n, c) => {
     const kraus = rowBlock(isometry, offset, offset + n);

@@ -244,12 +244,12 @@ function curvatureCharge(
   weyl: number,
   scale: number,
   checkpoint: () => void,
-  /** A charge already established (the closed form below): returned when the curvature does no better. */
+  /** A charge already established, at most the Weyl charge (the closed form below): returned when the curvature does no better. */
   ceiling = weyl,
 ): number {
   const { values, vectors } = spectrum;
   const clusters = Math.min(values.length - 1, CURVATURE_CLUSTER);
-  let best = Math.min(weyl, ceiling);
+  let best = ceiling;
   let curvature: ReturnType<Objective['outputCurvature']> | undefined;
   let squares: number[] = [];
   for (let k = 1; k <= clusters; k++) {

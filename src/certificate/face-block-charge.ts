@@ -70,7 +70,8 @@ export function clusterCharge(
   /** The error is a congruence (1 + F)·M·(1 + F)† with ‖F‖ ≤ error instead of an additive one. */
   relative = false,
 ): number {
-  return clusterChargeOfRows(eigen.values, maps.map((map) => rowSquares(multiplyAdjointLeft(eigen.vectors, map))), divided, error, relative);
+  const rows = maps.map((map) => rowSquares(multiplyAdjointLeft(eigen.vectors, map)));
+  return clusterChargeOfRows(eigen.values, rows, rows, divided, error, relative);
 }
 
 /** Squared Frobenius norms of a matrix's rows. */
@@ -82,10 +83,23 @@ function rowSquares(a: ComplexMatrix): Float64Array {
   return out;
 }
 
-/** `clusterCharge` from M's eigenvalues (ascending) and the squared row norms of each U†N_j. */
+/** Prefix sums of squared row norms: entry i holds the share of rows 0 … i − 1 (the small cluster below split i). */
+function prefixSums(rows: Float64Array): Float64Array {
+  const sums = new Float64Array(rows.length + 1);
+  rows.forEach((v, i) => (sums[i + 1] = sums[i] + v));
+  return sums;
+}
+
+/**
+ * `clusterCharge` from M's eigenvalues (ascending) and the squared row norms of each U†L_j and U†R_j: the bound on
+ * ‖Σ_j L_j†·Df(M)[E]·R_j‖, Σ_j [l_B r_B·γ_BB + (l_B r_S + l_S r_B)·γ_BS + l_S r_S·γ_SS] with l, r the Frobenius
+ * norms of the rows in the large (B) and small (S) clusters. With L_j = R_j = N_j this is the diagonal block's
+ * error·Σ_j (b_j·γ_BB + 2√(b_j s_j)·γ_BS + s_j·γ_SS); the cross block of a split basis pairs different maps.
+ */
 function clusterChargeOfRows(
   eigenvalues: Float64Array,
-  rows: readonly Float64Array[],
+  left: readonly Float64Array[],
+  right: readonly Float64Array[],
   divided: (a: number, b: number) => number,
   error: number,
   relative: boolean,
@@ -94,12 +108,8 @@ function clusterChargeOfRows(
   // The exact matrix's eigenvalues lie within the error of the computed ones (Weyl; Ostrowski for a congruence), and
   // the bounds decrease in both arguments, so lower them.
   const values = Float64Array.from(eigenvalues, (v) => (relative ? v * (1 - error) ** 2 : v - error));
-  // Prefix sums over rows: the small cluster's share below each split.
-  const below = rows.map((r) => {
-    const sums = new Float64Array(r.length + 1);
-    r.forEach((v, i) => (sums[i + 1] = sums[i] + v));
-    return sums;
-  });
+  const leftBelow = left.map(prefixSums);
+  const rightBelow = right === left ? leftBelow : right.map(prefixSums);
   let best = Infinity;
   for (let split = 0; split < values.length; split++) {
     const large = values[split];
@@ -107,11 +117,14 @@ function clusterChargeOfRows(
     const across = split === 0 ? 0 : divided(large, values[0]);
     const small = split === 0 ? 0 : divided(values[0], values[0]);
     let sum = 0;
-    for (const sums of below) {
-      const s = sums[split];
-      const b = sums[sums.length - 1] - s;
-      sum += b * within + 2 * Math.sqrt(b * s) * across + s * small;
-    }
+    leftBelow.forEach((l, j) => {
+      const r = rightBelow[j];
+      const lS = Math.sqrt(l[split]);
+      const lB = Math.sqrt(Math.max(0, l[l.length - 1] - l[split]));
+      const rS = Math.sqrt(r[split]);
+      const rB = Math.sqrt(Math.max(0, r[r.length - 1] - r[split]));
+      sum += lB * rB * within + (lB * rS + lS * rB) * across + lS * rS * small;
+    });
     best = Math.min(best, sum);
   }
   return error * best;
@@ -129,9 +142,7 @@ export interface LeadingCharges {
  * The error of the blocks of ∇F over [W_k | W_k⊥] for every k (W_k the first k columns of `basis`), von Neumann:
  * `vonNeumannFaceCharge`'s Daleckii–Krein cluster bound for each output X_c and, with the same error size, for each
  * of its pinched blocks Z_b(X_c) (∇F holds −ln Z(X_c) too; its maps are the block's rows of K_jW). The cross block
- * pairs maps L_j = U†K_jW_k⊥ with R_j = U†K_jW_k: Σ_j [l_B r_B·γ_BB + (l_B r_S + l_S r_B)·γ_BS + l_S r_S·γ_SS], l and r
- * the Frobenius norms of their rows in the large (B) and small (S) clusters. One eigendecomposition per matrix
- * serves every k. Used by the margin's split over the smallest eigenvectors of S (bound.ts, docs/convergence.md).
+ * pairs maps L_j = U†K_jW_k⊥ with R_j = U†K_jW_k. One eigendecomposition per matrix serves every k. Used by the margin's split over the smallest eigenvectors of S (bound.ts, docs/convergence.md).
  */
 export function vonNeumannLeadingCharges(objective: Objective, rho: ComplexMatrix, basis: ComplexMatrix, scaleN: number): LeadingCharges {
   const within = new Float64Array(basis.cols + 1);
@@ -159,51 +170,13 @@ export function vonNeumannLeadingCharges(objective: Objective, rho: ComplexMatri
         rotated.forEach((a, j) => {
           for (let r = 0; r < a.rows; r++) rows[j][r] += a.re[r * a.cols + k - 1] ** 2 + a.im[r * a.cols + k - 1] ** 2;
         });
-        within[k] += clusterChargeOfRows(eigen.values, rows, logDividedDifference, error, false) / Math.LN2;
+        within[k] += clusterChargeOfRows(eigen.values, rows, rows, logDividedDifference, error, false) / Math.LN2;
         const rest = rows.map((r, j) => Float64Array.from(r, (v, i) => Math.max(0, totals[j][i] - v)));
-        cross[k] += crossChargeOfRows(eigen.values, rest, rows, logDividedDifference, error) / Math.LN2;
+        cross[k] += clusterChargeOfRows(eigen.values, rest, rows, logDividedDifference, error, false) / Math.LN2;
       }
     }
   });
   return { within, cross };
-}
-
-/** The cross-block analogue of `clusterChargeOfRows` (additive errors): left and right maps' squared row norms. */
-function crossChargeOfRows(
-  eigenvalues: Float64Array,
-  left: readonly Float64Array[],
-  right: readonly Float64Array[],
-  divided: (a: number, b: number) => number,
-  error: number,
-): number {
-  if (!(eigenvalues[0] > 10 * error)) return Infinity;
-  const values = Float64Array.from(eigenvalues, (v) => v - error);
-  const prefix = (rows: readonly Float64Array[]) =>
-    rows.map((r) => {
-      const sums = new Float64Array(r.length + 1);
-      r.forEach((v, i) => (sums[i + 1] = sums[i] + v));
-      return sums;
-    });
-  const leftBelow = prefix(left);
-  const rightBelow = prefix(right);
-  let best = Infinity;
-  for (let split = 0; split < values.length; split++) {
-    const large = values[split];
-    const withinLarge = divided(large, large);
-    const across = split === 0 ? 0 : divided(large, values[0]);
-    const small = split === 0 ? 0 : divided(values[0], values[0]);
-    let sum = 0;
-    leftBelow.forEach((l, j) => {
-      const r = rightBelow[j];
-      const lS = Math.sqrt(l[split]);
-      const lB = Math.sqrt(Math.max(0, l[l.length - 1] - l[split]));
-      const rS = Math.sqrt(r[split]);
-      const rB = Math.sqrt(Math.max(0, r[r.length - 1] - r[split]));
-      sum += lB * rB * withinLarge + (lB * rS + lS * rB) * across + lS * rS * small;
-    });
-    best = Math.min(best, sum);
-  }
-  return error * best;
 }
 
 /** Rows start … start + size − 1 of a matrix. */

@@ -227,11 +227,7 @@ function stepsInFrame<E extends FaceEvaluation>(
     for (let j = 0; j < k; j++) out[j] = dot(tangent[j], full);
     return out;
   };
-  const innerOf = (coordinates: ArrayLike<number>) => {
-    const inner = ComplexMatrix.zeros(n);
-    addHermitianCoordinates(inner, coordinates);
-    return inner;
-  };
+  const innerOf = (coordinates: ArrayLike<number>) => fromCoordinates(n, coordinates);
   const outerOf = (inner: ComplexMatrix) => sandwich(half, inner);
   const directions = tangent.map(innerOf);
   const sideRows = sides.map((s) => reduce(scaled(s.operator)));
@@ -301,6 +297,13 @@ function stepsInFrame<E extends FaceEvaluation>(
     if (newton.decrement <= CENTRED * weight || accepted.t < accepted.longest) break;
   }
   return { point, evaluation, taken, centred };
+}
+
+/** The Hermitian n×n matrix with the given coordinates (the inverse of `hermitianCoordinates`). */
+function fromCoordinates(n: number, coordinates: ArrayLike<number>): ComplexMatrix {
+  const inner = ComplexMatrix.zeros(n);
+  addHermitianCoordinates(inner, coordinates);
+  return inner;
 }
 
 /** A⁻¹, A^{-½} and the sides' slacks at ρ; null when A or a slack is no longer positive. */
@@ -401,11 +404,7 @@ function hessianFreeSteps<E extends FaceEvaluation>(
     return out;
   };
   const project = (v: Float64Array) => projectOnce(projectOnce(v));
-  const innerOf = (coordinates: ArrayLike<number>) => {
-    const inner = ComplexMatrix.zeros(n);
-    addHermitianCoordinates(inner, coordinates);
-    return inner;
-  };
+  const innerOf = (coordinates: ArrayLike<number>) => fromCoordinates(n, coordinates);
   const sideRows = sides.map((s) => coordinatesOf(sandwich(half, s.operator)));
   let point = x;
   let evaluation = current;

@@ -7,6 +7,7 @@ import { vonNeumannLeadingCharges } from '../../src/certificate/face-block-charg
 import {
   addScaledInPlace,
   adjoint,
+  columns,
   ComplexMatrix,
   conjugate,
   conjugateAdjoint,
@@ -82,27 +83,14 @@ describe('the leading-block charges of ∇F (von Neumann; Daleckii–Krein over 
   // Frobenius norm: the reference logs' own rounding (u·‖X‖/λ_min ≈ 2e-8 each) then costs a relative 2e-6 of the
   // quotient, and the second-order remainder (step/λ_min)² ≈ 1e-5; FIRST_ORDER_SLACK is ten times their sum.
   const step = 3e-11 / error;
-  /** W_rows†·(Σ_j K_j†·change·K_j)·W_cols / (2·step·ln 2), W_rows and W_cols the basis' columns listed. */
-  const blockNorm = (change: ComplexMatrix, rowsOf: number[], colsOf: number[]) => {
-    const pick = (columns: number[]) => {
-      const out = ComplexMatrix.zeros(basis.rows, columns.length);
-      columns.forEach((col, j) => {
-        for (let r = 0; r < basis.rows; r++) {
-          out.re[r * columns.length + j] = basis.re[r * basis.cols + col];
-          out.im[r * columns.length + j] = basis.im[r * basis.cols + col];
-        }
-      });
-      return out;
-    };
-    const [left, right] = [pick(rowsOf), pick(colsOf)];
-    const total = ComplexMatrix.zeros(rowsOf.length, colsOf.length);
+  /** W_rows†·(Σ_j K_j†·change·K_j)·W_cols / (2·step·ln 2), W_rows and W_cols blocks of the basis' columns. */
+  const blockNorm = (change: ComplexMatrix, left: ComplexMatrix, right: ComplexMatrix) => {
+    const total = ComplexMatrix.zeros(left.cols, right.cols);
     for (const kj of kraus) addScaledInPlace(total, multiply(multiply(adjoint(multiply(kj, left)), change), multiply(kj, right)), 1 / (2 * step * Math.LN2));
     return operatorNorm(total);
   };
-  const first = (k: number) => Array.from({ length: k }, (_, i) => i);
-  const after = (k: number) => Array.from({ length: 4 - k }, (_, i) => k + i);
-  const leadingBlock = (change: ComplexMatrix, k: number) => blockNorm(change, first(k), first(k));
-  const crossBlock = (change: ComplexMatrix, k: number) => blockNorm(change, after(k), first(k));
+  const leadingBlock = (change: ComplexMatrix, k: number) => blockNorm(change, columns(basis, 0, k), columns(basis, 0, k));
+  const crossBlock = (change: ComplexMatrix, k: number) => blockNorm(change, columns(basis, k, 4), columns(basis, 0, k));
   const outputChange = (perturbation: ComplexMatrix, k: number, block = leadingBlock) => {
     const change = outputGradient(hermitianPart(addScaled(output, perturbation, step)), support.blockSizes, support.blockOffsets);
     addScaledInPlace(change, outputGradient(hermitianPart(addScaled(output, perturbation, -step)), support.blockSizes, support.blockOffsets), -1);

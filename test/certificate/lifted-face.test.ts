@@ -11,6 +11,7 @@ import { solve } from '../../src/frank-wolfe/solve.js';
 import {
   addScaledInPlace,
   adjoint,
+  columns,
   ComplexMatrix,
   conjugate,
   conjugateAdjoint,
@@ -113,7 +114,7 @@ describe('the cluster charge of the face block (Daleckii–Krein; ml-matrix eige
   const perturbations = [
     scale(unitHermitian(randomHermitian(n, rng)), size),
     // Concentrated on the small eigenvalues, where 1/λ amplifies most.
-    scale(unitHermitian(conjugate(columnsOf(u, 3, 5), randomHermitian(2, rng))), size),
+    scale(unitHermitian(conjugate(columns(u, 3, 5), randomHermitian(2, rng))), size),
   ];
 
   it('bounds the change of ln at first order for random and small-block perturbations, far below the Weyl charge', () => {
@@ -150,17 +151,6 @@ function addScaled(a: ComplexMatrix, b: ComplexMatrix): ComplexMatrix {
 
 function unitHermitian(m: ComplexMatrix): ComplexMatrix {
   return scale(m, 1 / frobeniusNorm(m));
-}
-
-function columnsOf(m: ComplexMatrix, start: number, end: number): ComplexMatrix {
-  const out = new ComplexMatrix(m.rows, end - start);
-  for (let r = 0; r < m.rows; r++) {
-    for (let c = start; c < end; c++) {
-      out.re[r * (end - start) + c - start] = m.re[r * m.cols + c];
-      out.im[r * (end - start) + c - start] = m.im[r * m.cols + c];
-    }
-  }
-  return out;
 }
 
 /** The breakdown of a certificate recomputed in another problem basis, with the leak held at `leak`. */
