@@ -4,6 +4,7 @@
 // split over the smallest eigenvectors of S (bound.ts).
 import {
   ComplexMatrix,
+  addScaledInPlace,
   conjugate,
   conjugateAdjoint,
   directSum,
@@ -14,7 +15,7 @@ import {
   scale,
 } from '../linear-algebra/complex-matrix.js';
 import { pinchedBlocks } from '../objectives/spectral-blocks.js';
-import { eigh } from '../linear-algebra/eigen.js';
+import { eigh, eigvalsh } from '../linear-algebra/eigen.js';
 import { isKeyless, type BranchSupport } from '../objectives/branch-supports.js';
 import { branchWeight, sandwichedOrder, type Objective, type ReferenceBlocks } from '../objectives/index.js';
 
@@ -288,9 +289,9 @@ export function quasiEntropyFaceCharges(
     if (sandwiched) {
       referenceCharge = Math.max(referenceCharge, Math.abs(gradientFactor) * referenceGradient);
     } else {
-      // Petz-up: Z(∇_Y q) is pulled back to the face block through Σ_j (K_jP̂)†(·)(K_jP̂).
-      const faceMaps = support.krausOperators.reduce((w, k) => w + frobeniusNorm(multiply(k, faceBasis)) ** 2, 0);
-      face += Math.abs(gradientFactor) * weight * referenceGradient * faceMaps;
+      // Petz-up: Z(∇_Y q) is pulled back to the face block through Σ_j (K_jP̂)†(·)(K_jP̂), whose norm on operators is
+      // ‖Σ_j (K_jP̂)†K_jP̂‖ (a completely positive map attains it at 1; the pinching Z does not grow the norm either).
+      face += Math.abs(gradientFactor) * weight * referenceGradient * pulledBackUnit(support.krausOperators, faceBasis, scaleN);
     }
     let traceOfPower = 0;
     for (const t of eigenM.values) traceOfPower += Math.max(t, 0) ** order;
@@ -298,4 +299,15 @@ export function quasiEntropyFaceCharges(
     quasiEntropyError += (sandwiched ? 1 : weight) * branchError;
   });
   return { face, reference: referenceCharge, relativeQuasiEntropy: quasiEntropyError / quasiEntropy };
+}
+
+/** ≥ λ_max(Σ_j (K_jP̂)†K_jP̂): the computed eigenvalue plus its backward error. */
+export function pulledBackUnit(krausOperators: readonly ComplexMatrix[], faceBasis: ComplexMatrix, scaleN: number): number {
+  const sum = ComplexMatrix.zeros(faceBasis.cols);
+  for (const k of krausOperators) {
+    const onFace = multiply(k, faceBasis);
+    addScaledInPlace(sum, multiplyAdjointLeft(onFace, onFace), 1);
+  }
+  const unit = hermitianPart(sum);
+  return (eigvalsh(unit).at(-1) as number) + scaleN * frobeniusNorm(unit);
 }

@@ -169,6 +169,11 @@ export function liftedFaceBound(
   };
 }
 
+/** The matrix the lifted bound pairs with σ at ρ' (∇F, or sandwiched-up's G = ∇_ρF − a·1), for the caller's multipliers. */
+export function liftedPairedGradient(objective: Objective, rho: ComplexMatrix, reference?: ReferenceBlocks): ComplexMatrix {
+  return pointTerms(objective, rho, reference).gradient;
+}
+
 /** F at ρ', the matrix paired with σ, the linearization's constant and (sandwiched-up) the τ terms. */
 function pointTerms(
   objective: Objective,

@@ -4,13 +4,15 @@ import { matrixFromJson, matrixToJson } from '../problem/json.js';
 import type { Problem } from '../problem/model.js';
 import { constraintViolations, FEASIBILITY_TOLERANCE } from '../problem/violation.js';
 import { certificateBreakdown, referenceFromSupport, type BoundBreakdown } from '../certificate/bound.js';
-import { faceBlocks, hasLiftedFaceBound, liftedPoint, LIFT_WEIGHTS } from '../certificate/lifted-face.js';
-import { createObjective } from '../objectives/index.js';
+import { faceBlocks, hasLiftedFaceBound, liftedPairedGradient, liftedPoint, LIFT_WEIGHTS } from '../certificate/lifted-face.js';
+import { conjugateAdjoint, hermitianPart, type ComplexMatrix } from '../linear-algebra/complex-matrix.js';
+import { createObjective, type Objective, type ReferenceBlocks } from '../objectives/index.js';
 import { hasMinTradeoff, minTradeoffFromBreakdown } from '../certificate/min-tradeoff.js';
 import { trivialLowerBound } from '../certificate/trivial-bound.js';
 import { upperBoundAt } from '../certificate/upper-bound.js';
 import { SOLVER_VERSION } from '../certificate/version.js';
 import type { Certificate, MinTradeoffFunction, SolveResult } from '../result/types.js';
+import { restoreMultipliers } from './certify.js';
 import { evaluateSafely, type CertifiedPoint, type ResultBase, type RunClock, type SolverSetup, type SolverState } from './state.js';
 
 /** A result without a bound (the status is overridden for infeasible data and early cancellation). */
@@ -61,11 +63,33 @@ type StoredCertificate = Pick<
 >;
 
 /**
+ * Multipliers for the gradient at the lifted point: the face state's own were optimal for the face's gradient, and the
+ * lift moves the face block of ∇F by about as much as it moves F (d8#7 Petz-up at μ = 1e-8: 1.8e-5 below F with the
+ * face's multipliers, 3.1e-6 with these). Null when the face oracle gives no optimal answer.
+ */
+function liftedMultipliers(
+  setup: SolverSetup,
+  state: SolverState,
+  whole: Objective,
+  point: ComplexMatrix,
+  reference: ReferenceBlocks | undefined,
+): Pick<StoredCertificate, 'multipliersLower' | 'multipliersUpper'> | null {
+  const faceGradient = hermitianPart(conjugateAdjoint(setup.face.isometry as ComplexMatrix, liftedPairedGradient(whole, point, reference)));
+  const split = setup.oracle.stripEqualitySpan(faceGradient);
+  const answer = setup.clock.timeOracle(() => setup.oracle.minimize(split.stripped, { relativeAccuracy: state.oracleAccuracy }));
+  if (answer.status !== 'OPTIMAL') return null;
+  const y = restoreMultipliers(answer, split.equalityCoefficients);
+  return { multipliersLower: Array.from(y.lower), multipliersUpper: Array.from(y.upper) };
+}
+
+/**
  * On an exposed face, the lifted linearization bound at the certified face state lifted off the face by each of
- * LIFT_WEIGHTS (docs/faces.md, "The lifted linearization bound"); the best, when it beats the continuity margin's.
+ * LIFT_WEIGHTS (docs/faces.md, "The lifted linearization bound"), with multipliers for each lifted gradient; the
+ * best, when it beats the continuity margin's.
  */
 function liftedCertificate(
   setup: SolverSetup,
+  state: SolverState,
   certified: CertifiedPoint,
   onFace: StoredCertificate,
   faceBound: number,
@@ -80,8 +104,10 @@ function liftedCertificate(
     // Sandwiched-up: τ' is the inner optimum at the lifted point, on the whole space's output supports.
     const reference = entropy.kind === 'sandwiched-up' ? evaluateSafely(whole.objective, point)?.reference : undefined;
     if (entropy.kind === 'sandwiched-up' && !reference) continue;
+    const multipliers = liftedMultipliers(setup, state, whole.objective, point, reference) ?? onFace;
     const stored = {
       ...onFace,
+      ...multipliers,
       linearizationState: matrixToJson(point),
       referenceStates: reference
         ? whole.objective.supports.map((support, c) => matrixToJson(referenceFromSupport(support, reference[c])))
@@ -125,7 +151,7 @@ export function assembleResult(setup: SolverSetup, state: SolverState): SolveRes
       multipliersUpper: Array.from(certified.multipliersUpper),
     };
     let claimed = certificateBreakdown(face, restricted, objective, stored);
-    const lifted = liftedCertificate(setup, certified, stored, claimed.lowerBound);
+    const lifted = liftedCertificate(setup, state, certified, stored, claimed.lowerBound);
     if (lifted) ({ stored, claimed } = lifted);
     if (Number.isFinite(claimed.lowerBound)) {
       certifiedBound = claimed.lowerBound;

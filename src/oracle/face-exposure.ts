@@ -25,7 +25,11 @@ const MAX_EXPOSURE_STEPS = 8;
 const NULL_SPACE_RATIO = 1e-6;
 /** Passes that re-align the kernel of Z with the face it should expose (each re-projects y). */
 const REFINEMENT_PASSES = 3;
-/** Gram eigenvalues below this share of the largest (the candidate directions themselves) are left out of the corrections. */
+/**
+ * Gram eigenvalues below this share of the largest, or of 1 (the directions have unit norm), are left out of the
+ * corrections: the candidate directions themselves, and on a one-point face every direction (V†A_iV = 0 for all i
+ * there, so the Gram matrix is rounding and a relative cut alone amplified 1e-17 residuals into 1e-2 steps, d4#10).
+ */
 const GRAM_CUTOFF = NULL_SPACE_RATIO * NULL_SPACE_RATIO;
 /** Sizes of the sparse exposures tried, largest weights first (docs/faces.md, "Tilted kernels"). */
 const SPARSE_SUPPORTS = [1, 2, 3, 4, 6, 8, 12, 16, 24, 32, 48, 64, 96, 128];
@@ -307,6 +311,7 @@ function bestExposingCombination(operators: readonly ComplexMatrix[], checkpoint
 
 /** Minimum-norm Δy with Σ Δy_i B_i ≈ R in least squares (pseudo-inverse from the Gram matrix, small modes cut). */
 function leastSquaresCorrection(products: readonly ComplexMatrix[], residual: ComplexMatrix): Float64Array {
+  // Products of unit-norm directions with an isometry: each has norm at most 1, the scale the cut is taken against.
   const { evd } = gramDecomposition(products);
   const k = products.length;
   const rhs = new Float64Array(k);
@@ -316,7 +321,7 @@ function leastSquaresCorrection(products: readonly ComplexMatrix[], residual: Co
     rhs[i] = s;
   });
   const eigenvalues = evd.realEigenvalues;
-  const largest = Math.max(...eigenvalues.map(Math.abs), 0);
+  const largest = Math.max(...eigenvalues.map(Math.abs), 1);
   const out = new Float64Array(k);
   eigenvalues.forEach((value, j) => {
     if (!(value > GRAM_CUTOFF * largest)) return;

@@ -103,6 +103,20 @@ describe('exposeFeasibleFace on equalities that pin ρ to the support of a known
     expect(frobenius(offFaceColumns) / smallest).toBeLessThan(1e-12);
   });
 
+  it('d4#10 of the random suite: full tables leave one pure state, and the face found is its span', () => {
+    // Every equality direction vanishes on that state (V†A_iV = 0), so the refinement's Gram matrix there is pure
+    // rounding: with a cut relative to its own largest eigenvalue alone it turned a 1e-17 residual into 1e-2 steps
+    // and an exposure that feasibleFace rejected (eigenvalue −0.57), leaving the solver on the whole space.
+    const model = randomModel(4, 10);
+    expect(model.traits.truthRank).toBe(1);
+    const { face, feasible } = exposeFeasibleFace(model.problem);
+    expect(face.dimension).toBe(1);
+    expect(feasible.status).toBe('OPTIMAL');
+    // mathjs: the generating state has no weight off the face found (to rounding).
+    expect(referenceEigenvalues(offFace(face.isometry as ComplexMatrix, model.truth))[3]).toBeLessThan(1e-12);
+    expect(feasibleFace(model.problem, { exposures: face.exposures }).dimension).toBe(1);
+  });
+
   it('the oracle on the exposed face gives dual bounds that hold at the known state up to its residual there', () => {
     const model = randomModel(8, 1, { face: true, truthRank: 4, intervals: false });
     const { face, oracle } = exposeFeasibleFace(model.problem);
