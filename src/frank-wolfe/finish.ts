@@ -65,7 +65,8 @@ type StoredCertificate = Pick<
 /**
  * Multipliers for the gradient at the lifted point: the face state's own were optimal for the face's gradient, and the
  * lift moves the face block of ∇F by about as much as it moves F (d8#7 Petz-up at μ = 1e-8: 1.8e-5 below F with the
- * face's multipliers, 3.1e-6 with these). Null when the face oracle gives no optimal answer.
+ * face's multipliers, 3.1e-6 with these). Null when the face oracle gives no optimal answer, and for a cancelled run
+ * (result assembly does not poll the deadline: an oracle that did would throw away the result it is assembling).
  */
 function liftedMultipliers(
   setup: SolverSetup,
@@ -74,9 +75,12 @@ function liftedMultipliers(
   point: ComplexMatrix,
   reference: ReferenceBlocks | undefined,
 ): Pick<StoredCertificate, 'multipliersLower' | 'multipliersUpper'> | null {
+  if (state.limit === 'cancelled') return null;
   const faceGradient = hermitianPart(conjugateAdjoint(setup.face.isometry as ComplexMatrix, liftedPairedGradient(whole, point, reference)));
   const split = setup.oracle.stripEqualitySpan(faceGradient);
-  const answer = setup.clock.timeOracle(() => setup.oracle.minimize(split.stripped, { relativeAccuracy: state.oracleAccuracy }));
+  const answer = setup.clock.timeOracle(() =>
+    setup.oracle.minimize(split.stripped, { relativeAccuracy: state.oracleAccuracy, checkpoint: () => {} }),
+  );
   if (answer.status !== 'OPTIMAL') return null;
   const y = restoreMultipliers(answer, split.equalityCoefficients);
   return { multipliersLower: Array.from(y.lower), multipliersUpper: Array.from(y.upper) };

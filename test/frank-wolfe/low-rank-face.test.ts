@@ -32,6 +32,18 @@ describe('d = 32 model pinned to an 18-dimensional face (266 tangent coordinates
     const atTruth = createObjective(model.problem, request).evaluate(model.truth).value;
     expect(result.certifiedLowerBound as number).toBeLessThanOrEqual(atTruth);
   }, 180_000); // about 5 s idle; the face's central path takes a few thousand evaluations at n = 18
+
+  it('cancelled mid-way (after 2000 polls, about iteration 14), it still returns its verified lifted bound', () => {
+    // Result assembly does not poll: the lifted certificate's face oracle calls once did and threw the result away.
+    // Counting polls (not time) puts the cancellation at the same place on every machine.
+    let polls = 0;
+    const result = solve(model.problem, request, { gapTolerance: 1e-6, maxIterations: 30, timeLimitMs: 120000 }, { isCancelled: () => ++polls > 2000 });
+    expect(result.limit).toBe('cancelled');
+    expect(result.certificate?.linearizationOffFace).toBe(true);
+    const report = verifyResult(model.problem, request, result);
+    expect(report.valid, report.reason).toBe(true);
+    expect(result.certifiedLowerBound as number).toBeLessThanOrEqual(createObjective(model.problem, request).evaluate(model.truth).value);
+  }, 180_000);
 });
 
 describe('d32#3 of the random suite (about 1000 tangent coordinates, a minimum just above the trivial bound)', () => {
