@@ -233,12 +233,14 @@ const CLOSED_FORM_MAX_DIMENSION = 128;
 
 /**
  * Largest cluster of smallest eigenvectors of ∇F − Σ yΓ whose curvature is measured (k² difference quotients, each
- * a gradient evaluation): 8 up to n = 32 (d32#3 Petz-up: S's gap opens at k = 5–6, and with 4 the margin was the
- * Weyl charge, 1.3e-5 against 7.3e-7; 120 ms there), 4 above, where result assembly, which cannot be interrupted,
- * would spend seconds on it.
+ * a gradient evaluation): 8 while ρ and every branch output have dimension at most 32 (d32#3 Petz-up: S's gap opens
+ * at k = 5–6, and with 4 the margin was the Weyl charge, 1.3e-5 against 7.3e-7; 120 ms there), 4 otherwise, where
+ * result assembly, which cannot be interrupted, would spend seconds on it (a small face of a large space keeps
+ * large outputs).
  */
-function curvatureClusterLimit(n: number): number {
-  return n <= 32 ? 8 : 4;
+function curvatureClusterLimit(objective: Objective, n: number): number {
+  const largest = objective.supports.reduce((size, support) => Math.max(size, support.dimension), n);
+  return largest <= 32 ? 8 : 4;
 }
 
 /**
@@ -262,7 +264,7 @@ function curvatureCharge(
   ceiling = weyl,
 ): number {
   const { values, vectors } = spectrum;
-  const clusters = Math.min(values.length - 1, curvatureClusterLimit(values.length));
+  const clusters = Math.min(values.length - 1, curvatureClusterLimit(objective, values.length));
   let best = ceiling;
   let curvature: ReturnType<Objective['outputCurvature']> | undefined;
   let squares: number[] = [];
