@@ -1,7 +1,7 @@
 // Seeded random device models for the benchmark suite and the tests: random instruments and key maps, scores,
 // joint POVM tables (full and partial) from a known state, equalities and ±1e-3 intervals, fixed source marginals,
 // and feasible sets with no full-rank state. Same (dimension, seed) ⇒ same model on every platform.
-import { adjoint, columns, ComplexMatrix, hermitianPart, kron, multiply, partialTraceB, traceProductReal } from '../linear-algebra/complex-matrix.js';
+import { adjoint, columns, ComplexMatrix, hermitianPart, kron, multiply, partialTraceB, rows, traceProductReal } from '../linear-algebra/complex-matrix.js';
 import { eigh } from '../linear-algebra/eigen.js';
 import { matrixPower } from '../linear-algebra/matrix-functions.js';
 import { matrixToJson, type LinearConstraintJson, type ObservedStatisticsJson, type ProblemJson } from '../problem/json.js';
@@ -80,11 +80,6 @@ function randomUnitary(n: number, rng: Rng): ComplexMatrix {
 }
 
 
-/** Rows `start..end` of a matrix as a new matrix (one branch's Kraus operator from the instrument's isometry). */
-function rowBlock(m: ComplexMatrix, start: number, end: number): ComplexMatrix {
-  return new ComplexMatrix(end - start, m.cols, m.re.slice(start * m.cols, end * m.cols), m.im.slice(start * m.cols, end * m.cols));
-}
-
 /** U·diag(w)·U† for the first w.length columns of U. */
 function weightedProjection(u: ComplexMatrix, weights: readonly number[], first = 0): ComplexMatrix {
   const block = columns(u, first, first + weights.length);
@@ -136,7 +131,7 @@ function randomBranches(d: number, count: number, keyless: boolean, scored: bool
   const isometry = columns(randomUnitary(total, rng), 0, d);
   let offset = 0;
   return outputs.map((n, c) => {
-    const kraus = rowBlock(isometry, offset, offset + n);
+    const kraus = rows(isometry, offset, offset + n);
     offset += n;
     const blocks = keyless && c === count - 1 ? 1 : 2 + Math.floor(rng() * Math.min(3, n - 1));
     const keyProjectors = Array.from({ length: blocks }, (_, k) => {

@@ -12,6 +12,7 @@ import {
   hermitianPart,
   multiply,
   multiplyAdjointLeft,
+  rows,
   scale,
 } from '../linear-algebra/complex-matrix.js';
 import { pinchedBlocks } from '../objectives/spectral-blocks.js';
@@ -30,14 +31,23 @@ export function vonNeumannFaceCharge(objective: Objective, rho: ComplexMatrix, f
   let total = 0;
   objective.supports.forEach((support, c) => {
     if (isKeyless(support)) return;
-    const output = outputs[c];
-    const range = support.outputRange;
-    const eigen = eigh(hermitianPart(range ? conjugateAdjoint(range, output) : output));
-    const size = outputSize(support, output, rhoNorm);
-    const maps = support.krausOperators.map((k) => (range ? multiplyAdjointLeft(range, multiply(k, faceBasis)) : multiply(k, faceBasis)));
-    total += clusterCharge(eigen, maps, logDividedDifference, scaleN * size) / Math.LN2;
+    const { eigen, maps } = outputOnRange(support, outputs[c], support.krausOperators.map((k) => multiply(k, faceBasis)));
+    total += clusterCharge(eigen, maps, logDividedDifference, scaleN * outputSize(support, outputs[c], rhoNorm)) / Math.LN2;
   });
   return total;
+}
+
+/** X_c's eigendecomposition on its range (the support when it has full rank there) and the maps K_j·W seen there. */
+function outputOnRange(
+  support: BranchSupport,
+  output: ComplexMatrix,
+  images: readonly ComplexMatrix[],
+): { eigen: { values: Float64Array; vectors: ComplexMatrix }; maps: ComplexMatrix[] } {
+  const range = support.outputRange;
+  return {
+    eigen: eigh(hermitianPart(range ? conjugateAdjoint(range, output) : output)),
+    maps: range ? images.map((a) => multiplyAdjointLeft(range, a)) : [...images],
+  };
 }
 
 /**
@@ -153,14 +163,13 @@ export function vonNeumannLeadingCharges(objective: Objective, rho: ComplexMatri
   objective.supports.forEach((support, c) => {
     if (isKeyless(support)) return;
     const output = outputs[c];
-    const range = support.outputRange;
     const error = scaleN * outputSize(support, output, rhoNorm);
     const images = support.krausOperators.map((k) => multiply(k, basis));
     const matrices = [
-      { eigen: eigh(hermitianPart(range ? conjugateAdjoint(range, output) : output)), maps: range ? images.map((a) => multiplyAdjointLeft(range, a)) : images },
+      outputOnRange(support, output, images),
       ...pinchedBlocks(output, support.blockSizes, support.blockOffsets).map((block, b) => ({
         eigen: eigh(hermitianPart(block)),
-        maps: images.map((a) => rowBlock(a, support.blockOffsets[b], support.blockSizes[b])),
+        maps: images.map((a) => rows(a, support.blockOffsets[b], support.blockOffsets[b] + support.blockSizes[b])),
       })),
     ];
     for (const { eigen, maps } of matrices) {
@@ -178,14 +187,6 @@ export function vonNeumannLeadingCharges(objective: Objective, rho: ComplexMatri
     }
   });
   return { within, cross };
-}
-
-/** Rows start … start + size − 1 of a matrix. */
-function rowBlock(a: ComplexMatrix, start: number, size: number): ComplexMatrix {
-  const out = ComplexMatrix.zeros(size, a.cols);
-  out.re.set(a.re.subarray(start * a.cols, (start + size) * a.cols));
-  out.im.set(a.im.subarray(start * a.cols, (start + size) * a.cols));
-  return out;
 }
 
 /** |(t^p)^[1](a, b)| for −1 < p < 0: convex and decreasing, so it decreases in both arguments. */
@@ -275,7 +276,8 @@ export function quasiEntropyFaceCharges(
       face = Infinity;
       return;
     }
-    const maps = support.krausOperators.map((k) => multiply(root, multiply(k, faceBasis)));
+    const onFace = support.krausOperators.map((k) => multiply(k, faceBasis));
+    const maps = onFace.map((a) => multiply(root, a));
     const faceCoefficient = sandwiched ? Math.abs(sandwiched.identityCoefficient) * weight : Math.abs(gradientFactor) * weight * order;
     face += faceCoefficient * (clusterCharge(eigenM, maps, divided, additive) + clusterCharge(eigenM, maps, congruence, 2 * relative, true));
     // X̂·Y^s·W = ω·Y^{−s}·M^ω − Δ·Y^s·W: M^ω is concave in M, so an additive E moves it by at most ω·λ_0^{ω−1}·‖E‖_F
@@ -291,7 +293,7 @@ export function quasiEntropyFaceCharges(
     } else {
       // Petz-up: Z(∇_Y q) is pulled back to the face block through Σ_j (K_jP̂)†(·)(K_jP̂), whose norm on operators is
       // ‖Σ_j (K_jP̂)†K_jP̂‖ (a completely positive map attains it at 1; the pinching Z does not grow the norm either).
-      face += Math.abs(gradientFactor) * weight * referenceGradient * pulledBackUnit(support.krausOperators, faceBasis, scaleN);
+      face += Math.abs(gradientFactor) * weight * referenceGradient * pulledBackUnit(onFace, scaleN);
     }
     let traceOfPower = 0;
     for (const t of eigenM.values) traceOfPower += Math.max(t, 0) ** order;
@@ -301,13 +303,10 @@ export function quasiEntropyFaceCharges(
   return { face, reference: referenceCharge, relativeQuasiEntropy: quasiEntropyError / quasiEntropy };
 }
 
-/** ≥ λ_max(Σ_j (K_jP̂)†K_jP̂): the computed eigenvalue plus its backward error. */
-export function pulledBackUnit(krausOperators: readonly ComplexMatrix[], faceBasis: ComplexMatrix, scaleN: number): number {
-  const sum = ComplexMatrix.zeros(faceBasis.cols);
-  for (const k of krausOperators) {
-    const onFace = multiply(k, faceBasis);
-    addScaledInPlace(sum, multiplyAdjointLeft(onFace, onFace), 1);
-  }
+/** ≥ λ_max(Σ_j A_j†A_j) for A_j = K_jP̂: the computed eigenvalue plus its backward error. */
+export function pulledBackUnit(onFace: readonly ComplexMatrix[], scaleN: number): number {
+  const sum = ComplexMatrix.zeros(onFace[0].cols);
+  for (const a of onFace) addScaledInPlace(sum, multiplyAdjointLeft(a, a), 1);
   const unit = hermitianPart(sum);
   return (eigvalsh(unit).at(-1) as number) + scaleN * frobeniusNorm(unit);
 }

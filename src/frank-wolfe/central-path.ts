@@ -69,7 +69,7 @@ export function barrierParameter(n: number, constraints: readonly LinearConstrai
 }
 
 /** At least n² − (equalities + 1) tangent coordinates: decided before any n³ work (d = 128 has 16,384). */
-export function tooManyCoordinates(n: number, constraints: readonly LinearConstraint[], maxTangentDimension: number): boolean {
+function tooManyCoordinates(n: number, constraints: readonly LinearConstraint[], maxTangentDimension: number): boolean {
   const equalities = constraints.filter((c) => c.lower === c.upper).length;
   return n * n - (equalities + 1) > maxTangentDimension;
 }
@@ -235,12 +235,8 @@ function stepsInFrame<E extends FaceEvaluation>(
   // Forward differences of ∇F along each scaled tangent direction.
   const differences = new Matrix(k, k);
   for (let j = 0; j < k; j++) {
-    const probe = x.clone();
-    addScaledInPlace(probe, outerOf(directions[j]), DIFFERENCE_STEP);
-    const e = evaluate(probe);
-    if (!e) return none;
-    const difference = e.gradient.clone();
-    addScaledInPlace(difference, current.gradient, -1);
+    const difference = gradientChange(x, current, outerOf(directions[j]), DIFFERENCE_STEP, evaluate);
+    if (!difference) return none;
     const column = reduce(scaled(difference));
     for (let i = 0; i < k; i++) differences.set(i, j, column[i] / DIFFERENCE_STEP);
   }
@@ -297,6 +293,23 @@ function stepsInFrame<E extends FaceEvaluation>(
     if (newton.decrement <= CENTRED * weight || accepted.t < accepted.longest) break;
   }
   return { point, evaluation, taken, centred };
+}
+
+/** ∇F(x + t·D) − ∇F(x), one evaluation (the forward difference both kinds of frame take); null where F has none. */
+function gradientChange<E extends FaceEvaluation>(
+  x: ComplexMatrix,
+  at: E,
+  direction: ComplexMatrix,
+  t: number,
+  evaluate: (state: ComplexMatrix) => E | null,
+): ComplexMatrix | null {
+  const probe = x.clone();
+  addScaledInPlace(probe, direction, t);
+  const e = evaluate(probe);
+  if (!e) return null;
+  const change = e.gradient.clone();
+  addScaledInPlace(change, at.gradient, -1);
+  return change;
 }
 
 /** The Hermitian n×n matrix with the given coordinates (the inverse of `hermitianCoordinates`). */
@@ -428,12 +441,8 @@ function hessianFreeSteps<E extends FaceEvaluation>(
     const product = (v: Float64Array): Float64Array | null => {
       const length = Math.sqrt(dot(v, v));
       const inner = innerOf(v);
-      const probe = from.clone();
-      addScaledInPlace(probe, sandwich(half, inner), DIFFERENCE_STEP / length);
-      const e = evaluate(probe);
-      if (!e) return null;
-      const difference = e.gradient.clone();
-      addScaledInPlace(difference, here.gradient, -1);
+      const difference = gradientChange(from, here, sandwich(half, inner), DIFFERENCE_STEP / length, evaluate);
+      if (!difference) return null;
       const out = coordinatesOf(sandwich(half, difference));
       for (let i = 0; i < out.length; i++) out[i] *= length / DIFFERENCE_STEP;
       const barrier = step === 0 ? v : coordinatesOf(sandwich(inverse, inner));

@@ -564,6 +564,11 @@ export function hermiticityDefect(a: ComplexMatrix): number {
   return norm === 0 ? 0 : worst / norm;
 }
 
+/** Rows [start, end) as a new matrix. */
+export function rows(a: ComplexMatrix, start: number, end: number): ComplexMatrix {
+  return new ComplexMatrix(end - start, a.cols, a.re.slice(start * a.cols, end * a.cols), a.im.slice(start * a.cols, end * a.cols));
+}
+
 /** Columns [start, end) as a new matrix. */
 export function columns(a: ComplexMatrix, start: number, end: number): ComplexMatrix {
   const w = end - start;

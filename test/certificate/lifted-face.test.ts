@@ -152,7 +152,7 @@ describe("Petz-up's pull-back to the face block: ‖Σ_j (K_jP̂)†·E·K_jP̂�
     // Kraus operators of one branch of an instrument: scaled so that Σ_j K_j†K_j ≤ 1 is not required for the bound.
     const kraus = [0, 1, 2].map(() => scale(randomComplexGaussian(4, n, rng), 0.3));
     const onFace = kraus.map((k) => multiply(k, faceBasis));
-    const unitBound = pulledBackUnit(kraus, faceBasis, 1e-14);
+    const unitBound = pulledBackUnit(onFace, 1e-14);
     const pulled = (e: ComplexMatrix) => {
       const total = ComplexMatrix.zeros(5);
       for (const a of onFace) addScaledInPlace(total, conjugateAdjoint(a, e), 1);
