@@ -380,7 +380,10 @@ function consultOracle(
     upper - reportedLowerBound(setup, state) <= settings.gapTolerance
   ) {
     certify(setup, state, multipliers);
-    if (state.best && upper - reportedLowerBound(setup, state) <= settings.gapTolerance) return 'stop';
+    const certifiedGap = upper - reportedLowerBound(setup, state);
+    if (state.best && certifiedGap <= settings.gapTolerance) return 'stop';
+    // Gradients must be accurate on the scale of the gap still to close (docs/convergence.md, the inner loop's stop).
+    if (state.best) setup.objective.allowInnerError(TUNING.innerErrorShare * certifiedGap);
   }
   state.oracleCalls++;
   // Tighten the oracle when the estimated gap stalls (its rounding then dominates the step).

@@ -60,6 +60,8 @@ export const TUNING = Object.freeze({
   certifyShare: 0.5,
   /** …and at least every this many iterations, so a limit always finds a recent certificate. */
   certifyEvery: 25,
+  /** Sandwiched-up: after each certificate, F's error from the inner loop over τ may be this share of the gap. */
+  innerErrorShare: 1e-2,
   /** Shares ε of the interior point mixed into the iterate when certifying near the boundary of the cone. */
   certificateMixtures: [1e-10, 1e-9, 1e-8, 1e-7, 1e-6, 1e-5, 1e-4] as readonly number[],
   /** Levels μ to which the iterate's small eigenvalues are lifted for the same purpose. */

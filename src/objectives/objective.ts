@@ -99,6 +99,11 @@ export interface Objective {
   evaluateAtReference(rho: ComplexMatrix, reference: ReferenceBlocks): JointEvaluation;
   /** Null when ρ has no positive definite outputs to differentiate at. Sandwiched-up needs τ (held fixed). */
   outputCurvature(rho: ComplexMatrix, reference?: ReferenceBlocks): OutputCurvature | null;
+  /**
+   * Sandwiched-up: the error of F (bits) the caller tolerates from the inner maximisation over τ; until it is met the
+   * inner loop does not take slow contraction for its rounding floor. Other kinds have no inner loop and ignore it.
+   */
+  allowInnerError(bits: number): void;
 }
 
 /** D = Σ K†K − 1 is summed with compensation when |c|/ln 2 times the plain sums' rounding bound would exceed this (bits). */
@@ -169,7 +174,7 @@ class EntropyObjective implements Objective {
   private readonly weightsMinusOne: number[];
   /** Σ K†K − 1 over every branch, computed once at the first certificate (sandwiched-up). */
   private defect: IdentityDefect | undefined;
-  private readonly referenceSettings: ReferenceSettings;
+  private referenceSettings: ReferenceSettings;
   /** Last optimal τ: the next evaluation (a nearby ρ in a line search) starts its fixed-point iteration there. */
   private lastReference: ReferenceBlocks | undefined;
 
@@ -185,6 +190,13 @@ class EntropyObjective implements Objective {
     this.supports = problem.branches.map(branchSupport).filter((s) => s.dimension > 0);
     this.weights = this.supports.map((s) => branchWeight(request, s.score));
     this.weightsMinusOne = this.supports.map((s) => branchWeightMinusOne(request, s.score));
+  }
+
+  allowInnerError(bits: number): void {
+    if (this.request.kind !== 'sandwiched-up') return;
+    // F = c·log₂ Q, so an error δ of Q costs |c|·δ/(Q·ln 2) bits.
+    const stagnationAllowance = (bits * Math.LN2) / Math.abs(logCoefficient(this.request));
+    this.referenceSettings = { ...this.referenceSettings, stagnationAllowance };
   }
 
   branchOutputs(rho: ComplexMatrix): ComplexMatrix[] {

@@ -145,6 +145,16 @@ describe('no-progress is reported only when a floating-point allowance explains 
     expect(noProgressCause(GAP, stalled(5e-7, 1e-6, 0))).toBeUndefined();
   });
 
+  it('d8#15 (rank 2, partial tables, ±1e-3 intervals), sandwiched-up α = 1.5: certified at gap 1e-6 within 300 iterations, below F at the generating state', () => {
+    // Before the inner loop over τ followed the certified gap it stalled at 8.4e-6 for any number of iterations: its
+    // gradients came from τ stopped at 3e-4 of Q (docs/convergence.md, the inner loop's stop).
+    const model = randomModel(8, 15);
+    const request: EntropyRequest = { kind: 'sandwiched-up', alpha: 1.5 };
+    const result = solve(model.problem, request, { gapTolerance: GAP, maxIterations: 300, timeLimitMs: 60000 });
+    expectCertifiedAndVerified(model.problem, request, result);
+    expect(result.certifiedLowerBound!).toBeLessThanOrEqual(createObjective(model.problem, request).evaluate(model.truth).value + 1e-9);
+  }, 90000);
+
   it('d16#2 (a face without a full-rank state), Petz-down α = 1.5: no stop on no-progress at a gap 100 × the margin', () => {
     const model = randomModel(16, 2);
     const request: EntropyRequest = { kind: 'petz-down', alpha: 1.5 };
