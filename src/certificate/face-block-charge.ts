@@ -217,7 +217,7 @@ export interface QuasiEntropyCharges {
  *   Petz-up Y = Z(X̂) moves with Δ too), and the one-sided Jacobi factorisation of M = G·G†, G = Y^s·V·Λ^{1/2}, whose
  *   columnwise relative backward error is a congruence with ‖F‖ ≤ scale·κ(Y^s) (Demmel & Veselić 1992).
  * The face block takes `clusterCharge` for each (f = t^{ω−1}); the products X̂Y^sW = ω·Y^{−s}·M^ω − Δ·Y^s·W move with
- * M^ω, Y^{−s} and Δ (below), then through D(t^s) at Y; Q moves by ω·λ_0^{ω−1}·‖E‖_1 and by the factor (1 + ‖F‖)^{2ω}. X_c must have full rank on its support
+ * M^ω, Y^{−s} and Δ (below), then through D(t^s) at Y, a map that itself moves with Y's error; Q moves by ω·λ_0^{ω−1}·‖E‖_1 and by the factor (1 + ‖F‖)^{2ω}. X_c must have full rank on its support
  * (Infinity otherwise: the factor of M would then carry X's own small eigenvalues).
  */
 export function quasiEntropyFaceCharges(
@@ -287,7 +287,15 @@ export function quasiEntropyFaceCharges(
     const movedPower = order * (order * smallest ** p * additive + 2 * largest ** order * relative);
     const movedInverseRoot = s * referenceMin ** (-s - 1) * referenceError * order * largest ** order;
     const direction = 2 * (referenceMin ** -s * movedPower + movedInverseRoot + rootNorm * order * smallest ** p * scaleN * size);
-    const referenceGradient = s * referenceMin ** (s - 1) * direction;
+    // D(t^s) at Y is itself taken at Y's computed eigendecomposition, exact for Y + E (‖E‖_F ≤ referenceError): the map
+    // moves by D²(t^s)[E, H], at most 2·max|(t^s)^[2]|·‖E‖_F·‖H‖_F with |(t^s)^[2]| ≤ s(1 − s)/2·λ^{s−2} at the lowest
+    // eigenvalue λ of the segment (mean value), and ‖H‖_F ≤ 2ω·λ_min(Y)^{−s}·‖M^ω‖_F.
+    const segmentMin = referenceMin - 2 * referenceError;
+    let powerNorm = 0;
+    for (const t of eigenM.values) powerNorm += Math.max(t, 0) ** (2 * order);
+    const movedMap =
+      segmentMin > 0 ? s * (1 - s) * segmentMin ** (s - 2) * referenceError * 2 * order * referenceMin ** -s * Math.sqrt(powerNorm) : Infinity;
+    const referenceGradient = s * referenceMin ** (s - 1) * direction + movedMap;
     if (sandwiched) {
       referenceCharge = Math.max(referenceCharge, Math.abs(gradientFactor) * referenceGradient);
     } else {

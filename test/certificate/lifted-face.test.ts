@@ -143,6 +143,40 @@ describe('the cluster charge of the face block (Daleckii–Krein; ml-matrix eige
   });
 });
 
+describe('D(t^s) at Y moves with the error of Y (mean value: 2·max|(t^s)^[2]|·‖E‖_F·‖H‖_F, |(t^s)^[2]| ≤ s(1 − s)/2·λ^{s−2}; derived)', () => {
+  // Central differences of ml-matrix's t^s (reference-functions.ts) stand for the Fréchet derivatives: at eigenvalues
+  // ≥ 1e-2 and step 1e-6 their truncation (≈ h²·|f'''|) is below 1e-6 of the bound checked.
+  const derivative = (y: ComplexMatrix, h: ComplexMatrix, f: (t: number) => number) => {
+    const step = 1e-6;
+    const plus = referenceFunction(hermitianPart(addScaled(y, scale(h, step))), f);
+    addScaledInPlace(plus, referenceFunction(hermitianPart(addScaled(y, scale(h, -step))), f), -1);
+    return scale(plus, 1 / (2 * step));
+  };
+  const bound = (s: number, lowest: number, e: number, h: number) => s * (1 - s) * lowest ** (s - 2) * e * h;
+  for (const s of [0.25, 1 / 6]) {
+    it(`s = ${s.toFixed(3)}: holds for random E and H, and halving it fails where E and H sit on the smallest eigenvector`, () => {
+      const rng = seededRandom(13);
+      const n = 4;
+      const u = randomUnitary(n, rng);
+      const values = [0.6, 0.3, 0.08, 0.02];
+      const y = hermitianPart(conjugate(u, ComplexMatrix.diagonal(values)));
+      const f = (t: number) => t ** s;
+      const size = 1e-6;
+      for (let trial = 0; trial < 4; trial++) {
+        const e = scale(unitHermitian(randomHermitian(n, rng)), size);
+        const h = unitHermitian(randomHermitian(n, rng));
+        const moved = derivative(hermitianPart(addScaled(y, e)), h, f);
+        addScaledInPlace(moved, derivative(y, h, f), -1);
+        expect(frobeniusNorm(moved)).toBeLessThanOrEqual(bound(s, 0.02 - 2 * size, size, 1));
+      }
+      const smallest = multiply(columns(u, 3, 4), adjoint(columns(u, 3, 4)));
+      const moved = derivative(hermitianPart(addScaled(y, scale(smallest, size))), smallest, f);
+      addScaledInPlace(moved, derivative(y, smallest, f), -1);
+      expect(frobeniusNorm(moved)).toBeGreaterThan(bound(s, 0.02 - 2 * size, size, 1) / 2);
+    });
+  }
+});
+
 describe("Petz-up's pull-back to the face block: ‖Σ_j (K_jP̂)†·E·K_jP̂‖ ≤ ‖E‖·λ_max(Σ_j (K_jP̂)†K_jP̂)", () => {
   it('holds for random E (mathjs operator norms) and is attained at E = 1, far below Σ_j ‖K_jP̂‖_F² on a wide face', () => {
     // The norm of a completely positive map on operators is its value at the identity (Russo–Dye; common practice).
