@@ -11,7 +11,7 @@ import type { Objective, ObjectiveEvaluation, ReferenceBlocks, BranchSupport, Id
 import type { Problem } from '../problem/model.js';
 import { compressToFace, faceContinuityMargin, type FeasibleFace } from '../problem/feasible-face.js';
 import { matrixFromJson } from '../problem/json.js';
-import { liftedFaceBound } from './lifted-face.js';
+import { liftedFaceBound, type LiftedPointTerms } from './lifted-face.js';
 import { dualPart, eulerInnerProduct, referenceTerm as referenceTermOf } from './dual-term.js';
 import type { BoundBreakdown } from './breakdown.js';
 import type { Certificate } from '../result/types.js';
@@ -193,13 +193,15 @@ export function certificateBreakdown(
   stored?: StoredLinearization,
   /** The problem and objective on the whole space, for a lifted point (`linearizationOffFace`). */
   whole?: { problem: Problem; objective: Objective },
+  /** The lifted point's terms, when the caller formed them from this very `stored` point. */
+  liftedTerms?: LiftedPointTerms,
 ): BoundBreakdown {
   if (certificate.linearizationOffFace) {
     if (!whole) throw new Error('certificateBreakdown: a lifted point needs the whole-space problem');
     // τ' of a lifted point lives on the whole space's output supports.
     const lifted = stored ?? readStoredLinearization(face, whole.objective, certificate);
     const { multipliersLower, multipliersUpper } = certificate;
-    return liftedFaceBound(face, whole.problem, whole.objective, lifted.state, multipliersLower, multipliersUpper, lifted.reference);
+    return liftedFaceBound(face, whole.problem, whole.objective, lifted.state, multipliersLower, multipliersUpper, lifted.reference, liftedTerms);
   }
   const read = stored ?? readStoredLinearization(face, objective, certificate);
   const breakdown = linearizationBound(

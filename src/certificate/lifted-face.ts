@@ -107,6 +107,8 @@ export function liftedFaceBound(
   multipliersLower: ArrayLike<number>,
   multipliersUpper: ArrayLike<number>,
   reference?: ReferenceBlocks,
+  /** F, the paired matrix and the constant at ρ' when the caller already formed them (`liftedPointTerms`). */
+  terms?: LiftedPointTerms,
 ): BoundBreakdown {
   const { kind } = objective.request;
   if (!hasLiftedFaceBound(kind)) throw new RangeError(`a lifted face bound is not derived for ${kind}`);
@@ -116,7 +118,7 @@ export function liftedFaceBound(
   const leak = face.leak ?? 0;
   const offFace = (Math.sqrt(leak) + blocks.angle) ** 2;
   const root = Math.sqrt(offFace);
-  const point = pointTerms(objective, rho, reference);
+  const point = terms ?? liftedPointTerms(objective, rho, reference);
   const { shifted, dualConstant, statisticalSlack, multiplierWeight } = dualPart(active, point.gradient, multipliersLower, multipliersUpper);
   const { faceSmallest, complementSmallest, crossNorm, bound: blockBound, norms: blockNorms } = faceBlockBound(shifted, blocks, offFace);
   const rhoSmallest = eigvalsh(rho)[0];
@@ -169,17 +171,8 @@ export function liftedFaceBound(
   };
 }
 
-/** The matrix the lifted bound pairs with σ at ρ' (∇F, or sandwiched-up's G = ∇_ρF − a·1), for the caller's multipliers. */
-export function liftedPairedGradient(objective: Objective, rho: ComplexMatrix, reference?: ReferenceBlocks): ComplexMatrix {
-  return pointTerms(objective, rho, reference).gradient;
-}
-
-/** F at ρ', the matrix paired with σ, the linearization's constant and (sandwiched-up) the τ terms. */
-function pointTerms(
-  objective: Objective,
-  rho: ComplexMatrix,
-  reference: ReferenceBlocks | undefined,
-): {
+/** F at ρ', the matrix paired with σ (∇F, or sandwiched-up's G = ∇_ρF − a·1), the linearization's constant and the τ terms. */
+export interface LiftedPointTerms {
   value: number;
   gradient: ComplexMatrix;
   /** F(ρ') − ⟨∇F(ρ'), ρ'⟩ [− ⟨∇_τF, τ'⟩ + a] by Euler's identity. */
@@ -191,7 +184,10 @@ function pointTerms(
   conditioning: number;
   derivedConditioning: number;
   split?: IdentitySplit;
-} {
+}
+
+/** One evaluation at ρ' serves the solver's multipliers and the bound (the verifier forms it from the stored point). */
+export function liftedPointTerms(objective: Objective, rho: ComplexMatrix, reference: ReferenceBlocks | undefined): LiftedPointTerms {
   if (objective.request.kind === 'sandwiched-up') {
     if (!reference) throw new Error('liftedFaceBound: sandwiched-up needs reference states τ');
     const joint = objective.evaluateAtReference(rho, reference);

@@ -3,8 +3,8 @@ import { liftFromFace } from '../problem/feasible-face.js';
 import { matrixFromJson, matrixToJson } from '../problem/json.js';
 import type { Problem } from '../problem/model.js';
 import { constraintViolations, FEASIBILITY_TOLERANCE } from '../problem/violation.js';
-import { certificateBreakdown, referenceFromSupport, type BoundBreakdown } from '../certificate/bound.js';
-import { faceBlocks, hasLiftedFaceBound, liftedPairedGradient, liftedPoint, LIFT_WEIGHTS } from '../certificate/lifted-face.js';
+import { certificateBreakdown, readStoredLinearization, referenceFromSupport, type BoundBreakdown } from '../certificate/bound.js';
+import { faceBlocks, hasLiftedFaceBound, liftedPoint, liftedPointTerms, LIFT_WEIGHTS } from '../certificate/lifted-face.js';
 import { conjugateAdjoint, hermitianPart, type ComplexMatrix } from '../linear-algebra/complex-matrix.js';
 import { createObjective, type Objective, type ReferenceBlocks } from '../objectives/index.js';
 import { hasMinTradeoff, minTradeoffFromBreakdown } from '../certificate/min-tradeoff.js';
@@ -71,12 +71,11 @@ type StoredCertificate = Pick<
 function liftedMultipliers(
   setup: SolverSetup,
   state: SolverState,
-  whole: Objective,
-  point: ComplexMatrix,
-  reference: ReferenceBlocks | undefined,
+  /** The matrix the lifted bound pairs with σ at the lifted point, on the whole space. */
+  paired: ComplexMatrix,
 ): Pick<StoredCertificate, 'multipliersLower' | 'multipliersUpper'> | null {
   if (state.limit === 'cancelled') return null;
-  const faceGradient = hermitianPart(conjugateAdjoint(setup.face.isometry as ComplexMatrix, liftedPairedGradient(whole, point, reference)));
+  const faceGradient = hermitianPart(conjugateAdjoint(setup.face.isometry as ComplexMatrix, paired));
   const split = setup.oracle.stripEqualitySpan(faceGradient);
   const answer = setup.clock.timeOracle(() =>
     setup.oracle.minimize(split.stripped, { relativeAccuracy: state.oracleAccuracy, checkpoint: () => {} }),
@@ -108,25 +107,27 @@ function liftedCertificate(
     // Sandwiched-up: τ' is the inner optimum at the lifted point, on the whole space's output supports.
     const reference = entropy.kind === 'sandwiched-up' ? evaluateSafely(whole.objective, point)?.reference : undefined;
     if (entropy.kind === 'sandwiched-up' && !reference) continue;
-    const multipliers = liftedMultipliers(setup, state, whole.objective, point, reference) ?? onFace;
-    const stored = {
+    const draft = {
       ...onFace,
-      ...multipliers,
       linearizationState: matrixToJson(point),
       referenceStates: reference
         ? whole.objective.supports.map((support, c) => matrixToJson(referenceFromSupport(support, reference[c])))
         : undefined,
       linearizationOffFace: true,
     };
-    let claimed: BoundBreakdown;
     try {
-      claimed = certificateBreakdown(face, restricted, objective, stored, undefined, whole);
+      // Read back as the verifier reads it, and evaluated once: the multipliers and the claimed bound share it.
+      const read = readStoredLinearization(face, whole.objective, draft);
+      const terms = liftedPointTerms(whole.objective, read.state, read.reference);
+      const multipliers = liftedMultipliers(setup, state, terms.gradient);
+      const stored = multipliers ? { ...draft, ...multipliers } : draft;
+      const claimed = certificateBreakdown(face, restricted, objective, stored, read, whole, terms);
+      if (claimed.lowerBound > (best?.claimed.lowerBound ?? faceBound)) best = { stored, claimed };
     } catch (error) {
       // A kernel's RangeError at one lifted point (non-finite data) leaves the others.
       if (error instanceof RangeError) continue;
       throw error;
     }
-    if (claimed.lowerBound > (best?.claimed.lowerBound ?? faceBound)) best = { stored, claimed };
   }
   return best;
 }
