@@ -300,8 +300,11 @@ export function quasiEntropyFaceCharges(
       referenceCharge = Math.max(referenceCharge, Math.abs(gradientFactor) * referenceGradient);
     } else {
       // Petz-up: Z(∇_Y q) is pulled back to the face block through Σ_j (K_jP̂)†(·)(K_jP̂), whose norm on operators is
-      // ‖Σ_j (K_jP̂)†K_jP̂‖ (a completely positive map attains it at 1; the pinching Z does not grow the norm either).
-      face += Math.abs(gradientFactor) * weight * referenceGradient * pulledBackUnit(onFace, scaleN);
+      // ‖Σ_j (K_jP̂)†K_jP̂‖ (a completely positive map attains it at 1; the pinching Z does not grow the norm either),
+      // or graded by where the maps sit in Y's spectrum (`gradedPullBack`); the smaller holds.
+      const argumentNorm = 2 * order * Math.max(segmentMin, 0) ** -s * Math.sqrt(powerNorm);
+      const graded = gradedPullBack(referenceEigen, support, onFace, s, direction, argumentNorm, referenceError, scaleN);
+      face += Math.abs(gradientFactor) * weight * Math.min(referenceGradient * pulledBackUnit(onFace, scaleN), graded);
     }
     let traceOfPower = 0;
     for (const t of eigenM.values) traceOfPower += Math.max(t, 0) ** order;
@@ -309,6 +312,54 @@ export function quasiEntropyFaceCharges(
     quasiEntropyError += (sandwiched ? 1 : weight) * branchError;
   });
   return { face, reference: referenceCharge, relativeQuasiEntropy: quasiEntropyError / quasiEntropy };
+}
+
+/**
+ * The change of Σ_j N_j†·Z(D(t^s)(Y)[H])·N_j (N_j = K_jP̂, 0 < s < 1) when H moves by at most `argumentError` and Y by
+ * at most `referenceError` (both Frobenius), graded by Y's spectrum (docs/faces.md, "The pull-back graded"). With
+ * t^s = c_s·∫ λ^{s−1}·t/(t + λ) dλ, D(t^s)(Y)[H] = c_s·∫ λ^s·A·H·A dλ, A = (Y + λ)^{−1}, block by block of the
+ * pinching. In Ŷ's eigenbasis (Ŷ = Y + E as decomposed) ‖ÂN‖_F² = Σ_i r_i/(λ_i + λ)², r_i the squared row norms of
+ * V̂†N, so c_s·∫ λ^s·‖ÂN‖_F² = Σ_i r_i·f'(λ_i) bounds the share of δH; and ÂHÂ − AHA = −ÂEAHÂ − AHÂEA with
+ * ‖A‖ ≤ 1/(b + λ), b = λ_0 − ‖E‖, ‖AN‖ ≤ κ·‖ÂN‖, κ = 1/(1 − ‖E‖/λ_0), so the share of E is at most
+ * (1 + κ²)·‖E‖·‖H‖·Σ_i r_i·|f^[2](λ_i, λ_i, b)| (c_s·∫ λ^s/((a + λ)²(b + λ)) = |f^[2](a, a, b)|). Rows of N on large
+ * eigenvalues pay f'(λ_i) and (1 − s)·λ_i^{s−2}, not the smallest eigenvalue's slopes.
+ */
+export function gradedPullBack(
+  referenceEigen: readonly { values: Float64Array; vectors: ComplexMatrix }[],
+  support: BranchSupport,
+  onFace: readonly ComplexMatrix[],
+  s: number,
+  argumentError: number,
+  argumentNorm: number,
+  referenceError: number,
+  scaleN: number,
+): number {
+  const derivative = (a: number) => s * a ** (s - 1);
+  // |f^[2](a, a, b)| = (f^[1](a, b) − f'(a))/(a − b) for b < a (f = t^s concave); s(1 − s)/2·b^{s−2} bounds it anywhere.
+  const second = (a: number, b: number) =>
+    a > b * (1 + 1e-6) ? ((a ** s - b ** s) / (a - b) - derivative(a)) / (a - b) : (s * (1 - s) * b ** (s - 2)) / 2;
+  let total = 0;
+  referenceEigen.forEach((eigen, k) => {
+    const lowest = eigen.values[0];
+    if (!(referenceError < lowest / 2)) {
+      total = Infinity;
+      return;
+    }
+    const floor = lowest - referenceError;
+    const kappa = 1 / (1 - referenceError / lowest);
+    const offset = support.blockOffsets[k];
+    for (const map of onFace) {
+      const block = rows(map, offset, offset + support.blockSizes[k]);
+      // The rows' rounding (product and the eigenvectors' backward error) within scaleN·√m·‖N‖_F each.
+      const slack = scaleN * Math.sqrt(block.rows) * frobeniusNorm(block);
+      rowSquares(multiplyAdjointLeft(eigen.vectors, block)).forEach((r, i) => {
+        const share = (Math.sqrt(r) + slack) ** 2;
+        const value = Math.max(eigen.values[i], lowest);
+        total += share * (derivative(value) * argumentError + (1 + kappa * kappa) * referenceError * argumentNorm * second(value, floor));
+      });
+    }
+  });
+  return total;
 }
 
 /** ≥ λ_max(Σ_j A_j†A_j) for A_j = K_jP̂: the computed eigenvalue plus its backward error. */

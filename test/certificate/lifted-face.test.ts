@@ -4,7 +4,7 @@
 import { describe, expect, it } from 'vitest';
 import { randomModel } from '../../src/bench/random-models.js';
 import { certificateBreakdown } from '../../src/certificate/bound.js';
-import { clusterCharge, pulledBackUnit } from '../../src/certificate/face-block-charge.js';
+import { clusterCharge, gradedPullBack, pulledBackUnit } from '../../src/certificate/face-block-charge.js';
 import { faceBlockBound, faceBlocks } from '../../src/certificate/lifted-face.js';
 import { verifyResult } from '../../src/certificate/verify.js';
 import { solve } from '../../src/frank-wolfe/solve.js';
@@ -15,6 +15,7 @@ import {
   ComplexMatrix,
   conjugate,
   conjugateAdjoint,
+  directSum,
   frobeniusNorm,
   hermitianPart,
   multiply,
@@ -29,7 +30,7 @@ import type { EntropyRequest, Problem } from '../../src/problem/model.js';
 import type { Certificate } from '../../src/result/types.js';
 import { randomComplexGaussian, randomHermitian, randomIsometry, randomUnitary, seededRandom } from '../helpers/random.js';
 import { referenceEigenvalues, traceOfProduct } from '../oracle/reference.js';
-import { operatorNorm, referenceFunction } from './reference-functions.js';
+import { operatorNorm, referenceDerivative, referenceFunction } from './reference-functions.js';
 import { rotated } from './rotation.js';
 
 function syntheticFace(n: number, k: number, seed: number, leak: number): FeasibleFace {
@@ -175,6 +176,88 @@ describe('D(t^s) at Y moves with the error of Y (mean value: 2·max|(t^s)^[2]|·
       expect(frobeniusNorm(moved)).toBeGreaterThan(bound(s, 0.02 - 2 * size, size, 1) / 2);
     });
   }
+});
+
+describe("Petz-up's pull-back graded by Y's spectrum (resolvent integral of t^s; derived, docs/faces.md)", () => {
+  // Y = Y₁ ⊕ Y₂ (two key blocks) with small eigenvalues; maps N_j mostly on the large eigenvectors. Reference: the
+  // Daleckii–Krein derivative from ml-matrix's eigendecomposition (reference-functions.ts).
+  const s = 0.25;
+  const f = (t: number) => t ** s;
+  const slope = (a: number, b: number) => (a === b ? s * a ** (s - 1) : (a ** s - b ** s) / (a - b));
+  const sizes = [3, 2];
+  const offsets = [0, 3];
+  const support = { blockSizes: sizes, blockOffsets: offsets } as unknown as Parameters<typeof gradedPullBack>[1];
+  const pinch = (m: ComplexMatrix) => {
+    const out = ComplexMatrix.zeros(m.rows);
+    offsets.forEach((o, k) => {
+      for (let i = o; i < o + sizes[k]; i++) {
+        for (let j = o; j < o + sizes[k]; j++) {
+          out.re[i * m.cols + j] = m.re[i * m.cols + j];
+          out.im[i * m.cols + j] = m.im[i * m.cols + j];
+        }
+      }
+    });
+    return out;
+  };
+  const rng = seededRandom(21);
+  const u1 = randomUnitary(3, rng);
+  const u2 = randomUnitary(2, rng);
+  const blocks = [hermitianPart(conjugate(u1, ComplexMatrix.diagonal([0.5, 0.2, 1e-3]))), hermitianPart(conjugate(u2, ComplexMatrix.diagonal([0.3, 2e-3])))];
+  const y = directSum(blocks);
+  const eigen = blocks.map((b) => eigh(b));
+  const onLarge = (share: number) => {
+    const n = ComplexMatrix.zeros(5, 2);
+    // Columns on the large eigenvectors of each block, with a share on the small ones.
+    const v1 = multiply(u1, ComplexMatrix.from([[1, 0], [0, 0.8], [share, 0]]));
+    const v2 = multiply(u2, ComplexMatrix.from([[0.6, 0.3], [0, share]]));
+    for (let i = 0; i < 3; i++) for (let c = 0; c < 2; c++) { n.re[i * 2 + c] = v1.re[i * 2 + c]; n.im[i * 2 + c] = v1.im[i * 2 + c]; }
+    for (let i = 0; i < 2; i++) for (let c = 0; c < 2; c++) { n.re[(i + 3) * 2 + c] = v2.re[i * 2 + c]; n.im[(i + 3) * 2 + c] = v2.im[i * 2 + c]; }
+    return n;
+  };
+  const pulled = (maps: ComplexMatrix[], m: ComplexMatrix) => {
+    const total = ComplexMatrix.zeros(maps[0].cols);
+    for (const a of maps) addScaledInPlace(total, conjugateAdjoint(a, pinch(m)), 1);
+    return total;
+  };
+
+  it('bounds the change from errors of H and of Y, far below the ungraded slope at λ_min(Y)', () => {
+    const maps = [onLarge(1e-3), scale(onLarge(2e-3), 0.5)];
+    const h = unitHermitian(randomHermitian(5, rng));
+    const argumentError = 1e-8;
+    const referenceError = 1e-8;
+    const charge = gradedPullBack(eigen, support, maps, s, argumentError, frobeniusNorm(h), referenceError, 0);
+    for (let trial = 0; trial < 6; trial++) {
+      const dh = scale(unitHermitian(randomHermitian(5, rng)), argumentError);
+      const e = scale(unitHermitian(pinch(randomHermitian(5, rng))), referenceError);
+      const moved = pulled(maps, referenceDerivative(hermitianPart(addScaled(y, e)), addScaled(h, dh), slope));
+      addScaledInPlace(moved, pulled(maps, referenceDerivative(y, h, slope)), -1);
+      expect(operatorNorm(moved)).toBeLessThanOrEqual(charge);
+    }
+    // Y's error alone (H exact): only the map's own movement, the second term, covers it.
+    const alone = gradedPullBack(eigen, support, maps, s, 0, frobeniusNorm(h), referenceError, 0);
+    for (let trial = 0; trial < 4; trial++) {
+      const e = scale(unitHermitian(pinch(randomHermitian(5, rng))), referenceError);
+      const moved = pulled(maps, referenceDerivative(hermitianPart(addScaled(y, e)), h, slope));
+      addScaledInPlace(moved, pulled(maps, referenceDerivative(y, h, slope)), -1);
+      expect(operatorNorm(moved)).toBeLessThanOrEqual(alone);
+    }
+    // The ungraded charge: both slopes at λ_min(Y) (the first-order one and the map's own, s(1 − s)·λ^{s−2}).
+    const lowest = 1e-3 - 2 * referenceError;
+    const ungraded = (s * 1e-3 ** (s - 1) * argumentError + s * (1 - s) * lowest ** (s - 2) * referenceError * frobeniusNorm(h)) * pulledBackUnit(maps, 0);
+    expect(charge).toBeLessThan(ungraded / 100);
+  });
+
+  it("is attained by H's error on one eigenvector where the map sits: halving it fails", () => {
+    const vector = multiply(u1, ComplexMatrix.from([[1], [0], [0]]));
+    const map = ComplexMatrix.zeros(5, 1);
+    for (let i = 0; i < 3; i++) { map.re[i] = vector.re[i]; map.im[i] = vector.im[i]; }
+    const dh = scale(multiply(map, adjoint(map)), 1e-8);
+    const h = ComplexMatrix.zeros(5);
+    const moved = pulled([map], referenceDerivative(y, dh, slope));
+    const charge = gradedPullBack(eigen, support, [map], s, 1e-8, frobeniusNorm(h), 0, 0);
+    expect(operatorNorm(moved)).toBeLessThanOrEqual(charge * (1 + 1e-9));
+    expect(operatorNorm(moved)).toBeGreaterThan(charge / 2);
+  });
 });
 
 describe("Petz-up's pull-back to the face block: ‖Σ_j (K_jP̂)†·E·K_jP̂‖ ≤ ‖E‖·λ_max(Σ_j (K_jP̂)†K_jP̂)", () => {
