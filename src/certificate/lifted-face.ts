@@ -26,6 +26,7 @@ import type { EntropyRequest, Problem } from '../problem/model.js';
 import type { BoundBreakdown } from './breakdown.js';
 import { dualPart, eulerInnerProduct, referenceTerm } from './dual-term.js';
 import { quasiEntropyFaceCharges, vonNeumannFaceCharge } from './face-block-charge.js';
+import { petzDownLiftedTerms, type PetzDownLiftedTerms } from './petz-down-lifted.js';
 
 /**
  * Weights μ of the complement in the lifted points the solver tries (the verifier takes whatever point is stored).
@@ -33,9 +34,20 @@ import { quasiEntropyFaceCharges, vonNeumannFaceCharge } from './face-block-char
  */
 export const LIFT_WEIGHTS: readonly number[] = [1e-6, 1e-7, 1e-8, 1e-9, 1e-10].flatMap((w) => [w, w / Math.sqrt(10)]);
 
-/** The kinds whose gradient error on the face block is bounded (docs/faces.md): all but Petz-down. */
+/**
+ * Petz-down's loss falls like μ^{2−α} (√μ at α = 1.5), so its points sit near 1e-14, evaluated in double-double; below
+ * about 1e-15 the stored point's complement (μ/(n − k) per direction) would drown in the rounding of its face part.
+ */
+const PETZ_DOWN_LIFT_WEIGHTS: readonly number[] = [1e-12, 1e-13, 3e-14, 1e-14];
+
+/** The weights the solver tries for a kind. */
+export function liftWeights(kind: string): readonly number[] {
+  return kind === 'petz-down' ? PETZ_DOWN_LIFT_WEIGHTS : LIFT_WEIGHTS;
+}
+
+/** The kinds whose gradient error on the face block is bounded (docs/faces.md): all four, Petz-down in double-double. */
 export function hasLiftedFaceBound(kind: string): boolean {
-  return kind === 'von-neumann' || kind === 'sandwiched-up' || kind === 'petz-up';
+  return kind === 'von-neumann' || kind === 'sandwiched-up' || kind === 'petz-up' || kind === 'petz-down';
 }
 
 /**
@@ -46,8 +58,16 @@ export function hasLiftedFaceBound(kind: string): boolean {
 export function faceBoundApplies(problem: Problem, request: Required<EntropyRequest>): boolean {
   if (request.kind === 'von-neumann') return true;
   if (!hasLiftedFaceBound(request.kind)) return false;
-  return createObjective(problem, request).supports.every((support) => isKeyless(support) || support.outputRange === null);
+  const { supports, dimension } = createObjective(problem, request);
+  if (request.kind === 'petz-down' && Math.max(dimension, ...supports.map((s) => s.dimension)) > PETZ_DOWN_LIFT_MAX_DIMENSION) return false;
+  return supports.every((support) => isKeyless(support) || support.outputRange === null);
 }
+
+/**
+ * Largest ρ or branch output for Petz-down's double-double lift: its Jacobi eigendecompositions took 0.1 s at 16 and
+ * 0.5 s at 32 (loaded machine), about n³, four lift weights each, in result assembly, which cannot be interrupted.
+ */
+const PETZ_DOWN_LIFT_MAX_DIMENSION = 32;
 
 /** Orthonormal bases of the face and of its complement from one eigendecomposition of P·P†. */
 export interface FaceBlocks {
@@ -118,7 +138,8 @@ export function liftedFaceBound(
   const leak = face.leak ?? 0;
   const offFace = (Math.sqrt(leak) + blocks.angle) ** 2;
   const root = Math.sqrt(offFace);
-  const point = terms ?? liftedPointTerms(objective, rho, reference);
+  const point = terms ?? liftedPointTerms(objective, rho, reference, blocks);
+  if (point.petzDown) return petzDownLiftedBound(active, objective, point.petzDown, blocks, offFace, multipliersLower, multipliersUpper);
   const { shifted, dualConstant, statisticalSlack, multiplierWeight } = dualPart(active, point.gradient, multipliersLower, multipliersUpper);
   const { faceSmallest, complementSmallest, crossNorm, bound: blockBound, norms: blockNorms } = faceBlockBound(shifted, blocks, offFace);
   const rhoSmallest = eigvalsh(rho)[0];
@@ -184,10 +205,31 @@ export interface LiftedPointTerms {
   conditioning: number;
   derivedConditioning: number;
   split?: IdentitySplit;
+  /** Petz-down: ∇F's blocks over the face and its complement, formed in double-double, with their error bounds. */
+  petzDown?: PetzDownLiftedTerms;
 }
 
 /** One evaluation at ρ' serves the solver's multipliers and the bound (the verifier forms it from the stored point). */
-export function liftedPointTerms(objective: Objective, rho: ComplexMatrix, reference: ReferenceBlocks | undefined): LiftedPointTerms {
+export function liftedPointTerms(
+  objective: Objective,
+  rho: ComplexMatrix,
+  reference: ReferenceBlocks | undefined,
+  blocks: FaceBlocks,
+): LiftedPointTerms {
+  if (objective.request.kind === 'petz-down') {
+    const petzDown = petzDownLiftedTerms(objective, rho, blocks.face, blocks.complement);
+    return {
+      value: petzDown.value,
+      gradient: petzDown.gradient,
+      constant: petzDown.constant,
+      constantScale: 0,
+      referenceTerm: 0,
+      referenceError: 0,
+      conditioning: 1,
+      derivedConditioning: 1,
+      petzDown,
+    };
+  }
   if (objective.request.kind === 'sandwiched-up') {
     if (!reference) throw new Error('liftedFaceBound: sandwiched-up needs reference states τ');
     const joint = objective.evaluateAtReference(rho, reference);
@@ -221,6 +263,61 @@ export function liftedPointTerms(objective: Objective, rho: ComplexMatrix, refer
 }
 
 /**
+ * The lifted bound for Petz-down from ∇F's blocks formed in double-double (petz-down-lifted.ts): S's blocks are those
+ * minus Σ yΓ's, and each block's error moves s_P, c and s_Q by at most that error (Weyl), weighted 1, 2√ε' and ε'.
+ * ‖∇F‖ itself is never formed in double: its complement block is of order μ^{β−1}, whose rounding would swamp the face.
+ */
+function petzDownLiftedBound(
+  active: Problem,
+  objective: Objective,
+  terms: PetzDownLiftedTerms,
+  blocks: FaceBlocks,
+  offFace: number,
+  multipliersLower: ArrayLike<number>,
+  multipliersUpper: ArrayLike<number>,
+): BoundBreakdown {
+  const n = blocks.face.rows;
+  const scaleN = BACKWARD_ERROR_CONSTANT * n * UNIT_ROUNDOFF;
+  // The blocks are V†SV for V = [P̂ | Q̂] unitary only to δ: x = V·c with |c|² within δ/(1 − δ) of 1 and c's complement
+  // part within 2δ of Q̂†x, so the off-face weight grows to (√ε' + 2δ)² and s_P·|c|² costs 2δ·|s_P| more.
+  const delta = blocks.defect;
+  const weightOff = (Math.sqrt(offFace) + 2 * delta) ** 2;
+  const root = Math.sqrt(weightOff);
+  const { shifted, dualConstant, statisticalSlack, multiplierWeight } = dualPart(active, ComplexMatrix.zeros(n), multipliersLower, multipliersUpper);
+  const onFace = hermitianPart(addTo(terms.face, conjugateAdjoint(blocks.face, shifted)));
+  const cross = addTo(terms.cross, multiply(multiplyAdjointLeft(blocks.face, shifted), blocks.complement));
+  const complement = hermitianPart(addTo(terms.complement, conjugateAdjoint(blocks.complement, shifted)));
+  const { faceSmallest, crossNorm, bound: blockBound, norms } = blockBoundOf(onFace, cross, complement, weightOff);
+  const shiftedNorm = frobeniusNorm(shifted);
+  const errors = terms.errors;
+  const conditioningCharge = errors.face + 2 * root * errors.cross + weightOff * errors.complement + errors.constant;
+  const rounding =
+    // Σ yΓ's blocks (three products each) and the multipliers' sum; the blocks' eigenvalues; |c|² ≠ 1.
+    scaleN * (3 * shiftedNorm + multiplierWeight + norms.face) +
+    2 * root * Math.sqrt(scaleN) * norms.cross +
+    weightOff * scaleN * norms.complement +
+    ((2 * delta) / (1 - delta)) * (Math.abs(faceSmallest) + 2 * crossNorm * root);
+  const margin = rounding + conditioningCharge;
+  return {
+    objectiveValue: terms.value,
+    gradientInnerProduct: eulerInnerProduct(objective, terms.value),
+    dualConstant,
+    smallestEigenvalue: blockBound,
+    referenceTerm: 0,
+    margin,
+    conditioningCharge,
+    lowerBound: Number.isFinite(margin) ? terms.constant + dualConstant + blockBound - margin : -Infinity,
+    statisticalSlack,
+  };
+}
+
+function addTo(a: ComplexMatrix, b: ComplexMatrix): ComplexMatrix {
+  const out = a.clone();
+  addScaledInPlace(out, b, 1);
+  return out;
+}
+
+/**
  * For unit x = a + b (a on the face, b off it), x†Sx ≥ s_P|a|² − 2c|a||b| + s_Q|b|²; summed over a state with weight
  * w ≤ ε' off the face (Σ p|a||b| ≤ √w by Cauchy–Schwarz) this is at least s_P − ε'·max(0, s_P − s_Q) − 2c√ε'.
  */
@@ -239,6 +336,16 @@ export function faceBlockBound(
   const onFace = conjugateAdjoint(blocks.face, shifted);
   const offFaceBlock = conjugateAdjoint(blocks.complement, shifted);
   const cross = multiply(multiplyAdjointLeft(blocks.face, shifted), blocks.complement);
+  return blockBoundOf(onFace, cross, offFaceBlock, offFace);
+}
+
+/** `faceBlockBound` from the three blocks themselves. */
+function blockBoundOf(
+  onFace: ComplexMatrix,
+  cross: ComplexMatrix,
+  offFaceBlock: ComplexMatrix,
+  offFace: number,
+): ReturnType<typeof faceBlockBound> {
   const faceSmallest = eigvalsh(onFace)[0];
   const complementSmallest = eigvalsh(offFaceBlock)[0];
   const crossNorm = Math.sqrt(Math.max(0, eigvalsh(multiplyAdjointRight(cross, cross)).at(-1) as number));

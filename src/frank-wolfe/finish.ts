@@ -4,8 +4,9 @@ import { matrixFromJson, matrixToJson } from '../problem/json.js';
 import type { Problem } from '../problem/model.js';
 import { constraintViolations, FEASIBILITY_TOLERANCE } from '../problem/violation.js';
 import { certificateBreakdown, readStoredLinearization, referenceFromSupport, type BoundBreakdown } from '../certificate/bound.js';
-import { faceBlocks, hasLiftedFaceBound, liftedPoint, liftedPointTerms, LIFT_WEIGHTS } from '../certificate/lifted-face.js';
+import { faceBlocks, hasLiftedFaceBound, liftedPoint, liftedPointTerms, liftWeights } from '../certificate/lifted-face.js';
 import { conjugateAdjoint, hermitianPart, type ComplexMatrix } from '../linear-algebra/complex-matrix.js';
+import { eigvalsh } from '../linear-algebra/eigen.js';
 import { createObjective, type Objective, type ReferenceBlocks } from '../objectives/index.js';
 import { hasMinTradeoff, minTradeoffFromBreakdown } from '../certificate/min-tradeoff.js';
 import { trivialLowerBound } from '../certificate/trivial-bound.js';
@@ -99,10 +100,12 @@ function liftedCertificate(
 ): { stored: StoredCertificate; claimed: BoundBreakdown } | null {
   const { face, restricted, objective, entropy, activeProblem } = setup;
   if (face.exposures.length === 0 || !face.isometry || !hasLiftedFaceBound(entropy.kind)) return null;
+  // Petz-down's lift runs in double-double (seconds at n = 32): a cancelled run frees its thread instead.
+  if (entropy.kind === 'petz-down' && state.limit === 'cancelled') return null;
   const whole = { problem: activeProblem, objective: createObjective(activeProblem, entropy) };
   const blocks = faceBlocks(face);
   let best: { stored: StoredCertificate; claimed: BoundBreakdown } | null = null;
-  for (const weight of LIFT_WEIGHTS) {
+  for (const weight of liftWeights(entropy.kind)) {
     const point = liftedPoint(face, blocks, certified.state, weight);
     // Sandwiched-up: τ' is the inner optimum at the lifted point, on the whole space's output supports.
     const reference = entropy.kind === 'sandwiched-up' ? evaluateSafely(whole.objective, point)?.reference : undefined;
@@ -118,7 +121,9 @@ function liftedCertificate(
     try {
       // Read back as the verifier reads it, and evaluated once: the multipliers and the claimed bound share it.
       const read = readStoredLinearization(face, whole.objective, draft);
-      const terms = liftedPointTerms(whole.objective, read.state, read.reference);
+      // The verifier refuses a point whose computed smallest eigenvalue is not positive; so does the solver.
+      if (!(eigvalsh(read.state)[0] > 0)) continue;
+      const terms = liftedPointTerms(whole.objective, read.state, read.reference, blocks);
       const multipliers = liftedMultipliers(setup, state, terms.gradient);
       const stored = multipliers ? { ...draft, ...multipliers } : draft;
       const claimed = certificateBreakdown(face, restricted, objective, stored, read, whole, terms);
