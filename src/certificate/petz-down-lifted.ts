@@ -117,9 +117,10 @@ export function petzDownLiftedTerms(objective: Objective, rho: ComplexMatrix, fa
       const blocks = support.blockSizes.map((size, b) => ddHermitianEigen(ddBlock(x, support.blockOffsets[b], support.blockOffsets[b] + size, support.blockOffsets[b], support.blockOffsets[b] + size)));
       const mus = blocks.map(rounded);
       const errorX = eigenX.residual + weight * formingError;
-      const errorY = Math.max(...blocks.map((e) => e.residual)) + weight * formingError;
+      // Y = ⊕ Y_b: each block's eigenvalues move by its own residual; the whole by at most their sum (Frobenius).
+      const errorY = blocks.reduce((sum, e) => sum + e.residual, 0) + weight * formingError;
       const lowX = lambda[0] - errorX;
-      const lowY = Math.min(...mus.map((v) => v[0])) - errorY;
+      const lowY = Math.min(...mus.map((v, b) => v[0] - blocks[b].residual)) - weight * formingError;
       if (!(lowX > 0 && lowY > 0)) throw new RangeError('petz-down lifted bound: a branch output is not positive definite to its error');
       const statePower = ddSpectral(eigenX.vectors, Array.from(lambda, (t) => t ** beta));
       const pinchedPower = blockDiagonal(
@@ -150,7 +151,10 @@ export function petzDownLiftedTerms(objective: Objective, rho: ComplexMatrix, fa
       const stateCurvature = (beta * (1 - beta) * lowX ** (beta - 2)) / 2;
       const pinchedCurvature = (beta * (1 - beta) * lowY ** (-beta - 1)) / 2;
       // U·f·U† with U unitary only to ‖U†U − 1‖ ≤ residual/‖X‖: at most twice that on every formed matrix.
-      const defect = (eigenX.residual + Math.max(...blocks.map((e) => e.residual))) / Math.max(weight * outputNorm, Number.MIN_VALUE);
+      const blockNorms = support.blockSizes.map((size, b) => ddBlock(x, support.blockOffsets[b], support.blockOffsets[b] + size, support.blockOffsets[b], support.blockOffsets[b] + size).frobeniusNorm());
+      const defect =
+        eigenX.residual / Math.max(weight * outputNorm, Number.MIN_VALUE) +
+        Math.max(...blocks.map((e, b) => e.residual / Math.max(blockNorms[b], Number.MIN_VALUE)));
       const normA = termA.frobeniusNorm();
       const normB = termB.frobeniusNorm();
       gradientError +=
