@@ -190,7 +190,7 @@ export function vonNeumannLeadingCharges(objective: Objective, rho: ComplexMatri
 }
 
 /** |(t^p)^[1](a, b)| for −1 < p < 0: convex and decreasing, so it decreases in both arguments. */
-function powerDividedDifference(p: number): (a: number, b: number) => number {
+export function powerDividedDifference(p: number): (a: number, b: number) => number {
   return (a, b) => {
     const [low, high] = a < b ? [a, b] : [b, a];
     // Close arguments: the derivative at the smaller one bounds the quotient and avoids its cancellation.

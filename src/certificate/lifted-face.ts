@@ -26,7 +26,8 @@ import type { EntropyRequest, Problem } from '../problem/model.js';
 import type { BoundBreakdown } from './breakdown.js';
 import { dualPart, eulerInnerProduct, referenceTerm } from './dual-term.js';
 import { quasiEntropyFaceCharges, vonNeumannFaceCharge } from './face-block-charge.js';
-import { petzDownLiftedTerms, type PetzDownLiftedTerms } from './petz-down-lifted.js';
+import { fitsDoubleDoubleLift, liftInDoubleDouble, type DoubleDoubleLiftTerms } from './double-double-lift.js';
+import { petzDownBranch } from './petz-down-lifted.js';
 
 /**
  * Weights μ of the complement in the lifted points the solver tries (the verifier takes whatever point is stored).
@@ -58,16 +59,11 @@ export function hasLiftedFaceBound(kind: string): boolean {
 export function faceBoundApplies(problem: Problem, request: Required<EntropyRequest>): boolean {
   if (request.kind === 'von-neumann') return true;
   if (!hasLiftedFaceBound(request.kind)) return false;
-  const { supports, dimension } = createObjective(problem, request);
-  if (request.kind === 'petz-down' && Math.max(dimension, ...supports.map((s) => s.dimension)) > PETZ_DOWN_LIFT_MAX_DIMENSION) return false;
+  const objective = createObjective(problem, request);
+  const { supports } = objective;
+  if (request.kind === 'petz-down' && !fitsDoubleDoubleLift(objective)) return false;
   return supports.every((support) => isKeyless(support) || support.outputRange === null);
 }
-
-/**
- * Largest ρ or branch output for Petz-down's double-double lift: its Jacobi eigendecompositions took 0.1 s at 16 and
- * 0.5 s at 32 (loaded machine), about n³, four lift weights each, in result assembly, which cannot be interrupted.
- */
-const PETZ_DOWN_LIFT_MAX_DIMENSION = 32;
 
 /** Orthonormal bases of the face and of its complement from one eigendecomposition of P·P†. */
 export interface FaceBlocks {
@@ -139,7 +135,7 @@ export function liftedFaceBound(
   const offFace = (Math.sqrt(leak) + blocks.angle) ** 2;
   const root = Math.sqrt(offFace);
   const point = terms ?? liftedPointTerms(objective, rho, reference, blocks);
-  if (point.petzDown) return petzDownLiftedBound(active, objective, point.petzDown, blocks, offFace, multipliersLower, multipliersUpper);
+  if (point.doubleDouble) return doubleDoubleLiftedBound(active, objective, point.doubleDouble, blocks, offFace, multipliersLower, multipliersUpper);
   const { shifted, dualConstant, statisticalSlack, multiplierWeight } = dualPart(active, point.gradient, multipliersLower, multipliersUpper);
   const { faceSmallest, complementSmallest, crossNorm, bound: blockBound, norms: blockNorms } = faceBlockBound(shifted, blocks, offFace);
   const rhoSmallest = eigvalsh(rho)[0];
@@ -206,7 +202,7 @@ export interface LiftedPointTerms {
   derivedConditioning: number;
   split?: IdentitySplit;
   /** Petz-down: ∇F's blocks over the face and its complement, formed in double-double, with their error bounds. */
-  petzDown?: PetzDownLiftedTerms;
+  doubleDouble?: DoubleDoubleLiftTerms;
 }
 
 /** One evaluation at ρ' serves the solver's multipliers and the bound (the verifier forms it from the stored point). */
@@ -217,17 +213,17 @@ export function liftedPointTerms(
   blocks: FaceBlocks,
 ): LiftedPointTerms {
   if (objective.request.kind === 'petz-down') {
-    const petzDown = petzDownLiftedTerms(objective, rho, blocks.face, blocks.complement);
+    const doubleDouble = liftInDoubleDouble(objective, rho, blocks.face, blocks.complement, petzDownBranch);
     return {
-      value: petzDown.value,
-      gradient: petzDown.gradient,
-      constant: petzDown.constant,
+      value: doubleDouble.value,
+      gradient: doubleDouble.gradient,
+      constant: doubleDouble.constant,
       constantScale: 0,
       referenceTerm: 0,
       referenceError: 0,
       conditioning: 1,
       derivedConditioning: 1,
-      petzDown,
+      doubleDouble,
     };
   }
   if (objective.request.kind === 'sandwiched-up') {
@@ -263,14 +259,14 @@ export function liftedPointTerms(
 }
 
 /**
- * The lifted bound for Petz-down from ∇F's blocks formed in double-double (petz-down-lifted.ts): S's blocks are those
+ * The lifted bound from ∇F's blocks formed in double-double (double-double-lift.ts): S's blocks are those
  * minus Σ yΓ's, and each block's error moves s_P, c and s_Q by at most that error (Weyl), weighted 1, 2√ε' and ε'.
  * ‖∇F‖ itself is never formed in double: its complement block is of order μ^{β−1}, whose rounding would swamp the face.
  */
-function petzDownLiftedBound(
+function doubleDoubleLiftedBound(
   active: Problem,
   objective: Objective,
-  terms: PetzDownLiftedTerms,
+  terms: DoubleDoubleLiftTerms,
   blocks: FaceBlocks,
   offFace: number,
   multipliersLower: ArrayLike<number>,

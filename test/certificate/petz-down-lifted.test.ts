@@ -4,7 +4,8 @@
 import { describe, expect, it } from 'vitest';
 import { randomModel } from '../../src/bench/random-models.js';
 import { faceBlocks, liftedPoint } from '../../src/certificate/lifted-face.js';
-import { petzDownLiftedTerms } from '../../src/certificate/petz-down-lifted.js';
+import { liftInDoubleDouble } from '../../src/certificate/double-double-lift.js';
+import { petzDownBranch } from '../../src/certificate/petz-down-lifted.js';
 import { solve } from '../../src/frank-wolfe/solve.js';
 import {
   addScaledInPlace,
@@ -60,7 +61,7 @@ describe('Petz-down at a lifted point in double-double (d16#2)', () => {
 
   it('F agrees with ml-matrix to 1e-12, and the face block with its central differences along the face to 1e-6', () => {
     const point = liftedPoint(face, blocks, faceState, 1e-4);
-    const terms = petzDownLiftedTerms(objective, point, blocks.face, blocks.complement);
+    const terms = liftInDoubleDouble(objective, point, blocks.face, blocks.complement, petzDownBranch);
     expect(Math.abs(terms.value - referenceValue(point))).toBeLessThan(1e-12);
     const rng = seededRandom(8);
     const step = 1e-6;

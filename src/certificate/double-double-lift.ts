@@ -1,0 +1,175 @@
+// F and ∇F's blocks at a point lifted off an exposed face, in double-double (docs/faces.md, "Petz lifts in
+// double-double"): the branch outputs there have eigenvalues far below a double eigensolver's absolute accuracy.
+// This module forms the outputs, sums the branches, pulls the gradient back and cuts its blocks; each Petz kind
+// supplies its branch term (petz-down-lifted.ts, petz-up-lifted.ts). Shared by the solver and the verifier.
+import { ComplexMatrix, frobeniusNorm, multiply } from '../linear-algebra/complex-matrix.js';
+import { DD_UNIT_ROUNDOFF, ddAddScaled, DdMatrix, ddMultiply, type DdEigen } from '../linear-algebra/double-double-matrix.js';
+import { UNIT_ROUNDOFF } from '../linear-algebra/rounding.js';
+import { isKeyless, type BranchSupport } from '../objectives/branch-supports.js';
+import { branchWeight, logCoefficient, type Objective } from '../objectives/index.js';
+
+/**
+ * Relative error of a power λ^p or a divided difference of t^p formed in double from a double-double eigenvalue
+ * rounded to double (u/2), by Math.pow or the expm1/log1p quotient (a few ulps; from memory), with room.
+ */
+export const ETA = 16 * UNIT_ROUNDOFF;
+/** Relative error of one double-double product or sum of the package (Joldes, Muller & Popescu 2017), with room. */
+export const DD_STEP = 8 * DD_UNIT_ROUNDOFF;
+
+/** ∇F over [P̂ | Q̂] and F at the point, with bounds on their errors. */
+export interface DoubleDoubleLiftTerms {
+  value: number;
+  /** F − c/ln 2, the linearization's constant (Euler: ⟨∇F, ρ'⟩ = c/ln 2). */
+  constant: number;
+  /** ∇F rounded to double: for the solver's multipliers only. */
+  gradient: ComplexMatrix;
+  face: ComplexMatrix;
+  cross: ComplexMatrix;
+  complement: ComplexMatrix;
+  /** Bounds on the operator-norm error of each block, and on the constant's error. */
+  errors: { face: number; cross: number; complement: number; constant: number };
+}
+
+/** What a branch with key contributes, for the weighted output X' = w·X_c. */
+export interface BranchLift {
+  quasiEntropy: number;
+  quasiEntropyError: number;
+  /** ∇_{X'}Q on the branch's output, in double-double. */
+  gradient: DdMatrix;
+  /** Bound on ‖δ∇_{X'}Q‖_F. */
+  gradientError: number;
+  /** Bound on the error of Σ_j N_j†·∇_{X'}Q·N_j, N_j = K_jP̂ (the face block, graded by the kind). */
+  faceError: number;
+}
+
+/** A kind's branch term: X' (weighted output, double-double), its forming error and the face maps K_jP̂. */
+export type BranchLifter = (support: BranchSupport, x: DdMatrix, formingError: number, faceMaps: ComplexMatrix[], alpha: number) => BranchLift;
+
+/**
+ * Largest ρ or branch output lifted in double-double: Jacobi eigendecompositions took 0.1 s at 16 and 0.5 s at 32
+ * (loaded machine), about n³, several per lift weight, inside result assembly, which cannot be interrupted.
+ */
+export const DOUBLE_DOUBLE_LIFT_MAX_DIMENSION = 32;
+
+/** Whether the problem is small enough for a double-double lift. */
+export function fitsDoubleDoubleLift(objective: Objective): boolean {
+  return Math.max(objective.dimension, ...objective.supports.map((s) => s.dimension)) <= DOUBLE_DOUBLE_LIFT_MAX_DIMENSION;
+}
+
+/** Σ_j K_j·A·K_j† with doubles K_j, in double-double. */
+function branchOutput(kraus: readonly ComplexMatrix[], rho: DdMatrix): DdMatrix {
+  let out = new DdMatrix(kraus[0].rows, kraus[0].rows);
+  for (const k of kraus) {
+    const kd = DdMatrix.from(k);
+    out = ddAddScaled(out, ddMultiply(ddMultiply(kd, rho), kd, false, true), [0, 1]);
+  }
+  return out;
+}
+
+/** Places square blocks along the diagonal. */
+export function blockDiagonal(blocks: readonly DdMatrix[], size: number): DdMatrix {
+  const out = new DdMatrix(size, size);
+  let offset = 0;
+  for (const b of blocks) {
+    for (let i = 0; i < b.rows; i++) for (let j = 0; j < b.cols; j++) out.set(offset + i, offset + j, b.re(i, j), b.im(i, j));
+    offset += b.rows;
+  }
+  return out;
+}
+
+/** The eigenvalues rounded to double. */
+export function rounded(e: DdEigen): Float64Array {
+  return Float64Array.from(e.values, (v) => v[1] + v[0]);
+}
+
+/** The eigendecomposition rounded to double (for the charges' cluster weights, which carry a rounding slack). */
+export function roundedEigen(e: DdEigen): { values: Float64Array; vectors: ComplexMatrix } {
+  return { values: rounded(e), vectors: e.vectors.toDouble() };
+}
+
+/** A double-double matrix times a double. */
+export function scaleDd(a: DdMatrix, s: number): DdMatrix {
+  return ddAddScaled(new DdMatrix(a.rows, a.cols), a, [0, s]);
+}
+
+/**
+ * F = c·log₂ Q with Q = Σ_c Q_c(X'_c), and ∇F = c/(Q ln 2)·Σ_c w_c·Σ_j K_j†·∇_{X'}Q_c·K_j, the branch terms from
+ * `lifter`; a branch without key has Q_c = Tr X'_c and gradient 1. The pull-back Σ_j K_j†(·)K_j has norm ≤ 1
+ * (completeness), so a branch's gradient error reaches every block at most unchanged; the face block takes the
+ * kind's graded bound instead. Q's relative error scales every block and moves the constant by |c|·δQ/(Q ln 2).
+ */
+export function liftInDoubleDouble(
+  objective: Objective,
+  rho: ComplexMatrix,
+  face: ComplexMatrix,
+  complement: ComplexMatrix,
+  lifter: BranchLifter,
+): DoubleDoubleLiftTerms {
+  const n = rho.rows;
+  const rhoDd = DdMatrix.from(rho);
+  let gradientQ = new DdMatrix(n, n);
+  let quasiEntropy = 0;
+  let quasiEntropyError = 0;
+  let gradientError = 0;
+  let faceError = 0;
+  for (const support of objective.supports) {
+    const weight = branchWeight(objective.request, support.score);
+    const m = support.dimension;
+    const output = branchOutput(support.krausOperators, rhoDd);
+    const krausWeight = support.krausOperators.reduce((s, k) => s + frobeniusNorm(k) ** 2, 0);
+    // Forming X in double-double: each entry a sum over the Kraus operators' products.
+    const formingError = weight * DD_STEP * 4 * (n + m) * krausWeight * frobeniusNorm(rho);
+    let g: DdMatrix;
+    if (isKeyless(support)) {
+      let trace = 0;
+      for (let i = 0; i < m; i++) trace += output.reHigh[i * m + i] + output.reLow[i * m + i];
+      quasiEntropy += weight * trace;
+      quasiEntropyError += formingError * Math.sqrt(m);
+      g = new DdMatrix(m, m);
+      for (let i = 0; i < m; i++) g.reHigh[i * m + i] = weight;
+    } else {
+      if (support.outputRange) throw new RangeError('lift in double-double: a branch output rank deficient on its support');
+      const maps = support.krausOperators.map((k) => multiply(k, face));
+      const branch = lifter(support, scaleDd(output, weight), formingError, maps, objective.request.alpha);
+      quasiEntropy += branch.quasiEntropy;
+      quasiEntropyError += branch.quasiEntropyError;
+      gradientError += weight * branch.gradientError;
+      faceError += weight * branch.faceError;
+      g = scaleDd(branch.gradient, weight);
+    }
+    for (const k of support.krausOperators) {
+      const kd = DdMatrix.from(k);
+      gradientQ = ddAddScaled(gradientQ, ddMultiply(ddMultiply(kd, g, true), kd), [0, 1]);
+    }
+    const pullBackError = DD_STEP * 8 * (n + m) * g.frobeniusNorm() * krausWeight;
+    gradientError += pullBackError;
+    faceError += pullBackError;
+  }
+  const coefficient = logCoefficient(objective.request);
+  const factor = coefficient / (quasiEntropy * Math.LN2);
+  const relativeQ = quasiEntropyError / quasiEntropy;
+  const gradientF = scaleDd(gradientQ, factor);
+  const faceDd = DdMatrix.from(face);
+  const complementDd = DdMatrix.from(complement);
+  const onFace = ddMultiply(ddMultiply(faceDd, gradientF, true), faceDd).toDouble();
+  const cross = ddMultiply(ddMultiply(faceDd, gradientF, true), complementDd).toDouble();
+  const offFace = ddMultiply(ddMultiply(complementDd, gradientF, true), complementDd).toDouble();
+  // Each block: the pulled-back error, the factor's relative error on the block itself, and the rounding to double.
+  const scaled = (block: ComplexMatrix) => (relativeQ + 2 * UNIT_ROUNDOFF) * frobeniusNorm(block);
+  const value = coefficient * Math.log2(quasiEntropy);
+  return {
+    value,
+    constant: value - coefficient / Math.LN2,
+    gradient: gradientF.toDouble(),
+    face: onFace,
+    cross,
+    complement: offFace,
+    errors: {
+      face: Math.abs(factor) * faceError + scaled(onFace),
+      cross: Math.abs(factor) * gradientError + scaled(cross),
+      complement: Math.abs(factor) * gradientError + scaled(offFace),
+      // |δF| ≤ |c|·|δQ|/(Q ln 2) (log₂ Q moves by at most that for |δQ| ≤ Q/2), plus the logarithm's rounding.
+      constant: (Math.abs(coefficient) * relativeQ) / Math.LN2 / (1 - Math.min(relativeQ, 0.5)) + 4 * UNIT_ROUNDOFF * (Math.abs(value) + Math.abs(coefficient)),
+    },
+  };
+}
