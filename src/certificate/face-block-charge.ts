@@ -80,8 +80,13 @@ export function clusterCharge(
   error: number,
   /** The error is a congruence (1 + F)·M·(1 + F)† with ‖F‖ ≤ error instead of an additive one. */
   relative = false,
+  /** Each row norm of U†N_j may be this much larger than computed (rounding of U, of N_j and of the product). */
+  slack = 0,
 ): number {
-  const rows = maps.map((map) => rowSquares(multiplyAdjointLeft(eigen.vectors, map)));
+  const rows = maps.map((map) => {
+    const squares = rowSquares(multiplyAdjointLeft(eigen.vectors, map));
+    return slack > 0 ? Float64Array.from(squares, (r) => (Math.sqrt(r) + slack) ** 2) : squares;
+  });
   return clusterChargeOfRows(eigen.values, rows, rows, divided, error, relative);
 }
 

@@ -28,6 +28,7 @@ import { dualPart, eulerInnerProduct, referenceTerm } from './dual-term.js';
 import { quasiEntropyFaceCharges, vonNeumannFaceCharge } from './face-block-charge.js';
 import { fitsDoubleDoubleLift, liftInDoubleDouble, type DoubleDoubleLiftTerms } from './double-double-lift.js';
 import { petzDownBranch } from './petz-down-lifted.js';
+import { petzUpBranch } from './petz-up-lifted.js';
 
 /**
  * Weights μ of the complement in the lifted points the solver tries (the verifier takes whatever point is stored).
@@ -41,9 +42,19 @@ export const LIFT_WEIGHTS: readonly number[] = [1e-6, 1e-7, 1e-8, 1e-9, 1e-10].f
  */
 const PETZ_DOWN_LIFT_WEIGHTS: readonly number[] = [1e-12, 1e-13, 3e-14, 1e-14];
 
-/** The weights the solver tries for a kind. */
-export function liftWeights(kind: string): readonly number[] {
-  return kind === 'petz-down' ? PETZ_DOWN_LIFT_WEIGHTS : LIFT_WEIGHTS;
+/** Petz-up in double-double: M's smallest eigenvalue (about μ·λ_min(Y)^{2s}) keeps first order down to about 1e-12. */
+const PETZ_UP_LIFT_WEIGHTS: readonly number[] = [1e-8, 1e-9, 1e-10, 1e-11, 1e-12];
+
+/** Whether the lifted point is evaluated in double-double: Petz-down always, Petz-up where the problem is small enough. */
+export function liftsInDoubleDouble(objective: Objective): boolean {
+  const { kind } = objective.request;
+  return kind === 'petz-down' || (kind === 'petz-up' && fitsDoubleDoubleLift(objective));
+}
+
+/** The weights the solver tries. */
+export function liftWeights(objective: Objective): readonly number[] {
+  if (!liftsInDoubleDouble(objective)) return LIFT_WEIGHTS;
+  return objective.request.kind === 'petz-down' ? PETZ_DOWN_LIFT_WEIGHTS : PETZ_UP_LIFT_WEIGHTS;
 }
 
 /** The kinds whose gradient error on the face block is bounded (docs/faces.md): all four, Petz-down in double-double. */
@@ -212,8 +223,9 @@ export function liftedPointTerms(
   reference: ReferenceBlocks | undefined,
   blocks: FaceBlocks,
 ): LiftedPointTerms {
-  if (objective.request.kind === 'petz-down') {
-    const doubleDouble = liftInDoubleDouble(objective, rho, blocks.face, blocks.complement, petzDownBranch);
+  if (liftsInDoubleDouble(objective)) {
+    const branch = objective.request.kind === 'petz-down' ? petzDownBranch : petzUpBranch;
+    const doubleDouble = liftInDoubleDouble(objective, rho, blocks.face, blocks.complement, branch);
     return {
       value: doubleDouble.value,
       gradient: doubleDouble.gradient,

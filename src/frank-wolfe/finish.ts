@@ -105,7 +105,7 @@ function liftedCertificate(
   const whole = { problem: activeProblem, objective: createObjective(activeProblem, entropy) };
   const blocks = faceBlocks(face);
   let best: { stored: StoredCertificate; claimed: BoundBreakdown } | null = null;
-  for (const weight of liftWeights(entropy.kind)) {
+  for (const weight of liftWeights(whole.objective)) {
     const point = liftedPoint(face, blocks, certified.state, weight);
     // Sandwiched-up: τ' is the inner optimum at the lifted point, on the whole space's output supports.
     const reference = entropy.kind === 'sandwiched-up' ? evaluateSafely(whole.objective, point)?.reference : undefined;
