@@ -1,6 +1,6 @@
 // Complex matrices in double-double arithmetic (the `double-double` package's operations, about 106 bits): products
 // and a Hermitian eigendecomposition by cyclic Jacobi rotations. Used where eigenvalues near 1e-15 of the norm must
-// be resolved to high relative accuracy (docs/faces.md, "Petz-down lifted in double-double").
+// be resolved to high relative accuracy (docs/faces.md, "Petz lifts in double-double").
 import { createRequire } from 'node:module';
 import type * as DoubleDouble from 'double-double';
 import { ComplexMatrix } from './complex-matrix.js';
