@@ -3,7 +3,7 @@
 // This module forms the outputs, sums the branches, pulls the gradient back and cuts its blocks; each Petz kind
 // supplies its branch term (petz-down-lifted.ts, petz-up-lifted.ts). Shared by the solver and the verifier.
 import { ComplexMatrix, frobeniusNorm, multiply } from '../linear-algebra/complex-matrix.js';
-import { DD_UNIT_ROUNDOFF, ddAddScaled, DdMatrix, ddMultiply, type DdEigen } from '../linear-algebra/double-double-matrix.js';
+import { DD_UNIT_ROUNDOFF, ddAddScaled, ddBlock, ddHermitianEigen, DdMatrix, ddMultiply, type DdEigen } from '../linear-algebra/double-double-matrix.js';
 import { UNIT_ROUNDOFF } from '../linear-algebra/rounding.js';
 import { isKeyless, type BranchSupport } from '../objectives/branch-supports.js';
 import { branchWeight, logCoefficient, type Objective } from '../objectives/index.js';
@@ -85,6 +85,40 @@ export function rounded(e: DdEigen): Float64Array {
 /** The eigendecomposition rounded to double (for the charges' cluster weights, which carry a rounding slack). */
 export function roundedEigen(e: DdEigen): { values: Float64Array; vectors: ComplexMatrix } {
   return { values: rounded(e), vectors: e.vectors.toDouble() };
+}
+
+/** The pinched output Y = Z(X) block by block, decomposed, with the bounds both Petz kinds take from it. */
+export interface PinchedSpectrum {
+  /** Key block b of a matrix on the branch's output. */
+  blockOf: (a: DdMatrix, b: number) => DdMatrix;
+  blocks: DdMatrix[];
+  eigen: DdEigen[];
+  values: Float64Array[];
+  /** ‖E_Y‖_F for Y = ⊕ Y_b: the sum of the blocks' residuals and X's forming error. */
+  error: number;
+  /** A lower bound on Y's smallest eigenvalue: each block moves by its own residual. */
+  lowest: number;
+  /** max_b ‖V_b†V_b − 1‖ (from the residuals, against each block's own norm). */
+  defect: number;
+}
+
+export function pinchedSpectrum(support: BranchSupport, x: DdMatrix, formingError: number): PinchedSpectrum {
+  const blockOf = (a: DdMatrix, b: number) => {
+    const o = support.blockOffsets[b];
+    return ddBlock(a, o, o + support.blockSizes[b], o, o + support.blockSizes[b]);
+  };
+  const blocks = support.blockSizes.map((_, b) => blockOf(x, b));
+  const eigen = blocks.map((y) => ddHermitianEigen(y));
+  const values = eigen.map(rounded);
+  return {
+    blockOf,
+    blocks,
+    eigen,
+    values,
+    error: eigen.reduce((sum, e) => sum + e.residual, 0) + formingError,
+    lowest: Math.min(...values.map((v, b) => v[0] - eigen[b].residual)) - formingError,
+    defect: Math.max(...eigen.map((e, b) => e.residual / Math.max(blocks[b].frobeniusNorm(), Number.MIN_VALUE))),
+  };
 }
 
 /** A double-double matrix times a double. */

@@ -2,11 +2,11 @@
 // double-double"): its linearization loss falls only like μ^{2−α}, so the lift needs μ ≈ 1e-14, where the branch
 // outputs' small eigenvalues lie below a double eigensolver's absolute accuracy.
 import type { ComplexMatrix } from '../linear-algebra/complex-matrix.js';
-import { ddAddScaled, ddBlock, ddDaleckiiKrein, ddHermitianEigen, ddSpectral, ddTraceProduct, type DdMatrix } from '../linear-algebra/double-double-matrix.js';
+import { ddAddScaled, ddDaleckiiKrein, ddHermitianEigen, ddSpectral, ddTraceProduct, type DdMatrix } from '../linear-algebra/double-double-matrix.js';
 import { dividedDifferences, powerFunction } from '../linear-algebra/matrix-functions.js';
 import { BACKWARD_ERROR_CONSTANT, UNIT_ROUNDOFF } from '../linear-algebra/rounding.js';
 import type { BranchSupport } from '../objectives/branch-supports.js';
-import { blockDiagonal, DD_STEP, ETA, rounded, roundedEigen, type BranchLift } from './double-double-lift.js';
+import { blockDiagonal, DD_STEP, ETA, pinchedSpectrum, rounded, roundedEigen, type BranchLift } from './double-double-lift.js';
 import { gradedPullBack, pulledBackUnit } from './face-block-charge.js';
 
 /**
@@ -25,18 +25,9 @@ export function petzDownBranch(support: BranchSupport, x: DdMatrix, formingError
   const m = support.dimension;
   const eigenX = ddHermitianEigen(x);
   const lambda = rounded(eigenX);
-  const blockOf = (a: DdMatrix, b: number) => {
-    const o = support.blockOffsets[b];
-    return ddBlock(a, o, o + support.blockSizes[b], o, o + support.blockSizes[b]);
-  };
-  const pinched = support.blockSizes.map((_, b) => blockOf(x, b));
-  const blocks = pinched.map((y) => ddHermitianEigen(y));
-  const mus = blocks.map(rounded);
+  const { blockOf, eigen: blocks, values: mus, error: errorY, lowest: lowY, defect: defectY } = pinchedSpectrum(support, x, formingError);
   const errorX = eigenX.residual + formingError;
-  // Y = ⊕ Y_b: each block's eigenvalues move by its own residual; the whole by at most their sum (Frobenius).
-  const errorY = blocks.reduce((sum, e) => sum + e.residual, 0) + formingError;
   const lowX = lambda[0] - errorX;
-  const lowY = Math.min(...mus.map((v, b) => v[0] - blocks[b].residual)) - formingError;
   if (!(lowX > 0 && lowY > 0)) throw new RangeError('petz-down lift: a branch output is not positive definite to its error');
   const statePower = ddSpectral(eigenX.vectors, Array.from(lambda, (t) => t ** beta));
   const pinchedPower = blockDiagonal(
@@ -59,9 +50,7 @@ export function petzDownBranch(support: BranchSupport, x: DdMatrix, formingError
   const powerNorm = statePower.frobeniusNorm();
   const pinchedNorm = pinchedPower.frobeniusNorm();
   // U·f·U† with U unitary only to ‖U†U − 1‖ ≤ residual/‖A‖ (per matrix) errs by at most twice that times ‖f‖.
-  const defect =
-    eigenX.residual / Math.max(x.frobeniusNorm(), Number.MIN_VALUE) +
-    Math.max(...blocks.map((e, b) => e.residual / Math.max(pinched[b].frobeniusNorm(), Number.MIN_VALUE)));
+  const defect = eigenX.residual / Math.max(x.frobeniusNorm(), Number.MIN_VALUE) + defectY;
   const stateSlope = beta * lowX ** (beta - 1);
   const pinchedSlope = (1 - beta) * lowY ** -beta;
   const statePowerError = (ETA + 2 * defect) * powerNorm + stateSlope * errorX;

@@ -4,7 +4,6 @@
 import { frobeniusNorm, multiply, type ComplexMatrix } from '../linear-algebra/complex-matrix.js';
 import {
   ddAddScaled,
-  ddBlock,
   ddDaleckiiKrein,
   ddHermitianEigen,
   ddMultiply,
@@ -14,7 +13,7 @@ import {
 import { dividedDifferences, powerFunction } from '../linear-algebra/matrix-functions.js';
 import { BACKWARD_ERROR_CONSTANT, UNIT_ROUNDOFF } from '../linear-algebra/rounding.js';
 import type { BranchSupport } from '../objectives/branch-supports.js';
-import { blockDiagonal, DD_STEP, ETA, rounded, roundedEigen, scaleDd, type BranchLift } from './double-double-lift.js';
+import { blockDiagonal, DD_STEP, ETA, pinchedSpectrum, rounded, roundedEigen, scaleDd, type BranchLift } from './double-double-lift.js';
 import { clusterCharge, gradedPullBack, powerDividedDifference, pulledBackUnit } from './face-block-charge.js';
 
 /**
@@ -37,17 +36,8 @@ export function petzUpBranch(support: BranchSupport, x: DdMatrix, formingError: 
   const s = (1 - omega) / (2 * omega);
   const p = omega - 1;
   const m = support.dimension;
-  const blockOf = (a: DdMatrix, b: number) => {
-    const o = support.blockOffsets[b];
-    return ddBlock(a, o, o + support.blockSizes[b], o, o + support.blockSizes[b]);
-  };
-  const pinched = support.blockSizes.map((_, b) => blockOf(x, b));
-  const blocks = pinched.map((y) => ddHermitianEigen(y));
-  const mus = blocks.map(rounded);
-  const errorY = blocks.reduce((sum, e) => sum + e.residual, 0) + formingError;
-  const lowY = Math.min(...mus.map((v, b) => v[0] - blocks[b].residual)) - formingError;
+  const { blockOf, eigen: blocks, values: mus, error: errorY, lowest: lowY, defect: defectY } = pinchedSpectrum(support, x, formingError);
   if (!(lowY > 0)) throw new RangeError('petz-up lift: a pinched output is not positive definite to its error');
-  const defectY = Math.max(...blocks.map((e, b) => e.residual / Math.max(pinched[b].frobeniusNorm(), Number.MIN_VALUE)));
   const root = blockDiagonal(blocks.map((e, b) => ddSpectral(e.vectors, Array.from(mus[b], (t) => t ** s))), m);
   const inverseRoot = blockDiagonal(blocks.map((e, b) => ddSpectral(e.vectors, Array.from(mus[b], (t) => t ** -s))), m);
   const highY = Math.max(...mus.map((v) => v[v.length - 1])) + errorY;
