@@ -46,10 +46,11 @@ export interface BranchLift {
 export type BranchLifter = (support: BranchSupport, x: DdMatrix, formingError: number, faceMaps: ComplexMatrix[], alpha: number) => BranchLift;
 
 /**
- * Largest ρ or branch output lifted in double-double: Jacobi eigendecompositions took 0.1 s at 16 and 0.5 s at 32
- * (loaded machine), about n³, several per lift weight, inside result assembly, which cannot be interrupted.
+ * Largest ρ or branch output lifted in double-double: the preconditioned Jacobi eigendecompositions took 0.07 s at 16,
+ * 0.23 s at 32 and 1.5 s at 64 (idle; about n³), several per lift weight, inside result assembly, which cannot be
+ * interrupted (d64#3 Petz-up: about 4 s for five weights). 72 admits the d = 64 models' outputs of dimension 65.
  */
-export const DOUBLE_DOUBLE_LIFT_MAX_DIMENSION = 32;
+export const DOUBLE_DOUBLE_LIFT_MAX_DIMENSION = 72;
 
 /** Whether the problem is small enough for a double-double lift. */
 export function fitsDoubleDoubleLift(objective: Objective): boolean {

@@ -4,7 +4,7 @@ import { matrixFromJson, matrixToJson } from '../problem/json.js';
 import type { Problem } from '../problem/model.js';
 import { constraintViolations, FEASIBILITY_TOLERANCE } from '../problem/violation.js';
 import { certificateBreakdown, readStoredLinearization, referenceFromSupport, type BoundBreakdown } from '../certificate/bound.js';
-import { faceBlocks, hasLiftedFaceBound, liftedPoint, liftedPointTerms, liftWeights } from '../certificate/lifted-face.js';
+import { faceBlocks, hasLiftedFaceBound, liftedPoint, liftedPointTerms, liftsInDoubleDouble, liftWeights } from '../certificate/lifted-face.js';
 import { conjugateAdjoint, hermitianPart, type ComplexMatrix } from '../linear-algebra/complex-matrix.js';
 import { eigvalsh } from '../linear-algebra/eigen.js';
 import { createObjective, type Objective, type ReferenceBlocks } from '../objectives/index.js';
@@ -100,9 +100,10 @@ function liftedCertificate(
 ): { stored: StoredCertificate; claimed: BoundBreakdown } | null {
   const { face, restricted, objective, entropy, activeProblem } = setup;
   if (face.exposures.length === 0 || !face.isometry || !hasLiftedFaceBound(entropy.kind)) return null;
-  // Petz-down's lift runs in double-double (seconds at n = 32): a cancelled run frees its thread instead.
-  if (entropy.kind === 'petz-down' && state.limit === 'cancelled') return null;
+
   const whole = { problem: activeProblem, objective: createObjective(activeProblem, entropy) };
+  // A lift in double-double takes seconds at d = 64: a cancelled run frees its thread instead.
+  if (liftsInDoubleDouble(whole.objective) && state.limit === 'cancelled') return null;
   const blocks = faceBlocks(face);
   let best: { stored: StoredCertificate; claimed: BoundBreakdown } | null = null;
   for (const weight of liftWeights(whole.objective)) {
