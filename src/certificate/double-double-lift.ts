@@ -4,7 +4,8 @@
 // supplies its branch term (petz-down-lifted.ts, petz-up-lifted.ts). Shared by the solver and the verifier.
 import { ComplexMatrix, frobeniusNorm, multiply } from '../linear-algebra/complex-matrix.js';
 import { DD_UNIT_ROUNDOFF, ddAddScaled, ddBlock, ddHermitianEigen, DdMatrix, ddMultiply, type DdEigen } from '../linear-algebra/double-double-matrix.js';
-import { UNIT_ROUNDOFF } from '../linear-algebra/rounding.js';
+import { BACKWARD_ERROR_CONSTANT, UNIT_ROUNDOFF } from '../linear-algebra/rounding.js';
+import { eigvalsh } from '../linear-algebra/eigen.js';
 import { isKeyless, type BranchSupport } from '../objectives/branch-supports.js';
 import { branchWeight, logCoefficient, type Objective } from '../objectives/index.js';
 
@@ -26,6 +27,10 @@ export interface DoubleDoubleLiftTerms {
   face: ComplexMatrix;
   cross: ComplexMatrix;
   complement: ComplexMatrix;
+  /** Sandwiched-up: the smallest eigenvalue over τ's key blocks of ∇_τF and a bound on its error (0 for the Petz kinds). */
+  referenceTerm: { smallest: number; error: number };
+  /** Sandwiched-up: ∇_τF per branch and key block, rounded to double (empty for the Petz kinds). */
+  referenceGradient: ComplexMatrix[][];
   /** Bounds on the operator-norm error of each block, and on the constant's error. */
   errors: { face: number; cross: number; complement: number; constant: number };
 }
@@ -40,10 +45,32 @@ export interface BranchLift {
   gradientError: number;
   /** Bound on the error of Σ_j N_j†·∇_{X'}Q·N_j, N_j = K_jP̂ (the face block, graded by the kind). */
   faceError: number;
+  /** Sandwiched-up: ∇_τQ on each of the branch's key blocks, with a bound on its error (Frobenius, all blocks). */
+  reference?: { blocks: DdMatrix[]; error: number };
 }
 
-/** A kind's branch term: X' (weighted output, double-double), its forming error and the face maps K_jP̂. */
-export type BranchLifter = (support: BranchSupport, x: DdMatrix, formingError: number, faceMaps: ComplexMatrix[], alpha: number) => BranchLift;
+/**
+ * A kind's branch term: X' (weighted output, double-double), its forming error, the face maps K_jP̂ and, for
+ * sandwiched-up, the branch's blocks of τ'.
+ */
+export type BranchLifter = (
+  support: BranchSupport,
+  x: DdMatrix,
+  formingError: number,
+  faceMaps: ComplexMatrix[],
+  alpha: number,
+  reference?: ComplexMatrix[],
+) => BranchLift;
+
+/** A branch without key for the Petz kinds: Q̄(X‖X) = Tr X exactly, gradient 1. */
+export function traceBranch(x: DdMatrix, formingError: number): BranchLift {
+  const m = x.rows;
+  let trace = 0;
+  for (let i = 0; i < m; i++) trace += x.reHigh[i * m + i] + x.reLow[i * m + i];
+  const gradient = new DdMatrix(m, m);
+  for (let i = 0; i < m; i++) gradient.reHigh[i * m + i] = 1;
+  return { quasiEntropy: trace, quasiEntropyError: formingError * Math.sqrt(m), gradient, gradientError: 0, faceError: 0 };
+}
 
 /**
  * Largest ρ or branch output lifted in double-double: the preconditioned Jacobi eigendecompositions took 0.07 s at 16,
@@ -104,11 +131,20 @@ export interface PinchedSpectrum {
 }
 
 export function pinchedSpectrum(support: BranchSupport, x: DdMatrix, formingError: number): PinchedSpectrum {
-  const blockOf = (a: DdMatrix, b: number) => {
+  const blockOf = keyBlock(support);
+  return blockSpectrum(blockOf, support.blockSizes.map((_, b) => blockOf(x, b)), formingError);
+}
+
+/** Key block b of a matrix on the branch's output. */
+export function keyBlock(support: BranchSupport): (a: DdMatrix, b: number) => DdMatrix {
+  return (a, b) => {
     const o = support.blockOffsets[b];
     return ddBlock(a, o, o + support.blockSizes[b], o, o + support.blockSizes[b]);
   };
-  const blocks = support.blockSizes.map((_, b) => blockOf(x, b));
+}
+
+/** The spectrum of a block-diagonal matrix given by its blocks, whose entries err by at most `formingError`. */
+export function blockSpectrum(blockOf: (a: DdMatrix, b: number) => DdMatrix, blocks: DdMatrix[], formingError: number): PinchedSpectrum {
   const eigen = blocks.map((y) => ddHermitianEigen(y));
   const values = eigen.map(rounded);
   return {
@@ -139,6 +175,8 @@ export function liftInDoubleDouble(
   face: ComplexMatrix,
   complement: ComplexMatrix,
   lifter: BranchLifter,
+  /** Sandwiched-up: τ' per branch, blocks on the support. */
+  references?: readonly ComplexMatrix[][],
 ): DoubleDoubleLiftTerms {
   const n = rho.rows;
   const rhoDd = DdMatrix.from(rho);
@@ -147,31 +185,23 @@ export function liftInDoubleDouble(
   let quasiEntropyError = 0;
   let gradientError = 0;
   let faceError = 0;
-  for (const support of objective.supports) {
+  const referenceGradients: NonNullable<BranchLift['reference']>[] = [];
+  objective.supports.forEach((support, c) => {
     const weight = branchWeight(objective.request, support.score);
     const m = support.dimension;
     const output = branchOutput(support.krausOperators, rhoDd);
     const krausWeight = support.krausOperators.reduce((s, k) => s + frobeniusNorm(k) ** 2, 0);
     // Forming X in double-double: each entry a sum over the Kraus operators' products.
     const formingError = weight * DD_STEP * 4 * (n + m) * krausWeight * frobeniusNorm(rho);
-    let g: DdMatrix;
-    if (isKeyless(support)) {
-      let trace = 0;
-      for (let i = 0; i < m; i++) trace += output.reHigh[i * m + i] + output.reLow[i * m + i];
-      quasiEntropy += weight * trace;
-      quasiEntropyError += formingError * Math.sqrt(m);
-      g = new DdMatrix(m, m);
-      for (let i = 0; i < m; i++) g.reHigh[i * m + i] = weight;
-    } else {
-      if (support.outputRange) throw new RangeError('lift in double-double: a branch output rank deficient on its support');
-      const maps = support.krausOperators.map((k) => multiply(k, face));
-      const branch = lifter(support, scaleDd(output, weight), formingError, maps, objective.request.alpha);
-      quasiEntropy += branch.quasiEntropy;
-      quasiEntropyError += branch.quasiEntropyError;
-      gradientError += weight * branch.gradientError;
-      faceError += weight * branch.faceError;
-      g = scaleDd(branch.gradient, weight);
-    }
+    if (!isKeyless(support) && support.outputRange) throw new RangeError('lift in double-double: a branch output rank deficient on its support');
+    const maps = support.krausOperators.map((k) => multiply(k, face));
+    const branch = lifter(support, scaleDd(output, weight), formingError, maps, objective.request.alpha, references?.[c]);
+    quasiEntropy += branch.quasiEntropy;
+    quasiEntropyError += branch.quasiEntropyError;
+    gradientError += weight * branch.gradientError;
+    faceError += weight * branch.faceError;
+    if (branch.reference) referenceGradients.push(branch.reference);
+    const g = scaleDd(branch.gradient, weight);
     for (const k of support.krausOperators) {
       const kd = DdMatrix.from(k);
       gradientQ = ddAddScaled(gradientQ, ddMultiply(ddMultiply(kd, g, true), kd), [0, 1]);
@@ -179,7 +209,7 @@ export function liftInDoubleDouble(
     const pullBackError = DD_STEP * 8 * (n + m) * g.frobeniusNorm() * krausWeight;
     gradientError += pullBackError;
     faceError += pullBackError;
-  }
+  });
   const coefficient = logCoefficient(objective.request);
   const factor = coefficient / (quasiEntropy * Math.LN2);
   const relativeQ = quasiEntropyError / quasiEntropy;
@@ -192,6 +222,22 @@ export function liftInDoubleDouble(
   // Each block: the pulled-back error, the factor's relative error on the block itself, and the rounding to double.
   const scaled = (block: ComplexMatrix) => (relativeQ + 2 * UNIT_ROUNDOFF) * frobeniusNorm(block);
   const value = coefficient * Math.log2(quasiEntropy);
+  // Sandwiched-up: min over τ of ⟨∇_τF, τ⟩ ≥ the smallest eigenvalue over all key blocks of ∇_τF (Tr τ = 1).
+  let referenceSmallest = 0;
+  let referenceError = 0;
+  const referenceGradient = referenceGradients.map(({ blocks }) => blocks.map((block) => scaleDd(block, factor).toDouble()));
+  if (referenceGradients.length > 0) {
+    referenceSmallest = Infinity;
+    // Each block's λ_min moves by at most its error: the branch's (all its blocks together), Q's relative error on the
+    // block, the rounding to double and the eigenvalue's backward error; the minimum by at most the largest of these.
+    for (const [c, { error }] of referenceGradients.entries()) {
+      for (const rounded of referenceGradient[c]) {
+        referenceSmallest = Math.min(referenceSmallest, eigvalsh(rounded)[0]);
+        const blockError = Math.abs(factor) * error + scaled(rounded) + BACKWARD_ERROR_CONSTANT * rounded.rows * UNIT_ROUNDOFF * frobeniusNorm(rounded);
+        referenceError = Math.max(referenceError, blockError);
+      }
+    }
+  }
   return {
     value,
     constant: value - coefficient / Math.LN2,
@@ -199,6 +245,8 @@ export function liftInDoubleDouble(
     face: onFace,
     cross,
     complement: offFace,
+    referenceTerm: { smallest: referenceSmallest, error: referenceError },
+    referenceGradient,
     errors: {
       face: Math.abs(factor) * faceError + scaled(onFace),
       cross: Math.abs(factor) * gradientError + scaled(cross),

@@ -28,7 +28,7 @@ import { dualPart, eulerInnerProduct, referenceTerm } from './dual-term.js';
 import { quasiEntropyFaceCharges, vonNeumannFaceCharge } from './face-block-charge.js';
 import { fitsDoubleDoubleLift, liftInDoubleDouble, type DoubleDoubleLiftTerms } from './double-double-lift.js';
 import { petzDownBranch } from './petz-down-lifted.js';
-import { petzUpBranch } from './petz-up-lifted.js';
+import { petzUpBranch, sandwichedBranch } from './petz-up-lifted.js';
 
 /**
  * Weights μ of the complement in the lifted points the solver tries (the verifier takes whatever point is stored).
@@ -45,13 +45,16 @@ const PETZ_DOWN_LIFT_WEIGHTS: readonly number[] = [1e-12, 1e-13, 3e-14, 1e-14];
 /** Petz-up in double-double: M's smallest eigenvalue (about μ·λ_min(Y)^{2s}) keeps first order down to about 1e-12. */
 const PETZ_UP_LIFT_WEIGHTS: readonly number[] = [1e-8, 1e-9, 1e-10, 1e-11, 1e-12];
 
-/** Whether the lifted point is evaluated in double-double: Petz-down always, Petz-up where the problem is small enough. */
+/**
+ * Whether the lifted point is evaluated in double-double: Petz-down always, Petz-up and sandwiched-up (at its fixed
+ * τ') where the problem is small enough.
+ */
 export function liftsInDoubleDouble(objective: Objective): boolean {
   const { kind } = objective.request;
-  return kind === 'petz-down' || (kind === 'petz-up' && fitsDoubleDoubleLift(objective));
+  return kind === 'petz-down' || ((kind === 'petz-up' || kind === 'sandwiched-up') && fitsDoubleDoubleLift(objective));
 }
 
-/** The weights the solver tries. */
+/** The weights the solver tries (sandwiched-up's M = τ^s·X·τ^s is graded like Petz-up's). */
 export function liftWeights(objective: Objective): readonly number[] {
   if (!liftsInDoubleDouble(objective)) return LIFT_WEIGHTS;
   return objective.request.kind === 'petz-down' ? PETZ_DOWN_LIFT_WEIGHTS : PETZ_UP_LIFT_WEIGHTS;
@@ -224,8 +227,10 @@ export function liftedPointTerms(
   blocks: FaceBlocks,
 ): LiftedPointTerms {
   if (liftsInDoubleDouble(objective)) {
-    const branch = objective.request.kind === 'petz-down' ? petzDownBranch : petzUpBranch;
-    const doubleDouble = liftInDoubleDouble(objective, rho, blocks.face, blocks.complement, branch);
+    const { kind } = objective.request;
+    if (kind === 'sandwiched-up' && !reference) throw new Error('liftedFaceBound: sandwiched-up needs reference states τ');
+    const branch = kind === 'petz-down' ? petzDownBranch : kind === 'petz-up' ? petzUpBranch : sandwichedBranch;
+    const doubleDouble = liftInDoubleDouble(objective, rho, blocks.face, blocks.complement, branch, reference);
     return {
       value: doubleDouble.value,
       gradient: doubleDouble.gradient,
@@ -298,7 +303,7 @@ function doubleDoubleLiftedBound(
   const { faceSmallest, crossNorm, bound: blockBound, norms } = blockBoundOf(onFace, cross, complement, weightOff);
   const shiftedNorm = frobeniusNorm(shifted);
   const errors = terms.errors;
-  const conditioningCharge = errors.face + 2 * root * errors.cross + weightOff * errors.complement + errors.constant;
+  const conditioningCharge = errors.face + 2 * root * errors.cross + weightOff * errors.complement + errors.constant + terms.referenceTerm.error;
   const rounding =
     // Σ yΓ's blocks (three products each) and the multipliers' sum; the blocks' eigenvalues; |c|² ≠ 1.
     scaleN * (3 * shiftedNorm + multiplierWeight + norms.face) +
@@ -311,10 +316,10 @@ function doubleDoubleLiftedBound(
     gradientInnerProduct: eulerInnerProduct(objective, terms.value),
     dualConstant,
     smallestEigenvalue: blockBound,
-    referenceTerm: 0,
+    referenceTerm: terms.referenceTerm.smallest,
     margin,
     conditioningCharge,
-    lowerBound: Number.isFinite(margin) ? terms.constant + dualConstant + blockBound - margin : -Infinity,
+    lowerBound: Number.isFinite(margin) ? terms.constant + dualConstant + blockBound + terms.referenceTerm.smallest - margin : -Infinity,
     statisticalSlack,
   };
 }

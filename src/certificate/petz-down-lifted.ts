@@ -5,8 +5,8 @@ import type { ComplexMatrix } from '../linear-algebra/complex-matrix.js';
 import { ddAddScaled, ddDaleckiiKrein, ddHermitianEigen, ddSpectral, ddTraceProduct, type DdMatrix } from '../linear-algebra/double-double-matrix.js';
 import { dividedDifferences, powerFunction } from '../linear-algebra/matrix-functions.js';
 import { BACKWARD_ERROR_CONSTANT, UNIT_ROUNDOFF } from '../linear-algebra/rounding.js';
-import type { BranchSupport } from '../objectives/branch-supports.js';
-import { blockDiagonal, DD_STEP, ETA, pinchedSpectrum, rounded, roundedEigen, type BranchLift } from './double-double-lift.js';
+import { isKeyless, type BranchSupport } from '../objectives/branch-supports.js';
+import { blockDiagonal, DD_STEP, ETA, pinchedSpectrum, rounded, roundedEigen, traceBranch, type BranchLift } from './double-double-lift.js';
 import { gradedPullBack, pulledBackUnit } from './face-block-charge.js';
 
 /**
@@ -21,6 +21,7 @@ import { gradedPullBack, pulledBackUnit } from './face-block-charge.js';
  * - the face block graded through N_j = K_jP̂ (`gradedPullBack` with s = β at X and s = 1 − β at Y's blocks).
  */
 export function petzDownBranch(support: BranchSupport, x: DdMatrix, formingError: number, maps: ComplexMatrix[], alpha: number): BranchLift {
+  if (isKeyless(support)) return traceBranch(x, formingError);
   const beta = 2 - alpha;
   const m = support.dimension;
   const eigenX = ddHermitianEigen(x);

@@ -1,19 +1,33 @@
 // Petz-up's branch term at a point lifted off an exposed face, in double-double (docs/faces.md, "Petz lifts in
 // double-double"): M = Y^s·X·Y^s has eigenvalues near μ·λ_min(Y)^{2s}, below a double eigensolver's absolute accuracy
 // for the μ ≈ 1e-10 … 1e-12 the linearization loss needs on some faces (d4#14, d16#4).
-import { frobeniusNorm, multiply, type ComplexMatrix } from '../linear-algebra/complex-matrix.js';
+import { frobeniusNorm, hermitianPart, multiply, type ComplexMatrix } from '../linear-algebra/complex-matrix.js';
 import {
+  DdMatrix,
   ddAddScaled,
   ddDaleckiiKrein,
   ddHermitianEigen,
   ddMultiply,
   ddSpectral,
-  type DdMatrix,
 } from '../linear-algebra/double-double-matrix.js';
 import { dividedDifferences, powerFunction } from '../linear-algebra/matrix-functions.js';
 import { BACKWARD_ERROR_CONSTANT, UNIT_ROUNDOFF } from '../linear-algebra/rounding.js';
-import type { BranchSupport } from '../objectives/branch-supports.js';
-import { blockDiagonal, DD_STEP, ETA, pinchedSpectrum, rounded, roundedEigen, scaleDd, type BranchLift } from './double-double-lift.js';
+import { isKeyless, type BranchSupport } from '../objectives/branch-supports.js';
+import { sandwichedOrder } from '../objectives/objective.js';
+import {
+  blockDiagonal,
+  blockSpectrum,
+  DD_STEP,
+  ETA,
+  keyBlock,
+  pinchedSpectrum,
+  rounded,
+  roundedEigen,
+  scaleDd,
+  traceBranch,
+  type BranchLift,
+  type PinchedSpectrum,
+} from './double-double-lift.js';
 import { clusterCharge, gradedPullBack, powerDividedDifference, pulledBackUnit } from './face-block-charge.js';
 
 /**
@@ -32,12 +46,46 @@ import { clusterCharge, gradedPullBack, powerDividedDifference, pulledBackUnit }
  *   error twice through ‖W‖·‖Y^s‖; that of Z(D(t^s)(Y)[H]) by `gradedPullBack`.
  */
 export function petzUpBranch(support: BranchSupport, x: DdMatrix, formingError: number, maps: ComplexMatrix[], alpha: number): BranchLift {
-  const omega = 1 / alpha;
+  if (isKeyless(support)) return traceBranch(x, formingError);
+  const reference = pinchedSpectrum(support, x, formingError);
+  if (!(reference.lowest > 0)) throw new RangeError('petz-up lift: a pinched output is not positive definite to its error');
+  const t = sandwichedProduct(support, x, formingError, maps, 1 / alpha, reference);
+  return {
+    quasiEntropy: t.quasiEntropy,
+    quasiEntropyError: t.quasiEntropyError,
+    gradient: ddAddScaled(t.direct, blockDiagonal(t.referenceBlocks, support.dimension), [0, 1]),
+    gradientError: t.directError + t.referenceError,
+    faceError: t.directFace + t.referenceFace,
+  };
+}
+
+/** Both terms of ∇ Tr[(Y^s·X·Y^s)^ω] with Y's spectrum given: Petz-up's Y = Z(X), sandwiched-up's τ'. */
+export interface SandwichedProduct {
+  quasiEntropy: number;
+  quasiEntropyError: number;
+  /** ∇_X = Y^s·W·Y^s with its error (Frobenius) and its face block's error (through the maps K_jP̂). */
+  direct: DdMatrix;
+  directError: number;
+  directFace: number;
+  /** ∇_Y = D(t^s)(Y)[H] block by block, its error, and the error of its pull-back to the face block (`gradedPullBack`). */
+  referenceBlocks: DdMatrix[];
+  referenceError: number;
+  referenceFace: number;
+}
+
+export function sandwichedProduct(
+  support: BranchSupport,
+  x: DdMatrix,
+  formingError: number,
+  maps: ComplexMatrix[],
+  omega: number,
+  reference: PinchedSpectrum,
+): SandwichedProduct {
   const s = (1 - omega) / (2 * omega);
   const p = omega - 1;
   const m = support.dimension;
-  const { blockOf, eigen: blocks, values: mus, error: errorY, lowest: lowY, defect: defectY } = pinchedSpectrum(support, x, formingError);
-  if (!(lowY > 0)) throw new RangeError('petz-up lift: a pinched output is not positive definite to its error');
+  const { blockOf, eigen: blocks, values: mus, error: errorY, lowest: lowY, defect: defectY } = reference;
+  if (!(lowY > 0)) throw new RangeError('lift: the reference is not positive definite to its error');
   const root = blockDiagonal(blocks.map((e, b) => ddSpectral(e.vectors, Array.from(mus[b], (t) => t ** s))), m);
   const inverseRoot = blockDiagonal(blocks.map((e, b) => ddSpectral(e.vectors, Array.from(mus[b], (t) => t ** -s))), m);
   const highY = Math.max(...mus.map((v) => v[v.length - 1])) + errorY;
@@ -78,18 +126,16 @@ export function petzUpBranch(support: BranchSupport, x: DdMatrix, formingError: 
   const hNorm = h.frobeniusNorm();
   const hError = 2 * omega * (inverseShift * powerNorm + lowY ** -s * powerError) + DD_STEP * 16 * m * hNorm;
   const divided = powerFunction(s);
-  const pinchedTerm = blockDiagonal(
-    blocks.map((e, b) => {
-      const size = support.blockSizes[b];
-      const gamma = dividedDifferences(mus[b], divided.value, divided.derivative, divided.difference);
-      return ddDaleckiiKrein(e.vectors, (i, j) => gamma[i * size + j], blockOf(h, b));
-    }),
-    m,
-  );
+  const referenceBlocks = blocks.map((e, b) => {
+    const size = support.blockSizes[b];
+    const gamma = dividedDifferences(mus[b], divided.value, divided.derivative, divided.difference);
+    return ddDaleckiiKrein(e.vectors, (i, j) => gamma[i * size + j], blockOf(h, b));
+  });
   const directNorm = direct.frobeniusNorm();
-  const pinchedNorm = pinchedTerm.frobeniusNorm();
+  const pinchedNorm = Math.sqrt(referenceBlocks.reduce((sum, b) => sum + b.frobeniusNorm() ** 2, 0));
   const rootError = ETA * rootNorm + rootShift;
-  const arithmetic = DD_STEP * 16 * m * (directNorm + pinchedNorm) + 4 * defectY * pinchedNorm;
+  const directArithmetic = DD_STEP * 16 * m * directNorm;
+  const referenceArithmetic = DD_STEP * 16 * m * pinchedNorm + 4 * defectY * pinchedNorm;
   const scaleM = BACKWARD_ERROR_CONSTANT * m * UNIT_ROUNDOFF;
   // The face maps seen through Y^s, for M's clusters: rounded to double, so each row carries the product's rounding.
   const rootDouble = root.toDouble();
@@ -105,17 +151,71 @@ export function petzUpBranch(support: BranchSupport, x: DdMatrix, formingError: 
     quasiEntropy,
     quasiEntropyError:
       Math.sqrt(m) * omega * lowM ** p * additive + ((1 + congruence) ** (2 * omega) - 1 + ETA) * quasiEntropy + DD_STEP * m * powerNorm,
-    gradient: ddAddScaled(direct, pinchedTerm, [0, 1]),
-    gradientError:
-      2 * rootError * weightOperator * rootOperator +
-      rootOperator ** 2 * weightError +
-      s * lowY ** (s - 1) * hError +
-      s * (1 - s) * lowY ** (s - 2) * errorY * hNorm +
-      ETA * (directNorm + pinchedNorm) +
-      arithmetic,
-    faceError:
-      directFace +
+    direct,
+    directError: 2 * rootError * weightOperator * rootOperator + rootOperator ** 2 * weightError + ETA * directNorm + directArithmetic,
+    directFace,
+    referenceBlocks,
+    referenceError:
+      s * lowY ** (s - 1) * hError + s * (1 - s) * lowY ** (s - 2) * errorY * hNorm + ETA * pinchedNorm + referenceArithmetic,
+    referenceFace:
       gradedPullBack(blocks.map(roundedEigen), support, maps, s, hError, hNorm, errorY, scaleM) +
-      pulledBackUnit(maps, scaleM) * (ETA * pinchedNorm + arithmetic),
+      pulledBackUnit(maps, scaleM) * (ETA * pinchedNorm + referenceArithmetic),
+  };
+}
+
+/**
+ * Sandwiched-up at a fixed τ' (the joint linearization of docs/math.md §5): Q = Tr[(τ^s·X·τ^s)^β], β = α/(2α − 1),
+ * the same two terms as Petz-up with Y = τ', but ∇_τQ stays on τ's blocks (its smallest eigenvalue enters the bound)
+ * instead of being pulled back into ∇_X. τ' is given in doubles, so its blocks are exact; only their
+ * eigendecompositions err. A branch without key keeps τ's scalar weight t: Q = t^{1−β}·(Tr X)^β.
+ */
+export function sandwichedBranch(
+  support: BranchSupport,
+  x: DdMatrix,
+  formingError: number,
+  maps: ComplexMatrix[],
+  alpha: number,
+  reference?: ComplexMatrix[],
+): BranchLift {
+  if (!reference) throw new Error('sandwiched-up lift: τ\' is needed');
+  const beta = sandwichedOrder(alpha);
+  const m = support.dimension;
+  if (isKeyless(support)) {
+    const t = reference[0].re[0];
+    let trace = 0;
+    for (let i = 0; i < m; i++) trace += x.reHigh[i * m + i] + x.reLow[i * m + i];
+    const traceError = formingError * Math.sqrt(m);
+    const low = trace - traceError;
+    if (!(t > 0 && low > 0)) throw new RangeError('sandwiched-up lift: a branch without key has no weight');
+    const quasiEntropy = t ** (1 - beta) * trace ** beta;
+    const slope = beta * t ** (1 - beta) * trace ** (beta - 1);
+    const gradient = new DdMatrix(m, m);
+    for (let i = 0; i < m; i++) gradient.reHigh[i * m + i] = slope;
+    const referenceGradient = new DdMatrix(1, 1);
+    referenceGradient.reHigh[0] = (1 - beta) * t ** -beta * trace ** beta;
+    return {
+      quasiEntropy,
+      quasiEntropyError: ETA * quasiEntropy + beta * t ** (1 - beta) * low ** (beta - 1) * traceError,
+      gradient,
+      // The slope's ETA and its move with Tr X (t^{β−1} is convex and decreasing: its slope is largest at the low end).
+      gradientError: Math.sqrt(m) * (ETA * slope + beta * (1 - beta) * t ** (1 - beta) * low ** (beta - 2) * traceError),
+      faceError: pulledBackUnit(maps, BACKWARD_ERROR_CONSTANT * m * UNIT_ROUNDOFF) * (ETA * slope + beta * (1 - beta) * t ** (1 - beta) * low ** (beta - 2) * traceError),
+      reference: {
+        blocks: [referenceGradient],
+        error: ETA * referenceGradient.reHigh[0] + (1 - beta) * beta * t ** -beta * low ** (beta - 1) * traceError,
+      },
+    };
+  }
+  const blockOf = keyBlock(support);
+  // τ' as the objective reads it: each block's Hermitian part (exactly Hermitian in doubles), so its residual is Jacobi's.
+  const spectrum = blockSpectrum(blockOf, reference.map((block) => DdMatrix.from(hermitianPart(block))), 0);
+  const product = sandwichedProduct(support, x, formingError, maps, beta, spectrum);
+  return {
+    quasiEntropy: product.quasiEntropy,
+    quasiEntropyError: product.quasiEntropyError,
+    gradient: product.direct,
+    gradientError: product.directError,
+    faceError: product.directFace,
+    reference: { blocks: product.referenceBlocks, error: product.referenceError },
   };
 }
