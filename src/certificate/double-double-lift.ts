@@ -1,7 +1,7 @@
 // F and ∇F's blocks at a point lifted off an exposed face, in double-double (docs/faces.md, "Petz lifts in
 // double-double"): the branch outputs there have eigenvalues far below a double eigensolver's absolute accuracy.
-// This module forms the outputs, sums the branches, pulls the gradient back and cuts its blocks; each Petz kind
-// supplies its branch term (petz-down-lifted.ts, petz-up-lifted.ts). Shared by the solver and the verifier.
+// This module forms the outputs, sums the branches, pulls the gradient back and cuts its blocks; each Rényi kind
+// supplies its branch term (petz-down-lifted.ts; petz-up-lifted.ts for Petz-up and sandwiched-up). Shared by the solver and the verifier.
 import { ComplexMatrix, frobeniusNorm, multiply } from '../linear-algebra/complex-matrix.js';
 import { DD_UNIT_ROUNDOFF, ddAddScaled, ddBlock, ddHermitianEigen, DdMatrix, ddMultiply, type DdEigen } from '../linear-algebra/double-double-matrix.js';
 import { BACKWARD_ERROR_CONSTANT, UNIT_ROUNDOFF } from '../linear-algebra/rounding.js';
@@ -115,14 +115,14 @@ export function roundedEigen(e: DdEigen): { values: Float64Array; vectors: Compl
   return { values: rounded(e), vectors: e.vectors.toDouble() };
 }
 
-/** The pinched output Y = Z(X) block by block, decomposed, with the bounds both Petz kinds take from it. */
-export interface PinchedSpectrum {
+/** A key-block-diagonal matrix (Z(X), or τ') block by block, decomposed, with the bounds the lifts take from it. */
+export interface BlockSpectrum {
   /** Key block b of a matrix on the branch's output. */
   blockOf: (a: DdMatrix, b: number) => DdMatrix;
   blocks: DdMatrix[];
   eigen: DdEigen[];
   values: Float64Array[];
-  /** ‖E_Y‖_F for Y = ⊕ Y_b: the sum of the blocks' residuals and X's forming error. */
+  /** ‖E_Y‖_F for Y = ⊕ Y_b: the sum of the blocks' residuals and the entries' own error. */
   error: number;
   /** A lower bound on Y's smallest eigenvalue: each block moves by its own residual. */
   lowest: number;
@@ -130,7 +130,8 @@ export interface PinchedSpectrum {
   defect: number;
 }
 
-export function pinchedSpectrum(support: BranchSupport, x: DdMatrix, formingError: number): PinchedSpectrum {
+/** The pinched output Y = Z(X). */
+export function pinchedSpectrum(support: BranchSupport, x: DdMatrix, formingError: number): BlockSpectrum {
   const blockOf = keyBlock(support);
   return blockSpectrum(blockOf, support.blockSizes.map((_, b) => blockOf(x, b)), formingError);
 }
@@ -144,7 +145,7 @@ export function keyBlock(support: BranchSupport): (a: DdMatrix, b: number) => Dd
 }
 
 /** The spectrum of a block-diagonal matrix given by its blocks, whose entries err by at most `formingError`. */
-export function blockSpectrum(blockOf: (a: DdMatrix, b: number) => DdMatrix, blocks: DdMatrix[], formingError: number): PinchedSpectrum {
+export function blockSpectrum(blockOf: (a: DdMatrix, b: number) => DdMatrix, blocks: DdMatrix[], formingError: number): BlockSpectrum {
   const eigen = blocks.map((y) => ddHermitianEigen(y));
   const values = eigen.map(rounded);
   return {

@@ -42,8 +42,11 @@ export const LIFT_WEIGHTS: readonly number[] = [1e-6, 1e-7, 1e-8, 1e-9, 1e-10].f
  */
 const PETZ_DOWN_LIFT_WEIGHTS: readonly number[] = [1e-12, 1e-13, 3e-14, 1e-14];
 
-/** Petz-up in double-double: M's smallest eigenvalue (about μ·λ_min(Y)^{2s}) keeps first order down to about 1e-12. */
-const PETZ_UP_LIFT_WEIGHTS: readonly number[] = [1e-8, 1e-9, 1e-10, 1e-11, 1e-12];
+/**
+ * Petz-up and sandwiched-up in double-double: M = Y^s·X·Y^s (Y = Z(X) or τ') has its smallest eigenvalue near
+ * μ·λ_min(Y)^{2s}, which keeps first order down to about 1e-12.
+ */
+const PRODUCT_LIFT_WEIGHTS: readonly number[] = [1e-8, 1e-9, 1e-10, 1e-11, 1e-12];
 
 /**
  * Whether the lifted point is evaluated in double-double: Petz-down always, Petz-up and sandwiched-up (at its fixed
@@ -54,10 +57,10 @@ export function liftsInDoubleDouble(objective: Objective): boolean {
   return kind === 'petz-down' || ((kind === 'petz-up' || kind === 'sandwiched-up') && fitsDoubleDoubleLift(objective));
 }
 
-/** The weights the solver tries (sandwiched-up's M = τ^s·X·τ^s is graded like Petz-up's). */
+/** The weights the solver tries. */
 export function liftWeights(objective: Objective): readonly number[] {
   if (!liftsInDoubleDouble(objective)) return LIFT_WEIGHTS;
-  return objective.request.kind === 'petz-down' ? PETZ_DOWN_LIFT_WEIGHTS : PETZ_UP_LIFT_WEIGHTS;
+  return objective.request.kind === 'petz-down' ? PETZ_DOWN_LIFT_WEIGHTS : PRODUCT_LIFT_WEIGHTS;
 }
 
 /** The kinds whose gradient error on the face block is bounded (docs/faces.md): all four, Petz-down in double-double. */
@@ -215,7 +218,7 @@ export interface LiftedPointTerms {
   conditioning: number;
   derivedConditioning: number;
   split?: IdentitySplit;
-  /** Petz-down: ∇F's blocks over the face and its complement, formed in double-double, with their error bounds. */
+  /** A lift in double-double (`liftsInDoubleDouble`): ∇F's blocks over the face and its complement, with their error bounds. */
   doubleDouble?: DoubleDoubleLiftTerms;
 }
 

@@ -1,6 +1,7 @@
-// Petz-up's branch term at a point lifted off an exposed face, in double-double (docs/faces.md, "Petz lifts in
-// double-double"): M = Y^s·X·Y^s has eigenvalues near μ·λ_min(Y)^{2s}, below a double eigensolver's absolute accuracy
-// for the μ ≈ 1e-10 … 1e-12 the linearization loss needs on some faces (d4#14, d16#4).
+// Petz-up's and sandwiched-up's branch terms at a point lifted off an exposed face, in double-double (docs/faces.md,
+// "Petz lifts in double-double"): both are Tr[(Y^s·X·Y^s)^ω], with Y = Z(X) or the fixed τ'. M = Y^s·X·Y^s has
+// eigenvalues near μ·λ_min(Y)^{2s}, below a double eigensolver's absolute accuracy for the μ ≈ 1e-10 … 1e-12 the
+// linearization loss needs on some faces (d4#14, d16#4, d64#3).
 import { frobeniusNorm, hermitianPart, multiply, type ComplexMatrix } from '../linear-algebra/complex-matrix.js';
 import {
   DdMatrix,
@@ -26,7 +27,7 @@ import {
   scaleDd,
   traceBranch,
   type BranchLift,
-  type PinchedSpectrum,
+  type BlockSpectrum,
 } from './double-double-lift.js';
 import { clusterCharge, gradedPullBack, powerDividedDifference, pulledBackUnit } from './face-block-charge.js';
 
@@ -47,9 +48,7 @@ import { clusterCharge, gradedPullBack, powerDividedDifference, pulledBackUnit }
  */
 export function petzUpBranch(support: BranchSupport, x: DdMatrix, formingError: number, maps: ComplexMatrix[], alpha: number): BranchLift {
   if (isKeyless(support)) return traceBranch(x, formingError);
-  const reference = pinchedSpectrum(support, x, formingError);
-  if (!(reference.lowest > 0)) throw new RangeError('petz-up lift: a pinched output is not positive definite to its error');
-  const t = sandwichedProduct(support, x, formingError, maps, 1 / alpha, reference);
+  const t = sandwichedProduct(support, x, formingError, maps, 1 / alpha, pinchedSpectrum(support, x, formingError));
   return {
     quasiEntropy: t.quasiEntropy,
     quasiEntropyError: t.quasiEntropyError,
@@ -79,7 +78,7 @@ export function sandwichedProduct(
   formingError: number,
   maps: ComplexMatrix[],
   omega: number,
-  reference: PinchedSpectrum,
+  reference: BlockSpectrum,
 ): SandwichedProduct {
   const s = (1 - omega) / (2 * omega);
   const p = omega - 1;

@@ -14,7 +14,7 @@ import { upperBoundAt } from '../certificate/upper-bound.js';
 import { SOLVER_VERSION } from '../certificate/version.js';
 import type { Certificate, MinTradeoffFunction, SolveResult } from '../result/types.js';
 import { restoreMultipliers } from './certify.js';
-import { evaluateSafely, type CertifiedPoint, type ResultBase, type RunClock, type SolverSetup, type SolverState } from './state.js';
+import type { CertifiedPoint, ResultBase, RunClock, SolverSetup, SolverState } from './state.js';
 
 /** A result without a bound (the status is overridden for infeasible data and early cancellation). */
 export function resultWithoutBound(base: ResultBase, clock: RunClock, message: string, iterations: number): SolveResult {
@@ -86,6 +86,18 @@ function liftedMultipliers(
   return { multipliersLower: Array.from(y.lower), multipliersUpper: Array.from(y.upper) };
 }
 
+/** τ' at a lifted point: the inner optimum there, without the gradient a full evaluation would also form. */
+function referenceAt(objective: Objective, point: ComplexMatrix): ReferenceBlocks | undefined {
+  try {
+    const evaluation = objective.evaluate(point, { withGradient: false, assumeFullRank: true });
+    return Number.isFinite(evaluation.value) ? evaluation.reference : undefined;
+  } catch (error) {
+    // As `evaluateSafely`: an output singular to rounding makes the point unusable, not the run.
+    if (error instanceof RangeError) return undefined;
+    throw error;
+  }
+}
+
 /**
  * On an exposed face, the lifted linearization bound at the certified face state lifted off the face by each of
  * LIFT_WEIGHTS (docs/faces.md, "The lifted linearization bound"), with multipliers for each lifted gradient; the
@@ -100,7 +112,6 @@ function liftedCertificate(
 ): { stored: StoredCertificate; claimed: BoundBreakdown } | null {
   const { face, restricted, objective, entropy, activeProblem } = setup;
   if (face.exposures.length === 0 || !face.isometry || !hasLiftedFaceBound(entropy.kind)) return null;
-
   const whole = { problem: activeProblem, objective: createObjective(activeProblem, entropy) };
   // A lift in double-double takes seconds at d = 64: a cancelled run frees its thread instead.
   if (liftsInDoubleDouble(whole.objective) && state.limit === 'cancelled') return null;
@@ -109,7 +120,7 @@ function liftedCertificate(
   for (const weight of liftWeights(whole.objective)) {
     const point = liftedPoint(face, blocks, certified.state, weight);
     // Sandwiched-up: τ' is the inner optimum at the lifted point, on the whole space's output supports.
-    const reference = entropy.kind === 'sandwiched-up' ? evaluateSafely(whole.objective, point)?.reference : undefined;
+    const reference = entropy.kind === 'sandwiched-up' ? referenceAt(whole.objective, point) : undefined;
     if (entropy.kind === 'sandwiched-up' && !reference) continue;
     const draft = {
       ...onFace,
