@@ -1,7 +1,8 @@
 // F and ∇F's blocks at a point lifted off an exposed face, in double-double (docs/faces.md, "Petz lifts in
 // double-double"): the branch outputs there have eigenvalues far below a double eigensolver's absolute accuracy.
-// This module forms the outputs, sums the branches, pulls the gradient back and cuts its blocks; each Rényi kind
-// supplies its branch term (petz-down-lifted.ts; petz-up-lifted.ts for Petz-up and sandwiched-up). Shared by the solver and the verifier.
+// This module forms the outputs, sums the branches, pulls the gradient back and cuts its blocks; each kind supplies
+// its branch term (petz-down-lifted.ts; petz-up-lifted.ts for Petz-up and sandwiched-up; von-neumann-lifted.ts).
+// Shared by the solver and the verifier.
 import { ComplexMatrix, frobeniusNorm, multiply } from '../linear-algebra/complex-matrix.js';
 import { DD_UNIT_ROUNDOFF, ddAddScaled, ddBlock, ddHermitianEigen, DdMatrix, ddMultiply, type DdEigen } from '../linear-algebra/double-double-matrix.js';
 import { BACKWARD_ERROR_CONSTANT, UNIT_ROUNDOFF } from '../linear-algebra/rounding.js';
@@ -20,7 +21,7 @@ export const DD_STEP = 8 * DD_UNIT_ROUNDOFF;
 /** ∇F over [P̂ | Q̂] and F at the point, with bounds on their errors. */
 export interface DoubleDoubleLiftTerms {
   value: number;
-  /** F − c/ln 2, the linearization's constant (Euler: ⟨∇F, ρ'⟩ = c/ln 2). */
+  /** F − c/ln 2, the linearization's constant (Euler: ⟨∇F, ρ'⟩ = c/ln 2); 0 for von Neumann (degree 1). */
   constant: number;
   /** ∇F rounded to double: for the solver's multipliers only. */
   gradient: ComplexMatrix;
@@ -35,11 +36,12 @@ export interface DoubleDoubleLiftTerms {
   errors: { face: number; cross: number; complement: number; constant: number };
 }
 
-/** What a branch with key contributes, for the weighted output X' = w·X_c. */
+/** What a branch contributes, for the weighted output X' = w·X_c. */
 export interface BranchLift {
-  quasiEntropy: number;
-  quasiEntropyError: number;
-  /** ∇_{X'}Q on the branch's output, in double-double. */
+  /** Q_c(X') for the Rényi kinds; for von Neumann the branch's term of F itself. */
+  term: number;
+  termError: number;
+  /** ∇_{X'}Q (von Neumann: ∇_{X'}F) on the branch's output, in double-double. */
   gradient: DdMatrix;
   /** Bound on ‖δ∇_{X'}Q‖_F. */
   gradientError: number;
@@ -69,7 +71,7 @@ export function traceBranch(x: DdMatrix, formingError: number): BranchLift {
   for (let i = 0; i < m; i++) trace += x.reHigh[i * m + i] + x.reLow[i * m + i];
   const gradient = new DdMatrix(m, m);
   for (let i = 0; i < m; i++) gradient.reHigh[i * m + i] = 1;
-  return { quasiEntropy: trace, quasiEntropyError: formingError * Math.sqrt(m), gradient, gradientError: 0, faceError: 0 };
+  return { term: trace, termError: formingError * Math.sqrt(m), gradient, gradientError: 0, faceError: 0 };
 }
 
 /**
@@ -79,9 +81,15 @@ export function traceBranch(x: DdMatrix, formingError: number): BranchLift {
  */
 export const DOUBLE_DOUBLE_LIFT_MAX_DIMENSION = 72;
 
-/** Whether the problem is small enough for a double-double lift. */
-export function fitsDoubleDoubleLift(objective: Objective): boolean {
-  return Math.max(objective.dimension, ...objective.supports.map((s) => s.dimension)) <= DOUBLE_DOUBLE_LIFT_MAX_DIMENSION;
+/**
+ * Largest ρ or branch output a cancelled run still lifts in double-double, at one weight (decompositions of about
+ * 0.25 s at 32): above it the lift would hold the thread for seconds after the caller gave up.
+ */
+export const DOUBLE_DOUBLE_LIFT_CANCELLED_DIMENSION = 40;
+
+/** Whether the problem is small enough for a double-double lift (by default the solver's and verifier's limit). */
+export function fitsDoubleDoubleLift(objective: Objective, limit = DOUBLE_DOUBLE_LIFT_MAX_DIMENSION): boolean {
+  return Math.max(objective.dimension, ...objective.supports.map((s) => s.dimension)) <= limit;
 }
 
 /** Σ_j K_j·A·K_j† with doubles K_j, in double-double. */
@@ -166,7 +174,8 @@ export function scaleDd(a: DdMatrix, s: number): DdMatrix {
 
 /**
  * F = c·log₂ Q with Q = Σ_c Q_c(X'_c), and ∇F = c/(Q ln 2)·Σ_c w_c·Σ_j K_j†·∇_{X'}Q_c·K_j, the branch terms from
- * `lifter`; a branch without key has Q_c = Tr X'_c and gradient 1. The pull-back Σ_j K_j†(·)K_j has norm ≤ 1
+ * `lifter`; a branch without key has Q_c = Tr X'_c and gradient 1. von Neumann sums the branches' terms of F itself
+ * (F = Σ_c F_c, factor 1, constant 0 by Euler's identity). The pull-back Σ_j K_j†(·)K_j has norm ≤ 1
  * (completeness), so a branch's gradient error reaches every block at most unchanged; the face block takes the
  * kind's graded bound instead. Q's relative error scales every block and moves the constant by |c|·δQ/(Q ln 2).
  */
@@ -180,10 +189,12 @@ export function liftInDoubleDouble(
   references?: readonly ComplexMatrix[][],
 ): DoubleDoubleLiftTerms {
   const n = rho.rows;
+  const vonNeumann = objective.request.kind === 'von-neumann';
   const rhoDd = DdMatrix.from(rho);
   let gradientQ = new DdMatrix(n, n);
-  let quasiEntropy = 0;
-  let quasiEntropyError = 0;
+  // Q = Σ_c Q_c (von Neumann: F = Σ_c F_c) and its error.
+  let sum = 0;
+  let sumError = 0;
   let gradientError = 0;
   let faceError = 0;
   const referenceGradients: NonNullable<BranchLift['reference']>[] = [];
@@ -194,11 +205,11 @@ export function liftInDoubleDouble(
     const krausWeight = support.krausOperators.reduce((s, k) => s + frobeniusNorm(k) ** 2, 0);
     // Forming X in double-double: each entry a sum over the Kraus operators' products.
     const formingError = weight * DD_STEP * 4 * (n + m) * krausWeight * frobeniusNorm(rho);
-    if (!isKeyless(support) && support.outputRange) throw new RangeError('lift in double-double: a branch output rank deficient on its support');
+    if (!vonNeumann && !isKeyless(support) && support.outputRange) throw new RangeError('lift in double-double: a branch output rank deficient on its support');
     const maps = support.krausOperators.map((k) => multiply(k, face));
     const branch = lifter(support, scaleDd(output, weight), formingError, maps, objective.request.alpha, references?.[c]);
-    quasiEntropy += branch.quasiEntropy;
-    quasiEntropyError += branch.quasiEntropyError;
+    sum += branch.term;
+    sumError += branch.termError;
     gradientError += weight * branch.gradientError;
     faceError += weight * branch.faceError;
     if (branch.reference) referenceGradients.push(branch.reference);
@@ -211,9 +222,10 @@ export function liftInDoubleDouble(
     gradientError += pullBackError;
     faceError += pullBackError;
   });
-  const coefficient = logCoefficient(objective.request);
-  const factor = coefficient / (quasiEntropy * Math.LN2);
-  const relativeQ = quasiEntropyError / quasiEntropy;
+  // von Neumann: the branches' terms are F's own, so F is their sum and the factor 1.
+  const coefficient = vonNeumann ? 0 : logCoefficient(objective.request);
+  const factor = vonNeumann ? 1 : coefficient / (sum * Math.LN2);
+  const relativeQ = vonNeumann ? 0 : sumError / sum;
   const gradientF = scaleDd(gradientQ, factor);
   const faceDd = DdMatrix.from(face);
   const complementDd = DdMatrix.from(complement);
@@ -222,7 +234,7 @@ export function liftInDoubleDouble(
   const offFace = ddMultiply(ddMultiply(complementDd, gradientF, true), complementDd).toDouble();
   // Each block: the pulled-back error, the factor's relative error on the block itself, and the rounding to double.
   const scaled = (block: ComplexMatrix) => (relativeQ + 2 * UNIT_ROUNDOFF) * frobeniusNorm(block);
-  const value = coefficient * Math.log2(quasiEntropy);
+  const value = vonNeumann ? sum : coefficient * Math.log2(sum);
   // Sandwiched-up: min over τ of ⟨∇_τF, τ⟩ ≥ the smallest eigenvalue over all key blocks of ∇_τF (Tr τ = 1).
   let referenceSmallest = 0;
   let referenceError = 0;
@@ -241,7 +253,7 @@ export function liftInDoubleDouble(
   }
   return {
     value,
-    constant: value - coefficient / Math.LN2,
+    constant: vonNeumann ? 0 : value - coefficient / Math.LN2,
     gradient: gradientF.toDouble(),
     face: onFace,
     cross,
@@ -253,7 +265,10 @@ export function liftInDoubleDouble(
       cross: Math.abs(factor) * gradientError + scaled(cross),
       complement: Math.abs(factor) * gradientError + scaled(offFace),
       // |δF| ≤ |c|·|δQ|/(Q ln 2) (log₂ Q moves by at most that for |δQ| ≤ Q/2), plus the logarithm's rounding.
-      constant: (Math.abs(coefficient) * relativeQ) / Math.LN2 / (1 - Math.min(relativeQ, 0.5)) + 4 * UNIT_ROUNDOFF * (Math.abs(value) + Math.abs(coefficient)),
+      // von Neumann's constant is exactly 0 (Euler); F itself is only reported.
+      constant: vonNeumann
+        ? 0
+        : (Math.abs(coefficient) * relativeQ) / Math.LN2 / (1 - Math.min(relativeQ, 0.5)) + 4 * UNIT_ROUNDOFF * (Math.abs(value) + Math.abs(coefficient)),
     },
   };
 }

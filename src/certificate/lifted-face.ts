@@ -29,6 +29,7 @@ import { quasiEntropyFaceCharges, vonNeumannFaceCharge } from './face-block-char
 import { fitsDoubleDoubleLift, liftInDoubleDouble, type DoubleDoubleLiftTerms } from './double-double-lift.js';
 import { petzDownBranch } from './petz-down-lifted.js';
 import { petzUpBranch, sandwichedBranch } from './petz-up-lifted.js';
+import { vonNeumannBranch } from './von-neumann-lifted.js';
 
 /**
  * Weights μ of the complement in the lifted points the solver tries (the verifier takes whatever point is stored).
@@ -49,18 +50,25 @@ const PETZ_DOWN_LIFT_WEIGHTS: readonly number[] = [1e-12, 1e-13, 3e-14, 1e-14];
 const PRODUCT_LIFT_WEIGHTS: readonly number[] = [1e-8, 1e-9, 1e-10, 1e-11, 1e-12];
 
 /**
- * Whether the lifted point is evaluated in double-double: Petz-down always, Petz-up and sandwiched-up (at its fixed
- * τ') where the problem is small enough.
+ * von Neumann in double-double: its loss falls like μ·ln(1/μ) and no first-order condition limits μ there, so three
+ * points suffice (each costs a few eigendecompositions in double-double: about 1.5 s apiece at d = 64).
+ */
+const VON_NEUMANN_LIFT_WEIGHTS: readonly number[] = [1e-9, 1e-10, 1e-11];
+
+/**
+ * Whether the lifted point is evaluated in double-double: Petz-down always; von Neumann, Petz-up and sandwiched-up (at
+ * its fixed τ') where the problem is small enough.
  */
 export function liftsInDoubleDouble(objective: Objective): boolean {
   const { kind } = objective.request;
-  return kind === 'petz-down' || ((kind === 'petz-up' || kind === 'sandwiched-up') && fitsDoubleDoubleLift(objective));
+  return kind === 'petz-down' || fitsDoubleDoubleLift(objective);
 }
 
 /** The weights the solver tries. */
 export function liftWeights(objective: Objective): readonly number[] {
   if (!liftsInDoubleDouble(objective)) return LIFT_WEIGHTS;
-  return objective.request.kind === 'petz-down' ? PETZ_DOWN_LIFT_WEIGHTS : PRODUCT_LIFT_WEIGHTS;
+  const { kind } = objective.request;
+  return kind === 'petz-down' ? PETZ_DOWN_LIFT_WEIGHTS : kind === 'von-neumann' ? VON_NEUMANN_LIFT_WEIGHTS : PRODUCT_LIFT_WEIGHTS;
 }
 
 /** The kinds whose gradient error on the face block is bounded (docs/faces.md): all four, Petz-down in double-double. */
@@ -232,7 +240,8 @@ export function liftedPointTerms(
   if (liftsInDoubleDouble(objective)) {
     const { kind } = objective.request;
     if (kind === 'sandwiched-up' && !reference) throw new Error('liftedFaceBound: sandwiched-up needs reference states τ');
-    const branch = kind === 'petz-down' ? petzDownBranch : kind === 'petz-up' ? petzUpBranch : sandwichedBranch;
+    const branch =
+      kind === 'von-neumann' ? vonNeumannBranch : kind === 'petz-down' ? petzDownBranch : kind === 'petz-up' ? petzUpBranch : sandwichedBranch;
     const doubleDouble = liftInDoubleDouble(objective, rho, blocks.face, blocks.complement, branch, reference);
     return {
       value: doubleDouble.value,

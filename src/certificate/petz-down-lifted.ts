@@ -64,8 +64,8 @@ export function petzDownBranch(support: BranchSupport, x: DdMatrix, formingError
   const scaleM = BACKWARD_ERROR_CONSTANT * m * UNIT_ROUNDOFF;
   const whole = { blockOffsets: [0], blockSizes: [m] } as unknown as BranchSupport;
   return {
-    quasiEntropy: q[1] + q[0],
-    quasiEntropyError: statePowerError * pinchedNorm + powerNorm * pinchedPowerError + DD_STEP * m * powerNorm * pinchedNorm,
+    term: q[1] + q[0],
+    termError: statePowerError * pinchedNorm + powerNorm * pinchedPowerError + DD_STEP * m * powerNorm * pinchedNorm,
     gradient: ddAddScaled(termA, termB, [0, 1]),
     gradientError:
       ETA * (normA + normB) +

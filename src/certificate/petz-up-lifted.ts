@@ -50,8 +50,8 @@ export function petzUpBranch(support: BranchSupport, x: DdMatrix, formingError: 
   if (isKeyless(support)) return traceBranch(x, formingError);
   const t = sandwichedProduct(support, x, formingError, maps, 1 / alpha, pinchedSpectrum(support, x, formingError));
   return {
-    quasiEntropy: t.quasiEntropy,
-    quasiEntropyError: t.quasiEntropyError,
+    term: t.quasiEntropy,
+    termError: t.quasiEntropyError,
     gradient: ddAddScaled(t.direct, blockDiagonal(t.referenceBlocks, support.dimension), [0, 1]),
     gradientError: t.directError + t.referenceError,
     faceError: t.directFace + t.referenceFace,
@@ -193,8 +193,8 @@ export function sandwichedBranch(
     const referenceGradient = new DdMatrix(1, 1);
     referenceGradient.reHigh[0] = (1 - beta) * t ** -beta * trace ** beta;
     return {
-      quasiEntropy,
-      quasiEntropyError: ETA * quasiEntropy + beta * t ** (1 - beta) * low ** (beta - 1) * traceError,
+      term: quasiEntropy,
+      termError: ETA * quasiEntropy + beta * t ** (1 - beta) * low ** (beta - 1) * traceError,
       gradient,
       // The slope's ETA and its move with Tr X (t^{β−1} is convex and decreasing: its slope is largest at the low end).
       gradientError: Math.sqrt(m) * (ETA * slope + beta * (1 - beta) * t ** (1 - beta) * low ** (beta - 2) * traceError),
@@ -210,8 +210,8 @@ export function sandwichedBranch(
   const spectrum = blockSpectrum(blockOf, reference.map((block) => DdMatrix.from(hermitianPart(block))), 0);
   const product = sandwichedProduct(support, x, formingError, maps, beta, spectrum);
   return {
-    quasiEntropy: product.quasiEntropy,
-    quasiEntropyError: product.quasiEntropyError,
+    term: product.quasiEntropy,
+    termError: product.quasiEntropyError,
     gradient: product.direct,
     gradientError: product.directError,
     faceError: product.directFace,

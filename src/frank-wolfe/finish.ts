@@ -4,6 +4,7 @@ import { matrixFromJson, matrixToJson } from '../problem/json.js';
 import type { Problem } from '../problem/model.js';
 import { constraintViolations, FEASIBILITY_TOLERANCE } from '../problem/violation.js';
 import { certificateBreakdown, readStoredLinearization, referenceFromSupport, type BoundBreakdown } from '../certificate/bound.js';
+import { DOUBLE_DOUBLE_LIFT_CANCELLED_DIMENSION, fitsDoubleDoubleLift } from '../certificate/double-double-lift.js';
 import { faceBlocks, hasLiftedFaceBound, liftedPoint, liftedPointTerms, liftsInDoubleDouble, liftWeights } from '../certificate/lifted-face.js';
 import { conjugateAdjoint, hermitianPart, type ComplexMatrix } from '../linear-algebra/complex-matrix.js';
 import { eigvalsh } from '../linear-algebra/eigen.js';
@@ -113,11 +114,16 @@ function liftedCertificate(
   const { face, restricted, objective, entropy, activeProblem } = setup;
   if (face.exposures.length === 0 || !face.isometry || !hasLiftedFaceBound(entropy.kind)) return null;
   const whole = { problem: activeProblem, objective: createObjective(activeProblem, entropy) };
-  // A lift in double-double takes seconds at d = 64: a cancelled run frees its thread instead.
-  if (liftsInDoubleDouble(whole.objective) && state.limit === 'cancelled') return null;
+  // A lift in double-double takes seconds at d = 64: a cancelled run frees its thread instead, or tries one weight
+  // where that is quick.
+  let weights = liftWeights(whole.objective);
+  if (liftsInDoubleDouble(whole.objective) && state.limit === 'cancelled') {
+    if (!fitsDoubleDoubleLift(whole.objective, DOUBLE_DOUBLE_LIFT_CANCELLED_DIMENSION)) return null;
+    weights = [weights[Math.floor(weights.length / 2)]];
+  }
   const blocks = faceBlocks(face);
   let best: { stored: StoredCertificate; claimed: BoundBreakdown } | null = null;
-  for (const weight of liftWeights(whole.objective)) {
+  for (const weight of weights) {
     const point = liftedPoint(face, blocks, certified.state, weight);
     // Sandwiched-up: τ' is the inner optimum at the lifted point, on the whole space's output supports.
     const reference = entropy.kind === 'sandwiched-up' ? referenceAt(whole.objective, point) : undefined;

@@ -634,6 +634,19 @@ export class LinearOracle {
     status: OracleResult['status'],
   ): OracleResult {
     const y = this.multipliersFromSolver(yScaled, objectiveScale, spanCoefficients);
+    // A diverged interior-point run can leave non-finite iterates (d32#19's exposing search): no answer, not an exception.
+    if (!allFinite(y) || !allFinite(point.re) || !allFinite(point.im)) {
+      return {
+        status: 'NUMERICAL_ERROR',
+        point: null,
+        multipliersLower: new Float64Array(y.length),
+        multipliersUpper: new Float64Array(y.length),
+        primalValue: Number.NaN,
+        dualBound: -Infinity,
+        iterations,
+        message: `the interior-point iterates are not finite after ${iterations} iterations`,
+      };
+    }
     const { lower, upper } = this.splitMultipliers(y);
     return {
       status,
@@ -841,4 +854,9 @@ function expandHermitian(v: ComplexMatrix, tau: ComplexMatrix): ComplexMatrix {
     out.im[i * d + i] = 0;
   }
   return out;
+}
+
+function allFinite(values: ArrayLike<number>): boolean {
+  for (let i = 0; i < values.length; i++) if (!Number.isFinite(values[i])) return false;
+  return true;
 }
