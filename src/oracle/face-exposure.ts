@@ -272,6 +272,9 @@ function multipliersFromWeights(count: number, directions: readonly EqualityDire
   return multipliers;
 }
 
+/** The sub-problem's half-width when its equality form gives no answer (the B_j have norm at most 1). */
+const EXPOSING_FALLBACK_SLACK = 1e-10;
+
 /**
  * c with λ_min(Σ c_j B_j) > s·‖c‖₁ for s as large as a few bisection steps find: the sub-problem
  * {τ ⪰ 0, Tr τ = 1, −s ≤ Tr(B_j τ) ≤ s} is empty exactly then, and its Farkas certificate is such a c. A large s
@@ -286,7 +289,9 @@ function bestExposingCombination(operators: readonly ComplexMatrix[], checkpoint
     const { multipliersLower, multipliersUpper } = answer.infeasibility;
     return Float64Array.from(multipliersLower, (lower, j) => multipliersUpper[j] - lower);
   };
-  let best = attempt(0);
+  // The equality form (s = 0) can end without either answer (d32#19: its interior-point run diverged); the interval
+  // form at a tiny s contains that set, so a Farkas certificate found there serves as well.
+  let best = attempt(0) ?? attempt(EXPOSING_FALLBACK_SLACK);
   if (!best) return null;
   const ratio = (c: Float64Array): number => {
     let size = 0;

@@ -103,6 +103,18 @@ describe('exposeFeasibleFace on equalities that pin ρ to the support of a known
     expect(frobenius(offFaceColumns) / smallest).toBeLessThan(1e-12);
   });
 
+  it("d32#19: where the search's equality form ends without an answer, its interval form finds the support", () => {
+    // The sub-problem {τ ⪰ 0, Tr τ = 1, Tr(B_j τ) = 0} ended NUMERICAL_ERROR (the interior-point iterates diverged,
+    // and before that the dual bound threw on them: the solve ended NUMERICAL_ERROR in set-up); at s = 1e-10 it is
+    // certified infeasible. mathjs: the generating state has no weight off the face found (to rounding).
+    const model = randomModel(32, 19);
+    const { face, feasible } = exposeFeasibleFace(model.problem);
+    expect(face.dimension).toBe(model.traits.truthRank);
+    expect(feasible.status).toBe('OPTIMAL');
+    const largest = referenceEigenvalues(offFace(face.isometry as ComplexMatrix, model.truth)).at(-1) as number;
+    expect(largest).toBeLessThan(1e-12);
+  });
+
   it('d4#10 of the random suite: full tables leave one pure state, and the face found is its span', () => {
     // Every equality direction vanishes on that state (V†A_iV = 0), so the refinement's Gram matrix there is pure
     // rounding: with a cut relative to its own largest eigenvalue alone it turned a 1e-17 residual into 1e-2 steps
