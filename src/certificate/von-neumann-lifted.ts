@@ -38,8 +38,10 @@ export function vonNeumannBranch(support: BranchSupport, x: DdMatrix, formingErr
   const rangeDd = range ? DdMatrix.from(range) : null;
   const compressed = rangeDd ? ddMultiply(ddMultiply(rangeDd, x, true), rangeDd) : x;
   const r = compressed.rows;
+  // ‖R‖_F² (1 without a range): the products R†·X·R and R·L·R† round within a few u_dd of |R|·|·|·|R|.
+  const rangeWeight = range ? frobeniusNorm(range) ** 2 : 1;
   // Compressing with R: ‖R‖² ≤ 1 + δ times X's forming error, plus the two products' rounding.
-  const compressError = rangeDd ? (1 + congruence) * formingError + DD_STEP * 8 * (m + r) * x.frobeniusNorm() : formingError;
+  const compressError = rangeDd ? (1 + congruence) * formingError + DD_STEP * 8 * (m + r) * rangeWeight * x.frobeniusNorm() : formingError;
   const eigenX = ddHermitianEigen(compressed);
   const lambda = rounded(eigenX);
   const pinched = pinchedSpectrum(support, x, formingError);
@@ -57,7 +59,8 @@ export function vonNeumannBranch(support: BranchSupport, x: DdMatrix, formingErr
   const pinchedNorm = logPinched.frobeniusNorm();
   const defectX = eigenX.residual / Math.max(compressed.frobeniusNorm(), Number.MIN_VALUE);
   const logValues = (values: ArrayLike<number>) => Math.sqrt(Array.from(values).reduce((s, v) => s + (1 + Math.abs(Math.log(v))) ** 2, 0));
-  const spread = 2 + Math.log(lambda[r - 1] / lowX);
+  // ln(λ_max/λ_min) of the exact range's A, whose eigenvalues are those of R†XR within a factor 1 ± δ (Ostrowski).
+  const spread = 2 + Math.log((lambda[r - 1] * (1 + congruence)) / (lowX * (1 - congruence)));
   const gradientNats =
     ETA * (logValues(lambda) + pinched.values.reduce((s, v) => s + logValues(v), 0)) +
     errorX / lowX +
@@ -65,7 +68,7 @@ export function vonNeumannBranch(support: BranchSupport, x: DdMatrix, formingErr
     2 * (defectX * stateNorm + pinched.defect * pinchedNorm) +
     congruence * spread +
     (2 * congruence + congruence ** 2) * stateNorm +
-    DD_STEP * 8 * (m + r) * (stateNorm + pinchedNorm);
+    DD_STEP * 8 * (m + r) * (rangeWeight * stateNorm + pinchedNorm);
   const entropy = (values: ArrayLike<number>) => Array.from(values).reduce((s, v) => s + v * Math.log(v), 0);
   const relative = (nats: number) => nats / Math.LN2;
   const value = relative(entropy(lambda) - pinched.values.reduce((s, v) => s + entropy(v), 0)) - score * trace;
@@ -113,7 +116,9 @@ export function rangeCongruence(support: BranchSupport, range: ComplexMatrix): n
   const scaleR = BACKWARD_ERROR_CONSTANT * r * UNIT_ROUNDOFF;
   const gramLowest = eigvalsh(gramDouble)[0] - (scaleR + UNIT_ROUNDOFF) * frobeniusNorm(gramDouble);
   if (!(gramLowest > 0)) return Infinity;
-  const rounding = DD_STEP * 8 * (m + r) * (identityOutput.frobeniusNorm() * (1 + rd.frobeniusNorm() ** 2));
+  // M·R rounds within a few u_dd of ‖M‖_F‖R‖_F, R·G of ‖R‖_F·‖G‖_F ≤ ‖R‖_F³‖M‖_F.
+  const rangeNorm = rd.frobeniusNorm();
+  const rounding = DD_STEP * 8 * (m + r) * identityOutput.frobeniusNorm() * (rangeNorm + rangeNorm ** 3);
   const outside = (residual.frobeniusNorm() + rounding) / gramLowest;
   const isometry = ddAddScaled(ddMultiply(rd, rd, true), identityDd(r), [0, -1]);
   return isometry.frobeniusNorm() + DD_STEP * 8 * m * frobeniusNorm(range) ** 2 + outside ** 2;

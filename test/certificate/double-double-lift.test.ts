@@ -23,7 +23,7 @@ import { dropInactiveBounds } from '../../src/problem/inactive-bounds.js';
 import { matrixFromJson } from '../../src/problem/json.js';
 import type { EntropyRequest } from '../../src/problem/model.js';
 import { randomHermitian, seededRandom } from '../helpers/random.js';
-import { referenceFunction } from './reference-functions.js';
+import { centralSlope, referenceFunction } from './reference-functions.js';
 
 const KINDS = [
   { request: { kind: 'petz-down', alpha: 1.5 } as EntropyRequest, branch: petzDownBranch },
@@ -104,12 +104,7 @@ describe.each(KINDS)('$request.kind at a lifted point in double-double (d16#2)',
     const step = 1e-6;
     for (let trial = 0; trial < 3; trial++) {
       const d = randomHermitian(blocks.face.cols, rng);
-      const lifted = conjugate(blocks.face, d);
-      const plus = point.clone();
-      addScaledInPlace(plus, lifted, step);
-      const minus = point.clone();
-      addScaledInPlace(minus, lifted, -step);
-      const slope = (referenceValue(plus) - referenceValue(minus)) / (2 * step);
+      const slope = centralSlope((rho) => referenceValue(rho), point, blocks.face, d, step);
       const paired = traceProductReal(terms.face, d);
       expect(Math.abs(slope - paired)).toBeLessThan(1e-6 * (1 + Math.abs(paired)));
     }

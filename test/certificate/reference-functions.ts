@@ -1,7 +1,7 @@
 // Outside references for the margin's charges: matrix functions from ml-matrix's symmetric eigendecomposition of the
 // real embedding, operator norms from mathjs eigenvalues.
 import { EigenvalueDecomposition, Matrix } from 'ml-matrix';
-import { adjoint, ComplexMatrix, multiply } from '../../src/linear-algebra/complex-matrix.js';
+import { addScaledInPlace, adjoint, ComplexMatrix, conjugate, multiply } from '../../src/linear-algebra/complex-matrix.js';
 import { referenceEigenvalues } from '../oracle/reference.js';
 
 /** The real embedding [[Re H, −Im H], [Im H, Re H]] of a Hermitian H (a *-homomorphism: functions commute with it). */
@@ -58,4 +58,14 @@ export function referenceFunction(h: ComplexMatrix, f: (t: number) => number): C
 /** Largest singular value from mathjs eigenvalues of A·A†. */
 export function operatorNorm(a: ComplexMatrix): number {
   return Math.sqrt(Math.max(0, ...referenceEigenvalues(multiply(a, adjoint(a)))));
+}
+
+/** (f(ρ + hD) − f(ρ − hD))/(2h) for D = W·d·W† (a direction d given in the basis W): central differences, common practice. */
+export function centralSlope(f: (rho: ComplexMatrix) => number, point: ComplexMatrix, basis: ComplexMatrix, direction: ComplexMatrix, step: number): number {
+  const lifted = conjugate(basis, direction);
+  const plus = point.clone();
+  addScaledInPlace(plus, lifted, step);
+  const minus = point.clone();
+  addScaledInPlace(minus, lifted, -step);
+  return (f(plus) - f(minus)) / (2 * step);
 }

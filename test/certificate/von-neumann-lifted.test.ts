@@ -26,7 +26,7 @@ import { compressToFace, feasibleFace } from '../../src/problem/feasible-face.js
 import { dropInactiveBounds } from '../../src/problem/inactive-bounds.js';
 import { matrixFromJson } from '../../src/problem/json.js';
 import { randomDensity, randomHermitian, seededRandom } from '../helpers/random.js';
-import { referenceFunction } from './reference-functions.js';
+import { centralSlope, referenceFunction } from './reference-functions.js';
 
 const request = { kind: 'von-neumann' } as const;
 
@@ -93,12 +93,7 @@ describe.each([
     const step = 1e-6;
     for (let trial = 0; trial < 3; trial++) {
       const direction = randomHermitian(blocks.face.cols, rng);
-      const lifted = conjugate(blocks.face, direction);
-      const plus = point.clone();
-      addScaledInPlace(plus, lifted, step);
-      const minus = point.clone();
-      addScaledInPlace(minus, lifted, -step);
-      const slope = (referenceValue(objective, plus) - referenceValue(objective, minus)) / (2 * step);
+      const slope = centralSlope((rho) => referenceValue(objective, rho), point, blocks.face, direction, step);
       const paired = traceProductReal(terms.face, direction);
       expect(Math.abs(slope - paired)).toBeLessThan(1e-6 * (1 + Math.abs(paired)));
     }
