@@ -205,7 +205,10 @@ export function liftInDoubleDouble(
     const krausWeight = support.krausOperators.reduce((s, k) => s + frobeniusNorm(k) ** 2, 0);
     // Forming X in double-double: each entry a sum over the Kraus operators' products.
     const formingError = weight * DD_STEP * 4 * (n + m) * krausWeight * frobeniusNorm(rho);
-    if (!vonNeumann && !isKeyless(support) && support.outputRange) throw new RangeError('lift in double-double: a branch output rank deficient on its support');
+    // Petz-down pairs X^β with Z(X)^{1−β} and has no term for an output rank deficient on its support.
+    if (objective.request.kind === 'petz-down' && !isKeyless(support) && support.outputRange) {
+      throw new RangeError('lift in double-double: a branch output rank deficient on its support');
+    }
     const maps = support.krausOperators.map((k) => multiply(k, face));
     const branch = lifter(support, scaleDd(output, weight), formingError, maps, objective.request.alpha, references?.[c]);
     sum += branch.term;

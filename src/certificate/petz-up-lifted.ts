@@ -2,7 +2,7 @@
 // "Petz lifts in double-double"): both are Tr[(Y^s·X·Y^s)^ω], with Y = Z(X) or the fixed τ'. M = Y^s·X·Y^s has
 // eigenvalues near μ·λ_min(Y)^{2s}, below a double eigensolver's absolute accuracy for the μ ≈ 1e-10 … 1e-12 the
 // linearization loss needs on some faces (d4#14, d16#4, d64#3).
-import { frobeniusNorm, hermitianPart, multiply, type ComplexMatrix } from '../linear-algebra/complex-matrix.js';
+import { columns, frobeniusNorm, hermitianPart, multiply, type ComplexMatrix } from '../linear-algebra/complex-matrix.js';
 import {
   DdMatrix,
   ddAddScaled,
@@ -105,19 +105,36 @@ export function sandwichedProduct(
     rootOperator ** 2 * formingError +
     DD_STEP * 16 * m * rootNorm ** 2 * xNorm +
     eigenM.residual * (1 + 4 * ETA);
-  const lowM = nu[0] / (1 + congruence) ** 2 - additive;
-  if (!(lowM > 0)) throw new RangeError('petz-up lift: M is not positive definite to its error');
+  // An output rank deficient on its support: M has exactly `kernel` zero eigenvalues (outputKernel), which the computed
+  // M keeps within its error of 0; t^ω and t^{ω−1} are taken as 0 there (M^ω's and the pseudo-inverse power's values).
+  const kernel = outputKernel(support);
+  const kernelRadius = (1 + congruence) ** 2 * additive;
+  for (let i = 0; i < kernel; i++) {
+    if (!(Math.abs(nu[i]) <= kernelRadius)) throw new RangeError('lift: M has more nonzero eigenvalues than the output rank allows');
+  }
+  const lowM = nu[kernel] / (1 + congruence) ** 2 - additive;
+  if (!(lowM > (kernel > 0 ? 10 * kernelRadius : 0))) throw new RangeError('petz-up lift: M is not positive definite to its error');
+  // Across the kernel (|b| ≤ ε) and the rest (a ≥ 10ε), the cut-off g (t^ω or ω·t^{ω−1} off the kernel, 0 on it) has
+  // |g^[1](a, b)| ≤ g(a)/(a − ε) ≤ (10/9)·g(a)/a, and for a congruence |g^[1]|·(|a| + |b|) ≤ (11/9)·g(a) (derived): the
+  // factors the slopes and the congruence bounds gain where a kernel is cut off.
+  const across = kernel > 0 ? 10 / 9 : 1;
+  const acrossCongruence = kernel > 0 ? 11 / 9 : 1;
   const highM = nu[nu.length - 1] * (1 + congruence) ** 2 + additive;
   const defectM = eigenM.residual / Math.max(mMatrix.frobeniusNorm(), Number.MIN_VALUE);
-  const power = ddSpectral(eigenM.vectors, Array.from(nu, (t) => t ** omega));
-  const weight = ddSpectral(eigenM.vectors, Array.from(nu, (t) => omega * t ** p));
+  const cut = (f: (t: number) => number) => Array.from(nu, (t, i) => (i < kernel ? 0 : f(t)));
+  const power = ddSpectral(eigenM.vectors, cut((t) => t ** omega));
+  const weight = ddSpectral(eigenM.vectors, cut((t) => omega * t ** p));
   let quasiEntropy = 0;
-  for (const t of nu) quasiEntropy += t ** omega;
+  for (let i = kernel; i < nu.length; i++) quasiEntropy += nu[i] ** omega;
   const powerNorm = power.frobeniusNorm();
   const weightOperator = omega * lowM ** p;
   const weightNorm = weight.frobeniusNorm();
-  const powerError = omega * lowM ** p * additive + 2 * highM ** omega * congruence + (ETA + 2 * defectM) * powerNorm;
-  const weightError = Math.abs(p) * omega * lowM ** (p - 1) * additive + 2 * omega * lowM ** p * congruence + (ETA + 2 * defectM) * weightNorm;
+  const powerError =
+    across * omega * lowM ** p * additive + 2 * acrossCongruence * highM ** omega * congruence + (ETA + 2 * defectM) * powerNorm;
+  const weightError =
+    Math.max(Math.abs(p), across) * omega * lowM ** (p - 1) * additive +
+    2 * acrossCongruence * omega * lowM ** p * congruence +
+    (ETA + 2 * defectM) * weightNorm;
   const direct = ddMultiply(ddMultiply(root, weight), root);
   const product = ddMultiply(inverseRoot, power);
   const argument = ddAddScaled(product, ddMultiply(power, inverseRoot), [0, 1]);
@@ -140,10 +157,21 @@ export function sandwichedProduct(
   const rootDouble = root.toDouble();
   const seen = maps.map((a) => multiply(rootDouble, a));
   const seenSlack = scaleM * Math.sqrt(m) * (1 + rootOperator) * Math.max(...maps.map(frobeniusNorm));
-  const mEigen = roundedEigen(eigenM);
+  // M's clusters without its kernel. The maps N_j = Y^s·K_jP̂ (Y^s the double-double matrix used) lie in the range of
+  // M₀ = Y^s·X·Y^s for the exact X, which the computed M matches to `additive`; a unit u of the computed kernel has
+  // ‖M₀u‖ ≤ ε + additive, so its part on that range is at most (ε + additive)/λ_min⁺(M₀) and ‖U₀†N_j‖ ≤ θ·‖N_j‖ (derived).
+  // The E entries between the kernel and the rest reach the face block only through those rows: the cross term.
+  const mEigen = withoutKernel(roundedEigen(eigenM), kernel);
+  const offKernel = (kernelRadius + additive) / lowM + 2 * defectM;
+  const kernelRows = seen.reduce((sum, a) => {
+    const norm = frobeniusNorm(a) + seenSlack * Math.sqrt(m);
+    return sum + norm * (offKernel * norm + seenSlack * Math.sqrt(kernel));
+  }, 0);
+  const kernelCross = kernel > 0 ? 2 * omega * lowM ** p * ((across * additive) / lowM + 2 * acrossCongruence * congruence) * kernelRows : 0;
   const directFace =
     omega * clusterCharge(mEigen, seen, powerDividedDifference(p), additive, false, seenSlack) +
     omega * clusterCharge(mEigen, seen, (a, b) => Math.min(a, b) ** p, 2 * congruence, true, seenSlack) +
+    kernelCross +
     (ETA + 2 * defectM) * weightOperator * pulledBackUnit(seen, scaleM) +
     2 * rootError * weightOperator * rootOperator * pulledBackUnit(maps, scaleM);
   return {
@@ -217,4 +245,24 @@ export function sandwichedBranch(
     faceError: product.directFace,
     reference: { blocks: product.referenceBlocks, error: product.referenceError },
   };
+}
+
+/**
+ * How many zero eigenvalues X_c has on its support at every full-rank point: m − r for an output range of dimension r
+ * (`outputRange`), provided the Kraus operators' shapes prove rank X_c ≤ r (r = Σ_j columns of K_j); otherwise the
+ * rank rests on a numerical decision, and the lift refuses.
+ */
+export function outputKernel(support: BranchSupport): number {
+  const range = support.outputRange;
+  if (!range) return 0;
+  const columnsTotal = support.krausOperators.reduce((sum, k) => sum + k.cols, 0);
+  if (columnsTotal !== range.cols) throw new RangeError('lift: the output range is not proved by the Kraus operators\' shapes');
+  return support.dimension - range.cols;
+}
+
+/** The eigenpairs from `kernel` on (the kernel's columns dropped). */
+function withoutKernel(eigen: { values: Float64Array; vectors: ComplexMatrix }, kernel: number): { values: Float64Array; vectors: ComplexMatrix } {
+  if (kernel === 0) return eigen;
+  const n = eigen.vectors.rows;
+  return { values: eigen.values.slice(kernel), vectors: columns(eigen.vectors, kernel, n) };
 }

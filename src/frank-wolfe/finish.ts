@@ -114,9 +114,12 @@ function liftedCertificate(
   const { face, restricted, objective, entropy, activeProblem } = setup;
   if (face.exposures.length === 0 || !face.isometry || !hasLiftedFaceBound(entropy.kind)) return null;
   const whole = { problem: activeProblem, objective: createObjective(activeProblem, entropy) };
-  // A lift in double-double takes seconds at d = 64: a cancelled run frees its thread instead, or tries one weight
-  // where that is quick.
+  // A lift in double-double takes seconds at d = 64 (about 2.5 s a weight for sandwiched-up): a run stopped by its time
+  // limit tries the largest weight alone (the most forgiving where the face run did not finish: d64#4 sandwiched-up
+  // 2.9e-3, 1.0e-1 at the middle one), within the time `solve` reserved for it; a cancelled run frees its thread
+  // instead, or tries the middle weight where that is quick.
   let weights = liftWeights(whole.objective);
+  if (liftsInDoubleDouble(whole.objective) && state.limit === 'time') weights = [weights[0]];
   if (liftsInDoubleDouble(whole.objective) && state.limit === 'cancelled') {
     if (!fitsDoubleDoubleLift(whole.objective, DOUBLE_DOUBLE_LIFT_CANCELLED_DIMENSION)) return null;
     weights = [weights[Math.floor(weights.length / 2)]];

@@ -8,7 +8,9 @@ import { assembleResult, interruptedBeforeStart, resultWithoutBound } from './fi
 import { iterate, reachedLimit } from './iterate.js';
 import { resolveSolverSettings, type SolveControl, type SolverSettings } from './settings.js';
 import { resultBase, setUp, type SetUpOutcome } from './setup.js';
-import { RunClock, SolveInterrupted, type ResultBase } from './state.js';
+import { RunClock, SolveInterrupted, type ResultBase, type SolverSetup } from './state.js';
+import { hasLiftedFaceBound, liftsInDoubleDouble } from '../certificate/lifted-face.js';
+import { createObjective } from '../objectives/index.js';
 
 /** The last certification may run past the limit by this share of it (at least LAST_CERTIFICATE_MIN_MS)… */
 const LAST_CERTIFICATE_SHARE = 0.05;
@@ -43,6 +45,22 @@ export function solve(
   return { ...onFace, seconds: clock.elapsedMs() / 1000, oracleSeconds: clock.oracleSeconds, notes: [...(onFace.notes ?? []), note] };
 }
 
+/** One lift weight in double-double at dimension 65, measured 1–2.5 s idle (sandwiched-up the most), with room. */
+const LIFT_RESERVE_MS_AT_65 = 3000;
+
+/**
+ * Time kept for one lifted point in double-double (a run stopped by its time limit tries one weight, finish.ts): about
+ * n³ like its eigendecompositions; none off a face or on the double path.
+ */
+function liftReserveMs(setup: SolverSetup): number {
+  const { face, activeProblem, entropy } = setup;
+  if (face.exposures.length === 0 || !hasLiftedFaceBound(entropy.kind)) return 0;
+  const whole = createObjective(activeProblem, entropy);
+  if (!liftsInDoubleDouble(whole)) return 0;
+  const largest = Math.max(whole.dimension, ...whole.supports.map((support) => support.dimension));
+  return LIFT_RESERVE_MS_AT_65 * (largest / 65) ** 3;
+}
+
 /** The full space is tried after an uncertified face only while at least this share of the time limit is left. */
 const FULL_SPACE_LEFT = 0.25;
 
@@ -65,8 +83,9 @@ function run(
   }
   if (!outcome.ready) return outcome.result;
   const { setup, state } = outcome;
-  // Assembling the result re-evaluates F about twice (measured: 1.6 evaluations): the run stops that much earlier.
-  const assemblyMs = ASSEMBLY_EVALUATIONS * outcome.evaluationMs;
+  // Assembling the result re-evaluates F about twice (measured: 1.6 evaluations), and on an exposed face lifts the
+  // face state in double-double: the run stops that much earlier.
+  const assemblyMs = ASSEMBLY_EVALUATIONS * outcome.evaluationMs + liftReserveMs(setup);
   clock.deadlineMs = settings.timeLimitMs - assemblyMs;
   try {
     for (;;) {

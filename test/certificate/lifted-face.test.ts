@@ -382,3 +382,25 @@ describe('d16#2 of the random suite (no full-rank feasible state): lifted certif
     expect(foreign.valid).toBe(false);
   });
 });
+
+describe('faces whose keyed output is rank deficient on its support: the Rényi lifts cut off M\'s kernel', () => {
+  // Before: the Rényi kinds were not given the face (no lift was derived there), and on the whole space, without a
+  // full-rank feasible state, d16#18 Petz-up ended with a bound above F at the generating state (margin 467), d16#34
+  // sandwiched-up at gap 0.37 and d32#19 Petz-up at 0.54 (measured 2026-12-03 with solver 0.11.0).
+  const cases = [
+    { d: 16, seed: 18, request: { kind: 'petz-up', alpha: 1.5 } },
+    { d: 16, seed: 34, request: { kind: 'sandwiched-up', alpha: 1.5 } },
+    { d: 32, seed: 19, request: { kind: 'petz-up', alpha: 1.5 } },
+  ] as const;
+  for (const { d, seed, request } of cases) {
+    it(`d${d}#${seed} ${request.kind}: CERTIFIED at gap 1e-6 through the lift, verified, below F at the generating state`, () => {
+      const model = randomModel(d, seed);
+      const result = solve(model.problem, request, { gapTolerance: 1e-6, timeLimitMs: 30000 });
+      expect(result.status).toBe('CERTIFIED');
+      expect(result.certificate?.linearizationOffFace).toBe(true);
+      const report = verifyResult(model.problem, request, result);
+      expect(report.valid, report.reason).toBe(true);
+      expect(result.certifiedLowerBound as number).toBeLessThanOrEqual(createObjective(model.problem, request).evaluate(model.truth).value);
+    }, 120_000);
+  }
+});
