@@ -78,8 +78,9 @@ export function hasLiftedFaceBound(kind: string): boolean {
 
 /**
  * Whether a bound on an exposed face can come out finite for this problem: von Neumann always (continuity margin or
- * lifted bound); the Rényi kinds with a lifted bound only when every branch with key has full-rank outputs on its
- * support (face-block-charge.ts), otherwise the face would only take time from the whole space.
+ * lifted bound); the Rényi kinds with a lifted bound when every branch with key has full-rank outputs on its support
+ * (face-block-charge.ts), or, for Petz-up and sandwiched-up in double-double, outputs whose rank the Kraus operators'
+ * shapes prove; otherwise the face would only take time from the whole space.
  */
 export function faceBoundApplies(problem: Problem, request: Required<EntropyRequest>): boolean {
   if (request.kind === 'von-neumann') return true;

@@ -1,7 +1,8 @@
 // Petz-up's and sandwiched-up's branch terms at a point lifted off an exposed face, in double-double (docs/faces.md,
 // "Petz lifts in double-double"): both are Tr[(Y^s·X·Y^s)^ω], with Y = Z(X) or the fixed τ'. M = Y^s·X·Y^s has
 // eigenvalues near μ·λ_min(Y)^{2s}, below a double eigensolver's absolute accuracy for the μ ≈ 1e-10 … 1e-12 the
-// linearization loss needs on some faces (d4#14, d16#4, d64#3).
+// linearization loss needs on some faces (d4#14, d16#4, d64#3). An output rank deficient on its support leaves M with
+// a kernel, cut off in t^ω and t^{ω−1} (docs/faces.md, "Rényi lifts on an output rank deficient on its support").
 import { columns, frobeniusNorm, hermitianPart, multiply, type ComplexMatrix } from '../linear-algebra/complex-matrix.js';
 import {
   DdMatrix,
