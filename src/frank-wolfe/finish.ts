@@ -250,7 +250,13 @@ export function assembleResult(setup: SolverSetup, state: SolverState): SolveRes
         : !feasible
           ? `${stopped}; the final state violates the constraints by ${relativeViolation.toExponential(3)} ` +
             `(relative to ‖Γ‖_F, tolerance ${FEASIBILITY_TOLERANCE}), so no upper bound is stated`
-          : `${stopped}; F at the final state is not above the lower bound within rounding, so no upper bound is stated`;
+          : value !== null && lowerBound - value > settings.gapTolerance
+            ? // A bound this far above F at a state meeting every constraint within tolerance holds only if the data
+              // admit no exact solution there (a feasible set without interior, met to rounding: d8#38 Petz-up).
+              `${stopped}; F at the final state, which meets every constraint within the tolerance, lies ` +
+              `${(lowerBound - value).toExponential(3)} below the lower bound: the data appear to have no full-rank feasible ` +
+              `state and to be consistent only to rounding, where such a bound is valid but says nothing; no upper bound is stated`
+            : `${stopped}; F at the final state is not above the lower bound within rounding, so no upper bound is stated`;
   }
   return {
     ...base,

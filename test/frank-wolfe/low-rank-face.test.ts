@@ -92,3 +92,20 @@ describe('d32#3 Petz-up α = 1.5: the curvature split over clusters of up to 8 e
     }
   }, 180_000); // about 6 s idle
 });
+
+describe('d8#38: a one-point face the set-up declines (its state misses the constraints by 2e-7)', () => {
+  it('Petz-up on the whole space: a bound above F at the generating state is verified but the result says it is void', () => {
+    // Without a full-rank feasible state the multipliers grow without bound; the data meet the generating state only to
+    // rounding (2.2e-16), so the exact data may be infeasible and the bound vacuously valid (docs/faces.md).
+    const model = randomModel(8, 38);
+    const request = { kind: 'petz-up', alpha: 1.5 } as const;
+    const result = solve(model.problem, request, { gapTolerance: 1e-6, timeLimitMs: 5000 });
+    const atTruth = createObjective(model.problem, request).evaluate(model.truth).value;
+    expect(result.status).toBe('LIMIT_REACHED');
+    expect(result.upperBound).toBeNull();
+    // The limitation the result must state (measured: 9.22 against F = 0.698 at the generating state).
+    expect(result.certifiedLowerBound as number).toBeGreaterThan(atTruth + 1e-6);
+    expect(result.message).toMatch(/below the lower bound: the data appear to have no full-rank feasible state/);
+    expect(verifyResult(model.problem, request, result).valid).toBe(true);
+  }, 60_000);
+});
