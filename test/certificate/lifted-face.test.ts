@@ -383,11 +383,15 @@ describe('d16#2 of the random suite (no full-rank feasible state): lifted certif
   });
 });
 
-describe('faces whose keyed output is rank deficient on its support: the Rényi lifts cut off M\'s kernel', () => {
+describe('faces whose keyed output is rank deficient on its support: lifted in double-double', () => {
   // Before: the Rényi kinds were not given the face (no lift was derived there), and on the whole space, without a
   // full-rank feasible state, d16#18 Petz-up ended with a bound above F at the generating state (margin 467), d16#34
-  // sandwiched-up at gap 0.37 and d32#19 Petz-up at 0.54 (measured 2026-12-03 with solver 0.11.0).
+  // sandwiched-up at gap 0.37 and d32#19 Petz-up at 0.54 (measured 2026-12-03 with solver 0.11.0). von Neumann takes the
+  // range as a congruence (von-neumann-lifted.ts); d32#19 ended NUMERICAL_ERROR in set-up before the face search's
+  // interval fallback (test/oracle/face-exposure.test.ts), then 1.2e-1 on the whole space.
   const cases = [
+    { d: 16, seed: 18, request: { kind: 'von-neumann' } },
+    { d: 32, seed: 19, request: { kind: 'von-neumann' } },
     { d: 16, seed: 18, request: { kind: 'petz-up', alpha: 1.5 } },
     { d: 16, seed: 34, request: { kind: 'sandwiched-up', alpha: 1.5 } },
     { d: 32, seed: 19, request: { kind: 'petz-up', alpha: 1.5 } },
