@@ -51,6 +51,7 @@ function considerCandidate(
     pointEvaluation,
     worthAbove,
     setup.clock.checkpoint,
+    setup.settings.gapTolerance,
   );
   if (Number.isFinite(breakdown.lowerBound) && (state.best === null || breakdown.lowerBound > state.best.breakdown.lowerBound)) {
     state.best = {

@@ -181,7 +181,8 @@ export function assembleResult(setup: SolverSetup, state: SolverState): SolveRes
       multipliersLower: Array.from(certified.multipliersLower),
       multipliersUpper: Array.from(certified.multipliersUpper),
     };
-    let claimed = certificateBreakdown(face, restricted, objective, stored);
+    // With the settings the certificate will carry: the curvature clusters stop where the verifier's do.
+    let claimed = certificateBreakdown(face, restricted, objective, { ...stored, settings: certificateSettings(settings) });
     const lifted = liftedCertificate(setup, state, certified, stored, claimed.lowerBound);
     if (lifted) ({ stored, claimed } = lifted);
     if (Number.isFinite(claimed.lowerBound)) {
@@ -191,7 +192,7 @@ export function assembleResult(setup: SolverSetup, state: SolverState): SolveRes
       certificate = {
         inputHash: base.inputHash,
         solverVersion: SOLVER_VERSION,
-        settings: { gapTolerance: settings.gapTolerance, maxIterations: settings.maxIterations },
+        settings: certificateSettings(settings),
         entropy: base.entropy,
         alpha: base.alpha,
         ...stored,
@@ -303,4 +304,9 @@ export function interruptedBeforeStart(base: ResultBase, clock: RunClock, proble
     trivialBoundUsed: true,
     notes: [`the bound is the trivial bound ${trivialBound}, which holds for every state`],
   };
+}
+
+/** The solver settings a certificate records (the verifier reads its gap tolerance, bound.ts). */
+function certificateSettings(settings: SolverSetup['settings']): Certificate['settings'] {
+  return { gapTolerance: settings.gapTolerance, maxIterations: settings.maxIterations };
 }
