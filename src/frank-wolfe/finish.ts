@@ -127,6 +127,9 @@ function liftedCertificate(
   const blocks = faceBlocks(face);
   let best: { stored: StoredCertificate; claimed: BoundBreakdown } | null = null;
   for (const weight of weights) {
+    // Past the time limit one lifted certificate is enough (each weight costs seconds at d = 64; assembly is not
+    // interrupted): d64#4 Petz-up, stopped on no-progress near its limit, had overrun it by 9.5 s with five.
+    if (best && setup.clock.elapsedMs() > setup.settings.timeLimitMs) break;
     const point = liftedPoint(face, blocks, certified.state, weight);
     // Sandwiched-up: τ' is the inner optimum at the lifted point, on the whole space's output supports.
     const reference = entropy.kind === 'sandwiched-up' ? referenceAt(whole.objective, point) : undefined;
