@@ -133,7 +133,7 @@ export function sandwichedProduct(
   const powerError =
     across * omega * lowM ** p * additive + 2 * acrossCongruence * highM ** omega * congruence + (ETA + 2 * defectM) * powerNorm;
   const weightError =
-    Math.max(Math.abs(p), across) * omega * lowM ** (p - 1) * additive +
+    (kernel > 0 ? Math.max(Math.abs(p), across) : Math.abs(p)) * omega * lowM ** (p - 1) * additive +
     2 * acrossCongruence * omega * lowM ** p * congruence +
     (ETA + 2 * defectM) * weightNorm;
   const direct = ddMultiply(ddMultiply(root, weight), root);
