@@ -7,7 +7,7 @@ import {
   hermiticityDefect,
 } from '../linear-algebra/complex-matrix.js';
 import { eigh, eigvalsh } from '../linear-algebra/eigen.js';
-import type { Objective, ObjectiveEvaluation, ReferenceBlocks, BranchSupport, IdentitySplit } from '../objectives/index.js';
+import { largestDimension, type Objective, type ObjectiveEvaluation, type ReferenceBlocks, type BranchSupport, type IdentitySplit } from '../objectives/index.js';
 import type { Problem } from '../problem/model.js';
 import { compressToFace, faceContinuityMargin, type FeasibleFace } from '../problem/feasible-face.js';
 import { matrixFromJson } from '../problem/json.js';
@@ -244,22 +244,21 @@ export function certificateBreakdown(
 const CLOSED_FORM_MAX_DIMENSION = 128;
 
 /**
- * Largest cluster of smallest eigenvectors of ∇F − Σ yΓ whose curvature is measured (k² difference quotients, each
- * a gradient evaluation): 8 while ρ and every branch output have dimension at most 32 (d32#3 Petz-up: S's gap opens
- * at k = 5–6, and with 4 the margin was the Weyl charge, 1.3e-5 against 7.3e-7; 120 ms there), 4 otherwise, where
- * result assembly, which cannot be interrupted, would spend seconds on it (a small face of a large space keeps
- * large outputs).
- */
-/**
  * Share of the certificate's requested gap at which a curvature charge is enough (derived from the stored settings, so
  * `verify` stops where the solver did): on bb84-prepare-measure η = 0.1 sandwiched-up the clusters grew to 8
  * eigenvectors for a charge already far below 1e-6, 1.5 ms of its 4 ms (measured 2026-12-03).
  */
 export const CURVATURE_ENOUGH_SHARE = 1e-3;
 
-function curvatureClusterLimit(objective: Objective, n: number): number {
-  const largest = objective.supports.reduce((size, support) => Math.max(size, support.dimension), n);
-  return largest <= 32 ? 8 : 4;
+/**
+ * Largest cluster of smallest eigenvectors of ∇F − Σ yΓ whose curvature is measured (k² difference quotients, each
+ * a gradient evaluation): 8 while ρ and every branch output have dimension at most 32 (d32#3 Petz-up: S's gap opens
+ * at k = 5–6, and with 4 the margin was the Weyl charge, 1.3e-5 against 7.3e-7; 120 ms there), 4 otherwise, where
+ * result assembly, which cannot be interrupted, would spend seconds on it (a small face of a large space keeps
+ * large outputs).
+ */
+function curvatureClusterLimit(objective: Objective): number {
+  return largestDimension(objective) <= 32 ? 8 : 4;
 }
 
 /**
@@ -285,7 +284,7 @@ function curvatureCharge(
   enough = 0,
 ): number {
   const { values, vectors } = spectrum;
-  const clusters = Math.min(values.length - 1, curvatureClusterLimit(objective, values.length));
+  const clusters = Math.min(values.length - 1, curvatureClusterLimit(objective));
   let best = ceiling;
   if (best <= enough) return best;
   let curvature: ReturnType<Objective['outputCurvature']> | undefined;

@@ -4,11 +4,21 @@
 // its branch term (petz-down-lifted.ts; petz-up-lifted.ts for Petz-up and sandwiched-up; von-neumann-lifted.ts).
 // Shared by the solver and the verifier.
 import { ComplexMatrix, frobeniusNorm, multiply } from '../linear-algebra/complex-matrix.js';
-import { DD_UNIT_ROUNDOFF, ddAddScaled, ddBlock, ddHermitianEigen, DdMatrix, ddMultiply, type DdEigen } from '../linear-algebra/double-double-matrix.js';
+import {
+  DD_UNIT_ROUNDOFF,
+  ddAddScaled,
+  ddBlock,
+  ddHermitianEigen,
+  DdMatrix,
+  ddMultiply,
+  ddScalarIdentity,
+  ddTrace,
+  type DdEigen,
+} from '../linear-algebra/double-double-matrix.js';
 import { BACKWARD_ERROR_CONSTANT, UNIT_ROUNDOFF } from '../linear-algebra/rounding.js';
 import { eigvalsh } from '../linear-algebra/eigen.js';
 import { isKeyless, type BranchSupport } from '../objectives/branch-supports.js';
-import { branchWeight, logCoefficient, type Objective } from '../objectives/index.js';
+import { branchWeight, largestDimension, logCoefficient, type Objective } from '../objectives/index.js';
 
 /**
  * Relative error of a power λ^p or a divided difference of t^p formed in double from a double-double eigenvalue
@@ -66,12 +76,7 @@ export type BranchLifter = (
 
 /** A branch without key for the Petz kinds: Q̄(X‖X) = Tr X exactly, gradient 1. */
 export function traceBranch(x: DdMatrix, formingError: number): BranchLift {
-  const m = x.rows;
-  let trace = 0;
-  for (let i = 0; i < m; i++) trace += x.reHigh[i * m + i] + x.reLow[i * m + i];
-  const gradient = new DdMatrix(m, m);
-  for (let i = 0; i < m; i++) gradient.reHigh[i * m + i] = 1;
-  return { term: trace, termError: formingError * Math.sqrt(m), gradient, gradientError: 0, faceError: 0 };
+  return { term: ddTrace(x), termError: formingError * Math.sqrt(x.rows), gradient: ddScalarIdentity(x.rows, 1), gradientError: 0, faceError: 0 };
 }
 
 /**
@@ -89,7 +94,7 @@ export const DOUBLE_DOUBLE_LIFT_CANCELLED_DIMENSION = 40;
 
 /** Whether the problem is small enough for a double-double lift (by default the solver's and verifier's limit). */
 export function fitsDoubleDoubleLift(objective: Objective, limit = DOUBLE_DOUBLE_LIFT_MAX_DIMENSION): boolean {
-  return Math.max(objective.dimension, ...objective.supports.map((s) => s.dimension)) <= limit;
+  return largestDimension(objective) <= limit;
 }
 
 /** Σ_j K_j·A·K_j† with doubles K_j, in double-double. */

@@ -18,7 +18,7 @@ import {
 } from '../linear-algebra/complex-matrix.js';
 import { eigh, eigvalsh } from '../linear-algebra/eigen.js';
 import { BACKWARD_ERROR_CONSTANT, UNIT_ROUNDOFF } from '../linear-algebra/rounding.js';
-import { isKeyless, type BranchSupport } from '../objectives/branch-supports.js';
+import { isKeyless } from '../objectives/branch-supports.js';
 import { createObjective, type IdentitySplit, type Objective, type ReferenceBlocks } from '../objectives/index.js';
 import { logCoefficient } from '../objectives/objective.js';
 import type { FeasibleFace } from '../problem/feasible-face.js';
@@ -28,7 +28,7 @@ import { dualPart, eulerInnerProduct, referenceTerm } from './dual-term.js';
 import { quasiEntropyFaceCharges, vonNeumannFaceCharge } from './face-block-charge.js';
 import { fitsDoubleDoubleLift, liftInDoubleDouble, type DoubleDoubleLiftTerms } from './double-double-lift.js';
 import { petzDownBranch } from './petz-down-lifted.js';
-import { outputKernel, petzUpBranch, sandwichedBranch } from './petz-up-lifted.js';
+import { petzUpBranch, rankProvedByShapes, sandwichedBranch } from './petz-up-lifted.js';
 import { vonNeumannBranch } from './von-neumann-lifted.js';
 
 /**
@@ -89,9 +89,9 @@ export function faceBoundApplies(problem: Problem, request: Required<EntropyRequ
   const { supports } = objective;
   if (request.kind === 'petz-down' && !fitsDoubleDoubleLift(objective)) return false;
   // Petz-up and sandwiched-up in double-double also take an output rank deficient on its support, where its rank is
-  // proved by the Kraus operators' shapes (`outputKernel`).
+  // proved by the Kraus operators' shapes (`rankProvedByShapes`).
   const kernelLift = request.kind !== 'petz-down' && fitsDoubleDoubleLift(objective);
-  return supports.every((support) => isKeyless(support) || support.outputRange === null || (kernelLift && provedRank(support)));
+  return supports.every((support) => isKeyless(support) || support.outputRange === null || (kernelLift && rankProvedByShapes(support)));
 }
 
 /** Orthonormal bases of the face and of its complement from one eigendecomposition of P·P†. */
@@ -386,15 +386,4 @@ function blockBoundOf(
     bound,
     norms: { face: frobeniusNorm(onFace), cross: frobeniusNorm(cross), complement: frobeniusNorm(offFaceBlock) },
   };
-}
-
-/** Whether `outputKernel` accepts the support (its rank proved by the Kraus operators' shapes). */
-function provedRank(support: BranchSupport): boolean {
-  try {
-    outputKernel(support);
-    return true;
-  } catch (error) {
-    if (error instanceof RangeError) return false;
-    throw error;
-  }
 }

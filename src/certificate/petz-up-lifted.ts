@@ -10,7 +10,9 @@ import {
   ddDaleckiiKrein,
   ddHermitianEigen,
   ddMultiply,
+  ddScalarIdentity,
   ddSpectral,
+  ddTrace,
 } from '../linear-algebra/double-double-matrix.js';
 import { dividedDifferences, powerFunction } from '../linear-algebra/matrix-functions.js';
 import { BACKWARD_ERROR_CONSTANT, UNIT_ROUNDOFF } from '../linear-algebra/rounding.js';
@@ -163,12 +165,15 @@ export function sandwichedProduct(
   // ‖M₀u‖ ≤ ε + additive, so its part on that range is at most (ε + additive)/λ_min⁺(M₀) and ‖U₀†N_j‖ ≤ θ·‖N_j‖ (derived).
   // The E entries between the kernel and the rest reach the face block only through those rows: the cross term.
   const mEigen = withoutKernel(roundedEigen(eigenM), kernel);
-  const offKernel = (kernelRadius + additive) / lowM + 2 * defectM;
-  const kernelRows = seen.reduce((sum, a) => {
-    const norm = frobeniusNorm(a) + seenSlack * Math.sqrt(m);
-    return sum + norm * (offKernel * norm + seenSlack * Math.sqrt(kernel));
-  }, 0);
-  const kernelCross = kernel > 0 ? 2 * omega * lowM ** p * ((across * additive) / lowM + 2 * acrossCongruence * congruence) * kernelRows : 0;
+  let kernelCross = 0;
+  if (kernel > 0) {
+    const offKernel = (kernelRadius + additive) / lowM + 2 * defectM;
+    const kernelRows = seen.reduce((sum, a) => {
+      const norm = frobeniusNorm(a) + seenSlack * Math.sqrt(m);
+      return sum + norm * (offKernel * norm + seenSlack * Math.sqrt(kernel));
+    }, 0);
+    kernelCross = 2 * omega * lowM ** p * ((across * additive) / lowM + 2 * acrossCongruence * congruence) * kernelRows;
+  }
   const directFace =
     omega * clusterCharge(mEigen, seen, powerDividedDifference(p), additive, false, seenSlack) +
     omega * clusterCharge(mEigen, seen, (a, b) => Math.min(a, b) ** p, 2 * congruence, true, seenSlack) +
@@ -210,15 +215,13 @@ export function sandwichedBranch(
   const m = support.dimension;
   if (isKeyless(support)) {
     const t = reference[0].re[0];
-    let trace = 0;
-    for (let i = 0; i < m; i++) trace += x.reHigh[i * m + i] + x.reLow[i * m + i];
+    const trace = ddTrace(x);
     const traceError = formingError * Math.sqrt(m);
     const low = trace - traceError;
     if (!(t > 0 && low > 0)) throw new RangeError('sandwiched-up lift: a branch without key has no weight');
     const quasiEntropy = t ** (1 - beta) * trace ** beta;
     const slope = beta * t ** (1 - beta) * trace ** (beta - 1);
-    const gradient = new DdMatrix(m, m);
-    for (let i = 0; i < m; i++) gradient.reHigh[i * m + i] = slope;
+    const gradient = ddScalarIdentity(m, slope);
     const referenceGradient = new DdMatrix(1, 1);
     referenceGradient.reHigh[0] = (1 - beta) * t ** -beta * trace ** beta;
     return {
@@ -254,11 +257,15 @@ export function sandwichedBranch(
  * rank rests on a numerical decision, and the lift refuses.
  */
 export function outputKernel(support: BranchSupport): number {
+  if (!support.outputRange) return 0;
+  if (!rankProvedByShapes(support)) throw new RangeError('lift: the output range is not proved by the Kraus operators\' shapes');
+  return support.dimension - support.outputRange.cols;
+}
+
+/** Whether the output range's dimension is Σ_j (columns of K_j), an upper bound on rank X_c at every point. */
+export function rankProvedByShapes(support: BranchSupport): boolean {
   const range = support.outputRange;
-  if (!range) return 0;
-  const columnsTotal = support.krausOperators.reduce((sum, k) => sum + k.cols, 0);
-  if (columnsTotal !== range.cols) throw new RangeError('lift: the output range is not proved by the Kraus operators\' shapes');
-  return support.dimension - range.cols;
+  return range === null || support.krausOperators.reduce((sum, k) => sum + k.cols, 0) === range.cols;
 }
 
 /** The eigenpairs from `kernel` on (the kernel's columns dropped). */

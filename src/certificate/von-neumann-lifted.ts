@@ -3,7 +3,15 @@
 // small eigenvalues lie in directions the face block sees, and a double eigensolver's error there costs more than the gap.
 import { frobeniusNorm, type ComplexMatrix } from '../linear-algebra/complex-matrix.js';
 import { eigvalsh } from '../linear-algebra/eigen.js';
-import { DdMatrix, ddAddScaled, ddHermitianEigen, ddMultiply, ddSpectral } from '../linear-algebra/double-double-matrix.js';
+import {
+  DdMatrix,
+  ddAddScaled,
+  ddHermitianEigen,
+  ddMultiply,
+  ddScalarIdentity,
+  ddSpectral,
+  ddTrace,
+} from '../linear-algebra/double-double-matrix.js';
 import { BACKWARD_ERROR_CONSTANT, UNIT_ROUNDOFF } from '../linear-algebra/rounding.js';
 import { isKeyless, type BranchSupport } from '../objectives/branch-supports.js';
 import { blockDiagonal, DD_STEP, ETA, pinchedSpectrum, rounded, scaleDd, type BranchLift } from './double-double-lift.js';
@@ -23,17 +31,15 @@ import { blockDiagonal, DD_STEP, ETA, pinchedSpectrum, rounded, scaleDd, type Br
 export function vonNeumannBranch(support: BranchSupport, x: DdMatrix, formingError: number): BranchLift {
   const m = support.dimension;
   const score = support.score;
-  let trace = 0;
-  for (let i = 0; i < m; i++) trace += x.reHigh[i * m + i] + x.reLow[i * m + i];
+  const trace = ddTrace(x);
   const traceError = formingError * Math.sqrt(m) + DD_STEP * m * Math.abs(trace);
-  const scoreGradient = new DdMatrix(m, m);
-  for (let i = 0; i < m; i++) scoreGradient.reHigh[i * m + i] = -score;
+  const scoreGradient = ddScalarIdentity(m, -score);
   // No key: D(X‖X) = 0 exactly, only the score's linear term.
   if (isKeyless(support)) {
     return { term: -score * trace, termError: Math.abs(score) * traceError, gradient: scoreGradient, gradientError: 0, faceError: 0 };
   }
   const range = support.outputRange;
-  const congruence = range ? rangeCongruence(support, range) : 0;
+  const congruence = range ? cachedRangeCongruence(support, range) : 0;
   if (!(congruence < 0.1)) throw new RangeError('von Neumann lift: the output range basis is too far from the exact range');
   const rangeDd = range ? DdMatrix.from(range) : null;
   const compressed = rangeDd ? ddMultiply(ddMultiply(rangeDd, x, true), rangeDd) : x;
@@ -71,7 +77,9 @@ export function vonNeumannBranch(support: BranchSupport, x: DdMatrix, formingErr
     DD_STEP * 8 * (m + r) * (rangeWeight * stateNorm + pinchedNorm);
   const entropy = (values: ArrayLike<number>) => Array.from(values).reduce((s, v) => s + v * Math.log(v), 0);
   const relative = (nats: number) => nats / Math.LN2;
-  const value = relative(entropy(lambda) - pinched.values.reduce((s, v) => s + entropy(v), 0)) - score * trace;
+  const stateEntropy = entropy(lambda);
+  const pinchedEntropies = pinched.values.map(entropy);
+  const value = relative(stateEntropy - pinchedEntropies.reduce((s, v) => s + v, 0)) - score * trace;
   // Each eigenvalue within its decomposition's error (Weyl) moves λ·ln λ by |1 + ln λ| per unit, and by 2δ relatively
   // under the range congruence; the products' ETA.
   const valueError =
@@ -79,17 +87,17 @@ export function vonNeumannBranch(support: BranchSupport, x: DdMatrix, formingErr
       errorX * logValues(lambda) +
         2 * congruence * Array.from(lambda).reduce((s, v) => s + v * (1 + Math.abs(Math.log(v))), 0) +
         pinched.error * pinched.values.reduce((s, v) => s + logValues(v), 0) +
-        ETA * (Math.abs(entropy(lambda)) + pinched.values.reduce((s, v) => s + Math.abs(entropy(v)), 0)),
+        ETA * (Math.abs(stateEntropy) + pinchedEntropies.reduce((s, v) => s + Math.abs(v), 0)),
     ) +
     Math.abs(score) * traceError;
-  const gradientError = relative(gradientNats);
+  // 1/ln 2 taken in double: a relative u on the logarithms.
+  const gradientError = relative(gradientNats) + UNIT_ROUNDOFF * relative(nats.frobeniusNorm());
   return {
     term: value,
     termError: valueError,
     gradient: ddAddScaled(scaleDd(nats, 1 / Math.LN2), scoreGradient, [0, 1]),
-    // 1/ln 2 taken in double: a relative u on the logarithms.
-    gradientError: gradientError + UNIT_ROUNDOFF * relative(nats.frobeniusNorm()),
-    faceError: gradientError + UNIT_ROUNDOFF * relative(nats.frobeniusNorm()),
+    gradientError,
+    faceError: gradientError,
   };
 }
 
@@ -120,12 +128,18 @@ export function rangeCongruence(support: BranchSupport, range: ComplexMatrix): n
   const rangeNorm = rd.frobeniusNorm();
   const rounding = DD_STEP * 8 * (m + r) * identityOutput.frobeniusNorm() * (rangeNorm + rangeNorm ** 3);
   const outside = (residual.frobeniusNorm() + rounding) / gramLowest;
-  const isometry = ddAddScaled(ddMultiply(rd, rd, true), identityDd(r), [0, -1]);
+  const isometry = ddAddScaled(ddMultiply(rd, rd, true), ddScalarIdentity(r, 1), [0, -1]);
   return isometry.frobeniusNorm() + DD_STEP * 8 * m * frobeniusNorm(range) ** 2 + outside ** 2;
 }
 
-function identityDd(n: number): DdMatrix {
-  const out = new DdMatrix(n, n);
-  for (let i = 0; i < n; i++) out.reHigh[i * n + i] = 1;
-  return out;
+/** `rangeCongruence` once per support: it depends on the problem alone (about 150 ms at d = 64), not on the point. */
+const congruences = new WeakMap<BranchSupport, number>();
+
+function cachedRangeCongruence(support: BranchSupport, range: ComplexMatrix): number {
+  let value = congruences.get(support);
+  if (value === undefined) {
+    value = rangeCongruence(support, range);
+    congruences.set(support, value);
+  }
+  return value;
 }

@@ -119,10 +119,12 @@ function liftedCertificate(
   // 2.9e-3, 1.0e-1 at the middle one), within the time `solve` reserved for it; a cancelled run frees its thread
   // instead, or tries the middle weight where that is quick.
   let weights = liftWeights(whole.objective);
-  if (liftsInDoubleDouble(whole.objective) && state.limit === 'time') weights = [weights[0]];
-  if (liftsInDoubleDouble(whole.objective) && state.limit === 'cancelled') {
-    if (!fitsDoubleDoubleLift(whole.objective, DOUBLE_DOUBLE_LIFT_CANCELLED_DIMENSION)) return null;
-    weights = [weights[Math.floor(weights.length / 2)]];
+  if (liftsInDoubleDouble(whole.objective)) {
+    if (state.limit === 'time') weights = [weights[0]];
+    if (state.limit === 'cancelled') {
+      if (!fitsDoubleDoubleLift(whole.objective, DOUBLE_DOUBLE_LIFT_CANCELLED_DIMENSION)) return null;
+      weights = [weights[Math.floor(weights.length / 2)]];
+    }
   }
   const blocks = faceBlocks(face);
   let best: { stored: StoredCertificate; claimed: BoundBreakdown } | null = null;

@@ -10,7 +10,7 @@ import { resolveSolverSettings, type SolveControl, type SolverSettings } from '.
 import { resultBase, setUp, type SetUpOutcome } from './setup.js';
 import { RunClock, SolveInterrupted, type ResultBase, type SolverSetup } from './state.js';
 import { hasLiftedFaceBound, liftsInDoubleDouble } from '../certificate/lifted-face.js';
-import { createObjective } from '../objectives/index.js';
+import { createObjective, largestDimension } from '../objectives/index.js';
 
 /** The last certification may run past the limit by this share of it (at least LAST_CERTIFICATE_MIN_MS)… */
 const LAST_CERTIFICATE_SHARE = 0.05;
@@ -60,8 +60,7 @@ function liftReserveMs(setup: SolverSetup): number {
   if (face.exposures.length === 0 || !hasLiftedFaceBound(entropy.kind)) return 0;
   const whole = createObjective(activeProblem, entropy);
   if (!liftsInDoubleDouble(whole)) return 0;
-  const largest = Math.max(whole.dimension, ...whole.supports.map((support) => support.dimension));
-  return LIFT_RESERVE_MS_AT_65 * (largest / 65) ** 3;
+  return LIFT_RESERVE_MS_AT_65 * (largestDimension(whole) / 65) ** 3;
 }
 
 /** The full space is tried after an uncertified face only while at least this share of the time limit is left. */

@@ -132,6 +132,20 @@ export function ddBlock(a: DdMatrix, r0: number, r1: number, c0: number, c1: num
   return out;
 }
 
+/** s·1 of size n (s a double). */
+export function ddScalarIdentity(n: number, s: number): DdMatrix {
+  const out = new DdMatrix(n, n);
+  for (let i = 0; i < n; i++) out.reHigh[i * n + i] = s;
+  return out;
+}
+
+/** Re Tr A, summed in doubles from the high and low parts. */
+export function ddTrace(a: DdMatrix): number {
+  let trace = 0;
+  for (let i = 0; i < a.rows; i++) trace += a.reHigh[i * a.cols + i] + a.reLow[i * a.cols + i];
+  return trace;
+}
+
 /** Re Tr(A·B). */
 export function ddTraceProduct(a: DdMatrix, b: DdMatrix): Dd {
   const { ddAddDd, ddDiffDd, ddMultDd } = dd();

@@ -1,6 +1,7 @@
 export {
   createObjective,
   branchWeight,
+  largestDimension,
   logCoefficient,
   normaliseRequest,
   sandwichedOrder,

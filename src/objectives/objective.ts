@@ -137,6 +137,11 @@ export function logCoefficient(request: Required<EntropyRequest>): number {
   throw new Error(`logCoefficient: ${kind} has no logarithm form`);
 }
 
+/** The largest of ρ's and the branch outputs' dimensions: what the costs of exact-arithmetic and cluster work scale with. */
+export function largestDimension(objective: Pick<Objective, 'dimension' | 'supports'>): number {
+  return objective.supports.reduce((size, support) => Math.max(size, support.dimension), objective.dimension);
+}
+
 /** β = α/(2α−1), the sandwiched order dual to α. */
 export function sandwichedOrder(alpha: number): number {
   return alpha / (2 * alpha - 1);
